@@ -1,0 +1,88 @@
+import path from 'node:path';
+import { loadConfig, type Config } from '../../server/config';
+import { createFakeGithub } from '../../server/fakes/github/fake-github';
+import { loadDemoPeople } from '../../server/db/demo-content';
+import { prepareDatabase, repoRoot } from './bootstrap';
+
+/** Ports and folders of the local instance; each one can be overridden from the environment. */
+export function localSettings(env = process.env) {
+  return {
+    pgPort: Number(env.BENCHPROOF_PG_PORT ?? 54320),
+    dataDir: path.resolve(repoRoot, env.BENCHPROOF_DATA_DIR ?? '.data/postgres'),
+    database: env.BENCHPROOF_DB_NAME ?? 'benchproof',
+  };
+}
+
+/** The demo people as the fake provider's accounts. */
+export function fakeAccounts() {
+  return loadDemoPeople().map((p) => ({
+    login: p.login,
+    id: p.githubId,
+    name: p.name,
+    email: p.email,
+    note: `${p.role}${p.shop ? ` · ${p.shop}` : ''} (invented demo person)`,
+  }));
+}
+
+/**
+ * The shared part of `npm start` and `npm run dev`: database ready, fakes running, config
+ * built. Returns the config and a function that stops everything started here.
+ */
+export async function bringUpLocal(overrides: Record<string, string> = {}) {
+  const s = localSettings();
+  const db = await prepareDatabase({
+    databaseUrl: process.env.DATABASE_URL,
+    dataDir: s.dataDir,
+    port: s.pgPort,
+    database: s.database,
+    seed: true,
+  });
+  if (db.migrated.length) console.log(`[db] migrations run: ${db.migrated.join(', ')}`);
+  if (db.seed?.created.length) console.log(`[db] demo accounts created: ${db.seed.created.join(', ')}`);
+
+  const config: Config = loadConfig({ ...process.env, DATABASE_URL: db.databaseUrl, ...overrides });
+  const stops: (() => Promise<void> | void)[] = [() => db.postgres?.stop()];
+  if (config.github.fake) {
+    const fake = createFakeGithub({
+      clientId: config.github.clientId,
+      clientSecret: config.github.clientSecret,
+      accounts: fakeAccounts(),
+      port: Number(new URL(config.github.webBase).port),
+    });
+    const url = await fake.listen();
+    console.log(`[fake-github] sign-in provider on ${url}`);
+    stops.unshift(() => fake.close());
+  }
+  return {
+    config,
+    async stopAll() {
+      for (const stop of stops) await stop();
+    },
+  };
+}
+
+/** Runs `stop` once on Ctrl-C or SIGTERM, then exits. */
+export function onShutdown(stop: () => Promise<void>) {
+  let stopping = false;
+  for (const signal of ['SIGINT', 'SIGTERM'] as const) {
+    process.on(signal, () => {
+      if (stopping) return;
+      stopping = true;
+      console.log(`\n[benchproof] ${signal}: stopping…`);
+      stop().then(
+        () => process.exit(0),
+        (err) => {
+          console.error(err);
+          process.exit(1);
+        },
+      );
+    });
+  }
+}
+
+/** The demo sign-ins, printed at start. */
+export function demoSignInLines(baseUrl: string) {
+  return loadDemoPeople().map(
+    (p) => `  ${p.login.padEnd(16)} ${p.role.padEnd(10)} ${p.name}   ${baseUrl}/auth/github?login=${p.login}`,
+  );
+}

@@ -1,0 +1,30 @@
+// `npm start`: database, migrations, demo data, client build, local fakes, then the server.
+import { startServer } from '../server/server';
+import { buildClientIfChanged } from './lib/client-build';
+import { bringUpLocal, demoSignInLines, onShutdown } from './lib/run-local';
+
+const local = await bringUpLocal({ NODE_ENV: process.env.NODE_ENV ?? 'production' });
+try {
+  const built = await buildClientIfChanged();
+  if (!built) console.log('[client] up to date');
+  const running = await startServer(local.config);
+  const url = local.config.publicUrl;
+  console.log(
+    [
+      '',
+      `Benchproof is running at ${url}`,
+      '',
+      'Demo sign-ins (invented people; the local provider approves them at once):',
+      ...demoSignInLines(url),
+      '',
+      'Ctrl-C stops everything this command started.',
+    ].join('\n'),
+  );
+  onShutdown(async () => {
+    await running.stop();
+    await local.stopAll();
+  });
+} catch (err) {
+  await local.stopAll();
+  throw err;
+}

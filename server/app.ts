@@ -1,0 +1,100 @@
+import fs from 'node:fs';
+import path from 'node:path';
+import express from 'express';
+import helmet from 'helmet';
+import { pinoHttp } from 'pino-http';
+import pg from 'pg';
+import type { Logger } from 'pino';
+import type { Sequelize } from 'sequelize';
+import type { Config } from './config';
+import { authRouter, meRouter } from './features/auth/auth.routes';
+import { createPassport } from './features/auth/auth.passport';
+import { healthRouter } from './features/health/health.routes';
+import { adminUsersRouter } from './features/users/users.routes';
+import { csrfProtection } from './http/csrf';
+import { apiNotFound, errorHandler } from './http/error-handler';
+import { mount } from './http/routes';
+import { sessionMiddleware } from './http/session';
+
+export interface AppDeps {
+  config: Config;
+  sequelize: Sequelize;
+  logger: Logger;
+}
+
+/** Builds the Express app (no listen). `close()` releases what the app itself opened. */
+export function createApp({ config, sequelize, logger }: AppDeps) {
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', config.trustProxy ? 1 : false);
+
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: true,
+        directives: {
+          'default-src': ["'self'"],
+          'script-src': ["'self'"],
+          // Radix positions popovers with inline style attributes.
+          'style-src': ["'self'", "'unsafe-inline'"],
+          'img-src': ["'self'", 'data:', 'blob:', 'https://avatars.githubusercontent.com'],
+          'media-src': ["'self'", 'blob:'],
+          'font-src': ["'self'"],
+          'connect-src': ["'self'"],
+          'frame-ancestors': ["'none'"],
+          'form-action': ["'self'"],
+          'object-src': ["'none'"],
+          'upgrade-insecure-requests': config.publicUrl.startsWith('https:') ? [] : null,
+        },
+      },
+      strictTransportSecurity: config.publicUrl.startsWith('https:'),
+    }),
+  );
+  app.use(
+    pinoHttp({
+      logger,
+      autoLogging: { ignore: (req) => req.url?.startsWith('/assets/') ?? false },
+      redact: ['req.headers.cookie', 'req.headers["x-csrf-token"]', 'res.headers["set-cookie"]'],
+    }),
+  );
+  app.use(express.json({ limit: '256kb' }));
+
+  const sessionPool = new pg.Pool({ connectionString: config.databaseUrl, max: 5 });
+  app.use(sessionMiddleware(config, sessionPool));
+  const passport = createPassport(config);
+  app.use(passport.initialize());
+  app.use(passport.session());
+
+  const csrf = csrfProtection();
+  app.use(csrf.protect);
+
+  mount(app, '/auth', authRouter(passport, { signInLimit: config.signInRateLimit }));
+  mount(app, '/api/health', healthRouter(sequelize));
+  mount(app, '/api/csrf-token', csrf.tokenRouter);
+  mount(app, '/api/me', meRouter);
+  mount(app, '/api/admin/users', adminUsersRouter);
+
+  app.use(['/api', '/auth'], apiNotFound);
+  serveClient(app, config);
+  app.use(errorHandler);
+
+  return {
+    app,
+    async close() {
+      await sessionPool.end();
+    },
+  };
+}
+
+/** The built client: hashed assets cached for a year, every other GET answered with index.html. */
+function serveClient(app: express.Express, config: Config) {
+  const dir = path.resolve(config.clientDir);
+  const index = path.join(dir, 'index.html');
+  app.use('/assets', express.static(path.join(dir, 'assets'), { immutable: true, maxAge: '1y', fallthrough: false }));
+  app.use(express.static(dir, { index: false, maxAge: '1h' }));
+  app.get('/{*splat}', (_req, res, next) => {
+    if (!fs.existsSync(index)) return next();
+    res.set('Cache-Control', 'no-cache');
+    res.sendFile(index);
+  });
+}

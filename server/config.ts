@@ -1,0 +1,96 @@
+import { z } from 'zod';
+
+const port = z.coerce.number().int().min(0).max(65535);
+
+/**
+ * Every setting the server reads from the environment, parsed once. Nothing else in the
+ * server reads process.env; code receives a Config.
+ */
+const envSchema = z.object({
+  NODE_ENV: z.enum(['development', 'test', 'production']).default('development'),
+  HOST: z.string().default('127.0.0.1'),
+  PORT: port.default(3000),
+  /** Public base URL of the site, used for OAuth callbacks and e-mail links. */
+  PUBLIC_URL: z.string().url().optional(),
+  DATABASE_URL: z.string().default('postgres://benchproof@127.0.0.1:54320/benchproof'),
+  SESSION_SECRET: z.string().min(16).default('benchproof-local-development-secret'),
+  /** Set both to use the real GitHub; leave both unset to use the local fake provider. */
+  GITHUB_CLIENT_ID: z.string().optional(),
+  GITHUB_CLIENT_SECRET: z.string().optional(),
+  FAKE_GITHUB_PORT: port.default(3101),
+  FAKE_GITHUB_URL: z.string().url().optional(),
+  LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
+  /** "1" marks the cookie Secure even without a TLS-terminating proxy header. */
+  COOKIE_SECURE: z.enum(['0', '1', 'auto']).default('auto'),
+  TRUST_PROXY: z.enum(['0', '1']).default('0'),
+  MEDIA_DIR: z.string().default('media'),
+  CLIENT_DIR: z.string().default('dist/client'),
+  SIGN_IN_RATE_LIMIT: z.coerce.number().int().positive().default(30),
+});
+
+export type Env = z.infer<typeof envSchema>;
+
+export interface Config {
+  env: Env['NODE_ENV'];
+  host: string;
+  port: number;
+  publicUrl: string;
+  databaseUrl: string;
+  sessionSecret: string;
+  github: {
+    clientId: string;
+    clientSecret: string;
+    /** Base of the authorize and token URLs (https://github.com or the fake). */
+    webBase: string;
+    /** Base of the REST API (https://api.github.com or the fake). */
+    apiBase: string;
+    fake: boolean;
+  };
+  logLevel: Env['LOG_LEVEL'];
+  cookieSecure: boolean | 'auto';
+  trustProxy: boolean;
+  mediaDir: string;
+  clientDir: string;
+  signInRateLimit: number;
+}
+
+/** Parses the environment into a Config; throws with every problem listed. */
+export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
+  const parsed = envSchema.safeParse(source);
+  if (!parsed.success) {
+    const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`);
+    throw new Error(`The environment has settings Benchproof cannot use:\n${lines.join('\n')}`);
+  }
+  const e = parsed.data;
+  const realGithub = Boolean(e.GITHUB_CLIENT_ID && e.GITHUB_CLIENT_SECRET);
+  const fakeBase = e.FAKE_GITHUB_URL ?? `http://127.0.0.1:${e.FAKE_GITHUB_PORT}`;
+  return {
+    env: e.NODE_ENV,
+    host: e.HOST,
+    port: e.PORT,
+    publicUrl: (e.PUBLIC_URL ?? `http://127.0.0.1:${e.PORT}`).replace(/\/$/, ''),
+    databaseUrl: e.DATABASE_URL,
+    sessionSecret: e.SESSION_SECRET,
+    github: realGithub
+      ? {
+          clientId: e.GITHUB_CLIENT_ID!,
+          clientSecret: e.GITHUB_CLIENT_SECRET!,
+          webBase: 'https://github.com',
+          apiBase: 'https://api.github.com',
+          fake: false,
+        }
+      : {
+          clientId: 'benchproof-local',
+          clientSecret: 'benchproof-local-secret',
+          webBase: fakeBase,
+          apiBase: fakeBase,
+          fake: true,
+        },
+    logLevel: e.LOG_LEVEL,
+    cookieSecure: e.COOKIE_SECURE === 'auto' ? 'auto' : e.COOKIE_SECURE === '1',
+    trustProxy: e.TRUST_PROXY === '1',
+    mediaDir: e.MEDIA_DIR,
+    clientDir: e.CLIENT_DIR,
+    signInRateLimit: e.SIGN_IN_RATE_LIMIT,
+  };
+}

@@ -1,0 +1,31 @@
+import { Router } from 'express';
+import { csrfSync } from 'csrf-sync';
+import { csrfHeaderName } from '@shared/http/error.schema';
+import { access } from './authorize';
+
+/** Paths that change nothing but take POST, so they are exempt (the public calculator). */
+const exempt = new Set(['/api/calc']);
+
+/**
+ * Synchroniser-token CSRF protection (csrf-sync): the token lives in the session, the client
+ * reads it from GET /api/csrf-token and sends it in the x-csrf-token header on every
+ * POST/PUT/PATCH/DELETE. SameSite=Lax cookies are a second layer, not the only one.
+ */
+export function csrfProtection() {
+  const { csrfSynchronisedProtection, generateToken } = csrfSync({
+    getTokenFromRequest: (req) => {
+      const value = req.headers[csrfHeaderName];
+      return Array.isArray(value) ? value[0] : value;
+    },
+    skipCsrfProtection: (req) => exempt.has(req.path),
+    errorConfig: { statusCode: 403, code: 'EBADCSRFTOKEN', message: 'invalid csrf token' },
+  });
+
+  const tokenRouter = Router();
+  tokenRouter.get('/', access.public, (req, res) => {
+    res.set('Cache-Control', 'no-store');
+    res.json({ token: generateToken(req) });
+  });
+
+  return { protect: csrfSynchronisedProtection, tokenRouter };
+}

@@ -1,0 +1,51 @@
+import { z } from 'zod';
+
+/** Every role a Benchproof account can hold, lowest privilege first. New accounts are followers. */
+export const roles = ['follower', 'builder', 'moderator', 'admin'] as const;
+
+/** Schema of a role name. */
+export const roleSchema = z.enum(roles);
+
+/** A role name. */
+export type Role = z.infer<typeof roleSchema>;
+
+/** A user as the API shows it to the user themselves and to admins. */
+export const userSchema = z.object({
+  id: z.number().int().positive(),
+  login: z.string(),
+  displayName: z.string(),
+  email: z.string().nullable(),
+  avatarUrl: z.string().nullable(),
+  shop: z.string().nullable(),
+  role: roleSchema,
+  createdAt: z.string(),
+});
+
+/** A user as the API shows it. */
+export type User = z.infer<typeof userSchema>;
+
+/** Response of `GET /api/me`. */
+export const meResponseSchema = z.object({ user: userSchema });
+export type MeResponse = z.infer<typeof meResponseSchema>;
+
+/** Body of `PATCH /api/admin/users/:id`. */
+export const changeRoleBodySchema = z.object({ role: roleSchema }).strict();
+export type ChangeRoleBody = z.infer<typeof changeRoleBodySchema>;
+
+/** Path parameters naming one user. */
+export const userIdParamsSchema = z.object({ id: z.coerce.number().int().positive() });
+
+/** Query of `GET /api/admin/users`: keyset pagination by id, optional role filter. */
+export const listUsersQuerySchema = z.object({
+  after: z.coerce.number().int().nonnegative().optional(),
+  limit: z.coerce.number().int().min(1).max(100).default(50),
+  role: roleSchema.optional(),
+});
+export type ListUsersQuery = z.infer<typeof listUsersQuerySchema>;
+
+/** Response of `GET /api/admin/users`. `nextAfter` is null on the last page. */
+export const listUsersResponseSchema = z.object({
+  items: z.array(userSchema),
+  nextAfter: z.number().int().nullable(),
+});
+export type ListUsersResponse = z.infer<typeof listUsersResponseSchema>;

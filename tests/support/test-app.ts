@@ -1,0 +1,92 @@
+import { inject } from 'vitest';
+import request from 'supertest';
+import { createApp } from '../../server/app';
+import { loadConfig } from '../../server/config';
+import { createSequelize } from '../../server/db/sequelize';
+import { initModels } from '../../server/db/models';
+import { createLogger } from '../../server/logger';
+import { createFakeGithub, type FakeAccount } from '../../server/fakes/github/fake-github';
+import { fakeAccounts } from '../../scripts/lib/run-local';
+
+let shared: ReturnType<typeof createSequelize> | null = null;
+let users = 0;
+function sharedSequelize() {
+  if (!shared) {
+    shared = createSequelize(inject('databaseUrl'));
+    initModels(shared);
+  }
+  return shared;
+}
+
+/**
+ * A real app on the test database with its own fake GitHub on a free loopback port.
+ * Call in beforeAll; `close()` in afterAll.
+ */
+export async function startTestApp(env: Record<string, string> = {}) {
+  const fakeBase = { clientId: 'benchproof-local', clientSecret: 'benchproof-local-secret' };
+  const fake = createFakeGithub({ ...fakeBase, accounts: fakeAccounts(), port: 0 });
+  const fakeUrl = await fake.listen();
+  const config = loadConfig({
+    NODE_ENV: 'test',
+    DATABASE_URL: inject('databaseUrl'),
+    FAKE_GITHUB_URL: fakeUrl,
+    PUBLIC_URL: 'http://127.0.0.1:3999',
+    LOG_LEVEL: 'silent',
+    SIGN_IN_RATE_LIMIT: '1000',
+    ...env,
+  });
+  // Models are bound once per test file to the test database; an app given another
+  // DATABASE_URL (to see a broken database) gets its own instance for health checks only.
+  const own = env.DATABASE_URL ? createSequelize(config.databaseUrl) : null;
+  const sequelize = own ?? sharedSequelize();
+  if (!own) users += 1;
+  const logger = createLogger(config);
+  const built = createApp({ config, sequelize, logger });
+  return {
+    app: built.app,
+    config,
+    fake,
+    sequelize,
+    async close() {
+      await built.close();
+      await fake.close();
+      if (own) await own.close();
+      else if (--users === 0) {
+        await shared!.close();
+        shared = null;
+      }
+    },
+  };
+}
+
+export type TestApp = Awaited<ReturnType<typeof startTestApp>>;
+
+/** A never-seen account in the fake provider, for tests that need a fresh person. */
+export function freshAccount(t: TestApp, prefix = 'visitor'): FakeAccount {
+  const n = Math.floor(Math.random() * 1e9);
+  const account = { login: `${prefix}-${n}`.slice(0, 39), id: 2_000_000_000 + (n % 100_000_000), name: `Test ${prefix} ${n}`, email: `${prefix}-${n}@test.example` };
+  t.fake.addAccount(account);
+  return account;
+}
+
+/**
+ * Signs in through the whole OAuth round trip (our /auth/github → the fake's authorize →
+ * our callback) and returns a supertest agent holding the session cookie.
+ */
+export async function signIn(t: TestApp, login: string) {
+  const agent = request.agent(t.app);
+  const start = await agent.get(`/auth/github?login=${encodeURIComponent(login)}`).expect(302);
+  const authorize = await fetch(start.headers.location!, { redirect: 'manual' });
+  const callback = new URL(authorize.headers.get('location')!);
+  const done = await agent.get(callback.pathname + callback.search);
+  if (done.status !== 302 || done.headers.location?.startsWith('/sign-in')) {
+    throw new Error(`sign-in as ${login} did not complete: ${done.status} ${done.headers.location}`);
+  }
+  return agent;
+}
+
+/** A CSRF token for an agent's session. */
+export async function csrfToken(agent: ReturnType<typeof request.agent>) {
+  const res = await agent.get('/api/csrf-token').expect(200);
+  return res.body.token as string;
+}
