@@ -39,6 +39,10 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     res.status(403).json(body('csrf_invalid', 'This request is missing its security token. Reload the page and try again.'));
     return;
   }
+  if (status === 404) {
+    res.status(404).json(body('not_found', 'There is nothing at this address.'));
+    return;
+  }
   if (status >= 400 && status < 500) {
     const message =
       err?.type === 'entity.parse.failed'
