@@ -32,6 +32,10 @@ export type MeResponse = z.infer<typeof meResponseSchema>;
 export const changeRoleBodySchema = z.object({ role: roleSchema }).strict();
 export type ChangeRoleBody = z.infer<typeof changeRoleBodySchema>;
 
+/** Response of `PATCH /api/admin/users/:id`. */
+export const changeRoleResponseSchema = z.object({ user: userSchema });
+export type ChangeRoleResponse = z.infer<typeof changeRoleResponseSchema>;
+
 /** Path parameters naming one user. */
 export const userIdParamsSchema = z.object({ id: z.coerce.number().int().positive() });
 

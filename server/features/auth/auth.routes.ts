@@ -61,10 +61,10 @@ function finishSignIn(passport: ReturnType<typeof createPassport>): RequestHandl
     passport.authenticate('github', (err: unknown, user: Express.User | false, info: { message?: string } | undefined) => {
       if (err) {
         req.log.warn({ err }, 'sign-in failed at the provider');
-        return res.redirect('/sign-in?error=provider');
+        return res.redirect('/sign-in?error=github_unavailable');
       }
       if (!user) {
-        const reason = req.query.error === 'access_denied' ? 'cancelled' : /state/i.test(info?.message ?? '') ? 'state' : 'failed';
+        const reason = req.query.error === 'access_denied' ? 'cancelled' : /state/i.test(info?.message ?? '') ? 'state_mismatch' : 'failed';
         return res.redirect(`/sign-in?error=${reason}`);
       }
       const returnTo = req.session.returnTo;

@@ -65,7 +65,7 @@ describe('signing in through the fake GitHub provider', () => {
     const callback = new URL(authorize.headers.get('location')!);
     callback.searchParams.set('state', 'forged-state-value');
     const done = await agent.get(callback.pathname + callback.search).expect(302);
-    expect(done.headers.location).toBe('/sign-in?error=state');
+    expect(done.headers.location).toBe('/sign-in?error=state_mismatch');
     await agent.get('/api/me').expect(401);
   });
 

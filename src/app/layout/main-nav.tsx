@@ -1,0 +1,47 @@
+import { NavLink } from 'react-router-dom';
+import type { User } from '@shared/users/user.schema';
+import { canOpen, type Area } from '@/features/auth/lib/access';
+import { cn } from '@/lib/cn';
+
+interface NavEntry {
+  to: string;
+  label: string;
+  /** Shown only to roles that may open this area; absent = everyone. */
+  area?: Area;
+  end?: boolean;
+}
+
+const entries: NavEntry[] = [
+  { to: '/', label: 'Stories', end: true },
+  { to: '/calculator', label: 'Calculator' },
+  { to: '/builds', label: 'My builds', area: 'builds' },
+  { to: '/review', label: 'Review queue', area: 'review' },
+  { to: '/admin/users', label: 'Users', area: 'adminUsers' },
+];
+
+/** The main navigation; role-gated entries appear only for roles that may open them. */
+export function MainNav({ user }: { user: User | null | undefined }) {
+  const visible = entries.filter((entry) => !entry.area || canOpen(entry.area, user?.role));
+  return (
+    <nav aria-label="Main" data-print="hide" className="-mx-2 overflow-x-auto">
+      <ul className="flex items-center gap-1 px-2">
+        {visible.map((entry) => (
+          <li key={entry.to}>
+            <NavLink
+              to={entry.to}
+              end={entry.end}
+              className={({ isActive }) =>
+                cn(
+                  'block border-b-2 px-2 py-1.5 text-sm whitespace-nowrap text-ink no-underline hover:text-ink',
+                  isActive ? 'border-ink font-semibold' : 'border-transparent hover:border-rule',
+                )
+              }
+            >
+              {entry.label}
+            </NavLink>
+          </li>
+        ))}
+      </ul>
+    </nav>
+  );
+}

@@ -1,0 +1,48 @@
+import { createBrowserRouter } from 'react-router-dom';
+import { authQueries } from '@/features/auth/api/auth-queries';
+import { queryClient } from '@/lib/query-client';
+import { AppLayout } from './layout/app-layout';
+import { HydrateFallback } from './routes/hydrate-fallback';
+import { NotFoundPage } from './routes/not-found-page';
+import { RootError, RouteError } from './routes/route-error';
+
+/**
+ * The shell needs to know who is signed in before it draws the navigation.
+ * prefetch (not ensure): if /api/me fails, the header shows its own retry
+ * rather than the whole app showing an error page.
+ */
+async function rootLoader() {
+  await queryClient.prefetchQuery(authQueries.me());
+  return null;
+}
+
+/**
+ * Every page is a lazy route module exporting `Component` and, when it needs
+ * data or a guard, `loader`. Role-gated pages call `requireArea` in their loader.
+ */
+export const router = createBrowserRouter([
+  {
+    id: 'root',
+    path: '/',
+    Component: AppLayout,
+    loader: rootLoader,
+    HydrateFallback,
+    errorElement: <RootError />,
+    children: [
+      {
+        // Pathless: errors below render inside the shell, header and footer intact.
+        errorElement: <RouteError />,
+        children: [
+          { index: true, lazy: () => import('@/features/stories/routes/home-page') },
+          { path: 'sign-in', lazy: () => import('@/features/auth/routes/sign-in-page') },
+          { path: 'calculator', lazy: () => import('@/features/calc/routes/calculator-page') },
+          { path: 'builds', lazy: () => import('@/features/builds/routes/builds-page') },
+          { path: 'review', lazy: () => import('@/features/review/routes/review-page') },
+          { path: 'admin/users', lazy: () => import('@/features/admin/routes/users-page') },
+          // Not lazy: the error boundary shows the same page for loader 404s.
+          { path: '*', Component: NotFoundPage },
+        ],
+      },
+    ],
+  },
+]);

@@ -1,0 +1,98 @@
+import type { ComponentProps, ReactNode } from 'react';
+import { verdictWords, type Verdict } from '@shared/measure/spec';
+import { cn } from '@/lib/cn';
+
+export type BadgeTone = 'neutral' | 'strong' | 'accent';
+
+const tones: Record<BadgeTone, string> = {
+  neutral: 'border-rule bg-paper-2 text-ink',
+  strong: 'border-ink bg-ink text-paper',
+  accent: 'border-accent/40 bg-accent-wash text-accent-strong',
+};
+
+/** A small label: a role, a status, a count. */
+export function Badge({ tone = 'neutral', className, ...props }: ComponentProps<'span'> & { tone?: BadgeTone }) {
+  return (
+    <span
+      className={cn(
+        'inline-flex items-center gap-1 rounded-sm border px-1.5 py-px text-xs font-medium whitespace-nowrap',
+        tones[tone],
+        className,
+      )}
+      {...props}
+    />
+  );
+}
+
+/** A verdict code (from shared/measure): in the band, outside it, or too close to the limit to say. */
+export type VerdictCode = Verdict;
+
+/** Sentence-case words for a verdict, from the shared vocabulary ("Within spec"). */
+export function verdictLabel(verdict: VerdictCode): string {
+  const words = verdictWords[verdict];
+  return words.charAt(0).toUpperCase() + words.slice(1);
+}
+
+const verdictColour: Record<VerdictCode, string> = {
+  conforms: 'text-verdict-conforms',
+  'does-not-conform': 'text-verdict-nonconform',
+  undecided: 'text-verdict-undecided',
+};
+
+/**
+ * The verdict's shape alone: filled circle, open cross, half-filled diamond.
+ * Decorative unless `label` is given (then it is an image with that name).
+ */
+export function VerdictMark({ verdict, label, className }: { verdict: VerdictCode; label?: string; className?: string }) {
+  const a11y = label ? { role: 'img', 'aria-label': label } : { 'aria-hidden': true as const };
+  return (
+    <svg viewBox="0 0 16 16" className={cn('size-[1.05em] shrink-0', verdictColour[verdict], className)} {...a11y}>
+      {verdict === 'conforms' && <circle cx="8" cy="8" r="5.75" fill="currentColor" />}
+      {verdict === 'does-not-conform' && (
+        <path
+          transform="rotate(45 8 8)"
+          d="M6.1 1.6h3.8v4.5h4.5v3.8H9.9v4.5H6.1V9.9H1.6V6.1h4.5z"
+          fill="none"
+          stroke="currentColor"
+          strokeWidth="1.3"
+          strokeLinejoin="round"
+        />
+      )}
+      {verdict === 'undecided' && (
+        <>
+          <path d="M8 1.5 1.5 8 8 14.5z" fill="currentColor" />
+          <path d="M8 1.5 14.5 8 8 14.5 1.5 8z" fill="none" stroke="currentColor" strokeWidth="1.3" strokeLinejoin="round" />
+        </>
+      )}
+    </svg>
+  );
+}
+
+export interface VerdictBadgeProps {
+  verdict: VerdictCode;
+  /** Replaces the standard words, e.g. "Within preferred band". Keep it a verdict. */
+  children?: ReactNode;
+  /** The rule beside the verdict, e.g. "guarded by U, k = 2". Shown muted after the words. */
+  rule?: ReactNode;
+  size?: 'sm' | 'md';
+  className?: string;
+}
+
+/** A verdict as shape + words (+ the rule applied), readable in print and without colour. */
+export function VerdictBadge({ verdict, children, rule, size = 'md', className }: VerdictBadgeProps) {
+  return (
+    <span
+      data-verdict={verdict}
+      className={cn(
+        'inline-flex items-center gap-1.5 rounded-sm border border-current/35 bg-paper font-medium whitespace-nowrap',
+        size === 'sm' ? 'px-1.5 py-px text-xs' : 'px-2 py-0.5 text-sm',
+        verdictColour[verdict],
+        className,
+      )}
+    >
+      <VerdictMark verdict={verdict} />
+      <span>{children ?? verdictLabel(verdict)}</span>
+      {rule && <span className="font-normal text-ink-muted">· {rule}</span>}
+    </span>
+  );
+}

@@ -1,0 +1,23 @@
+import { queryOptions } from '@tanstack/react-query';
+import { meResponseSchema, type User } from '@shared/users/user.schema';
+import { ApiError, apiFetch } from '@/lib/api';
+
+/** Query options for the signed-in account. */
+export const authQueries = {
+  all: ['auth'] as const,
+  /** The signed-in user, or `null` when signed out (a 401 is an answer, not an error). */
+  me: () =>
+    queryOptions({
+      queryKey: [...authQueries.all, 'me'] as const,
+      queryFn: async ({ signal }): Promise<User | null> => {
+        try {
+          const { user } = await apiFetch('/api/me', { schema: meResponseSchema, signal });
+          return user;
+        } catch (error) {
+          if (error instanceof ApiError && error.status === 401) return null;
+          throw error;
+        }
+      },
+      staleTime: 5 * 60_000,
+    }),
+};
