@@ -9,6 +9,7 @@ import type { Sequelize } from 'sequelize';
 import type { Config } from './config';
 import { authRouter, meRouter } from './features/auth/auth.routes';
 import { createPassport } from './features/auth/auth.passport';
+import { createCalcRouter } from './features/calc/calc.routes';
 import { healthRouter } from './features/health/health.routes';
 import { adminUsersRouter } from './features/users/users.routes';
 import { csrfProtection } from './http/csrf';
@@ -73,6 +74,8 @@ export function createApp({ config, sequelize, logger }: AppDeps) {
   mount(app, '/api/csrf-token', csrf.tokenRouter);
   mount(app, '/api/me', meRouter);
   mount(app, '/api/admin/users', adminUsersRouter);
+  // A new router (and so a new rate-limit counter) per app, so apps never share limits.
+  mount(app, '/api/calc', createCalcRouter());
 
   app.use(['/api', '/auth'], apiNotFound);
   serveClient(app, config);
