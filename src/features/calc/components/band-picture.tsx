@@ -1,0 +1,209 @@
+import { useId } from 'react';
+import { formatNumber, formatUncertainty } from '@shared/measure/format';
+import type { BandPm, GuardedLimitsPm, Verdict } from '@shared/measure/spec';
+import { verdictWords } from '@shared/measure/spec';
+import { type LengthUnit, unitSymbols } from '@shared/measure/units';
+
+export interface BandPictureProps {
+  unit: LengthUnit;
+  /** Decimal places for the scale labels. */
+  decimals: number;
+  valuePm: bigint;
+  /** Expanded uncertainty U, picometres; drawn as the bar value ± U. */
+  expandedPm: bigint;
+  coverageFactor: number;
+  band: BandPm;
+  preferred?: BandPm | null;
+  rejectPm?: bigint | null;
+  /** Where the verdict changes (from the shared engine); drawn as dashed ticks. */
+  limits: GuardedLimitsPm;
+  verdict: Verdict;
+  rule: 'guarded' | 'simple';
+}
+
+// Full class names so Tailwind sees them.
+const verdictColour: Record<Verdict, string> = {
+  conforms: 'text-verdict-conforms',
+  'does-not-conform': 'text-verdict-nonconform',
+  undecided: 'text-verdict-undecided',
+};
+
+// Drawing units; the SVG scales to its box, so these are proportions, not pixels.
+const W = 320;
+const H = 112;
+const LEFT = 14;
+const RIGHT = W - 14;
+const AXIS_Y = 66;
+const BAND_TOP = 44;
+const MARK_Y = 34;
+
+/**
+ * The band picture: a horizontal scale with the spec band, the preferred band inside it, the
+ * reject limit, the measured value as a mark (shape by verdict) with its ± U bar, and the
+ * guarded limits as dashed ticks. Shapes, hatching and words carry the meaning, so it reads in
+ * print and without colour.
+ */
+export function BandPicture(props: BandPictureProps) {
+  const { unit, decimals, valuePm, expandedPm, coverageFactor, band, preferred, rejectPm, limits, verdict, rule } = props;
+  const id = useId().replace(/:/g, '');
+  const U = expandedPm < 0n ? -expandedPm : expandedPm;
+
+  // Scale: everything that must be visible, plus a margin; open sides get room for the bar.
+  const points: bigint[] = [valuePm - U, valuePm + U];
+  for (const p of [band.minPm, band.maxPm, preferred?.minPm, preferred?.maxPm, rejectPm, limits.rejectBelowPm, limits.rejectAbovePm]) {
+    if (p !== undefined && p !== null) points.push(p);
+  }
+  const lo = Number(points.reduce((a, b) => (a < b ? a : b)));
+  const hi = Number(points.reduce((a, b) => (a > b ? a : b)));
+  const span = Math.max(hi - lo, Number(U) * 4, 1);
+  const pad = span * 0.14;
+  const from = lo - pad - (band.minPm === undefined ? span * 0.2 : 0);
+  const to = hi + pad + (band.maxPm === undefined ? span * 0.2 : 0);
+  const x = (pm: bigint | number) => LEFT + ((Number(pm) - from) / (to - from)) * (RIGHT - LEFT);
+  const clampText = (px: number) => Math.min(RIGHT - 4, Math.max(LEFT + 4, px));
+  const label = (pm: bigint) => formatNumber(pm, unit, decimals);
+
+  const bandLeft = band.minPm === undefined ? LEFT : x(band.minPm);
+  const bandRight = band.maxPm === undefined ? RIGHT : x(band.maxPm);
+  const vx = x(valuePm);
+  // Limit labels closer than about six characters would overprint: drop the max label a row.
+  const crowded = band.minPm !== undefined && band.maxPm !== undefined && x(band.maxPm) - x(band.minPm) < 44;
+  const words = verdictWords[verdict];
+  const summary =
+    `Measured ${label(valuePm)} ${unitSymbols[unit]} ± ${formatUncertainty(Number(U) / 1e6, unit)} (k = ${coverageFactor}); ` +
+    `spec ${band.minPm !== undefined ? `from ${label(band.minPm)} ` : ''}${band.maxPm !== undefined ? `to ${label(band.maxPm)} ` : ''}${unitSymbols[unit]}; ` +
+    `${words} by the ${rule} rule.`;
+
+  const rejectSide = rejectPm === undefined || rejectPm === null ? null : band.maxPm !== undefined && rejectPm >= band.maxPm ? 'upper' : 'lower';
+  const dashed = [limits.acceptMinPm, limits.acceptMaxPm, ...(rule === 'guarded' ? [limits.rejectBelowPm, limits.rejectAbovePm] : [])].filter(
+    (p): p is bigint => p !== undefined,
+  );
+
+  return (
+    <figure className="w-full" data-band-picture="">
+      <svg
+        viewBox={`0 0 ${W} ${H}`}
+        className="block h-auto w-full text-ink"
+        role="img"
+        aria-labelledby={`${id}-title ${id}-desc`}
+      >
+        <title id={`${id}-title`}>Band picture</title>
+        <desc id={`${id}-desc`}>{summary}</desc>
+        <defs>
+          <pattern id={`${id}-hatch`} width="5" height="5" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">
+            <line x1="0" y1="0" x2="0" y2="5" stroke="currentColor" strokeWidth="1.2" />
+          </pattern>
+          <pattern id={`${id}-dots`} width="4" height="4" patternUnits="userSpaceOnUse">
+            <circle cx="2" cy="2" r="0.7" fill="currentColor" />
+          </pattern>
+        </defs>
+
+        {/* Reject (scrap) region: hatched beyond the limit. */}
+        {rejectSide && rejectPm !== null && rejectPm !== undefined && (
+          <g>
+            <rect
+              x={rejectSide === 'upper' ? x(rejectPm) : LEFT}
+              y={BAND_TOP}
+              width={rejectSide === 'upper' ? RIGHT - x(rejectPm) : x(rejectPm) - LEFT}
+              height={AXIS_Y - BAND_TOP}
+              fill={`url(#${id}-hatch)`}
+              opacity="0.45"
+            />
+            <line x1={x(rejectPm)} x2={x(rejectPm)} y1={BAND_TOP - 6} y2={AXIS_Y + 4} stroke="currentColor" strokeWidth="2" />
+            <text
+              x={clampText(x(rejectPm) + (rejectSide === 'upper' ? 3 : -3))}
+              y={H - 4}
+              fontSize="10"
+              textAnchor={rejectSide === 'upper' ? 'start' : 'end'}
+              fill="currentColor"
+            >
+              reject {label(rejectPm)}
+            </text>
+          </g>
+        )}
+
+        {/* Spec band and preferred band. */}
+        <rect x={bandLeft} y={BAND_TOP} width={Math.max(0, bandRight - bandLeft)} height={AXIS_Y - BAND_TOP} fill="var(--color-paper-3)" stroke="currentColor" strokeWidth="1" />
+        {preferred && (
+          <rect
+            x={preferred.minPm === undefined ? bandLeft : x(preferred.minPm)}
+            y={BAND_TOP + 5}
+            width={Math.max(0, (preferred.maxPm === undefined ? bandRight : x(preferred.maxPm)) - (preferred.minPm === undefined ? bandLeft : x(preferred.minPm)))}
+            height={AXIS_Y - BAND_TOP - 10}
+            fill={`url(#${id}-dots)`}
+            stroke="currentColor"
+            strokeWidth="0.6"
+          />
+        )}
+
+        {/* Axis with the spec limits labelled below it. */}
+        <line x1={LEFT} x2={RIGHT} y1={AXIS_Y} y2={AXIS_Y} stroke="currentColor" strokeWidth="1" />
+        {band.minPm !== undefined && (
+          <text x={clampText(x(band.minPm))} y={AXIS_Y + 14} fontSize="11" textAnchor="middle" fill="currentColor" className="figures">
+            {label(band.minPm)}
+          </text>
+        )}
+        {band.maxPm !== undefined && (
+          <text x={clampText(x(band.maxPm))} y={crowded ? AXIS_Y + 27 : AXIS_Y + 14} fontSize="11" textAnchor="middle" fill="currentColor" className="figures">
+            {label(band.maxPm)}
+          </text>
+        )}
+
+        {/* Guarded limits: dashed ticks where the verdict changes. */}
+        {dashed.map((p, i) => (
+          <line key={i} x1={x(p)} x2={x(p)} y1={BAND_TOP - 8} y2={AXIS_Y + 4} stroke="currentColor" strokeWidth="1" strokeDasharray="2.5 2" />
+        ))}
+
+        {/* The measurement: value ± U as a capped bar, and a mark whose shape is the verdict. */}
+        <g className={verdictColour[verdict]}>
+          <line x1={x(valuePm - U)} x2={x(valuePm + U)} y1={MARK_Y} y2={MARK_Y} stroke="currentColor" strokeWidth="1.6" />
+          <line x1={x(valuePm - U)} x2={x(valuePm - U)} y1={MARK_Y - 4} y2={MARK_Y + 4} stroke="currentColor" strokeWidth="1.6" />
+          <line x1={x(valuePm + U)} x2={x(valuePm + U)} y1={MARK_Y - 4} y2={MARK_Y + 4} stroke="currentColor" strokeWidth="1.6" />
+          <line x1={vx} x2={vx} y1={MARK_Y + 6} y2={AXIS_Y} stroke="currentColor" strokeWidth="0.8" />
+          <VerdictShape verdict={verdict} cx={vx} cy={MARK_Y} />
+          <text x={clampText(vx)} y={14} fontSize="12" textAnchor="middle" fill="currentColor" fontWeight="600" className="figures">
+            {label(valuePm)}
+          </text>
+        </g>
+      </svg>
+      <figcaption className="mt-2 flex flex-wrap gap-x-4 gap-y-1 text-xs text-ink-muted">
+        <span>Scale in {unitSymbols[unit]}</span>
+        <span>Grey: spec band</span>
+        {preferred && <span>Dotted: preferred band</span>}
+        {rejectSide && <span>Hatched: past the reject limit</span>}
+        <span>Bar: value ± U (k = {coverageFactor})</span>
+        {dashed.length > 0 && <span>Dashed: {rule === 'guarded' ? 'limits moved by U (guarded rule)' : 'limits (simple rule)'}</span>}
+      </figcaption>
+    </figure>
+  );
+}
+
+/**
+ * Filled circle = within spec, open cross = out of spec, half-filled diamond = too close to call;
+ * the same shapes as the VerdictBadge, drawn larger at the value.
+ */
+function VerdictShape({ verdict, cx, cy }: { verdict: Verdict; cx: number; cy: number }) {
+  const scale = 0.85; // the badge's 16-unit glyphs, about 14 units across here
+  return (
+    <g transform={`translate(${cx - 8 * scale} ${cy - 8 * scale}) scale(${scale})`}>
+      {verdict === 'conforms' && <circle cx="8" cy="8" r="6" fill="currentColor" stroke="var(--color-paper)" strokeWidth="1" />}
+      {verdict === 'does-not-conform' && (
+        <path
+          transform="rotate(45 8 8)"
+          d="M6.1 1.6h3.8v4.5h4.5v3.8H9.9v4.5H6.1V9.9H1.6V6.1h4.5z"
+          fill="var(--color-paper)"
+          stroke="currentColor"
+          strokeWidth="1.5"
+          strokeLinejoin="round"
+        />
+      )}
+      {verdict === 'undecided' && (
+        <>
+          <path d="M8 1 15 8 8 15 1 8z" fill="var(--color-paper)" />
+          <path d="M8 1 1 8 8 15z" fill="currentColor" />
+          <path d="M8 1 15 8 8 15 1 8z" fill="none" stroke="currentColor" strokeWidth="1.5" strokeLinejoin="round" />
+        </>
+      )}
+    </g>
+  );
+}
