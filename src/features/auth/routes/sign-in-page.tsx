@@ -65,7 +65,7 @@ export function Component() {
           <h2 className="text-md font-semibold">Sign in with GitHub</h2>
           <ul className="mt-2 list-disc space-y-1 pl-5 text-sm text-ink-muted">
             <li>GitHub asks you to allow Benchproof to read your public profile and e-mail address.</li>
-            <li>Your GitHub name and picture become your Benchproof profile; you can add your shop later.</li>
+            <li>Your GitHub name and picture become your Benchproof profile.</li>
             <li>New accounts start as followers. Builders and moderators are set up by the site admin.</li>
           </ul>
           {/* A full page navigation: the server redirects to GitHub and back. */}
