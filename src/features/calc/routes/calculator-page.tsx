@@ -149,7 +149,7 @@ export function Component() {
             <div className="flex items-center gap-2" data-print="hide">
               <Select
                 size="sm"
-                className="min-w-28"
+                className="min-w-32 pr-8"
                 aria-label="Measuring system"
                 value={system}
                 onChange={(event) => setChosenUnit(systemUnits[event.target.value as UnitSystem][0] ?? 'in')}
@@ -157,7 +157,7 @@ export function Component() {
                 <option value="imperial">Imperial</option>
                 <option value="metric">Metric</option>
               </Select>
-              <Select size="sm" className="min-w-20" aria-label="Show in" value={unit} onChange={(event) => setChosenUnit(event.target.value as LengthUnit)}>
+              <Select size="sm" className="min-w-24 pr-8" aria-label="Show in" value={unit} onChange={(event) => setChosenUnit(event.target.value as LengthUnit)}>
                 {systemUnits[system].map((u) => (
                   <option key={u} value={u}>
                     {unitSymbols[u]}

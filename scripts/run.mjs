@@ -1,7 +1,10 @@
 // Plain JavaScript on purpose: it runs before node_modules (and so TypeScript tooling) exists.
-// Installs dependencies with `npm ci` when node_modules is missing or older than package-lock.json.
+// `node scripts/run.mjs [script.ts] [args…]`: installs dependencies with `npm ci` when
+// node_modules is missing or older than package-lock.json, then runs the TypeScript script
+// through tsx as ONE child whose signals we forward, so Ctrl-C or a SIGTERM sent to npm always
+// reaches the code that stops PostgreSQL and the fakes.
 import { createHash } from 'node:crypto';
-import { spawnSync } from 'node:child_process';
+import { spawn, spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 
@@ -29,4 +32,18 @@ for (const bin of ['@ffprobe-installer/linux-x64/ffprobe', '@ffmpeg-installer/li
   } catch {
     // Not on this platform; the media code falls back to a system ffmpeg.
   }
+}
+
+const [script, ...args] = process.argv.slice(2);
+if (script) {
+  const child = spawn(process.execPath, ['--import', 'tsx', path.join(root, script), ...args], { cwd: root, stdio: 'inherit' });
+  for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP']) {
+    process.on(signal, () => child.kill(signal));
+  }
+  // npm does not always pass on a SIGTERM; when npm itself is gone, stop the child cleanly too.
+  const parent = process.ppid;
+  setInterval(() => {
+    if (process.ppid !== parent) child.kill('SIGTERM');
+  }, 1000).unref();
+  child.on('exit', (code, signal) => process.exit(code ?? (signal ? 1 : 0)));
 }
