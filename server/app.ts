@@ -9,22 +9,29 @@ import type { Sequelize } from 'sequelize';
 import type { Config } from './config';
 import { authRouter, meRouter } from './features/auth/auth.routes';
 import { createPassport } from './features/auth/auth.passport';
+import { buildsRouter } from './features/builds/builds.routes';
 import { createCalcRouter } from './features/calc/calc.routes';
+import { buildClipsRouter, clipsRouter, momentsRouter } from './features/clips/clips.routes';
 import { healthRouter } from './features/health/health.routes';
 import { adminUsersRouter } from './features/users/users.routes';
 import { csrfProtection } from './http/csrf';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { mount } from './http/routes';
 import { sessionMiddleware } from './http/session';
+import type { Queue } from './jobs/queue';
+import type { Storage } from './storage/storage';
 
 export interface AppDeps {
   config: Config;
   sequelize: Sequelize;
   logger: Logger;
+  storage: Storage;
+  /** The job queue; null when this process only serves (uploads are then not processed). */
+  queue: Queue | null;
 }
 
 /** Builds the Express app (no listen). `close()` releases what the app itself opened. */
-export function createApp({ config, sequelize, logger }: AppDeps) {
+export function createApp({ config, sequelize, logger, storage, queue }: AppDeps) {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', config.trustProxy ? 1 : false);
@@ -76,6 +83,10 @@ export function createApp({ config, sequelize, logger }: AppDeps) {
   mount(app, '/api/admin/users', adminUsersRouter);
   // A new router (and so a new rate-limit counter) per app, so apps never share limits.
   mount(app, '/api/calc', createCalcRouter());
+  mount(app, '/api/builds', buildsRouter);
+  mount(app, '/api/builds/:buildId/clips', buildClipsRouter({ config, storage, queue }));
+  mount(app, '/api/clips', clipsRouter({ config, storage, queue }));
+  mount(app, '/api/moments', momentsRouter());
 
   app.use(['/api', '/auth'], apiNotFound);
   serveClient(app, config);

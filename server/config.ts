@@ -26,6 +26,20 @@ const envSchema = z.object({
   MEDIA_DIR: z.string().default('media'),
   CLIENT_DIR: z.string().default('dist/client'),
   SIGN_IN_RATE_LIMIT: z.coerce.number().int().positive().default(30),
+  /** Largest clip accepted, bytes (default 2 GiB). */
+  UPLOAD_MAX_BYTES: z.coerce.number().int().positive().default(2 * 1024 ** 3),
+  CLIPS_PER_BUILD_MAX: z.coerce.number().int().positive().default(200),
+  UPLOAD_RATE_LIMIT: z.coerce.number().int().positive().default(60),
+  /** Longest clip accepted, seconds. */
+  CLIP_MAX_SECONDS: z.coerce.number().positive().default(2 * 3600),
+  /** "inline": the job worker runs inside the web server; "off": run `npm run worker` separately. */
+  WORKER: z.enum(['inline', 'off']).default('inline'),
+  JOB_RETRY_LIMIT: z.coerce.number().int().min(0).max(20).default(3),
+  JOB_EXPIRE_SECONDS: z.coerce.number().int().min(30).default(1800),
+  /** A clip whose processing has shown no sign of life for this long is re-queued. */
+  JOB_STALL_SECONDS: z.coerce.number().int().min(5).default(120),
+  /** Prefix of job queue names, so two instances can share one database. */
+  JOB_QUEUE_PREFIX: z.string().regex(/^[a-z0-9-]*$/).default(''),
 });
 
 export type Env = z.infer<typeof envSchema>;
@@ -52,6 +66,8 @@ export interface Config {
   mediaDir: string;
   clientDir: string;
   signInRateLimit: number;
+  uploads: { maxBytes: number; clipsPerBuild: number; ratePerMinute: number; maxSeconds: number };
+  jobs: { worker: 'inline' | 'off'; retryLimit: number; expireSeconds: number; stallSeconds: number; queuePrefix: string };
 }
 
 /** Parses the environment into a Config; throws with every problem listed. */
@@ -92,5 +108,18 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     mediaDir: e.MEDIA_DIR,
     clientDir: e.CLIENT_DIR,
     signInRateLimit: e.SIGN_IN_RATE_LIMIT,
+    uploads: {
+      maxBytes: e.UPLOAD_MAX_BYTES,
+      clipsPerBuild: e.CLIPS_PER_BUILD_MAX,
+      ratePerMinute: e.UPLOAD_RATE_LIMIT,
+      maxSeconds: e.CLIP_MAX_SECONDS,
+    },
+    jobs: {
+      worker: e.WORKER,
+      retryLimit: e.JOB_RETRY_LIMIT,
+      expireSeconds: e.JOB_EXPIRE_SECONDS,
+      stallSeconds: e.JOB_STALL_SECONDS,
+      queuePrefix: e.JOB_QUEUE_PREFIX,
+    },
   };
 }

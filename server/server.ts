@@ -4,6 +4,9 @@ import { createApp } from './app';
 import { createSequelize } from './db/sequelize';
 import { initModels } from './db/models';
 import { createLogger } from './logger';
+import { startClipWorker } from './features/clips/clip.job';
+import { startQueue } from './jobs/queue';
+import { localStorage } from './storage/local-storage';
 
 /** Starts the API + client server; `stop()` drains connections and closes the database pools. */
 export async function startServer(config: Config) {
@@ -11,7 +14,10 @@ export async function startServer(config: Config) {
   const sequelize = createSequelize(config.databaseUrl);
   initModels(sequelize);
   await sequelize.authenticate();
-  const { app, close } = createApp({ config, sequelize, logger });
+  const storage = localStorage(config.mediaDir);
+  const queue = await startQueue(config);
+  const worker = config.jobs.worker === 'inline' ? await startClipWorker(config, queue, { storage, logger }) : null;
+  const { app, close } = createApp({ config, sequelize, logger, storage, queue });
   const server = http.createServer(app);
   await new Promise<void>((resolve, reject) => {
     server.once('error', reject);
@@ -27,6 +33,8 @@ export async function startServer(config: Config) {
         // Give in-flight requests a moment, then cut the rest.
         setTimeout(() => server.closeAllConnections(), 3000).unref();
       });
+      await worker?.stop();
+      await queue.boss.stop({ graceful: true, timeout: 5000 });
       await close();
       await sequelize.close();
     },

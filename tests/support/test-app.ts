@@ -1,3 +1,6 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
 import { inject } from 'vitest';
 import request from 'supertest';
 import { createApp } from '../../server/app';
@@ -7,6 +10,15 @@ import { initModels } from '../../server/db/models';
 import { createLogger } from '../../server/logger';
 import { createFakeGithub, type FakeAccount } from '../../server/fakes/github/fake-github';
 import { fakeAccounts } from '../../scripts/lib/run-local';
+import { startClipWorker, type ClipJobDeps } from '../../server/features/clips/clip.job';
+import { startQueue } from '../../server/jobs/queue';
+import { localStorage } from '../../server/storage/local-storage';
+
+export interface TestAppOptions {
+  /** Start the job queue and the clip worker (own queue names, so test files never share jobs). */
+  jobs?: boolean;
+  faultAt?: ClipJobDeps['faultAt'];
+}
 
 let shared: ReturnType<typeof createSequelize> | null = null;
 let users = 0;
@@ -22,12 +34,17 @@ function sharedSequelize() {
  * A real app on the test database with its own fake GitHub on a free loopback port.
  * Call in beforeAll; `close()` in afterAll.
  */
-export async function startTestApp(env: Record<string, string> = {}) {
+export async function startTestApp(env: Record<string, string> = {}, opts: TestAppOptions = {}) {
   const fakeBase = { clientId: 'benchproof-local', clientSecret: 'benchproof-local-secret' };
   const fake = createFakeGithub({ ...fakeBase, accounts: fakeAccounts(), port: 0 });
   const fakeUrl = await fake.listen();
+  const mediaDir = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-media-'));
   const config = loadConfig({
     NODE_ENV: 'test',
+    MEDIA_DIR: mediaDir,
+    JOB_QUEUE_PREFIX: `t${process.pid}-${Math.floor(Math.random() * 1e6)}`,
+    JOB_RETRY_LIMIT: '2',
+    JOB_STALL_SECONDS: '5',
     DATABASE_URL: inject('databaseUrl'),
     FAKE_GITHUB_URL: fakeUrl,
     PUBLIC_URL: 'http://127.0.0.1:3999',
@@ -41,14 +58,24 @@ export async function startTestApp(env: Record<string, string> = {}) {
   const sequelize = own ?? sharedSequelize();
   if (!own) users += 1;
   const logger = createLogger(config);
-  const built = createApp({ config, sequelize, logger });
+  const storage = localStorage(mediaDir);
+  const queue = opts.jobs ? await startQueue(config) : null;
+  const worker = queue ? await startClipWorker(config, queue, { storage, logger, faultAt: opts.faultAt }) : null;
+  const built = createApp({ config, sequelize, logger, storage, queue });
   return {
     app: built.app,
     config,
     fake,
     sequelize,
+    storage,
+    queue,
+    worker,
+    mediaDir,
     async close() {
+      await worker?.stop();
+      await queue?.boss.stop({ graceful: false, wait: true });
       await built.close();
+      fs.rmSync(mediaDir, { recursive: true, force: true });
       await fake.close();
       if (own) await own.close();
       else if (--users === 0) {

@@ -1,0 +1,27 @@
+// `npm run worker`: the clip-processing worker alone (for a second machine, or WORKER=off on the
+// web server). Uses DATABASE_URL, or the local cluster that `npm start` made.
+import { loadConfig } from '../server/config';
+import { createSequelize } from '../server/db/sequelize';
+import { initModels } from '../server/db/models';
+import { startClipWorker } from '../server/features/clips/clip.job';
+import { startQueue } from '../server/jobs/queue';
+import { createLogger } from '../server/logger';
+import { localStorage } from '../server/storage/local-storage';
+import { prepareDatabase } from './lib/bootstrap';
+import { localSettings, onShutdown } from './lib/run-local';
+
+const s = localSettings();
+const db = await prepareDatabase({ databaseUrl: process.env.DATABASE_URL, dataDir: s.dataDir, port: s.pgPort, database: s.database, seed: false });
+const config = loadConfig({ ...process.env, DATABASE_URL: db.databaseUrl });
+const logger = createLogger(config);
+const sequelize = createSequelize(config.databaseUrl);
+initModels(sequelize);
+const queue = await startQueue(config);
+const worker = await startClipWorker(config, queue, { storage: localStorage(config.mediaDir), logger });
+logger.info('clip worker running; Ctrl-C stops it');
+onShutdown(async () => {
+  await worker.stop();
+  await queue.boss.stop({ graceful: true, timeout: 10_000 });
+  await sequelize.close();
+  db.postgres?.stop();
+});

@@ -1,0 +1,98 @@
+import { Op } from 'sequelize';
+import type { Build as BuildDto, BuildPatch, ListBuildsResponse } from '@shared/builds/build.schema';
+import { buildInputSchema } from '@shared/builds/build.schema';
+import { forbidden, notFound, unauthorized } from '../../http/errors';
+import { Clip } from '../clips/clip.model';
+import type { User } from '../users/user.model';
+import { Build, Part } from './build.model';
+
+/** Roles that may look at any build's drafts (to check them). */
+const reviewers = new Set(['moderator', 'admin']);
+
+async function toDto(build: Build): Promise<BuildDto> {
+  const [parts, clipCount, owner] = await Promise.all([
+    build.parts ?? Part.findAll({ where: { buildId: build.id }, order: [['position', 'ASC']] }),
+    Clip.count({ where: { buildId: build.id } }),
+    build.owner ?? build.sequelize.models.User!.findByPk(build.ownerId),
+  ]);
+  return {
+    id: build.id,
+    ownerId: build.ownerId,
+    ownerName: (owner as User | null)?.displayName ?? '',
+    title: build.title,
+    subject: build.subject,
+    parts: [...parts].sort((a, b) => a.position - b.position).map((p) => ({ id: p.id, name: p.name, serial: p.serial })),
+    clipCount,
+    createdAt: build.createdAt.toISOString(),
+    updatedAt: build.updatedAt.toISOString(),
+  };
+}
+
+/**
+ * Loads a build the user may see: its builder, moderators and admins. (Published builds become
+ * public with the stories feature.) Unknown and not-yours both answer 404 to non-reviewers, so
+ * ids of other builders' drafts are not confirmed.
+ */
+export async function buildForViewer(buildId: number, user: User | undefined): Promise<Build> {
+  if (!user) throw unauthorized();
+  const build = await Build.findByPk(buildId);
+  if (!build || (build.ownerId !== user.id && !reviewers.has(user.role))) throw notFound('There is no build with that id.');
+  return build;
+}
+
+/** Loads a build the user may change: its builder (or an admin). */
+export async function buildForOwner(buildId: number, user: User | undefined): Promise<Build> {
+  const build = await buildForViewer(buildId, user);
+  if (build.ownerId !== user!.id && user!.role !== 'admin') throw forbidden('Only the builder of this build can change it.');
+  return build;
+}
+
+export async function createBuild(owner: User, input: unknown): Promise<BuildDto> {
+  const data = buildInputSchema.parse(input);
+  const build = await Build.sequelize!.transaction(async (transaction) => {
+    const b = await Build.create({ ownerId: owner.id, title: data.title, subject: data.subject }, { transaction });
+    await Part.bulkCreate(
+      data.parts.map((p, position) => ({ buildId: b.id, name: p.name, serial: p.serial, position })),
+      { transaction },
+    );
+    return b;
+  });
+  return toDto(build);
+}
+
+export async function updateBuild(build: Build, patch: BuildPatch): Promise<BuildDto> {
+  await Build.sequelize!.transaction(async (transaction) => {
+    build.set({ ...(patch.title !== undefined && { title: patch.title }), ...(patch.subject !== undefined && { subject: patch.subject }) });
+    build.changed('updatedAt', true);
+    await build.save({ transaction });
+    if (patch.parts) {
+      // Parts are a small list edited as a whole; replace them.
+      await Part.destroy({ where: { buildId: build.id }, transaction });
+      await Part.bulkCreate(
+        patch.parts.map((p, position) => ({ buildId: build.id, name: p.name, serial: p.serial ?? '', position })),
+        { transaction },
+      );
+    }
+  });
+  build.parts = undefined;
+  return toDto(build);
+}
+
+export async function getBuild(build: Build): Promise<BuildDto> {
+  return toDto(build);
+}
+
+/** The user's own builds, newest first, by keyset on id. */
+export async function listOwnBuilds(owner: User, q: { before?: number; limit: number }): Promise<ListBuildsResponse> {
+  const rows = await Build.findAll({
+    where: { ownerId: owner.id, ...(q.before ? { id: { [Op.lt]: q.before } } : {}) },
+    order: [['id', 'DESC']],
+    limit: q.limit + 1,
+    include: [{ model: Part, as: 'parts' }],
+  });
+  const page = rows.slice(0, q.limit);
+  return {
+    items: await Promise.all(page.map(toDto)),
+    nextBefore: rows.length > q.limit ? page[page.length - 1]!.id : null,
+  };
+}

@@ -1,0 +1,141 @@
+import crypto from 'node:crypto';
+import fsp from 'node:fs/promises';
+import path from 'node:path';
+import { Op } from 'sequelize';
+import type { Logger } from 'pino';
+import type PgBoss from 'pg-boss';
+import type { Config } from '../../config';
+import type { Queue } from '../../jobs/queue';
+import type { Storage } from '../../storage/storage';
+import { Clip } from './clip.model';
+import { clipKeys } from './clips.service';
+import { MediaRejected } from './media/probe';
+import { planWebCopy } from './media/plan';
+import { makeWebCopy } from './media/transcode';
+import { makePoster, makeThumbnailStrip } from './media/stills';
+
+export interface ClipJobDeps {
+  storage: Storage;
+  logger: Logger;
+  /** Test hook: called at each stage; a throw simulates a crash there. */
+  faultAt?: (stage: 'start' | 'web-copy' | 'stills', clipId: number, attempt: number) => void;
+}
+
+export interface ClipJobData {
+  clipId: number;
+}
+
+/** Puts a clip's processing on the queue (at most one waiting job per clip). */
+export async function enqueueClip(queue: Queue, clipId: number) {
+  return queue.boss.send(queue.names.clipProcess, { clipId } satisfies ClipJobData, { singletonKey: `clip-${clipId}` });
+}
+
+/**
+ * Processes one clip: web copy when the original will not play in browsers, poster, thumbnail
+ * strip. Idempotent: every output goes to a scratch name and is moved in whole, so running it
+ * again after a crash just does the work again. A file ffmpeg rejects fails at once; other
+ * errors are thrown so pg-boss retries, and the last attempt marks the clip failed with a reason.
+ */
+export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { retryCount: number; retryLimit: number }) {
+  const clip = await Clip.findByPk(clipId);
+  if (!clip || clip.status === 'ready') return;
+  const last = attempt.retryCount >= attempt.retryLimit;
+  const keys = clipKeys(clip);
+  const scratch = path.join(deps.storage.scratchDir(), `job-${clip.id}-${crypto.randomUUID()}`);
+  await fsp.mkdir(scratch, { recursive: true });
+  const original = await deps.storage.localCopy(keys.original);
+  try {
+    await clip.update({ status: 'processing', progress: 0, failureReason: null, attempts: clip.attempts + 1 });
+    deps.faultAt?.('start', clip.id, attempt.retryCount);
+    const probe = clip.probe!;
+    const plan = await planWebCopy(probe, clip.container, original.path);
+
+    let source = original.path;
+    if (plan !== 'original') {
+      const out = path.join(scratch, 'web.mp4');
+      let lastWrite = 0;
+      await makeWebCopy(original.path, out, plan, {
+        durationS: probe.durationS,
+        onProgress: (percent) => {
+          // Also the heartbeat that tells recovery this clip is alive; at most once a second.
+          const now = Date.now();
+          if (now - lastWrite < 1000) return;
+          lastWrite = now;
+          void Clip.update({ progress: Math.min(90, Math.round(percent * 0.9)) }, { where: { id: clip.id } });
+        },
+      });
+      deps.faultAt?.('web-copy', clip.id, attempt.retryCount);
+      await deps.storage.putFile(keys.web, out, { contentType: 'video/mp4' });
+      source = (await deps.storage.localCopy(keys.web)).path;
+    }
+    await clip.update({ progress: 92 });
+    const posterOut = path.join(scratch, 'poster.jpg');
+    await makePoster(source, posterOut, Math.min(1, probe.durationS / 2));
+    await deps.storage.putFile(keys.poster, posterOut, { contentType: 'image/jpeg' });
+    const stripOut = path.join(scratch, 'thumbnails.jpg');
+    const strip = await makeThumbnailStrip(source, stripOut, { count: Math.max(1, Math.min(60, Math.ceil(probe.durationS))), tileWidth: 160 });
+    deps.faultAt?.('stills', clip.id, attempt.retryCount);
+    await deps.storage.putFile(keys.thumbnails, stripOut, { contentType: 'image/jpeg' });
+    await clip.update({ status: 'ready', progress: 100, webCopy: plan, thumbnails: strip, failureReason: null });
+    deps.logger.info({ clipId: clip.id, plan }, 'clip ready');
+  } catch (err) {
+    const permanent = err instanceof MediaRejected;
+    const reason = permanent
+      ? err.message
+      : `Processing failed${last ? '' : ', retrying'}: ${(err as Error).message}`.slice(0, 500);
+    deps.logger.warn({ err, clipId: clip.id, attempt: attempt.retryCount }, 'clip processing failed');
+    if (permanent || last) {
+      // The original stays; the builder can delete the clip or upload it again.
+      await clip.update({ status: 'failed', failureReason: permanent ? reason : `${reason} The original is kept.` });
+      return;
+    }
+    await clip.update({ status: 'uploaded', failureReason: reason });
+    throw err;
+  } finally {
+    await original.release();
+    await fsp.rm(scratch, { recursive: true, force: true });
+  }
+}
+
+/**
+ * Starts the clip worker on the queue, and re-queues clips that a crash left behind: any clip
+ * still uploaded/processing whose row has not changed for `stallSeconds` (processing writes a
+ * heartbeat every second).
+ */
+export async function startClipWorker(config: Config, queue: Queue, deps: ClipJobDeps) {
+  await queue.boss.work<ClipJobData>(
+    queue.names.clipProcess,
+    { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: 0.5 },
+    async (jobs: PgBoss.JobWithMetadata<ClipJobData>[]) => {
+      for (const job of jobs) {
+        await processClip(deps, job.data.clipId, { retryCount: job.retryCount, retryLimit: job.retryLimit });
+      }
+    },
+  );
+  const recover = async () => {
+    const stale = await Clip.findAll({
+      where: {
+        status: { [Op.in]: ['uploaded', 'processing'] },
+        updatedAt: { [Op.lt]: new Date(Date.now() - config.jobs.stallSeconds * 1000) },
+      },
+      limit: 100,
+    });
+    for (const clip of stale) {
+      deps.logger.warn({ clipId: clip.id }, 're-queueing a clip left unfinished');
+      clip.changed('updatedAt', true); // touch, so the next sweep does not pick it again at once
+      await clip.save();
+      await enqueueClip(queue, clip.id);
+    }
+    return stale.length;
+  };
+  await recover();
+  const timer = setInterval(() => void recover().catch((err) => deps.logger.error({ err }, 'recovery sweep failed')), config.jobs.stallSeconds * 500);
+  timer.unref();
+  return {
+    recover,
+    async stop() {
+      clearInterval(timer);
+      await queue.boss.offWork(queue.names.clipProcess);
+    },
+  };
+}

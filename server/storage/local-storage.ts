@@ -1,0 +1,61 @@
+import fs from 'node:fs';
+import fsp from 'node:fs/promises';
+import path from 'node:path';
+import type { Response } from 'express';
+import { assertSafeKey, type Storage } from './storage';
+
+/** Media on local disk under one root folder (default `media/`). */
+export function localStorage(rootDir: string): Storage {
+  const root = path.resolve(rootDir);
+  const scratch = path.join(root, '.scratch');
+  fs.mkdirSync(scratch, { recursive: true });
+
+  const pathOf = (key: string) => {
+    assertSafeKey(key);
+    const full = path.resolve(root, key);
+    // Belt and braces: the resolved path must stay inside the root.
+    if (!full.startsWith(root + path.sep)) throw new Error(`storage key escapes the media folder: ${key}`);
+    return full;
+  };
+
+  return {
+    async putFile(key, localPath, opts) {
+      const target = pathOf(key);
+      await fsp.mkdir(path.dirname(target), { recursive: true });
+      await fsp.rename(localPath, target);
+      if (opts.readOnly) await fsp.chmod(target, 0o444);
+    },
+    async stat(key) {
+      try {
+        const st = await fsp.stat(pathOf(key));
+        return st.isFile() ? { size: st.size } : null;
+      } catch {
+        return null;
+      }
+    },
+    send(res: Response, key, opts) {
+      return new Promise((resolve, reject) => {
+        res.sendFile(
+          pathOf(key),
+          {
+            acceptRanges: true,
+            lastModified: true,
+            maxAge: (opts.cacheSeconds ?? 0) * 1000,
+            headers: { 'Content-Type': opts.contentType, 'X-Content-Type-Options': 'nosniff' },
+            dotfiles: 'deny',
+          },
+          (err) => (err && !res.headersSent ? reject(err) : resolve()),
+        );
+      });
+    },
+    async localCopy(key) {
+      return { path: pathOf(key), release: async () => {} };
+    },
+    async deletePrefix(prefix) {
+      const dir = pathOf(prefix);
+      // Originals are read-only files; the folder is writable, so rm can still unlink them.
+      await fsp.rm(dir, { recursive: true, force: true });
+    },
+    scratchDir: () => scratch,
+  };
+}

@@ -1,0 +1,46 @@
+import { z } from 'zod';
+
+/** A part of a build, with its serial number as stamped or tagged. */
+export const partInputSchema = z.object({
+  name: z.string().trim().min(1, 'Name the part').max(120),
+  serial: z.string().trim().max(80).default(''),
+});
+
+/** Body of `POST /api/builds` and `PATCH /api/builds/:id` (every field optional there). */
+export const buildInputSchema = z.object({
+  title: z.string().trim().min(3, 'Give the build a title of at least 3 characters').max(160),
+  subject: z.string().trim().max(300).default(''),
+  parts: z.array(partInputSchema).max(100).default([]),
+});
+export const buildPatchSchema = buildInputSchema.partial().strict();
+export type BuildInput = z.input<typeof buildInputSchema>;
+export type BuildPatch = z.infer<typeof buildPatchSchema>;
+
+export const partSchema = z.object({ id: z.number().int(), name: z.string(), serial: z.string() });
+
+/** A build as the API shows it. */
+export const buildSchema = z.object({
+  id: z.number().int().positive(),
+  ownerId: z.number().int().positive(),
+  ownerName: z.string(),
+  title: z.string(),
+  subject: z.string(),
+  parts: z.array(partSchema),
+  clipCount: z.number().int().nonnegative(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+});
+export type Build = z.infer<typeof buildSchema>;
+
+export const buildResponseSchema = z.object({ build: buildSchema });
+
+/** Query of `GET /api/builds`: the signed-in builder's own builds, newest first, by keyset. */
+export const listBuildsQuerySchema = z.object({
+  before: z.coerce.number().int().positive().optional(),
+  limit: z.coerce.number().int().min(1).max(100).default(20),
+});
+export const listBuildsResponseSchema = z.object({ items: z.array(buildSchema), nextBefore: z.number().int().nullable() });
+export type ListBuildsResponse = z.infer<typeof listBuildsResponseSchema>;
+
+/** Path parameters naming one build. */
+export const buildIdParamsSchema = z.object({ buildId: z.coerce.number().int().positive() });
