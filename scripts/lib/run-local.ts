@@ -38,7 +38,7 @@ export async function bringUpLocal(overrides: Record<string, string> = {}) {
     seed: true,
   });
   if (db.migrated.length) console.log(`[db] migrations run: ${db.migrated.join(', ')}`);
-  if (db.seed?.created.length) console.log(`[db] demo accounts created: ${db.seed.created.join(', ')}`);
+  if (db.seed?.created.length) console.log(`[db] demo data created: ${db.seed.created.join(', ')}`);
 
   const config: Config = loadConfig({ ...process.env, DATABASE_URL: db.databaseUrl, ...overrides });
   const stops: (() => Promise<void> | void)[] = [() => db.postgres?.stop()];

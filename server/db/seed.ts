@@ -1,6 +1,7 @@
 import type { Sequelize } from 'sequelize';
+import { Build, Part } from '../features/builds/build.model';
 import { User } from '../features/users/user.model';
-import { loadDemoPeople } from './demo-content';
+import { loadDemoBuilds, loadDemoPeople } from './demo-content';
 
 /** What a seed run did, so start-up can say it and tests can check it. */
 export interface SeedReport {
@@ -32,6 +33,19 @@ export async function seedDemo(sequelize: Sequelize): Promise<SeedReport> {
         transaction,
       });
       (created ? report.created : report.kept).push(p.login);
+    }
+    for (const b of loadDemoBuilds()) {
+      const owner = await User.findOne({ where: { login: b.owner }, transaction });
+      if (!owner) throw new Error(`content/builds.json names an owner who is not in people.json: ${b.owner}`);
+      const [build, created] = await Build.findOrCreate({
+        where: { ownerId: owner.id, title: b.title },
+        defaults: { ownerId: owner.id, title: b.title, subject: b.subject },
+        transaction,
+      });
+      if (created) {
+        await Part.bulkCreate(b.parts.map((p, position) => ({ buildId: build.id, name: p.name, serial: p.serial, position })), { transaction });
+        report.created.push(`build: ${b.title}`);
+      } else report.kept.push(`build: ${b.title}`);
     }
   });
   return report;

@@ -16,3 +16,15 @@ export const demoPersonSchema = z.object({
 export const demoPeopleFileSchema = z.object({ note: z.string(), people: z.array(demoPersonSchema).min(1) });
 
 export type DemoPerson = z.infer<typeof demoPersonSchema>;
+
+/** One invented demo build in content/builds.json. */
+export const demoBuildSchema = z.object({
+  owner: z.string(),
+  title: z.string().min(3),
+  subject: z.string(),
+  parts: z.array(z.object({ name: z.string(), serial: z.string() })),
+});
+
+/** The whole content/builds.json file. */
+export const demoBuildsFileSchema = z.object({ note: z.string(), builds: z.array(demoBuildSchema) });
+export type DemoBuild = z.infer<typeof demoBuildSchema>;

@@ -58,7 +58,7 @@ export async function startTestApp(env: Record<string, string> = {}, opts: TestA
   const sequelize = own ?? sharedSequelize();
   if (!own) users += 1;
   const logger = createLogger(config);
-  const storage = localStorage(mediaDir);
+  const storage = localStorage(config.mediaDir);
   const queue = opts.jobs ? await startQueue(config) : null;
   const worker = queue ? await startClipWorker(config, queue, { storage, logger, faultAt: opts.faultAt }) : null;
   const built = createApp({ config, sequelize, logger, storage, queue });
@@ -70,7 +70,7 @@ export async function startTestApp(env: Record<string, string> = {}, opts: TestA
     storage,
     queue,
     worker,
-    mediaDir,
+    mediaDir: config.mediaDir,
     async close() {
       await worker?.stop();
       await queue?.boss.stop({ graceful: false, wait: true });

@@ -2,7 +2,7 @@ import path from 'node:path';
 import { describe, expect, inject, it } from 'vitest';
 import pg from 'pg';
 import { prepareDatabase, repoRoot } from '../../../scripts/lib/bootstrap';
-import { loadDemoPeople } from '../../../server/db/demo-content';
+import { loadDemoBuilds, loadDemoPeople } from '../../../server/db/demo-content';
 
 describe('the start-up bootstrap', () => {
   it('run twice, it neither duplicates nor wipes: no migration or demo row is made again, and edits stay', async () => {
@@ -18,7 +18,8 @@ describe('the start-up bootstrap', () => {
     const first = await prepareDatabase({ ...opts, fresh: true });
     expect(first.postgres?.startedHere).toBe(false); // the test cluster is already up; it is reused
     expect(first.migrated.length).toBeGreaterThan(0);
-    expect(first.seed?.created.sort()).toEqual(loadDemoPeople().map((p) => p.login).sort());
+    const everything = [...loadDemoPeople().map((p) => p.login), ...loadDemoBuilds().map((b) => `build: ${b.title}`)];
+    expect(first.seed?.created.sort()).toEqual([...everything].sort());
 
     const client = new pg.Client({ connectionString: first.databaseUrl });
     await client.connect();
@@ -29,7 +30,9 @@ describe('the start-up bootstrap', () => {
       const second = await prepareDatabase(opts);
       expect(second.migrated).toEqual([]);
       expect(second.seed?.created).toEqual([]);
-      expect(second.seed?.kept.length).toBe(loadDemoPeople().length);
+      expect(second.seed?.kept.length).toBe(everything.length);
+      const builds = await client.query('SELECT count(*)::int AS n FROM builds');
+      expect(builds.rows[0].n).toBe(loadDemoBuilds().length);
 
       const after = await client.query('SELECT count(*)::int AS n FROM users');
       expect(after.rows[0].n).toBe(before.rows[0].n);
