@@ -1,4 +1,5 @@
 // `npm start`: database, migrations, demo data, client build, local fakes, then the server.
+import { seedDemoClips } from '../server/db/seed-clips';
 import { startServer } from '../server/server';
 import { buildClientIfChanged } from './lib/client-build';
 import { bringUpLocal, demoSignInLines, onShutdown } from './lib/run-local';
@@ -8,6 +9,8 @@ try {
   const built = await buildClientIfChanged();
   if (!built) console.log('[client] up to date');
   const running = await startServer(local.config);
+  // Generated once: the demo builds' clips (test patterns with captions), processed by the worker.
+  await seedDemoClips({ config: local.config, storage: running.storage, queue: running.queue, logger: running.logger });
   const url = local.config.publicUrl;
   console.log(
     [

@@ -26,6 +26,8 @@ export async function startServer(config: Config) {
   return {
     server,
     logger,
+    storage,
+    queue,
     async stop() {
       await new Promise<void>((resolve) => {
         server.close(() => resolve());

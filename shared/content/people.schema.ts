@@ -23,6 +23,17 @@ export const demoBuildSchema = z.object({
   title: z.string().min(3),
   subject: z.string(),
   parts: z.array(z.object({ name: z.string(), serial: z.string() })),
+  /** Generated at seed time: a test pattern with this caption, `seconds` long, and its marked moments. */
+  clips: z
+    .array(
+      z.object({
+        title: z.string(),
+        caption: z.string(),
+        seconds: z.number().positive().max(60),
+        moments: z.array(z.object({ atMs: z.number().int().nonnegative(), label: z.string() })),
+      }),
+    )
+    .default([]),
 });
 
 /** The whole content/builds.json file. */
