@@ -6,7 +6,7 @@ import { initModels } from '../server/db/models';
 import { startClipWorker } from '../server/features/clips/clip.job';
 import { startQueue } from '../server/jobs/queue';
 import { createLogger } from '../server/logger';
-import { localStorage } from '../server/storage/local-storage';
+import { storageFromConfig } from '../server/storage/select-storage';
 import { prepareDatabase } from './lib/bootstrap';
 import { localSettings, onShutdown } from './lib/run-local';
 
@@ -17,7 +17,7 @@ const logger = createLogger(config);
 const sequelize = createSequelize(config.databaseUrl);
 initModels(sequelize);
 const queue = await startQueue(config);
-const worker = await startClipWorker(config, queue, { storage: localStorage(config.mediaDir), logger });
+const worker = await startClipWorker(config, queue, { storage: storageFromConfig(config.storage), logger });
 logger.info('clip worker running; Ctrl-C stops it');
 onShutdown(async () => {
   await worker.stop();

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import type { StorageSettings } from './storage/select-storage';
 
 const port = z.coerce.number().int().min(0).max(65535);
 
@@ -40,6 +41,22 @@ const envSchema = z.object({
   JOB_STALL_SECONDS: z.coerce.number().int().min(5).default(120),
   /** Prefix of job queue names, so two instances can share one database. */
   JOB_QUEUE_PREFIX: z.string().regex(/^[a-z0-9-]*$/).default(''),
+  /** "local": media under MEDIA_DIR; "s3": media in a bucket (MEDIA_DIR then holds only scratch work). */
+  STORAGE_DRIVER: z.enum(['local', 's3']).default('local'),
+  S3_BUCKET: z.string().min(3).optional(),
+  S3_REGION: z.string().min(1).default('us-east-1'),
+  /** An S3-compatible service; unset for AWS itself. */
+  S3_ENDPOINT: z.string().url().optional(),
+  S3_FORCE_PATH_STYLE: z.enum(['0', '1']).default('0'),
+  /** Both, or neither to use the SDK's default chain (AWS_* variables, instance role). */
+  S3_ACCESS_KEY_ID: z.string().min(1).optional(),
+  S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
+  S3_PREFIX: z.string().regex(/^[a-z0-9][a-z0-9._-]*(\/[a-z0-9][a-z0-9._-]*)*$/).optional(),
+}).superRefine((e, ctx) => {
+  if (e.STORAGE_DRIVER === 's3' && !e.S3_BUCKET) ctx.addIssue({ code: 'custom', path: ['S3_BUCKET'], message: 'required when STORAGE_DRIVER=s3' });
+  if (Boolean(e.S3_ACCESS_KEY_ID) !== Boolean(e.S3_SECRET_ACCESS_KEY)) {
+    ctx.addIssue({ code: 'custom', path: ['S3_SECRET_ACCESS_KEY'], message: 'set both S3 keys or neither' });
+  }
 });
 
 export type Env = z.infer<typeof envSchema>;
@@ -68,6 +85,8 @@ export interface Config {
   signInRateLimit: number;
   uploads: { maxBytes: number; clipsPerBuild: number; ratePerMinute: number; maxSeconds: number };
   jobs: { worker: 'inline' | 'off'; retryLimit: number; expireSeconds: number; stallSeconds: number; queuePrefix: string };
+  /** Holds S3 credentials when configured: never log a Config. */
+  storage: StorageSettings;
 }
 
 /** Parses the environment into a Config; throws with every problem listed. */
@@ -120,6 +139,22 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
       expireSeconds: e.JOB_EXPIRE_SECONDS,
       stallSeconds: e.JOB_STALL_SECONDS,
       queuePrefix: e.JOB_QUEUE_PREFIX,
+    },
+    storage: {
+      driver: e.STORAGE_DRIVER,
+      mediaDir: e.MEDIA_DIR,
+      s3:
+        e.STORAGE_DRIVER === 's3'
+          ? {
+              bucket: e.S3_BUCKET!,
+              region: e.S3_REGION,
+              endpoint: e.S3_ENDPOINT,
+              forcePathStyle: e.S3_FORCE_PATH_STYLE === '1',
+              accessKeyId: e.S3_ACCESS_KEY_ID,
+              secretAccessKey: e.S3_SECRET_ACCESS_KEY,
+              prefix: e.S3_PREFIX,
+            }
+          : undefined,
     },
   };
 }

@@ -6,7 +6,7 @@ import { initModels } from './db/models';
 import { createLogger } from './logger';
 import { startClipWorker } from './features/clips/clip.job';
 import { startQueue } from './jobs/queue';
-import { localStorage } from './storage/local-storage';
+import { storageFromConfig } from './storage/select-storage';
 
 /** Starts the API + client server; `stop()` drains connections and closes the database pools. */
 export async function startServer(config: Config) {
@@ -14,7 +14,7 @@ export async function startServer(config: Config) {
   const sequelize = createSequelize(config.databaseUrl);
   initModels(sequelize);
   await sequelize.authenticate();
-  const storage = localStorage(config.mediaDir);
+  const storage = storageFromConfig(config.storage);
   const queue = await startQueue(config);
   const worker = config.jobs.worker === 'inline' ? await startClipWorker(config, queue, { storage, logger }) : null;
   const { app, close } = createApp({ config, sequelize, logger, storage, queue });

@@ -26,8 +26,9 @@ export function localStorage(rootDir: string): Storage {
       if (opts.readOnly) await fsp.chmod(target, 0o444);
     },
     async stat(key) {
+      const file = pathOf(key); // an unsafe key throws here, not hidden as "missing"
       try {
-        const st = await fsp.stat(pathOf(key));
+        const st = await fsp.stat(file);
         return st.isFile() ? { size: st.size } : null;
       } catch {
         return null;

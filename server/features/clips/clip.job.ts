@@ -44,6 +44,7 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
   const scratch = path.join(deps.storage.scratchDir(), `job-${clip.id}-${crypto.randomUUID()}`);
   await fsp.mkdir(scratch, { recursive: true });
   const original = await deps.storage.localCopy(keys.original);
+  let webCopy: Awaited<ReturnType<Storage['localCopy']>> | null = null;
   try {
     await clip.update({ status: 'processing', progress: 0, failureReason: null, attempts: clip.attempts + 1 });
     deps.faultAt?.('start', clip.id, attempt.retryCount);
@@ -66,7 +67,8 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
       });
       deps.faultAt?.('web-copy', clip.id, attempt.retryCount);
       await deps.storage.putFile(keys.web, out, { contentType: 'video/mp4' });
-      source = (await deps.storage.localCopy(keys.web)).path;
+      webCopy = await deps.storage.localCopy(keys.web);
+      source = webCopy.path;
     }
     await clip.update({ progress: 92 });
     const posterOut = path.join(scratch, 'poster.jpg');
@@ -93,6 +95,7 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
     throw err;
   } finally {
     await original.release();
+    await webCopy?.release();
     await fsp.rm(scratch, { recursive: true, force: true });
   }
 }

@@ -156,6 +156,7 @@ export function clipsRouter(deps: ClipRouteDeps) {
 
   router.get('/:clipId/video', access.signedIn, one, async (req, res) => {
     const clip = await readyClip(req);
+    res.set('Cache-Control', privateCache(0));
     await deps.storage.send(res, playableKey(clip), { contentType: playableContentType(clip) });
   });
   router.get('/:clipId/poster', access.signedIn, one, async (req, res) => {

@@ -1,0 +1,72 @@
+import { runFfmpeg, writeAtomically } from './ffmpeg-run';
+import type { WebCopyKind } from './plan';
+
+/** Inputs of makeWebCopy besides the files. */
+export interface WebCopyOptions {
+  /** Duration of the input (from the probe), for the progress percentage. */
+  durationS: number;
+  /** 0–100, several times a second while ffmpeg runs; 100 once the file is in place. */
+  onProgress?: (percent: number) => void;
+  /** Aborting kills ffmpeg, deletes the partial file and rejects with the signal's reason. */
+  signal?: AbortSignal;
+}
+
+// Both kinds: the first video and first sound track only (subtitle and data tracks of MKV/MOV
+// often have no MP4 form), and the index moved to the front so playback starts at once.
+const COMMON_IN = ['-v', 'error', '-nostats', '-progress', 'pipe:1', '-y'];
+const COMMON_OUT = ['-map', '0:v:0', '-map', '0:a:0?', '-sn', '-dn', '-movflags', '+faststart', '-max_muxing_queue_size', '1024', '-f', 'mp4'];
+const TRANSCODE = [
+  // ffmpeg turns the picture upright itself (autorotate) and drops the rotation tag; then make
+  // the size even, which 4:2:0 H.264 needs.
+  '-vf', 'scale=trunc(iw/2)*2:trunc(ih/2)*2',
+  '-c:v', 'libx264', '-preset', 'veryfast', '-crf', '23', '-pix_fmt', 'yuv420p',
+  // A keyframe every second: seeking in the player, evidence frames and thumbnails then
+  // decode at most one second of video.
+  '-force_key_frames', 'expr:gte(t,n_forced*1)',
+  '-c:a', 'aac', '-b:a', '160k',
+];
+
+/**
+ * Makes the MP4 that browsers play from `input`: `remux` copies the streams into MP4,
+ * `transcode` re-encodes to H.264 (libx264 veryfast, CRF 23, 8-bit 4:2:0, upright, even size)
+ * + AAC. Written under a scratch name and renamed into `output`, so `output` is either whole or
+ * absent; on failure the scratch file is deleted and MediaCommandFailed carries ffmpeg's reason.
+ */
+export async function makeWebCopy(input: string, output: string, kind: Exclude<WebCopyKind, 'original'>, options: WebCopyOptions): Promise<void> {
+  const { durationS, onProgress, signal } = options;
+  let last = -1;
+  const report = (percent: number) => {
+    const p = Math.round(Math.min(100, Math.max(0, percent)) * 10) / 10;
+    if (p !== last) {
+      last = p;
+      onProgress?.(p);
+    }
+  };
+  await writeAtomically(output, async (scratch) => {
+    const codec = kind === 'remux' ? ['-c', 'copy'] : TRANSCODE;
+    await runFfmpeg([...COMMON_IN, '-i', input, ...codec, ...COMMON_OUT, scratch], {
+      what: kind === 'remux' ? 'copy the video into MP4' : 'convert the video for browsers',
+      signal,
+      onStdoutLine: (line) => {
+        const t = progressSeconds(line);
+        // Held below 100 until the file is in place: +faststart rewrites it after the last frame.
+        if (t != null && durationS > 0) report(Math.min(99, (t / durationS) * 100));
+      },
+    });
+  });
+  report(100);
+}
+
+/** Seconds of output written, from one line of ffmpeg's `-progress` output; null for other keys. */
+export function progressSeconds(line: string): number | null {
+  const eq = line.indexOf('=');
+  if (eq < 0) return null;
+  const key = line.slice(0, eq);
+  const value = line.slice(eq + 1).trim();
+  // out_time_ms is in microseconds too (a long-standing ffmpeg quirk); out_time is the same as text.
+  if (key === 'out_time_us' || key === 'out_time_ms') {
+    const us = Number(value);
+    return Number.isFinite(us) && us >= 0 ? us / 1e6 : null;
+  }
+  return null;
+}
