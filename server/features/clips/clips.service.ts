@@ -27,7 +27,8 @@ export function clipKeys(clip: Pick<Clip, 'storagePrefix'>) {
 /** The content type a clip's playable file is served with. */
 export function playableContentType(clip: Clip): string {
   if (clip.webCopy && clip.webCopy !== 'original') return 'video/mp4';
-  return ({ webm: 'video/webm', mov: 'video/quicktime' } as Record<string, string>)[clip.container] ?? 'video/mp4';
+  // MOV is served as video/mp4: browsers that play it only accept that type for it.
+  return clip.container === 'webm' ? 'video/webm' : 'video/mp4';
 }
 
 /** The key of the file browsers play: the web copy, or the original when it plays as it is. */

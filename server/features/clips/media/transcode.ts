@@ -1,4 +1,6 @@
-import { runFfmpeg, writeAtomically } from './ffmpeg-run';
+import ffmpeg from 'fluent-ffmpeg';
+import { mediaBinaries } from './binaries';
+import { MediaCommandFailed, summariseStderr, writeAtomically } from './ffmpeg-run';
 import type { WebCopyKind } from './plan';
 
 /** Inputs of makeWebCopy besides the files. */
@@ -13,7 +15,6 @@ export interface WebCopyOptions {
 
 // Both kinds: the first video and first sound track only (subtitle and data tracks of MKV/MOV
 // often have no MP4 form), and the index moved to the front so playback starts at once.
-const COMMON_IN = ['-v', 'error', '-nostats', '-progress', 'pipe:1', '-y'];
 const COMMON_OUT = ['-map', '0:v:0', '-map', '0:a:0?', '-sn', '-dn', '-movflags', '+faststart', '-max_muxing_queue_size', '1024', '-f', 'mp4'];
 const TRANSCODE = [
   // ffmpeg turns the picture upright itself (autorotate) and drops the rotation tag; then make
@@ -42,31 +43,39 @@ export async function makeWebCopy(input: string, output: string, kind: Exclude<W
       onProgress?.(p);
     }
   };
-  await writeAtomically(output, async (scratch) => {
-    const codec = kind === 'remux' ? ['-c', 'copy'] : TRANSCODE;
-    await runFfmpeg([...COMMON_IN, '-i', input, ...codec, ...COMMON_OUT, scratch], {
-      what: kind === 'remux' ? 'copy the video into MP4' : 'convert the video for browsers',
-      signal,
-      onStdoutLine: (line) => {
-        const t = progressSeconds(line);
-        // Held below 100 until the file is in place: +faststart rewrites it after the last frame.
-        if (t != null && durationS > 0) report(Math.min(99, (t / durationS) * 100));
-      },
-    });
-  });
+  mediaBinaries(); // points fluent-ffmpeg at the packaged binaries
+  await writeAtomically(output, (scratch) =>
+    new Promise<void>((resolve, reject) => {
+      if (signal?.aborted) return reject(signal.reason);
+      const what = kind === 'remux' ? 'copy the video into MP4' : 'convert the video for browsers';
+      const command = ffmpeg(input)
+        .outputOptions([...(kind === 'remux' ? ['-c', 'copy'] : TRANSCODE), ...COMMON_OUT])
+        .output(scratch)
+        .on('progress', (p: { timemark?: string }) => {
+          const t = timemarkSeconds(p.timemark);
+          // Held below 100 until the file is in place: +faststart rewrites it after the last frame.
+          if (t != null && durationS > 0) report(Math.min(99, (t / durationS) * 100));
+        })
+        .on('end', () => {
+          signal?.removeEventListener('abort', onAbort);
+          resolve();
+        })
+        .on('error', (err: Error, _stdout: string | null, stderr: string | null) => {
+          signal?.removeEventListener('abort', onAbort);
+          if (signal?.aborted) return reject(signal.reason);
+          const why = summariseStderr(stderr ?? '') ?? err.message;
+          reject(new MediaCommandFailed(`Could not ${what}: ${why}.`, (stderr ?? '').slice(-4000), null));
+        });
+      const onAbort = () => command.kill('SIGKILL');
+      signal?.addEventListener('abort', onAbort, { once: true });
+      command.run();
+    }),
+  );
   report(100);
 }
 
-/** Seconds of output written, from one line of ffmpeg's `-progress` output; null for other keys. */
-export function progressSeconds(line: string): number | null {
-  const eq = line.indexOf('=');
-  if (eq < 0) return null;
-  const key = line.slice(0, eq);
-  const value = line.slice(eq + 1).trim();
-  // out_time_ms is in microseconds too (a long-standing ffmpeg quirk); out_time is the same as text.
-  if (key === 'out_time_us' || key === 'out_time_ms') {
-    const us = Number(value);
-    return Number.isFinite(us) && us >= 0 ? us / 1e6 : null;
-  }
-  return null;
+/** Seconds from fluent-ffmpeg's `timemark` ("00:01:02.50"); null when absent. */
+export function timemarkSeconds(mark: string | undefined): number | null {
+  const m = /^(\d+):(\d{2}):(\d{2}(?:\.\d+)?)$/.exec(mark ?? '');
+  return m ? Number(m[1]) * 3600 + Number(m[2]) * 60 + Number(m[3]) : null;
 }
