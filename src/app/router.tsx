@@ -37,6 +37,8 @@ export const router = createBrowserRouter([
           { path: 'sign-in', lazy: () => import('@/features/auth/routes/sign-in-page') },
           { path: 'calculator', lazy: () => import('@/features/calc/routes/calculator-page') },
           { path: 'builds', lazy: () => import('@/features/builds/routes/builds-page') },
+          { path: 'builds/new', lazy: () => import('@/features/builds/routes/new-build-page') },
+          { path: 'builds/:buildId', lazy: () => import('@/features/builds/routes/build-workspace-page') },
           { path: 'review', lazy: () => import('@/features/review/routes/review-page') },
           { path: 'admin/users', lazy: () => import('@/features/admin/routes/users-page') },
           // Not lazy: the error boundary shows the same page for loader 404s.

@@ -43,11 +43,13 @@ export interface ApiFetchOptions<T> {
   signal?: AbortSignal;
 }
 
-const CSRF_INVALID = 'csrf_invalid';
+/** Error code the server sends when the CSRF token is missing or stale. */
+export const CSRF_INVALID = 'csrf_invalid';
 
 let csrfTokenPromise: Promise<string> | null = null;
 
-function getCsrfToken(): Promise<string> {
+/** The session's CSRF token (fetched once, cached), for requests that cannot go through `apiFetch` (XHR uploads). */
+export function getCsrfToken(): Promise<string> {
   csrfTokenPromise ??= apiFetch('/api/csrf-token', { schema: csrfTokenResponseSchema })
     .then(({ token }) => token)
     .catch((error: unknown) => {

@@ -1,0 +1,259 @@
+import { useCallback, useEffect, useState } from 'react';
+import { useQuery, useSuspenseQuery, type UseQueryResult } from '@tanstack/react-query';
+import { data, useBlocker, useParams, useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
+import { buildIdParamsSchema } from '@shared/builds/build.schema';
+import type { Clip } from '@shared/clips/clip.schema';
+import { requireArea } from '@/features/auth/lib/require-role';
+import { clipQueries } from '@/features/clips/api/clip-queries';
+import { useClipUploads } from '@/features/clips/api/use-clip-uploads';
+import { ClipPlayer } from '@/features/clips/components/clip-player';
+import { clipStatusWords } from '@/features/clips/components/clip-status';
+import { ClipTimeline } from '@/features/clips/components/clip-timeline';
+import { UploadPanel } from '@/features/clips/components/upload-panel';
+import { ButtonLink } from '@/components/ui/button';
+import { ConfirmDialog } from '@/components/ui/dialog';
+import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
+import { Panel } from '@/components/ui/panel';
+import { ApiError, errorMessage } from '@/lib/api';
+import { queryClient } from '@/lib/query-client';
+import { useInvalidateBuilds } from '../api/build-mutations';
+import { buildQueries } from '../api/build-queries';
+import { BuildHeader } from '../components/build-header';
+
+function buildIdFrom(params: unknown): number {
+  const parsed = buildIdParamsSchema.safeParse(params);
+  if (!parsed.success) throw data(null, { status: 404 });
+  return parsed.data.buildId;
+}
+
+export async function loader({ request, params }: LoaderFunctionArgs) {
+  await requireArea('builds', request);
+  const buildId = buildIdFrom(params);
+  // The clips may load on their own (their panel has its own states); the build must exist.
+  void queryClient.prefetchQuery(clipQueries.list(buildId));
+  try {
+    await queryClient.ensureQueryData(buildQueries.detail(buildId));
+  } catch (error) {
+    if (error instanceof ApiError && error.status === 404) throw data(null, { status: 404 });
+    throw error;
+  }
+  return null;
+}
+
+/** The build at the bench: its parts, its clips in order, uploads, and the player with moment marking. */
+export function Component() {
+  const buildId = buildIdFrom(useParams());
+  const { data: build } = useSuspenseQuery(buildQueries.detail(buildId));
+  const clips = useQuery(clipQueries.list(buildId));
+  const invalidateBuilds = useInvalidateBuilds();
+  const uploads = useClipUploads(buildId, { onSent: invalidateBuilds });
+  const [params, setParams] = useSearchParams();
+  const [focusRequest, setFocusRequest] = useState(0);
+
+  const clipList = clips.data;
+  const requestedId = Number(params.get('clip')) || null;
+  const requested = clipList?.find((clip) => clip.id === requestedId) ?? null;
+  const firstReady = clipList?.find(isPlayable) ?? null;
+  const selected = requested ?? (requestedId === null ? firstReady : null);
+
+  // Pin the first ready clip once shown, so reordering or new uploads never swap the clip under the builder's hands.
+  useEffect(() => {
+    if (requestedId !== null || !firstReady) return;
+    setParams(
+      (current) => {
+        const next = new URLSearchParams(current);
+        next.set('clip', String(firstReady.id));
+        return next;
+      },
+      { replace: true },
+    );
+  }, [requestedId, firstReady, setParams]);
+
+  const select = useCallback(
+    (clipId: number) => {
+      setParams(
+        (current) => {
+          const next = new URLSearchParams(current);
+          next.set('clip', String(clipId));
+          return next;
+        },
+        { replace: true },
+      );
+      // Into the player, so M works at once and small screens scroll to it.
+      setFocusRequest((n) => n + 1);
+    },
+    [setParams],
+  );
+
+  const onDeleted = useCallback(
+    (clipId: number) => {
+      void invalidateBuilds();
+      if (clipId === selected?.id) setParams({}, { replace: true });
+    },
+    [invalidateBuilds, selected?.id, setParams],
+  );
+
+  const blocker = useBlocker(
+    ({ currentLocation, nextLocation }) => uploads.activeCount > 0 && currentLocation.pathname !== nextLocation.pathname,
+  );
+  useEffect(() => {
+    if (uploads.activeCount === 0) return;
+    const warn = (event: BeforeUnloadEvent) => event.preventDefault();
+    window.addEventListener('beforeunload', warn);
+    return () => window.removeEventListener('beforeunload', warn);
+  }, [uploads.activeCount]);
+
+  return (
+    <>
+      <p className="mb-2 text-sm" data-print="hide">
+        <ButtonLink to="/builds" variant="quiet" size="sm" className="-ml-2.5">
+          ← My builds
+        </ButtonLink>
+      </p>
+      <BuildHeader build={build} />
+
+      <div className="grid items-start gap-5 lg:grid-cols-[minmax(0,23rem)_minmax(0,1fr)]">
+        <Panel
+          title="Clips"
+          description="In the order a reader will see them. Drag a card, or use Up and Down."
+          className="lg:sticky lg:top-4"
+        >
+          <div className="flex flex-col gap-4">
+            <UploadPanel
+              items={uploads.items}
+              clips={clipList}
+              onAdd={uploads.add}
+              onCancel={uploads.cancel}
+              onRetry={uploads.retry}
+              onDismiss={uploads.dismiss}
+              onOpen={select}
+            />
+            <ClipsBody
+              buildId={buildId}
+              query={clips}
+              selectedId={selected?.id ?? null}
+              onSelect={select}
+              onDeleted={onDeleted}
+            />
+          </div>
+        </Panel>
+
+        <PlayerArea
+          buildId={buildId}
+          clips={clipList}
+          selected={selected}
+          requestedId={requestedId}
+          loading={clips.isPending}
+          focusRequest={focusRequest}
+        />
+      </div>
+
+      <ConfirmDialog
+        open={blocker.state === 'blocked'}
+        onOpenChange={(open) => !open && blocker.reset?.()}
+        title="Leave while files are uploading?"
+        description={`${uploads.activeCount} ${uploads.activeCount === 1 ? 'file is' : 'files are'} still uploading or waiting. Leaving this build cancels them; clips already uploaded are kept and keep processing.`}
+        confirmLabel="Leave and cancel uploads"
+        cancelLabel="Stay here"
+        confirmVariant="danger"
+        onConfirm={() => blocker.proceed?.()}
+      />
+    </>
+  );
+}
+
+function isPlayable(clip: Clip): boolean {
+  return clip.status === 'ready' && clip.videoUrl !== null;
+}
+
+function ClipsBody({
+  buildId,
+  query,
+  selectedId,
+  onSelect,
+  onDeleted,
+}: {
+  buildId: number;
+  query: UseQueryResult<Clip[]>;
+  selectedId: number | null;
+  onSelect: (clipId: number) => void;
+  onDeleted: (clipId: number) => void;
+}) {
+  if (query.isPending) return <LoadingState label="Loading the clips…" className="py-4" />;
+  if (!query.data) {
+    return (
+      <ErrorState
+        title="The clips could not be loaded"
+        error={query.error}
+        onRetry={() => void query.refetch()}
+        retrying={query.isRefetching}
+      />
+    );
+  }
+  if (query.data.length === 0) {
+    return (
+      <EmptyState title="No clips yet">
+        Film the work at the bench, then add the files above. Each clip is made ready for the web on the server (seconds
+        to a few minutes); then open it to mark the moments you took readings at.
+      </EmptyState>
+    );
+  }
+  return (
+    <>
+      <ClipTimeline buildId={buildId} clips={query.data} selectedId={selectedId} onSelect={onSelect} onDeleted={onDeleted} />
+      {query.isRefetchError && (
+        <p role="alert" className="text-xs text-danger">
+          The clips could not be refreshed and may be out of date: {errorMessage(query.error)}
+        </p>
+      )}
+    </>
+  );
+}
+
+function PlayerArea({
+  buildId,
+  clips,
+  selected,
+  requestedId,
+  loading,
+  focusRequest,
+}: {
+  buildId: number;
+  clips: Clip[] | undefined;
+  selected: Clip | null;
+  requestedId: number | null;
+  loading: boolean;
+  focusRequest: number;
+}) {
+  if (loading) return <LoadingState label="Loading the player…" />;
+  if (!clips) return null;
+  if (requestedId !== null && !selected) {
+    return (
+      <EmptyState title="That clip is not in this build">
+        It may have been deleted. Choose a ready clip from the list to play it.
+      </EmptyState>
+    );
+  }
+  if (selected && !isPlayable(selected)) {
+    return (
+      <EmptyState title={`“${selected.title}” cannot be played yet`}>
+        {selected.status === 'failed'
+          ? `Processing failed: ${selected.failureReason ?? 'no reason given'}. Delete it and upload the file again, or another copy of it.`
+          : `It is ${clipStatusWords(selected).toLowerCase()} on the server and opens here as soon as it is ready.`}
+      </EmptyState>
+    );
+  }
+  if (!selected) {
+    const inProgress = clips.filter((clip) => clip.status === 'uploaded' || clip.status === 'processing').length;
+    return (
+      <EmptyState title="Nothing to play yet">
+        {clips.length === 0
+          ? 'Add a clip on the left. When it is ready it opens here, with frame steps and a button to mark the moment of each reading.'
+          : inProgress > 0
+            ? `${inProgress} ${inProgress === 1 ? 'clip is' : 'clips are'} still being processed. The first one ready opens here.`
+            : 'None of the clips could be processed. Upload the files again, or another copy of them.'}
+      </EmptyState>
+    );
+  }
+  return <ClipPlayer key={selected.id} clip={selected} buildId={buildId} focusRequest={focusRequest} />;
+}
