@@ -2,6 +2,8 @@ import { z } from 'zod';
 
 /** A part of a build, with its serial number as stamped or tagged. */
 export const partInputSchema = z.object({
+  /** Present for a part that already exists: it keeps its id (readings will point at it). */
+  id: z.number().int().positive().optional(),
   name: z.string().trim().min(1, 'Name the part').max(120),
   serial: z.string().trim().max(80).default(''),
 });

@@ -1,7 +1,7 @@
 import { Op } from 'sequelize';
 import type { Build as BuildDto, BuildPatch, ListBuildsResponse } from '@shared/builds/build.schema';
 import { buildInputSchema } from '@shared/builds/build.schema';
-import { forbidden, notFound, unauthorized } from '../../http/errors';
+import { badRequest, forbidden, notFound, unauthorized } from '../../http/errors';
 import { Clip } from '../clips/clip.model';
 import type { User } from '../users/user.model';
 import { Build, Part } from './build.model';
@@ -66,12 +66,23 @@ export async function updateBuild(build: Build, patch: BuildPatch): Promise<Buil
     build.changed('updatedAt', true);
     await build.save({ transaction });
     if (patch.parts) {
-      // Parts are a small list edited as a whole; replace them.
-      await Part.destroy({ where: { buildId: build.id }, transaction });
-      await Part.bulkCreate(
-        patch.parts.map((p, position) => ({ buildId: build.id, name: p.name, serial: p.serial ?? '', position })),
-        { transaction },
-      );
+      // The list is edited as a whole, but a part sent with its id keeps that id.
+      const existing = new Map((await Part.findAll({ where: { buildId: build.id }, transaction })).map((p) => [p.id, p]));
+      const kept = new Set<number>();
+      for (const [position, p] of patch.parts.entries()) {
+        const current = p.id === undefined ? undefined : existing.get(p.id);
+        if (p.id !== undefined && !current) {
+          throw badRequest('A part in the list does not belong to this build.', [{ path: `parts.${position}.id`, message: 'not a part of this build' }]);
+        }
+        if (current) {
+          kept.add(current.id);
+          await current.update({ name: p.name, serial: p.serial ?? '', position }, { transaction });
+        } else {
+          await Part.create({ buildId: build.id, name: p.name, serial: p.serial ?? '', position }, { transaction });
+        }
+      }
+      const gone = [...existing.keys()].filter((id) => !kept.has(id));
+      if (gone.length) await Part.destroy({ where: { id: gone }, transaction });
     }
   });
   build.parts = undefined;

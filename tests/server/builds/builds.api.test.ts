@@ -40,6 +40,26 @@ describe('builds', () => {
     expect(buildResponseSchema.parse(res.body).build).toMatchObject({ title: 'After the edit', parts: [{ name: 'Thrust washer', serial: 'TW-9' }] });
   });
 
+  it('parts sent back with their ids keep them; new ones are added, missing ones removed', async () => {
+    const agent = await signIn(t, 'demo-builder');
+    const token = await csrfToken(agent);
+    const { build } = buildResponseSchema.parse(
+      (await agent.post('/api/builds').set('x-csrf-token', token).send({ title: 'Part ids', parts: [{ name: 'Pump', serial: 'P1' }, { name: 'Crank', serial: 'C1' }] }).expect(201)).body,
+    );
+    const [pump, crank] = build.parts;
+    const res = await agent
+      .patch(`/api/builds/${build.id}`)
+      .set('x-csrf-token', token)
+      .send({ parts: [{ id: crank!.id, name: 'Crankshaft', serial: 'C1' }, { name: 'Thrust washer', serial: 'T1' }] })
+      .expect(200);
+    const parts = buildResponseSchema.parse(res.body).build.parts;
+    expect(parts[0]).toEqual({ id: crank!.id, name: 'Crankshaft', serial: 'C1' });
+    expect(parts[1]!.name).toBe('Thrust washer');
+    expect(parts.map((p) => p.id)).not.toContain(pump!.id);
+    const foreign = await agent.patch(`/api/builds/${build.id}`).set('x-csrf-token', token).send({ parts: [{ id: 999999, name: 'X' }] }).expect(400);
+    expect(errorBodySchema.parse(foreign.body).error.details[0]?.path).toBe('parts.0.id');
+  });
+
   it('a title that is too short is refused with the field named', async () => {
     const agent = await signIn(t, 'demo-builder');
     const res = await agent.post('/api/builds').set('x-csrf-token', await csrfToken(agent)).send({ title: 'x' }).expect(400);

@@ -31,7 +31,8 @@ export function BuildForm({ defaultValues, submitLabel, pendingLabel, onSubmit, 
     mode: 'onTouched',
   });
   const { register, control, formState, setError, handleSubmit } = form;
-  const parts = useFieldArray({ control, name: 'parts' });
+  // keyName: the parts carry their own `id` (kept by the server), so the array's row key needs another name.
+  const parts = useFieldArray({ control, name: 'parts', keyName: 'key' });
   const partsHeadingId = useId();
   const errors = formState.errors;
 
@@ -65,7 +66,7 @@ export function BuildForm({ defaultValues, submitLabel, pendingLabel, onSubmit, 
         ) : (
           <ol className="flex flex-col gap-2">
             {parts.fields.map((field, index) => (
-              <li key={field.id} className="grid grid-cols-[1fr_minmax(0,12rem)_auto] items-start gap-2">
+              <li key={field.key} className="grid grid-cols-[1fr_minmax(0,12rem)_auto] items-start gap-2">
                 <Field label={`Part ${index + 1}`} error={errors.parts?.[index]?.name?.message}>
                   <Input {...register(`parts.${index}.name`)} autoComplete="off" className="h-9 text-sm" />
                 </Field>

@@ -61,7 +61,7 @@ export function BuildHeader({ build }: { build: Build }) {
             defaultValues={{
               title: build.title,
               subject: build.subject,
-              parts: build.parts.map(({ name, serial }) => ({ name, serial })),
+              parts: build.parts.map(({ id, name, serial }) => ({ id, name, serial })),
             }}
             submitLabel="Save changes"
             pendingLabel="Saving…"
