@@ -1,18 +1,18 @@
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { buildClientIfChanged } from '../../scripts/lib/client-build';
-import { startTestApp } from './test-app';
+import { startTestApp, type TestAppOptions } from './test-app';
 
 /**
  * The product as `npm start` serves it (built client + API + fake provider), on a free
  * loopback port, for browser tests. The client is rebuilt only when its sources changed.
  */
-export async function startBrowserApp() {
+export async function startBrowserApp(opts: TestAppOptions = {}) {
   await buildClientIfChanged();
   const server = http.createServer();
   await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
   const url = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
-  const t = await startTestApp({ PUBLIC_URL: url });
+  const t = await startTestApp({ PUBLIC_URL: url }, opts);
   server.on('request', t.app);
   return {
     ...t,
