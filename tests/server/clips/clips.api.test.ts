@@ -270,6 +270,23 @@ describe('refused uploads leave nothing behind', () => {
     }
   });
 
+  it('a build that already holds the most clips refuses one more (409) and keeps nothing of it', async () => {
+    const capped = await startTestApp({ CLIPS_PER_BUILD_MAX: '1' });
+    try {
+      const agent = await signIn(capped, 'demo-builder');
+      const tok = await csrfToken(agent);
+      const b = await agent.post('/api/builds').set('x-csrf-token', tok).send({ title: 'Count limit check' }).expect(201);
+      await agent.post(`/api/builds/${b.body.build.id}/clips`).set('x-csrf-token', tok).attach('file', mp4).expect(201);
+      const before = fs.readdirSync(path.join(capped.mediaDir, 'clips'));
+      const res = await agent.post(`/api/builds/${b.body.build.id}/clips`).set('x-csrf-token', tok).attach('file', mp4).expect(409);
+      expect(errorBodySchema.parse(res.body).error.code).toBe('too_many_clips');
+      expect(fs.readdirSync(path.join(capped.mediaDir, 'clips'))).toEqual(before);
+      expect(fs.readdirSync(path.join(capped.mediaDir, '.scratch', 'incoming'))).toEqual([]);
+    } finally {
+      await capped.close();
+    }
+  });
+
   it('an upload cut off half way leaves no partial file', async () => {
     const server = http.createServer(t.app);
     await new Promise<void>((r) => server.listen(0, '127.0.0.1', r));
