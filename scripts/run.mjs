@@ -7,8 +7,9 @@ import { createHash } from 'node:crypto';
 import { spawn, spawnSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 
-const root = path.resolve(path.dirname(new URL(import.meta.url).pathname), '..');
+const root = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..');
 const lock = path.join(root, 'package-lock.json');
 const stamp = path.join(root, 'node_modules', '.benchproof-deps');
 const want = createHash('sha256').update(fs.readFileSync(lock)).digest('hex');

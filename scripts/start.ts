@@ -5,10 +5,16 @@ import { buildClientIfChanged } from './lib/client-build';
 import { bringUpLocal, demoSignInLines, onShutdown } from './lib/run-local';
 
 const local = await bringUpLocal({ NODE_ENV: process.env.NODE_ENV ?? 'production' });
+let running: Awaited<ReturnType<typeof startServer>> | null = null;
+// Registered before anything slow, so Ctrl-C during start-up still stops PostgreSQL.
+onShutdown(async () => {
+  await running?.stop();
+  await local.stopAll();
+});
 try {
   const built = await buildClientIfChanged();
   if (!built) console.log('[client] up to date');
-  const running = await startServer(local.config);
+  running = await startServer(local.config);
   // Generated once: the demo builds' clips (test patterns with captions), processed by the worker.
   await seedDemoClips({ config: local.config, storage: running.storage, queue: running.queue, logger: running.logger });
   const url = local.config.publicUrl;
@@ -23,10 +29,6 @@ try {
       'Ctrl-C stops everything this command started.',
     ].join('\n'),
   );
-  onShutdown(async () => {
-    await running.stop();
-    await local.stopAll();
-  });
 } catch (err) {
   await local.stopAll();
   throw err;

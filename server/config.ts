@@ -14,7 +14,8 @@ const envSchema = z.object({
   /** Public base URL of the site, used for OAuth callbacks and e-mail links. */
   PUBLIC_URL: z.string().url().optional(),
   DATABASE_URL: z.string().default('postgres://benchproof@127.0.0.1:54320/benchproof'),
-  SESSION_SECRET: z.string().min(16).default('benchproof-local-development-secret'),
+  /** Required in production (npm start makes one per checkout in .data/session-secret). */
+  SESSION_SECRET: z.string().min(16).optional(),
   /** Set both to use the real GitHub; leave both unset to use the local fake provider. */
   GITHUB_CLIENT_ID: z.string().optional(),
   GITHUB_CLIENT_SECRET: z.string().optional(),
@@ -53,6 +54,9 @@ const envSchema = z.object({
   S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
   S3_PREFIX: z.string().regex(/^[a-z0-9][a-z0-9._-]*(\/[a-z0-9][a-z0-9._-]*)*$/).optional(),
 }).superRefine((e, ctx) => {
+  if (e.NODE_ENV === 'production' && !e.SESSION_SECRET) {
+    ctx.addIssue({ code: 'custom', path: ['SESSION_SECRET'], message: 'required in production: set a long random value' });
+  }
   if (e.STORAGE_DRIVER === 's3' && !e.S3_BUCKET) ctx.addIssue({ code: 'custom', path: ['S3_BUCKET'], message: 'required when STORAGE_DRIVER=s3' });
   if (Boolean(e.S3_ACCESS_KEY_ID) !== Boolean(e.S3_SECRET_ACCESS_KEY)) {
     ctx.addIssue({ code: 'custom', path: ['S3_SECRET_ACCESS_KEY'], message: 'set both S3 keys or neither' });
@@ -105,7 +109,7 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     port: e.PORT,
     publicUrl: (e.PUBLIC_URL ?? `http://127.0.0.1:${e.PORT}`).replace(/\/$/, ''),
     databaseUrl: e.DATABASE_URL,
-    sessionSecret: e.SESSION_SECRET,
+    sessionSecret: e.SESSION_SECRET ?? 'benchproof-development-only-secret',
     github: realGithub
       ? {
           clientId: e.GITHUB_CLIENT_ID!,

@@ -94,7 +94,7 @@ export function ensurePostgres(opts: { dataDir: string; port: number; throwaway?
   if (!fs.existsSync(path.join(dataDir, 'PG_VERSION'))) {
     log(`creating a cluster in ${dataDir}`);
     fs.mkdirSync(dataDir, { recursive: true, mode: 0o700 });
-    if (user) execFileSync('chown', ['-R', `${user}:`, path.dirname(dataDir)]);
+    if (user) execFileSync('chown', ['-R', `${user}:`, dataDir]);
     const r = asServerUser(user, path.join(bin, 'initdb'), [
       '-D', dataDir, '-U', 'postgres', '--auth=trust', '-E', 'UTF8', '--no-locale', '--no-instructions',
     ]);

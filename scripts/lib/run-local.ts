@@ -1,3 +1,5 @@
+import crypto from 'node:crypto';
+import fs from 'node:fs';
 import path from 'node:path';
 import { loadConfig, type Config } from '../../server/config';
 import { createFakeGithub } from '../../server/fakes/github/fake-github';
@@ -11,6 +13,16 @@ export function localSettings(env = process.env) {
     dataDir: path.resolve(repoRoot, env.BENCHPROOF_DATA_DIR ?? '.data/postgres'),
     database: env.BENCHPROOF_DB_NAME ?? 'benchproof',
   };
+}
+
+/** A random session secret made once per checkout and kept in .data (git-ignored). */
+function localSessionSecret(): string {
+  const file = path.join(repoRoot, '.data', 'session-secret');
+  if (!fs.existsSync(file)) {
+    fs.mkdirSync(path.dirname(file), { recursive: true });
+    fs.writeFileSync(file, crypto.randomBytes(32).toString('hex'), { mode: 0o600 });
+  }
+  return fs.readFileSync(file, 'utf8').trim();
 }
 
 /** The demo people as the fake provider's accounts. */
@@ -30,17 +42,24 @@ export function fakeAccounts() {
  */
 export async function bringUpLocal(overrides: Record<string, string> = {}) {
   const s = localSettings();
+  // The invented demo people are for the local fake provider only, never next to real GitHub.
+  const realGithub = Boolean(process.env.GITHUB_CLIENT_ID && process.env.GITHUB_CLIENT_SECRET);
   const db = await prepareDatabase({
     databaseUrl: process.env.DATABASE_URL,
     dataDir: s.dataDir,
     port: s.pgPort,
     database: s.database,
-    seed: true,
+    seed: !realGithub,
   });
   if (db.migrated.length) console.log(`[db] migrations run: ${db.migrated.join(', ')}`);
   if (db.seed?.created.length) console.log(`[db] demo data created: ${db.seed.created.join(', ')}`);
 
-  const config: Config = loadConfig({ ...process.env, DATABASE_URL: db.databaseUrl, ...overrides });
+  const config: Config = loadConfig({
+    ...process.env,
+    DATABASE_URL: db.databaseUrl,
+    SESSION_SECRET: process.env.SESSION_SECRET ?? localSessionSecret(),
+    ...overrides,
+  });
   const stops: (() => Promise<void> | void)[] = [() => db.postgres?.stop()];
   if (config.github.fake) {
     const fake = createFakeGithub({
@@ -64,7 +83,7 @@ export async function bringUpLocal(overrides: Record<string, string> = {}) {
 /** Runs `stop` once on Ctrl-C or SIGTERM, then exits. */
 export function onShutdown(stop: () => Promise<void>) {
   let stopping = false;
-  for (const signal of ['SIGINT', 'SIGTERM'] as const) {
+  for (const signal of ['SIGINT', 'SIGTERM', 'SIGHUP'] as const) {
     process.on(signal, () => {
       if (stopping) return;
       stopping = true;

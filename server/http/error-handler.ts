@@ -3,6 +3,9 @@ import { ZodError } from 'zod';
 import type { ErrorBody } from '@shared/http/error.schema';
 import { AppError, notFound } from './errors';
 
+/** Headers a media response may have set before it failed; the JSON error must not carry them. */
+const mediaHeaders = ['Content-Type', 'Content-Disposition', 'ETag', 'Last-Modified', 'Accept-Ranges'];
+
 function body(code: string, message: string, details: ErrorBody['error']['details'] = []): ErrorBody {
   return { error: { code, message, details } };
 }
@@ -17,6 +20,10 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
     res.end();
     return;
   }
+  for (const h of mediaHeaders) res.removeHeader(h);
+  // A 416 keeps its Content-Range (bytes */size), which tells the client the real length.
+  if (err?.status !== 416 && err?.statusCode !== 416) res.removeHeader('Content-Range');
+  res.set('Cache-Control', 'no-store');
   if (err instanceof ZodError) {
     const details = err.issues.map((i) => ({
       path: i.path.map(String).join('.'),

@@ -8,13 +8,20 @@ export const partInputSchema = z.object({
   serial: z.string().trim().max(80).default(''),
 });
 
-/** Body of `POST /api/builds` and `PATCH /api/builds/:id` (every field optional there). */
-export const buildInputSchema = z.object({
+const buildFields = {
   title: z.string().trim().min(3, 'Give the build a title of at least 3 characters').max(160),
-  subject: z.string().trim().max(300).default(''),
-  parts: z.array(partInputSchema).max(100).default([]),
+  subject: z.string().trim().max(300),
+  parts: z.array(partInputSchema).max(100),
+};
+
+/** Body of `POST /api/builds`. */
+export const buildInputSchema = z.object({
+  title: buildFields.title,
+  subject: buildFields.subject.default(''),
+  parts: buildFields.parts.default([]),
 });
-export const buildPatchSchema = buildInputSchema.partial().strict();
+/** Body of `PATCH /api/builds/:id`: only the fields sent change (no defaults filled in). */
+export const buildPatchSchema = z.object(buildFields).partial().strict();
 export type BuildInput = z.input<typeof buildInputSchema>;
 export type BuildPatch = z.infer<typeof buildPatchSchema>;
 

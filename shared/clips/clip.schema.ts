@@ -97,11 +97,13 @@ export const momentSchema = z.object({
 export type Moment = z.infer<typeof momentSchema>;
 
 /** Body of `POST /api/clips/:clipId/moments` and `PATCH /api/moments/:momentId`. */
-export const momentInputSchema = z.object({
+const momentFields = {
   atMs: z.number().int().nonnegative().max(86_400_000),
-  label: z.string().trim().max(160).default(''),
-});
-export const momentPatchSchema = momentInputSchema.partial().strict();
+  label: z.string().trim().max(160),
+};
+export const momentInputSchema = z.object({ atMs: momentFields.atMs, label: momentFields.label.default('') });
+/** Only the fields sent change (no defaults filled in, so a nudge keeps the label). */
+export const momentPatchSchema = z.object(momentFields).partial().strict();
 export const momentIdParamsSchema = z.object({ momentId: z.coerce.number().int().positive() });
 export const momentListResponseSchema = z.object({ items: z.array(momentSchema) });
 export const momentResponseSchema = z.object({ moment: momentSchema });

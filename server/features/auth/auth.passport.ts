@@ -40,7 +40,7 @@ export function createPassport(config: Config) {
           displayName: profile.displayName || json.name || profile.username || '',
           email: profile.emails?.[0]?.value ?? null,
           avatarUrl: json.avatar_url ?? profile.photos?.[0]?.value ?? null,
-        }).then((user) => done(null, user), done);
+        }, { demoAccounts: config.github.fake }).then((user) => done(null, user), done);
       },
     ),
   );

@@ -40,10 +40,17 @@ export async function buildForViewer(buildId: number, user: User | undefined): P
   return build;
 }
 
-/** Loads a build the user may change: its builder (or an admin). */
-export async function buildForOwner(buildId: number, user: User | undefined): Promise<Build> {
+/** Who besides the builder may act: nobody writes in a builder's name; an admin may take content down. */
+export type OwnerAction = 'change' | 'take-down';
+
+/**
+ * Loads a build the user may act on. Only its builder may change or add to it (a build's
+ * figures are the builder's own); an admin may also remove things (`take-down`).
+ */
+export async function buildForOwner(buildId: number, user: User | undefined, action: OwnerAction = 'change'): Promise<Build> {
   const build = await buildForViewer(buildId, user);
-  if (build.ownerId !== user!.id && user!.role !== 'admin') throw forbidden('Only the builder of this build can change it.');
+  const admin = user!.role === 'admin' && action === 'take-down';
+  if (build.ownerId !== user!.id && !admin) throw forbidden('Only the builder of this build can change it.');
   return build;
 }
 

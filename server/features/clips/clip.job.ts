@@ -9,6 +9,7 @@ import type { Queue } from '../../jobs/queue';
 import type { Storage } from '../../storage/storage';
 import { Clip } from './clip.model';
 import { clipKeys } from './clips.service';
+import { MediaCommandFailed } from './media/ffmpeg-run';
 import { MediaRejected } from './media/probe';
 import { planWebCopy } from './media/plan';
 import { makeWebCopy } from './media/transcode';
@@ -42,10 +43,11 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
   const last = attempt.retryCount >= attempt.retryLimit;
   const keys = clipKeys(clip);
   const scratch = path.join(deps.storage.scratchDir(), `job-${clip.id}-${crypto.randomUUID()}`);
-  await fsp.mkdir(scratch, { recursive: true });
-  const original = await deps.storage.localCopy(keys.original);
+  let original: Awaited<ReturnType<Storage['localCopy']>> | null = null;
   let webCopy: Awaited<ReturnType<Storage['localCopy']>> | null = null;
   try {
+    await fsp.mkdir(scratch, { recursive: true });
+    original = await deps.storage.localCopy(keys.original);
     await clip.update({ status: 'processing', progress: 0, failureReason: null, attempts: clip.attempts + 1 });
     deps.faultAt?.('start', clip.id, attempt.retryCount);
     const probe = clip.probe!;
@@ -62,7 +64,9 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
           const now = Date.now();
           if (now - lastWrite < 1000) return;
           lastWrite = now;
-          void Clip.update({ progress: Math.min(90, Math.round(percent * 0.9)) }, { where: { id: clip.id } });
+          Clip.update({ progress: Math.min(90, Math.round(percent * 0.9)) }, { where: { id: clip.id } }).catch((err: unknown) =>
+            deps.logger.warn({ err, clipId: clip.id }, 'progress heartbeat not written'),
+          );
         },
       });
       deps.faultAt?.('web-copy', clip.id, attempt.retryCount);
@@ -78,13 +82,21 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
     const strip = await makeThumbnailStrip(source, stripOut, { count: Math.max(1, Math.min(60, Math.ceil(probe.durationS))), tileWidth: 160 });
     deps.faultAt?.('stills', clip.id, attempt.retryCount);
     await deps.storage.putFile(keys.thumbnails, stripOut, { contentType: 'image/jpeg' });
-    await clip.update({ status: 'ready', progress: 100, webCopy: plan, thumbnails: strip, failureReason: null });
+    // The clip may have been deleted meanwhile: then remove what this job wrote, not a ready row.
+    const [updated] = await Clip.update(
+      { status: 'ready', progress: 100, webCopy: plan, thumbnails: strip, failureReason: null },
+      { where: { id: clip.id } },
+    );
+    if (updated === 0) {
+      await deps.storage.deletePrefix(keys.base);
+      return;
+    }
     deps.logger.info({ clipId: clip.id, plan }, 'clip ready');
   } catch (err) {
     const permanent = err instanceof MediaRejected;
-    const reason = permanent
-      ? err.message
-      : `Processing failed${last ? '' : ', retrying'}: ${(err as Error).message}`.slice(0, 500);
+    // ffmpeg's own complaint is worth showing; anything else (SQL, paths, storage) stays in the log.
+    const why = err instanceof MediaCommandFailed ? err.message : 'an internal error (the details are in the server log).';
+    const reason = permanent ? err.message : `Processing failed${last ? '' : ', retrying'}: ${why}`.slice(0, 500);
     deps.logger.warn({ err, clipId: clip.id, attempt: attempt.retryCount }, 'clip processing failed');
     if (permanent || last) {
       // The original stays; the builder can delete the clip or upload it again.
@@ -94,7 +106,7 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
     await clip.update({ status: 'uploaded', failureReason: reason });
     throw err;
   } finally {
-    await original.release();
+    await original?.release();
     await webCopy?.release();
     await fsp.rm(scratch, { recursive: true, force: true });
   }

@@ -42,6 +42,7 @@ import {
   reorderClips,
   toClipDto,
 } from './clips.service';
+import { MediaCommandFailed } from './media/ffmpeg-run';
 import { extractFrame } from './media/stills';
 import { chaptersVtt, cuesFromMoments } from './media/vtt';
 
@@ -144,7 +145,7 @@ export function clipsRouter(deps: ClipRouteDeps) {
   });
 
   router.delete('/:clipId', access.role('builder'), one, async (req, res) => {
-    await deleteClip(deps.storage, await clipForOwner(clipId(req), req.user));
+    await deleteClip(deps.storage, await clipForOwner(clipId(req), req.user, 'take-down'));
     res.status(204).end();
   });
 
@@ -170,7 +171,9 @@ export function clipsRouter(deps: ClipRouteDeps) {
     await deps.storage.send(res, clipKeys(clip).thumbnails, { contentType: 'image/jpeg' });
   });
 
-  router.get('/:clipId/frame', access.signedIn, validate({ params: clipIdParamsSchema, query: frameQuerySchema }), async (req, res) => {
+  // Each new millisecond asked for makes and stores a still: cap how fast one address can do that.
+  const frameLimiter = limiter({ windowMs: 60_000, limit: 240, message: 'Too many evidence stills asked for from here. Wait a minute and try again.' });
+  router.get('/:clipId/frame', access.signedIn, frameLimiter, validate({ params: clipIdParamsSchema, query: frameQuerySchema }), async (req, res) => {
     const clip = await readyClip(req);
     const atMs = Math.round(validQuery<{ t: number }>(res).t * 1000);
     const durationMs = Math.round(clip.probe!.durationS * 1000);
@@ -183,7 +186,9 @@ export function clipsRouter(deps: ClipRouteDeps) {
       const source = await deps.storage.localCopy(playableKey(clip));
       const out = path.join(deps.storage.scratchDir(), `frame-${crypto.randomUUID()}.jpg`);
       try {
-        await extractFrame(source.path, atMs / 1000, out);
+        await extractFrame(source.path, atMs / 1000, out).catch((err: unknown) => {
+          throw err instanceof MediaCommandFailed ? new AppError(422, 'no_frame', err.message) : err;
+        });
         await deps.storage.putFile(key, out, { contentType: 'image/jpeg' });
       } finally {
         await source.release();
@@ -221,7 +226,7 @@ export function momentsRouter() {
     res.json({ moment: await patchMoment(clip, moment, req.body) });
   });
   router.delete('/:momentId', access.role('builder'), validate({ params: momentIdParamsSchema }), async (req, res) => {
-    const { moment } = await momentForOwner(Number(req.params.momentId), req.user);
+    const { moment } = await momentForOwner(Number(req.params.momentId), req.user, 'take-down');
     await moment.destroy();
     res.status(204).end();
   });

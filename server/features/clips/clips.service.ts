@@ -5,7 +5,8 @@ import { Op } from 'sequelize';
 import type { Clip as ClipDto, ClipPatch, Moment as MomentDto } from '@shared/clips/clip.schema';
 import { AppError, badRequest, conflict, notFound, unauthorized } from '../../http/errors';
 import type { Storage } from '../../storage/storage';
-import { buildForOwner, buildForViewer } from '../builds/builds.service';
+import { Build } from '../builds/build.model';
+import { buildForOwner, buildForViewer, type OwnerAction } from '../builds/builds.service';
 import type { User } from '../users/user.model';
 import { Clip, Moment } from './clip.model';
 import { probeVideo, MediaRejected } from './media/probe';
@@ -75,10 +76,10 @@ export async function clipForViewer(clipId: number, user: User | undefined): Pro
   return clip;
 }
 
-/** A clip the user may change: the build's builder (or an admin). */
-export async function clipForOwner(clipId: number, user: User | undefined): Promise<Clip> {
+/** A clip the user may act on: the build's builder; an admin too when taking it down. */
+export async function clipForOwner(clipId: number, user: User | undefined, action: OwnerAction = 'change'): Promise<Clip> {
   const clip = await clipForViewer(clipId, user);
-  await buildForOwner(clip.buildId, user);
+  await buildForOwner(clip.buildId, user, action);
   return clip;
 }
 
@@ -130,12 +131,14 @@ export async function acceptUpload(
       if (err instanceof MediaRejected) throw new AppError(422, err.code, err.message);
       throw err;
     }
-    const count = await Clip.count({ where: { buildId } });
-    if (count >= deps.clipsPerBuild) {
-      throw conflict(`This build already has ${count} clips, the most one build can hold. Remove a clip first.`, 'too_many_clips');
-    }
     const storagePrefix = crypto.randomUUID();
     const clip = await Clip.sequelize!.transaction(async (transaction) => {
+      // The build row is the lock: parallel uploads to one build count and number one at a time.
+      await Build.findByPk(buildId, { transaction, lock: transaction.LOCK.UPDATE });
+      const count = await Clip.count({ where: { buildId }, transaction });
+      if (count >= deps.clipsPerBuild) {
+        throw conflict(`This build already has ${count} clips, the most one build can hold. Remove a clip first.`, 'too_many_clips');
+      }
       const last = (await Clip.max('position', { where: { buildId }, transaction })) as number | null;
       return Clip.create(
         {
@@ -199,6 +202,9 @@ export async function reorderClips(buildId: number, clipIds: number[]): Promise<
 
 /** Deletes a clip and its files, refused while moments are marked in it. */
 export async function deleteClip(storage: Storage, clip: Clip): Promise<void> {
+  if (clip.status === 'processing') {
+    throw conflict('This clip is being processed right now. Delete it when it is ready or has failed.', 'clip_busy');
+  }
   const moments = await Moment.count({ where: { clipId: clip.id } });
   if (moments > 0) {
     throw conflict(
@@ -242,11 +248,11 @@ export async function addMoment(clip: Clip, user: User, input: { atMs: number; l
 }
 
 /** A moment the user may change (through its clip's build). */
-export async function momentForOwner(momentId: number, user: User | undefined) {
+export async function momentForOwner(momentId: number, user: User | undefined, action: OwnerAction = 'change') {
   if (!user) throw unauthorized();
   const moment = await Moment.findByPk(momentId);
   if (!moment) throw notFound('There is no moment with that id.');
-  const clip = await clipForOwner(moment.clipId, user).catch((err) => {
+  const clip = await clipForOwner(moment.clipId, user, action).catch((err) => {
     throw err instanceof AppError && err.status === 404 ? notFound('There is no moment with that id.') : err;
   });
   return { moment, clip };

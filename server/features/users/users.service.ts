@@ -16,8 +16,13 @@ export interface ProviderProfile {
  * Finds the account for a provider identity or makes one. New accounts are followers;
  * an existing account keeps its role and shop, and takes the provider's current name and e-mail.
  */
-export async function upsertFromProvider(profile: ProviderProfile): Promise<User> {
+export async function upsertFromProvider(profile: ProviderProfile, opts: { demoAccounts: boolean }): Promise<User> {
   const existing = await User.findOne({ where: { githubId: profile.githubId } });
+  if (existing?.isDemo && !opts.demoAccounts) {
+    // Demo ids are invented; with the real GitHub one may belong to a real person. Never hand
+    // them a demo account (some demo accounts are admins).
+    throw new Error(`GitHub account ${profile.githubId} has the id of an invented demo account; refusing to sign it in`);
+  }
   if (existing) {
     existing.set({
       login: profile.login,
@@ -62,11 +67,13 @@ export async function listUsers(q: ListUsersQuery): Promise<ListUsersResponse> {
 export async function changeRole(userId: number, role: Role): Promise<User> {
   const sequelize = User.sequelize!;
   return sequelize.transaction({ isolationLevel: Transaction.ISOLATION_LEVELS.READ_COMMITTED }, async (t) => {
+    // Admin rows first, always in id order, then the target: two admins demoting each other
+    // at once queue up instead of deadlocking.
+    const admins = await User.findAll({ where: { role: 'admin' }, order: [['id', 'ASC']], transaction: t, lock: t.LOCK.UPDATE });
     const user = await User.findByPk(userId, { transaction: t, lock: t.LOCK.UPDATE });
     if (!user) throw notFound('There is no user with that id.');
     if (user.role === role) return user;
     if (user.role === 'admin') {
-      const admins = await User.findAll({ where: { role: 'admin' }, transaction: t, lock: t.LOCK.UPDATE });
       if (admins.length <= 1) {
         throw conflict('This is the last admin. Make another user an admin first.', 'last_admin');
       }

@@ -3,6 +3,7 @@ import request from 'supertest';
 import { errorBodySchema } from '@shared/http/error.schema';
 import { meResponseSchema } from '@shared/users/user.schema';
 import { sessionCookieName } from '../../../server/http/session';
+import { upsertFromProvider } from '../../../server/features/users/users.service';
 import { csrfToken, freshAccount, signIn, startTestApp, type TestApp } from '../../support/test-app';
 
 let t: TestApp;
@@ -103,6 +104,15 @@ describe('signing in through the fake GitHub provider', () => {
       const done = await agent.get(callback.pathname + callback.search).expect(302);
       expect(done.headers.location).toBe(expected);
     }
+  });
+});
+
+describe('demo accounts and the real GitHub', () => {
+  it('with the real provider, a GitHub id that matches an invented demo account is not signed in to it', async () => {
+    const profile = { githubId: '910005', login: 'someone-real', displayName: 'Someone', email: null, avatarUrl: null };
+    await expect(upsertFromProvider(profile, { demoAccounts: false })).rejects.toThrow(/invented demo account/);
+    // With the local fake it is the demo admin, as intended.
+    expect((await upsertFromProvider({ ...profile, login: 'demo-admin' }, { demoAccounts: true })).role).toBe('admin');
   });
 });
 

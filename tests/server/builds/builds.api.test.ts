@@ -60,6 +60,16 @@ describe('builds', () => {
     expect(errorBodySchema.parse(foreign.body).error.details[0]?.path).toBe('parts.0.id');
   });
 
+  it('a PATCH of the title alone leaves the subject and the parts as they were', async () => {
+    const agent = await signIn(t, 'demo-builder');
+    const token = await csrfToken(agent);
+    const { build } = buildResponseSchema.parse(
+      (await agent.post('/api/builds').set('x-csrf-token', token).send({ title: 'Partial patch', subject: 'kept', parts: [{ name: 'Pump', serial: 'P9' }] }).expect(201)).body,
+    );
+    const res = await agent.patch(`/api/builds/${build.id}`).set('x-csrf-token', token).send({ title: 'Partial patch, renamed' }).expect(200);
+    expect(buildResponseSchema.parse(res.body).build).toMatchObject({ title: 'Partial patch, renamed', subject: 'kept', parts: build.parts });
+  });
+
   it('a title that is too short is refused with the field named', async () => {
     const agent = await signIn(t, 'demo-builder');
     const res = await agent.post('/api/builds').set('x-csrf-token', await csrfToken(agent)).send({ title: 'x' }).expect(400);

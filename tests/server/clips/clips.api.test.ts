@@ -176,6 +176,14 @@ describe('moments and the chapters track', () => {
     expect(tree.cues[0]!.text).toBe('bore depth 0.5642 in');
   });
 
+  it('nudging a moment (atMs only) keeps its label', async () => {
+    const clip = (await Clip.findOne({ where: { buildId, status: 'ready' } }))!;
+    const m = await builder.post(`/api/clips/${clip.id}/moments`).set('x-csrf-token', token).send({ atMs: 1200, label: 'blade 0.004 in' }).expect(201);
+    const res = await builder.patch(`/api/moments/${m.body.moment.id}`).set('x-csrf-token', token).send({ atMs: 1233 }).expect(200);
+    expect(res.body.moment).toMatchObject({ atMs: 1233, label: 'blade 0.004 in' });
+    await builder.delete(`/api/moments/${m.body.moment.id}`).set('x-csrf-token', token).expect(204);
+  });
+
   it('a moment after the end of the clip is refused with the field named', async () => {
     const clip = (await Clip.findOne({ where: { buildId, status: 'ready' } }))!;
     const res = await builder.post(`/api/clips/${clip.id}/moments`).set('x-csrf-token', token).send({ atMs: 60_000 }).expect(400);
