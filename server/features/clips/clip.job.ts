@@ -45,6 +45,14 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
   const scratch = path.join(deps.storage.scratchDir(), `job-${clip.id}-${crypto.randomUUID()}`);
   let original: Awaited<ReturnType<Storage['localCopy']>> | null = null;
   let webCopy: Awaited<ReturnType<Storage['localCopy']>> | null = null;
+  // A heartbeat for the whole job (not only the transcode), so the recovery sweep never takes a
+  // slow but living job for a dead one.
+  const heartbeat = setInterval(() => {
+    Clip.sequelize!.query(`UPDATE clips SET updated_at = now() WHERE id = :id AND status = 'processing'`, { replacements: { id: clip.id } }).catch((err: unknown) =>
+      deps.logger.warn({ err, clipId: clip.id }, 'heartbeat not written'),
+    );
+  }, 5000);
+  heartbeat.unref();
   try {
     await fsp.mkdir(scratch, { recursive: true });
     original = await deps.storage.localCopy(keys.original);
@@ -106,6 +114,7 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
     await clip.update({ status: 'uploaded', failureReason: reason });
     throw err;
   } finally {
+    clearInterval(heartbeat);
     await original?.release();
     await webCopy?.release();
     await fsp.rm(scratch, { recursive: true, force: true });

@@ -268,8 +268,17 @@ describe('refused uploads leave nothing behind', () => {
       const agent = await signIn(small, 'demo-builder');
       const tok = await csrfToken(agent);
       const b = await agent.post('/api/builds').set('x-csrf-token', tok).send({ title: 'Size limit check' }).expect(201);
-      const res = await agent.post(`/api/builds/${b.body.build.id}/clips`).set('x-csrf-token', tok).attach('file', mp4).expect(413);
-      expect(errorBodySchema.parse(res.body).error.code).toBe('too_large');
+      try {
+        const res = await agent.post(`/api/builds/${b.body.build.id}/clips`).set('x-csrf-token', tok).attach('file', mp4);
+        expect(res.status).toBe(413);
+        expect(errorBodySchema.parse(res.body).error.code).toBe('too_large');
+      } catch (err) {
+        // Refused from its Content-Length, the server answers before reading the body; a client
+        // still sending may see the connection close first. Either way nothing may be kept.
+        if (limit > 0 && ['EPIPE', 'ECONNRESET'].includes((err as NodeJS.ErrnoException).code ?? '')) {
+          // accepted outcome
+        } else throw err;
+      }
       const incoming = path.join(small.mediaDir, '.scratch', 'incoming');
       expect(fs.existsSync(incoming) ? fs.readdirSync(incoming) : []).toEqual([]);
       expect(fs.existsSync(path.join(small.mediaDir, 'clips')) ? fs.readdirSync(path.join(small.mediaDir, 'clips')) : []).toEqual([]);
