@@ -1,3 +1,4 @@
+import { LoadMore } from '@/components/ui/load-more';
 import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
 import { useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { roleSchema, roles, type Role } from '@shared/users/user.schema';
@@ -8,7 +9,6 @@ import { Button } from '@/components/ui/button';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { Field, Select } from '@/components/ui/field';
 import { PageHeader } from '@/components/ui/page-header';
-import { errorMessage } from '@/lib/api';
 import { queryClient } from '@/lib/query-client';
 import { adminUserQueries } from '../api/admin-user-queries';
 import { UsersTable } from '../components/users-table';
@@ -97,32 +97,7 @@ function UsersList({ role, onShowAll }: { role: Role | undefined; onShowAll: () 
   return (
     <div className="flex flex-col gap-3">
       <UsersTable users={items} meId={me.data?.id} />
-      <div className="flex flex-wrap items-center gap-3" data-print="hide">
-        <p className="figures text-xs text-ink-muted" aria-live="polite">
-          {items.length} shown{users.hasNextPage ? ' · more to load' : ' · all loaded'}
-        </p>
-        {users.hasNextPage && (
-          <Button
-            variant="secondary"
-            size="sm"
-            onClick={() => void users.fetchNextPage()}
-            loading={users.isFetchingNextPage}
-            loadingText="Loading more…"
-          >
-            Load more
-          </Button>
-        )}
-        {users.isRefetchError && (
-          <p role="alert" className="text-sm text-danger">
-            The list could not be refreshed and may be out of date: {errorMessage(users.error)}
-          </p>
-        )}
-        {users.isFetchNextPageError && (
-          <p role="alert" className="text-sm text-danger">
-            More accounts could not be loaded: {errorMessage(users.error)} Press “Load more” to try again.
-          </p>
-        )}
-      </div>
+      <LoadMore query={users} shown={items.length} what="accounts" />
     </div>
   );
 }

@@ -1,10 +1,10 @@
+import { LoadMore } from '@/components/ui/load-more';
 import { useInfiniteQuery } from '@tanstack/react-query';
 import type { LoaderFunctionArgs } from 'react-router-dom';
 import { requireArea } from '@/features/auth/lib/require-role';
-import { Button, ButtonLink } from '@/components/ui/button';
+import { ButtonLink } from '@/components/ui/button';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { PageHeader } from '@/components/ui/page-header';
-import { errorMessage } from '@/lib/api';
 import { queryClient } from '@/lib/query-client';
 import { buildQueries } from '../api/build-queries';
 import { BuildsTable } from '../components/builds-table';
@@ -69,31 +69,7 @@ function BuildsList() {
   return (
     <div className="flex flex-col gap-3">
       <BuildsTable builds={items} />
-      <div className="flex flex-wrap items-center gap-3" data-print="hide">
-        <p className="figures text-xs text-ink-muted" aria-live="polite">
-          {items.length} shown{builds.hasNextPage ? ' · more to load' : ' · all loaded'}
-        </p>
-        {builds.hasNextPage && (
-          <Button
-            size="sm"
-            onClick={() => void builds.fetchNextPage()}
-            loading={builds.isFetchingNextPage}
-            loadingText="Loading more…"
-          >
-            Load more
-          </Button>
-        )}
-        {builds.isRefetchError && (
-          <p role="alert" className="text-sm text-danger">
-            The list could not be refreshed and may be out of date: {errorMessage(builds.error)}
-          </p>
-        )}
-        {builds.isFetchNextPageError && (
-          <p role="alert" className="text-sm text-danger">
-            More builds could not be loaded: {errorMessage(builds.error)} Press “Load more” to try again.
-          </p>
-        )}
-      </div>
+      <LoadMore query={builds} shown={items.length} what="builds" variant="primary" />
     </div>
   );
 }
