@@ -93,6 +93,9 @@ export function ensurePostgres(opts: { dataDir: string; port: number; throwaway?
 
   if (!fs.existsSync(path.join(dataDir, 'PG_VERSION'))) {
     log(`creating a cluster in ${dataDir}`);
+    // The parents stay enterable by the server user; only the cluster folder is theirs, 0700.
+    fs.mkdirSync(path.dirname(dataDir), { recursive: true, mode: 0o755 });
+    if (user) fs.chmodSync(path.dirname(dataDir), 0o755);
     fs.mkdirSync(dataDir, { recursive: true, mode: 0o700 });
     if (user) execFileSync('chown', ['-R', `${user}:`, dataDir]);
     const r = asServerUser(user, path.join(bin, 'initdb'), [
