@@ -9,16 +9,30 @@ import { Build, Part } from './build.model';
 /** Roles that may look at any build's drafts (to check them). */
 const reviewers = new Set(['moderator', 'admin']);
 
-async function toDto(build: Build): Promise<BuildDto> {
-  const [parts, clipCount, owner] = await Promise.all([
-    build.parts ?? Part.findAll({ where: { buildId: build.id }, order: [['position', 'ASC']] }),
-    Clip.count({ where: { buildId: build.id } }),
-    build.owner ?? build.sequelize.models.User!.findByPk(build.ownerId),
-  ]);
+/**
+ * API shapes for builds. A list passes what it already loaded (owner, clip counts) so a page
+ * of builds costs a fixed number of queries, not a few per build.
+ */
+async function toDtos(builds: Build[], known: { owner?: User } = {}): Promise<BuildDto[]> {
+  if (builds.length === 0) return [];
+  const ids = builds.map((b) => b.id);
+  const counts = (await Clip.count({ where: { buildId: ids }, group: ['buildId'] })) as unknown as { buildId: number; count: number }[];
+  const clipCounts = new Map(counts.map((c) => [c.buildId, Number(c.count)]));
+  const missingParts = builds.filter((b) => !b.parts).map((b) => b.id);
+  const parts = missingParts.length ? await Part.findAll({ where: { buildId: missingParts } }) : [];
+  const ownerIds = [...new Set(builds.map((b) => b.ownerId))].filter((id) => id !== known.owner?.id);
+  const owners = new Map<number, User>(known.owner ? [[known.owner.id, known.owner]] : []);
+  if (ownerIds.length) {
+    for (const u of (await Build.sequelize!.models.User!.findAll({ where: { id: ownerIds } })) as User[]) owners.set(u.id, u);
+  }
+  return builds.map((build) => toDto(build, build.parts ?? parts.filter((p) => p.buildId === build.id), clipCounts.get(build.id) ?? 0, owners.get(build.ownerId)));
+}
+
+function toDto(build: Build, parts: Part[], clipCount: number, owner: User | undefined): BuildDto {
   return {
     id: build.id,
     ownerId: build.ownerId,
-    ownerName: (owner as User | null)?.displayName ?? '',
+    ownerName: owner?.displayName ?? '',
     title: build.title,
     subject: build.subject,
     parts: [...parts].sort((a, b) => a.position - b.position).map((p) => ({ id: p.id, name: p.name, serial: p.serial })),
@@ -26,6 +40,10 @@ async function toDto(build: Build): Promise<BuildDto> {
     createdAt: build.createdAt.toISOString(),
     updatedAt: build.updatedAt.toISOString(),
   };
+}
+
+async function oneDto(build: Build): Promise<BuildDto> {
+  return (await toDtos([build]))[0]!;
 }
 
 /**
@@ -64,7 +82,7 @@ export async function createBuild(owner: User, input: unknown): Promise<BuildDto
     );
     return b;
   });
-  return toDto(build);
+  return oneDto(build);
 }
 
 export async function updateBuild(build: Build, patch: BuildPatch): Promise<BuildDto> {
@@ -93,11 +111,11 @@ export async function updateBuild(build: Build, patch: BuildPatch): Promise<Buil
     }
   });
   build.parts = undefined;
-  return toDto(build);
+  return oneDto(build);
 }
 
 export async function getBuild(build: Build): Promise<BuildDto> {
-  return toDto(build);
+  return oneDto(build);
 }
 
 /** The user's own builds, newest first, by keyset on id. */
@@ -110,7 +128,7 @@ export async function listOwnBuilds(owner: User, q: { before?: number; limit: nu
   });
   const page = rows.slice(0, q.limit);
   return {
-    items: await Promise.all(page.map(toDto)),
+    items: await toDtos(page, { owner }),
     nextBefore: rows.length > q.limit ? page[page.length - 1]!.id : null,
   };
 }

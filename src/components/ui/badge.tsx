@@ -40,19 +40,22 @@ const verdictColour: Record<VerdictCode, string> = {
 };
 
 /**
- * The verdict's shape alone: filled circle, open cross, half-filled diamond.
- * Decorative unless `label` is given (then it is an image with that name).
+ * The verdict shapes in a 16×16 box, for use inside any SVG (the badge, the band picture):
+ * filled circle, open cross, half-filled diamond. `onPaper` fills the open parts with the page
+ * colour so the shape stays readable over lines and bands.
  */
-export function VerdictMark({ verdict, label, className }: { verdict: VerdictCode; label?: string; className?: string }) {
-  const a11y = label ? { role: 'img', 'aria-label': label } : { 'aria-hidden': true as const };
+export function VerdictGlyph({ verdict, onPaper = false }: { verdict: VerdictCode; onPaper?: boolean }) {
+  const open = onPaper ? 'var(--color-paper)' : 'none';
   return (
-    <svg viewBox="0 0 16 16" className={cn('size-[1.05em] shrink-0', verdictColour[verdict], className)} {...a11y}>
-      {verdict === 'conforms' && <circle cx="8" cy="8" r="5.75" fill="currentColor" />}
+    <>
+      {verdict === 'conforms' && (
+        <circle cx="8" cy="8" r="5.75" fill="currentColor" {...(onPaper && { stroke: 'var(--color-paper)', strokeWidth: 1 })} />
+      )}
       {verdict === 'does-not-conform' && (
         <path
           transform="rotate(45 8 8)"
           d="M6.1 1.6h3.8v4.5h4.5v3.8H9.9v4.5H6.1V9.9H1.6V6.1h4.5z"
-          fill="none"
+          fill={open}
           stroke="currentColor"
           strokeWidth="1.3"
           strokeLinejoin="round"
@@ -60,10 +63,24 @@ export function VerdictMark({ verdict, label, className }: { verdict: VerdictCod
       )}
       {verdict === 'undecided' && (
         <>
+          {onPaper && <path d="M8 1.5 14.5 8 8 14.5 1.5 8z" fill={open} />}
           <path d="M8 1.5 1.5 8 8 14.5z" fill="currentColor" />
           <path d="M8 1.5 14.5 8 8 14.5 1.5 8z" fill="none" stroke="currentColor" strokeWidth="1.3" strokeLinejoin="round" />
         </>
       )}
+    </>
+  );
+}
+
+/**
+ * The verdict's shape alone: filled circle, open cross, half-filled diamond.
+ * Decorative unless `label` is given (then it is an image with that name).
+ */
+export function VerdictMark({ verdict, label, className }: { verdict: VerdictCode; label?: string; className?: string }) {
+  const a11y = label ? { role: 'img', 'aria-label': label } : { 'aria-hidden': true as const };
+  return (
+    <svg viewBox="0 0 16 16" className={cn('size-[1.05em] shrink-0', verdictColour[verdict], className)} {...a11y}>
+      <VerdictGlyph verdict={verdict} />
     </svg>
   );
 }

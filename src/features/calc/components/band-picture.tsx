@@ -3,6 +3,7 @@ import { formatNumber, formatUncertainty } from '@shared/measure/format';
 import type { BandPm, GuardedLimitsPm, Verdict } from '@shared/measure/spec';
 import { verdictWords } from '@shared/measure/spec';
 import { type LengthUnit, unitSymbols } from '@shared/measure/units';
+import { VerdictGlyph } from '@/components/ui/badge';
 
 export interface BandPictureProps {
   unit: LengthUnit;
@@ -186,24 +187,7 @@ function VerdictShape({ verdict, cx, cy }: { verdict: Verdict; cx: number; cy: n
   const scale = 0.85; // the badge's 16-unit glyphs, about 14 units across here
   return (
     <g transform={`translate(${cx - 8 * scale} ${cy - 8 * scale}) scale(${scale})`}>
-      {verdict === 'conforms' && <circle cx="8" cy="8" r="6" fill="currentColor" stroke="var(--color-paper)" strokeWidth="1" />}
-      {verdict === 'does-not-conform' && (
-        <path
-          transform="rotate(45 8 8)"
-          d="M6.1 1.6h3.8v4.5h4.5v3.8H9.9v4.5H6.1V9.9H1.6V6.1h4.5z"
-          fill="var(--color-paper)"
-          stroke="currentColor"
-          strokeWidth="1.5"
-          strokeLinejoin="round"
-        />
-      )}
-      {verdict === 'undecided' && (
-        <>
-          <path d="M8 1 15 8 8 15 1 8z" fill="var(--color-paper)" />
-          <path d="M8 1 1 8 8 15z" fill="currentColor" />
-          <path d="M8 1 15 8 8 15 1 8z" fill="none" stroke="currentColor" strokeWidth="1.5" strokeLinejoin="round" />
-        </>
-      )}
+      <VerdictGlyph verdict={verdict} onPaper />
     </g>
   );
 }
