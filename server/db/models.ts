@@ -1,6 +1,11 @@
 import type { Sequelize } from 'sequelize';
 import { Build, Part, initBuildModels } from '../features/builds/build.model';
+import { Clearance, ClearanceTerm, initClearanceModels } from '../features/clearances/clearance.model';
 import { Clip, Moment, initClipModels } from '../features/clips/clip.model';
+import { Instrument, ZeroCheck, initInstrumentModels } from '../features/instruments/instrument.model';
+import { Reading, ReadingRevision, initReadingModels } from '../features/readings/reading.model';
+import { Spec, SpecVersion, initSpecModels } from '../features/specs/spec.model';
+import { Story, StoryImage, StoryRevision, initStoryModels } from '../features/stories/story.model';
 import { User, initUserModel } from '../features/users/user.model';
 
 /** Initialises every feature's models and their associations on one Sequelize instance. */
@@ -8,6 +13,11 @@ export function initModels(sequelize: Sequelize) {
   initUserModel(sequelize);
   initBuildModels(sequelize);
   initClipModels(sequelize);
+  initInstrumentModels(sequelize);
+  initSpecModels(sequelize);
+  initReadingModels(sequelize);
+  initClearanceModels(sequelize);
+  initStoryModels(sequelize);
 
   Build.belongsTo(User, { as: 'owner', foreignKey: 'ownerId' });
   Build.hasMany(Part, { as: 'parts', foreignKey: 'buildId' });
@@ -15,6 +25,45 @@ export function initModels(sequelize: Sequelize) {
   Build.hasMany(Clip, { as: 'clips', foreignKey: 'buildId' });
   Clip.belongsTo(Build, { as: 'build', foreignKey: 'buildId' });
   Clip.hasMany(Moment, { as: 'moments', foreignKey: 'clipId' });
-  Moment.belongsTo(Clip, { foreignKey: 'clipId' });
+  Moment.belongsTo(Clip, { as: 'clip', foreignKey: 'clipId' });
   Moment.belongsTo(User, { as: 'author', foreignKey: 'createdBy' });
+
+  Instrument.belongsTo(User, { as: 'owner', foreignKey: 'ownerId' });
+  Instrument.hasMany(ZeroCheck, { as: 'zeroChecks', foreignKey: 'instrumentId' });
+  ZeroCheck.belongsTo(Instrument, { as: 'instrument', foreignKey: 'instrumentId' });
+  ZeroCheck.belongsTo(Moment, { as: 'moment', foreignKey: 'momentId' });
+  ZeroCheck.belongsTo(User, { as: 'author', foreignKey: 'createdBy' });
+
+  Spec.belongsTo(User, { as: 'owner', foreignKey: 'ownerId' });
+  Spec.hasMany(SpecVersion, { as: 'versions', foreignKey: 'specId' });
+  SpecVersion.belongsTo(Spec, { as: 'spec', foreignKey: 'specId' });
+  SpecVersion.belongsTo(User, { as: 'author', foreignKey: 'createdBy' });
+
+  Reading.belongsTo(Build, { as: 'build', foreignKey: 'buildId' });
+  Reading.belongsTo(Moment, { as: 'moment', foreignKey: 'momentId' });
+  Reading.belongsTo(Instrument, { as: 'instrument', foreignKey: 'instrumentId' });
+  Reading.belongsTo(Part, { as: 'part', foreignKey: 'partId' });
+  Reading.belongsTo(User, { as: 'author', foreignKey: 'createdBy' });
+  Reading.belongsTo(User, { as: 'editor', foreignKey: 'updatedBy' });
+  Reading.hasMany(ReadingRevision, { as: 'revisions', foreignKey: 'readingId' });
+  ReadingRevision.belongsTo(Reading, { foreignKey: 'readingId' });
+  ReadingRevision.belongsTo(User, { as: 'changer', foreignKey: 'changedBy' });
+
+  Clearance.belongsTo(Build, { as: 'build', foreignKey: 'buildId' });
+  Clearance.belongsTo(SpecVersion, { as: 'specVersion', foreignKey: 'specVersionId' });
+  Clearance.belongsTo(User, { as: 'author', foreignKey: 'createdBy' });
+  Clearance.hasMany(ClearanceTerm, { as: 'terms', foreignKey: 'clearanceId' });
+  ClearanceTerm.belongsTo(Clearance, { foreignKey: 'clearanceId' });
+  ClearanceTerm.belongsTo(Reading, { as: 'reading', foreignKey: 'readingId' });
+
+  Story.belongsTo(Build, { as: 'build', foreignKey: 'buildId' });
+  Story.belongsTo(Moment, { as: 'coverMoment', foreignKey: 'coverMomentId' });
+  Story.belongsTo(User, { as: 'author', foreignKey: 'createdBy' });
+  Story.belongsTo(User, { as: 'editor', foreignKey: 'updatedBy' });
+  Story.hasMany(StoryRevision, { as: 'revisions', foreignKey: 'storyId' });
+  StoryRevision.belongsTo(Story, { foreignKey: 'storyId' });
+  StoryRevision.belongsTo(User, { as: 'saver', foreignKey: 'savedBy' });
+  Story.hasMany(StoryImage, { as: 'images', foreignKey: 'storyId' });
+  StoryImage.belongsTo(Story, { foreignKey: 'storyId' });
+  StoryImage.belongsTo(User, { as: 'uploader', foreignKey: 'createdBy' });
 }

@@ -1,0 +1,129 @@
+/**
+ * Clearances: a signed sum of a build's readings (bore depth − rotor height), judged against a
+ * spec version. The figures are never stored: they are computed from the readings each time,
+ * by the same engine on the server and in the browser.
+ */
+import { z } from 'zod';
+import { COVERAGE_FACTOR_RANGE, readingKeySchema, unitSchema } from '../measure/calc.schema';
+import { decisionRules, verdicts } from '../measure/spec';
+import { reviewStates } from '../readings/reading.schema';
+
+/** Ids of the clearance templates (shared/clearances/templates.ts). */
+export const clearanceTemplateIds = ['end-float', 'feeler-gap', 'bearing-clearance', 'material-removed', 'custom'] as const;
+export type ClearanceTemplateId = (typeof clearanceTemplateIds)[number];
+
+/** A reading taken into a clearance with a sign. */
+export const clearanceTermInputSchema = z.strictObject({
+  readingId: z.number().int().positive(),
+  sign: z.union([z.literal(1), z.literal(-1)], { error: 'sign must be 1 or -1' }),
+});
+
+const clearanceFields = {
+  key: readingKeySchema,
+  name: z.string().trim().min(1, 'name the clearance').max(120, 'at most 120 characters'),
+  template: z.enum(clearanceTemplateIds).nullable(),
+  terms: z
+    .array(clearanceTermInputSchema)
+    .min(1, 'pick at least one reading')
+    .max(20, 'at most 20 readings')
+    .superRefine((terms, ctx) => {
+      const seen = new Set<number>();
+      terms.forEach((t, i) => {
+        // GUM eq. (10) for uncorrelated inputs: one reading, one term.
+        if (seen.has(t.readingId)) ctx.addIssue({ code: 'custom', path: [i, 'readingId'], message: 'this reading is already a term' });
+        seen.add(t.readingId);
+      });
+    }),
+  specVersionId: z.number().int().positive().nullable(),
+  coverageFactor: z
+    .number({ error: 'coverageFactor must be a number' })
+    .min(COVERAGE_FACTOR_RANGE.min, `coverageFactor must be at least ${COVERAGE_FACTOR_RANGE.min}`)
+    .max(COVERAGE_FACTOR_RANGE.max, `coverageFactor must be at most ${COVERAGE_FACTOR_RANGE.max}`),
+  note: z.string().trim().max(2000, 'at most 2000 characters'),
+};
+
+/** Body of `POST /api/builds/:buildId/clearances`. `key` is derived from `name` when not sent. */
+export const clearanceInputSchema = z.strictObject({
+  ...clearanceFields,
+  key: clearanceFields.key.optional(),
+  template: clearanceFields.template.default(null),
+  specVersionId: clearanceFields.specVersionId.default(null),
+  coverageFactor: clearanceFields.coverageFactor.default(2),
+  note: clearanceFields.note.default(''),
+});
+export type ClearanceInput = z.input<typeof clearanceInputSchema>;
+
+/** Body of `PATCH /api/clearances/:clearanceId`: only what is sent changes; `lockVersion` as for readings. */
+export const clearancePatchSchema = z
+  .strictObject({ ...clearanceFields, lockVersion: z.number().int().positive() })
+  .partial()
+  .required({ lockVersion: true });
+export type ClearancePatch = z.infer<typeof clearancePatchSchema>;
+
+/** Limits of the spec in µm, for a band picture. */
+export const bandUmSchema = z.object({
+  minUm: z.number().nullable(),
+  maxUm: z.number().nullable(),
+  preferredMinUm: z.number().nullable(),
+  preferredMaxUm: z.number().nullable(),
+  rejectUm: z.number().nullable(),
+});
+
+/** What the engine makes of a clearance. */
+export const clearanceResultSchema = z.object({
+  /** The unit the working is written in (the spec's, else the first reading's). */
+  unit: unitSchema,
+  valueUm: z.number(),
+  standardUncertaintyUm: z.number().nonnegative(),
+  expandedUncertaintyUm: z.number().nonnegative(),
+  coverageFactor: z.number(),
+  /** "0.0047 in ± 0.00031 in (k = 2)". */
+  display: z.string(),
+  verdict: z.enum(verdicts).nullable(),
+  /** Against the preferred band and the reject limit, by the same rule; null when the spec has none. */
+  preferredVerdict: z.enum(verdicts).nullable(),
+  rejectVerdict: z.enum(verdicts).nullable(),
+  rule: z.enum(decisionRules).nullable(),
+  band: bandUmSchema.nullable(),
+  steps: z.array(z.string()),
+});
+export type ClearanceResult = z.infer<typeof clearanceResultSchema>;
+
+/** A clearance as the API shows it. `result` is null when `problems` says why it cannot be worked out. */
+export const clearanceSchema = z.object({
+  id: z.number().int().positive(),
+  buildId: z.number().int().positive(),
+  key: z.string(),
+  name: z.string(),
+  template: z.enum(clearanceTemplateIds).nullable(),
+  terms: z.array(z.object({ readingId: z.number().int().positive(), readingKey: z.string(), readingName: z.string(), sign: z.union([z.literal(1), z.literal(-1)]) })),
+  specVersionId: z.number().int().positive().nullable(),
+  spec: z
+    .object({
+      specId: z.number().int().positive(),
+      name: z.string(),
+      version: z.number().int().positive(),
+      sourceKind: z.string(),
+      sourceText: z.string(),
+      /** A newer version of the spec exists than the one attached. */
+      newerVersion: z.number().int().positive().nullable(),
+    })
+    .nullable(),
+  coverageFactor: z.number(),
+  note: z.string(),
+  reviewState: z.enum(reviewStates),
+  result: clearanceResultSchema.nullable(),
+  problems: z.array(z.string()),
+  lockVersion: z.number().int().positive(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+});
+export type Clearance = z.infer<typeof clearanceSchema>;
+
+export const clearanceResponseSchema = z.object({ clearance: clearanceSchema });
+export const clearanceListQuerySchema = z.object({
+  after: z.coerce.number().int().positive().optional(),
+  limit: z.coerce.number().int().min(1).max(500).default(200),
+});
+export const clearanceListResponseSchema = z.object({ items: z.array(clearanceSchema), nextAfter: z.number().int().nullable() });
+export const clearanceIdParamsSchema = z.object({ clearanceId: z.coerce.number().int().positive() });

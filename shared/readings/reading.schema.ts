@@ -1,0 +1,239 @@
+/**
+ * Readings: what an instrument showed at a moment of a clip, kept as entered (decimal text and
+ * unit), with who logged it, its history, and what the engine makes of it.
+ */
+import { z } from 'zod';
+import { readingKeySchema, readingSchema as engineReadingSchema, TEMPERATURE_RANGE_C, unitSchema } from '../measure/calc.schema';
+import { lengthTextSchema } from '../measure/length-text';
+import { materialNames } from '../measure/thermal';
+import { isoDateSchema } from '../instruments/instrument.schema';
+
+/** How a reading was taken: one indication, a feeler-blade bracket, or the same size several times. */
+export const readingKinds = ['direct', 'bracket', 'repeated'] as const;
+export type ReadingKind = (typeof readingKinds)[number];
+
+/** Where a reading stands in review (set by moderators; every reading starts unchecked). */
+export const reviewStates = ['unchecked', 'checked', 'flagged'] as const;
+export type ReviewState = (typeof reviewStates)[number];
+
+/** Most values in one repeated reading entered by hand. */
+export const MAX_ENTERED_REPEATS = 50;
+
+const readingFields = {
+  momentId: z.number().int().positive(),
+  instrumentId: z.number().int().positive(),
+  partId: z.number().int().positive().nullable(),
+  /** The name claims and clearances use; derived from `name` when not sent. */
+  key: readingKeySchema,
+  name: z.string().trim().min(1, 'name the reading').max(120, 'at most 120 characters'),
+  kind: z.enum(readingKinds, { error: 'kind must be "direct", "bracket" or "repeated"' }),
+  /** Unit for texts typed without one; defaults to the instrument's. A unit typed in the text wins. */
+  unit: unitSchema,
+  /** direct: the indication as shown ("0.5642", "0.5642 in", "564.2 thou"). */
+  value: lengthTextSchema,
+  /** bracket: the thickest blade that enters. */
+  passes: lengthTextSchema,
+  /** bracket: the thinnest blade that does not. */
+  stops: lengthTextSchema,
+  /** repeated: each indication. */
+  values: z
+    .array(lengthTextSchema)
+    .min(2, 'a repeated reading needs at least 2 values')
+    .max(MAX_ENTERED_REPEATS, `at most ${MAX_ENTERED_REPEATS} values`),
+  /** Part temperature when measured, °C; with `material` the value is corrected to 20 °C. */
+  temperatureC: z
+    .number({ error: 'temperatureC must be a number' })
+    .min(TEMPERATURE_RANGE_C.min, `at least ${TEMPERATURE_RANGE_C.min} °C`)
+    .max(TEMPERATURE_RANGE_C.max, `at most ${TEMPERATURE_RANGE_C.max} °C`)
+    .nullable(),
+  material: z.enum(materialNames as [string, ...string[]], { error: `material must be one of ${materialNames.join(', ')}` }).nullable(),
+  note: z.string().trim().max(2000, 'at most 2000 characters'),
+  /** The day it was measured (zero checks and calibration are judged on this day); default today. */
+  takenOn: isoDateSchema,
+};
+
+function refineKind(
+  v: { kind?: ReadingKind; value?: string; passes?: string; stops?: string; values?: string[]; temperatureC?: number | null; material?: string | null },
+  ctx: z.RefinementCtx,
+) {
+  const need = (field: 'value' | 'passes' | 'stops' | 'values', message: string) => {
+    if (v[field] === undefined) ctx.addIssue({ code: 'custom', path: [field], message });
+  };
+  const forbid = (field: 'value' | 'passes' | 'stops' | 'values') => {
+    if (v[field] !== undefined) ctx.addIssue({ code: 'custom', path: [field], message: `a ${v.kind} reading has no ${field}` });
+  };
+  if (v.kind === 'direct') {
+    need('value', 'enter the value as shown');
+    forbid('passes');
+    forbid('stops');
+    forbid('values');
+  } else if (v.kind === 'bracket') {
+    need('passes', 'enter the thickest blade that enters');
+    need('stops', 'enter the thinnest blade that does not enter');
+    forbid('value');
+    forbid('values');
+  } else if (v.kind === 'repeated') {
+    need('values', 'enter each value');
+    forbid('value');
+    forbid('passes');
+    forbid('stops');
+  }
+  if (v.temperatureC != null && v.material == null && v.kind !== 'bracket') {
+    ctx.addIssue({ code: 'custom', path: ['material'], message: 'name the material so the value can be corrected to 20 °C' });
+  }
+}
+
+/**
+ * Body of `POST /api/builds/:buildId/readings`. Lengths are checked against their unit and the
+ * instrument on the server (`normaliseReadingFigures`), with the same messages in the form.
+ */
+export const readingInputSchema = z
+  .strictObject({
+    ...readingFields,
+    partId: readingFields.partId.default(null),
+    key: readingFields.key.optional(),
+    unit: readingFields.unit.optional(),
+    value: readingFields.value.optional(),
+    passes: readingFields.passes.optional(),
+    stops: readingFields.stops.optional(),
+    values: readingFields.values.optional(),
+    temperatureC: readingFields.temperatureC.default(null),
+    material: readingFields.material.default(null),
+    note: readingFields.note.default(''),
+    takenOn: readingFields.takenOn.optional(),
+  })
+  .superRefine(refineKind);
+export type ReadingInput = z.input<typeof readingInputSchema>;
+
+/**
+ * Body of `PATCH /api/readings/:readingId`: only the fields sent change. `lockVersion` is the
+ * version the editor started from; a stale one is refused with 409 `edit_conflict`. Changing
+ * `kind` needs that kind's figures sent with it.
+ */
+export const readingPatchSchema = z
+  .strictObject({ ...readingFields, lockVersion: z.number().int().positive() })
+  .partial()
+  .required({ lockVersion: true })
+  .superRefine((v, ctx) => {
+    if (v.kind !== undefined) refineKind(v, ctx);
+  });
+export type ReadingPatch = z.infer<typeof readingPatchSchema>;
+
+/** A warning a reading carries (it is still used; the reader and moderator see it). */
+export const readingWarningCodes = ['calibration-overdue', 'no-calibration-record', 'no-zero-check', 'resolution-converted'] as const;
+export const readingWarningSchema = z.object({ code: z.enum(readingWarningCodes), message: z.string() });
+export type ReadingWarning = z.infer<typeof readingWarningSchema>;
+
+/** What the engine made of a reading: estimate and standard uncertainty (µm), display text and working. */
+export const readingResultSchema = z.object({
+  valueUm: z.number(),
+  standardUncertaintyUm: z.number().nonnegative(),
+  /** "0.5642 in" at the reading's display step. */
+  display: z.string(),
+  steps: z.array(z.string()),
+});
+
+/** A reading as the API shows it. Figures are decimal text in `unit`, as stored. */
+export const readingSchema = z.object({
+  id: z.number().int().positive(),
+  buildId: z.number().int().positive(),
+  momentId: z.number().int().positive(),
+  clipId: z.number().int().positive(),
+  clipTitle: z.string(),
+  atMs: z.number().int().nonnegative(),
+  /** The evidence still of the moment. */
+  frameUrl: z.string(),
+  instrumentId: z.number().int().positive(),
+  instrumentName: z.string(),
+  partId: z.number().int().positive().nullable(),
+  partName: z.string().nullable(),
+  key: z.string(),
+  name: z.string(),
+  kind: z.enum(readingKinds),
+  unit: unitSchema,
+  value: z.string().nullable(),
+  passes: z.string().nullable(),
+  stops: z.string().nullable(),
+  values: z.array(z.string()).nullable(),
+  /** The texts exactly as typed. */
+  entered: z.record(z.string(), z.union([z.string(), z.array(z.string())])),
+  temperatureC: z.number().nullable(),
+  material: z.string().nullable(),
+  note: z.string(),
+  takenOn: z.string(),
+  reviewState: z.enum(reviewStates),
+  /** The zero check of that instrument on that day whose offset was applied, if any. */
+  zeroCheck: z.object({ id: z.number().int().positive(), offset: z.string(), unit: unitSchema }).nullable(),
+  /** The engine's input for this reading (instrument resolution, stated uncertainty, zero offset filled in). */
+  engine: engineReadingSchema,
+  result: readingResultSchema,
+  warnings: z.array(readingWarningSchema),
+  createdBy: z.number().int().positive(),
+  createdByName: z.string(),
+  updatedBy: z.number().int().positive(),
+  lockVersion: z.number().int().positive(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+});
+export type Reading = z.infer<typeof readingSchema>;
+
+export const readingResponseSchema = z.object({ reading: readingSchema });
+/** Query of `GET /api/builds/:buildId/readings`: keyset by id, optional filters. */
+export const readingListQuerySchema = z.object({
+  after: z.coerce.number().int().positive().optional(),
+  limit: z.coerce.number().int().min(1).max(1000).default(500),
+  partId: z.coerce.number().int().positive().optional(),
+  instrumentId: z.coerce.number().int().positive().optional(),
+  clipId: z.coerce.number().int().positive().optional(),
+  reviewState: z.enum(reviewStates).optional(),
+});
+export const readingListResponseSchema = z.object({ items: z.array(readingSchema), nextAfter: z.number().int().nullable() });
+export const readingIdParamsSchema = z.object({ readingId: z.coerce.number().int().positive() });
+
+/** One earlier state of a reading: what it was before an edit, and who made the edit. */
+export const readingRevisionSchema = z.object({
+  lockVersion: z.number().int().positive(),
+  snapshot: z.record(z.string(), z.unknown()),
+  changedBy: z.number().int().positive(),
+  changedByName: z.string(),
+  changedAt: z.string(),
+});
+export const readingHistoryResponseSchema = z.object({ items: z.array(readingRevisionSchema) });
+
+/** Column order of the CSV export (`GET /api/builds/:buildId/readings.csv`). */
+export const readingCsvColumns = [
+  'key',
+  'name',
+  'kind',
+  'unit',
+  'value',
+  'passes',
+  'stops',
+  'values',
+  'estimate',
+  'standard_uncertainty_um',
+  'instrument',
+  'part',
+  'clip',
+  'at_s',
+  'taken_on',
+  'temperature_c',
+  'material',
+  'review_state',
+  'warnings',
+  'note',
+  'logged_by',
+] as const;
+
+/** A key from a reading's name: "Bore depth, as supplied" → "bore-depth-as-supplied". */
+export function keyFromName(name: string): string {
+  const slug = name
+    .normalize('NFKD')
+    .replace(/[\u0300-\u036f]/g, '')
+    .toLowerCase()
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-+|-+$/g, '')
+    .slice(0, 40)
+    .replace(/-+$/, '');
+  return /^[a-z]/.test(slug) ? slug : `r-${slug}`.slice(0, 40).replace(/-+$/, '') || 'reading';
+}

@@ -1,0 +1,162 @@
+/**
+ * The spec library: a builder's own specs and those others share, each with immutable versions.
+ * Figures are decimal text in the version's unit; `toEngineSpec` turns a version into the
+ * engine's `Spec`, whose schema (shared/measure/spec.schema.ts) holds the band rules.
+ */
+import { z } from 'zod';
+import { unitSchema } from '../measure/calc.schema';
+import { lengthTextIn, lengthTextSchema } from '../measure/length-text';
+import { decisionRules, DEFAULT_DECISION_RULE } from '../measure/spec';
+import { specSchema as engineSpecSchema, specSourceSchema, type Spec as EngineSpec } from '../measure/spec.schema';
+
+/** The figures of one version, as typed. */
+const versionFields = {
+  unit: unitSchema,
+  min: lengthTextSchema.nullable().default(null),
+  max: lengthTextSchema.nullable().default(null),
+  preferredMin: lengthTextSchema.nullable().default(null),
+  preferredMax: lengthTextSchema.nullable().default(null),
+  reject: lengthTextSchema.nullable().default(null),
+  rule: z.enum(decisionRules, { error: 'rule must be "guarded" or "simple"' }).default(DEFAULT_DECISION_RULE),
+  source: specSourceSchema,
+  note: z.string().trim().max(2000, 'at most 2000 characters').default(''),
+};
+
+type VersionFigures = {
+  unit: z.infer<typeof unitSchema>;
+  min: string | null;
+  max: string | null;
+  preferredMin: string | null;
+  preferredMax: string | null;
+  reject: string | null;
+  rule: (typeof decisionRules)[number];
+  source: z.infer<typeof specSourceSchema>;
+};
+
+const enginePath: Record<string, string> = { min: 'min', max: 'max', preferred: 'preferredMin', reject: 'reject', rule: 'rule', source: 'source' };
+
+/** Checks the figures with the engine's spec rules, naming our fields in the issues. */
+function refineFigures(v: VersionFigures, ctx: z.RefinementCtx) {
+  const normal = normaliseSpecFigures(v);
+  if (!normal.ok) {
+    for (const [field, message] of normal.problems) ctx.addIssue({ code: 'custom', path: [field], message });
+    return;
+  }
+  const result = engineSpecSchema.safeParse(toEngineSpec({ ...normal.figures, version: 1 }));
+  if (result.success) return;
+  for (const issue of result.error.issues) {
+    const [head, sub] = issue.path.map(String);
+    const path = head === 'preferred' ? (sub === 'max' ? 'preferredMax' : 'preferredMin') : (enginePath[head ?? ''] ?? head ?? 'min');
+    ctx.addIssue({ code: 'custom', path: [path], message: issue.message.replace(/preferred\.min/g, 'preferredMin').replace(/preferred\.max/g, 'preferredMax') });
+  }
+}
+
+const figureFields = ['min', 'max', 'preferredMin', 'preferredMax', 'reject'] as const;
+
+/**
+ * The figures with each length as plain decimal text in the unit ("0.003 in" → "0.003"), as
+ * they are stored; or the fields that are not lengths in the unit.
+ */
+export function normaliseSpecFigures<T extends VersionFigures>(
+  v: T,
+): { ok: true; figures: T } | { ok: false; problems: [string, string][] } {
+  const figures = { ...v };
+  const problems: [string, string][] = [];
+  for (const field of figureFields) {
+    const text = v[field];
+    if (text === null) continue;
+    const parsed = lengthTextIn(text, v.unit);
+    if (parsed.ok) figures[field] = parsed.text;
+    else problems.push([field, parsed.message]);
+  }
+  return problems.length ? { ok: false, problems } : { ok: true, figures };
+}
+
+/** Body of `POST /api/specs/:specId/versions`: a new version (versions are never edited). */
+export const specVersionInputSchema = z.strictObject(versionFields).superRefine(refineFigures);
+export type SpecVersionInput = z.input<typeof specVersionInputSchema>;
+
+/** Body of `POST /api/specs`: the spec and its first version. */
+export const specInputSchema = z
+  .strictObject({
+    name: z.string().trim().min(3, 'name the spec (at least 3 characters)').max(160, 'at most 160 characters'),
+    appliesTo: z.string().trim().max(200, 'at most 200 characters').default(''),
+    shared: z.boolean().default(false),
+    ...versionFields,
+  })
+  .superRefine(refineFigures);
+export type SpecInput = z.input<typeof specInputSchema>;
+
+/** Body of `PATCH /api/specs/:specId`: name, what it applies to, shared; figures change by a new version. */
+export const specPatchSchema = z
+  .strictObject({
+    name: z.string().trim().min(3).max(160),
+    appliesTo: z.string().trim().max(200),
+    shared: z.boolean(),
+    lockVersion: z.number().int().positive(),
+  })
+  .partial()
+  .required({ lockVersion: true });
+export type SpecPatch = z.infer<typeof specPatchSchema>;
+
+/** One version as the API shows it. */
+export const specVersionSchema = z.object({
+  id: z.number().int().positive(),
+  specId: z.number().int().positive(),
+  version: z.number().int().positive(),
+  unit: unitSchema,
+  min: z.string().nullable(),
+  max: z.string().nullable(),
+  preferredMin: z.string().nullable(),
+  preferredMax: z.string().nullable(),
+  reject: z.string().nullable(),
+  rule: z.enum(decisionRules),
+  source: specSourceSchema,
+  note: z.string(),
+  createdAt: z.string(),
+});
+export type SpecVersion = z.infer<typeof specVersionSchema>;
+
+/** A spec with its newest version (and, from GET one, every version, newest first). */
+export const specSchema = z.object({
+  id: z.number().int().positive(),
+  ownerId: z.number().int().positive(),
+  ownerName: z.string(),
+  name: z.string(),
+  appliesTo: z.string(),
+  shared: z.boolean(),
+  latest: specVersionSchema,
+  versions: z.array(specVersionSchema).optional(),
+  lockVersion: z.number().int().positive(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+});
+export type LibrarySpec = z.infer<typeof specSchema>;
+
+export const specResponseSchema = z.object({ spec: specSchema });
+export const specVersionResponseSchema = z.object({ version: specVersionSchema });
+/** Query of `GET /api/specs`: own and shared specs; `q` searches name and applies-to; `mine=1` own only. */
+export const specListQuerySchema = z.object({
+  q: z.string().trim().max(100).optional(),
+  mine: z.enum(['0', '1']).optional(),
+  after: z.coerce.number().int().positive().optional(),
+  limit: z.coerce.number().int().min(1).max(100).default(50),
+});
+export const specListResponseSchema = z.object({ items: z.array(specSchema), nextAfter: z.number().int().nullable() });
+export const specIdParamsSchema = z.object({ specId: z.coerce.number().int().positive() });
+
+/** A version's figures as the engine's spec (numbers in the version's unit). */
+export function toEngineSpec(v: VersionFigures & { version: number }): EngineSpec {
+  const n = (t: string | null) => (t === null ? undefined : Number(t));
+  const preferred = v.preferredMin !== null || v.preferredMax !== null ? { min: n(v.preferredMin), max: n(v.preferredMax) } : undefined;
+  return {
+    unit: v.unit,
+    ...(v.min !== null && { min: n(v.min) }),
+    ...(v.max !== null && { max: n(v.max) }),
+    ...(preferred && { preferred: Object.fromEntries(Object.entries(preferred).filter(([, x]) => x !== undefined)) }),
+    ...(v.reject !== null && { reject: n(v.reject) }),
+    rule: v.rule,
+    source: v.source,
+    version: v.version,
+  } as EngineSpec;
+}

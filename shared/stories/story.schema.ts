@@ -1,0 +1,147 @@
+/**
+ * Diary entries (stories) of a build: Markdown bodies whose claims link to readings and
+ * clearances (`[end float is now three thou](clearance:end-float-after)`), autosaved drafts with
+ * an optimistic lock, revisions, and images.
+ */
+import { z } from 'zod';
+import { isoDateSchema } from '../instruments/instrument.schema';
+
+/** A story's states (the words people see are in `storyStateWords`). */
+export const storyStates = ['draft', 'in-review', 'changes-requested', 'published', 'withdrawn'] as const;
+export type StoryState = (typeof storyStates)[number];
+export const storyStateWords: Readonly<Record<StoryState, string>> = {
+  draft: 'draft',
+  'in-review': 'in review',
+  'changes-requested': 'changes requested',
+  published: 'published',
+  withdrawn: 'withdrawn',
+};
+
+/** Tag groups: machine family, component, operation. */
+export const storyTagGroups = ['machine', 'component', 'operation'] as const;
+const tag = z.string().trim().min(1).max(40, 'a tag is at most 40 characters').regex(/^[^,#<>]+$/, 'a tag has no commas, # or angle brackets');
+export const storyTagsSchema = z.strictObject({
+  machine: z.array(tag).max(10, 'at most 10 tags').default([]),
+  component: z.array(tag).max(10, 'at most 10 tags').default([]),
+  operation: z.array(tag).max(10, 'at most 10 tags').default([]),
+});
+export type StoryTags = z.infer<typeof storyTagsSchema>;
+
+/** Longest body accepted (characters): a long diary entry is a few thousand words. */
+export const MAX_STORY_BODY = 100_000;
+
+const storyFields = {
+  title: z.string().trim().min(1, 'give the entry a title').max(160, 'at most 160 characters'),
+  summary: z.string().trim().max(500, 'at most 500 characters'),
+  workDate: isoDateSchema.nullable(),
+  tags: storyTagsSchema,
+  /** A moment whose evidence still is the cover. */
+  coverMomentId: z.number().int().positive().nullable(),
+  body: z.string().max(MAX_STORY_BODY, `at most ${MAX_STORY_BODY} characters`),
+};
+
+/** Body of `POST /api/builds/:buildId/stories`. */
+export const storyInputSchema = z.strictObject({
+  title: storyFields.title,
+  summary: storyFields.summary.default(''),
+  workDate: storyFields.workDate.default(null),
+  tags: storyFields.tags.default({ machine: [], component: [], operation: [] }),
+  coverMomentId: storyFields.coverMomentId.default(null),
+  body: storyFields.body.default(''),
+});
+export type StoryInput = z.input<typeof storyInputSchema>;
+
+/**
+ * Body of `PATCH /api/stories/:storyId` (the editor's autosave): only what is sent changes.
+ * `lockVersion` is the version the editor last loaded or saved; a stale one is refused with
+ * 409 `edit_conflict`, never merged silently.
+ */
+export const storyPatchSchema = z
+  .strictObject({ ...storyFields, lockVersion: z.number().int().positive() })
+  .partial()
+  .required({ lockVersion: true });
+export type StoryPatch = z.infer<typeof storyPatchSchema>;
+
+/** A story as the API shows it to its builder and reviewers. */
+export const storySchema = z.object({
+  id: z.number().int().positive(),
+  buildId: z.number().int().positive(),
+  buildTitle: z.string(),
+  title: z.string(),
+  summary: z.string(),
+  workDate: z.string().nullable(),
+  tags: storyTagsSchema,
+  coverMomentId: z.number().int().positive().nullable(),
+  coverUrl: z.string().nullable(),
+  body: z.string(),
+  state: z.enum(storyStates),
+  wordCount: z.number().int().nonnegative(),
+  lockVersion: z.number().int().positive(),
+  updatedBy: z.number().int().positive(),
+  createdAt: z.string(),
+  updatedAt: z.string(),
+});
+export type Story = z.infer<typeof storySchema>;
+
+export const storyResponseSchema = z.object({ story: storySchema });
+export const storyListQuerySchema = z.object({
+  before: z.coerce.number().int().positive().optional(),
+  limit: z.coerce.number().int().min(1).max(100).default(50),
+});
+export const storyListResponseSchema = z.object({ items: z.array(storySchema.omit({ body: true })), nextBefore: z.number().int().nullable() });
+export const storyIdParamsSchema = z.object({ storyId: z.coerce.number().int().positive() });
+
+/** A kept state of a story. */
+export const storyRevisionSchema = z.object({
+  number: z.number().int().positive(),
+  reason: z.enum(['autosave', 'kept']),
+  title: z.string(),
+  summary: z.string(),
+  workDate: z.string().nullable(),
+  tags: storyTagsSchema,
+  coverMomentId: z.number().int().positive().nullable(),
+  body: z.string(),
+  savedBy: z.number().int().positive(),
+  savedByName: z.string(),
+  createdAt: z.string(),
+});
+export type StoryRevision = z.infer<typeof storyRevisionSchema>;
+export const storyRevisionListResponseSchema = z.object({ items: z.array(storyRevisionSchema.omit({ body: true })) });
+export const storyRevisionResponseSchema = z.object({ revision: storyRevisionSchema });
+export const storyRevisionParamsSchema = z.object({
+  storyId: z.coerce.number().int().positive(),
+  number: z.coerce.number().int().positive(),
+});
+
+/** An image uploaded into a story. */
+export const storyImageSchema = z.object({
+  id: z.number().int().positive(),
+  storyId: z.number().int().positive(),
+  url: z.string(),
+  contentType: z.string(),
+  sizeBytes: z.number().int().positive(),
+  width: z.number().int().positive().nullable(),
+  height: z.number().int().positive().nullable(),
+  alt: z.string(),
+  /** Ready to paste: `![alt](url)`. */
+  markdown: z.string(),
+});
+export type StoryImage = z.infer<typeof storyImageSchema>;
+export const storyImageResponseSchema = z.object({ image: storyImageSchema });
+export const storyImageListResponseSchema = z.object({ items: z.array(storyImageSchema) });
+export const storyImageIdParamsSchema = z.object({ imageId: z.coerce.number().int().positive() });
+/** Form field of the file in `POST /api/stories/:storyId/images` (multipart), and the alt text field. */
+export const storyImageUploadField = 'file';
+export const storyImageAltField = 'alt';
+/** Image types a story accepts (checked by magic bytes, not by name). */
+export const storyImageTypes = ['image/jpeg', 'image/png', 'image/webp'] as const;
+
+/** Words in a body for the editor's count: runs of letters or digits, Markdown marks and link targets ignored. */
+export function countWords(markdown: string): number {
+  const text = markdown
+    .replace(/```[\s\S]*?```/g, ' ')
+    .replace(/!\[([^\]]*)\]\([^)]*\)/g, '$1')
+    .replace(/\[([^\]]*)\]\([^)]*\)/g, '$1')
+    .replace(/<[^>]+>/g, ' ');
+  return (text.match(/[\p{L}\p{N}]+(?:[.'’-][\p{L}\p{N}]+)*/gu) ?? []).length;
+}
