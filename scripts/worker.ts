@@ -1,10 +1,11 @@
-// `npm run worker`: the clip-processing worker alone (for a second machine, or WORKER=off on the
+// `npm run worker`: the clip-processing and mail workers alone (for a second machine, or WORKER=off on the
 // web server). Uses DATABASE_URL, or the local cluster that `npm start` made.
 import { loadConfig } from '../server/config';
 import { createSequelize } from '../server/db/sequelize';
 import { initModels } from '../server/db/models';
 import { startClipWorker } from '../server/features/clips/clip.job';
 import { startQueue } from '../server/jobs/queue';
+import { startMailWorker } from '../server/mail/mail.job';
 import { createLogger } from '../server/logger';
 import { storageFromConfig } from '../server/storage/select-storage';
 import { prepareDatabase } from './lib/bootstrap';
@@ -18,9 +19,11 @@ const sequelize = createSequelize(config.databaseUrl);
 initModels(sequelize);
 const queue = await startQueue(config);
 const worker = await startClipWorker(config, queue, { storage: storageFromConfig(config.storage), logger });
-logger.info('clip worker running; Ctrl-C stops it');
+const mailWorker = await startMailWorker(config, queue, { logger });
+logger.info('clip and mail workers running; Ctrl-C stops them');
 onShutdown(async () => {
   await worker.stop();
+  await mailWorker.stop();
   await queue.boss.stop({ graceful: true, timeout: 10_000 });
   await sequelize.close();
   db.postgres?.stop();

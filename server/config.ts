@@ -53,6 +53,17 @@ const envSchema = z.object({
   S3_ACCESS_KEY_ID: z.string().min(1).optional(),
   S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
   S3_PREFIX: z.string().regex(/^[a-z0-9][a-z0-9._-]*(\/[a-z0-9][a-z0-9._-]*)*$/).optional(),
+  /** A real mail server (smtp:// or smtps://, credentials in the URL). Unset: the local capture server. */
+  SMTP_URL: z.string().regex(/^smtps?:\/\//, 'must start with smtp:// or smtps://').optional(),
+  FAKE_SMTP_PORT: port.default(3125),
+  FAKE_SMTP_API_PORT: port.default(3126),
+  /** Where the local capture server is (set by tests that start their own). */
+  FAKE_SMTP_URL: z.string().regex(/^smtp:\/\//).optional(),
+  FAKE_SMTP_API_URL: z.string().url().optional(),
+  MAIL_FROM: z.string().min(3).default('Benchproof <mail@benchproof.invalid>'),
+  /** Attempts after the first for one message (with growing delays), so a mail server that is down for a while still gets it. */
+  MAIL_RETRY_LIMIT: z.coerce.number().int().min(0).max(30).default(12),
+  MAIL_RETRY_DELAY_SECONDS: z.coerce.number().int().min(1).max(3600).default(5),
 }).superRefine((e, ctx) => {
   if (e.NODE_ENV === 'production' && !e.SESSION_SECRET) {
     ctx.addIssue({ code: 'custom', path: ['SESSION_SECRET'], message: 'required in production: set a long random value' });
@@ -91,6 +102,17 @@ export interface Config {
   jobs: { worker: 'inline' | 'off'; retryLimit: number; expireSeconds: number; stallSeconds: number; queuePrefix: string };
   /** Holds S3 credentials when configured: never log a Config. */
   storage: StorageSettings;
+  /** Holds SMTP credentials when configured: never log a Config. */
+  mail: {
+    transportUrl: string;
+    from: string;
+    /** True when mail goes to the local capture server (and the admin outbox can list it). */
+    fake: boolean;
+    captureApiUrl: string | null;
+    fakePorts: { smtp: number; api: number };
+    retryLimit: number;
+    retryDelaySeconds: number;
+  };
 }
 
 /** Parses the environment into a Config; throws with every problem listed. */
@@ -143,6 +165,15 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
       expireSeconds: e.JOB_EXPIRE_SECONDS,
       stallSeconds: e.JOB_STALL_SECONDS,
       queuePrefix: e.JOB_QUEUE_PREFIX,
+    },
+    mail: {
+      transportUrl: e.SMTP_URL ?? e.FAKE_SMTP_URL ?? `smtp://127.0.0.1:${e.FAKE_SMTP_PORT}`,
+      from: e.MAIL_FROM,
+      fake: !e.SMTP_URL,
+      captureApiUrl: e.SMTP_URL ? null : (e.FAKE_SMTP_API_URL ?? `http://127.0.0.1:${e.FAKE_SMTP_API_PORT}`),
+      fakePorts: { smtp: e.FAKE_SMTP_PORT, api: e.FAKE_SMTP_API_PORT },
+      retryLimit: e.MAIL_RETRY_LIMIT,
+      retryDelaySeconds: e.MAIL_RETRY_DELAY_SECONDS,
     },
     storage: {
       driver: e.STORAGE_DRIVER,

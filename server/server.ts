@@ -6,6 +6,7 @@ import { initModels } from './db/models';
 import { createLogger } from './logger';
 import { startClipWorker } from './features/clips/clip.job';
 import { startQueue } from './jobs/queue';
+import { startMailWorker } from './mail/mail.job';
 import { storageFromConfig } from './storage/select-storage';
 
 /** Starts the API + client server; `stop()` drains connections and closes the database pools. */
@@ -17,6 +18,7 @@ export async function startServer(config: Config) {
   const storage = storageFromConfig(config.storage);
   const queue = await startQueue(config);
   const worker = config.jobs.worker === 'inline' ? await startClipWorker(config, queue, { storage, logger }) : null;
+  const mailWorker = config.jobs.worker === 'inline' ? await startMailWorker(config, queue, { logger }) : null;
   const { app, close } = createApp({ config, sequelize, logger, storage, queue });
   const server = http.createServer(app);
   await new Promise<void>((resolve, reject) => {
@@ -36,6 +38,7 @@ export async function startServer(config: Config) {
         setTimeout(() => server.closeAllConnections(), 3000).unref();
       });
       await worker?.stop();
+      await mailWorker?.stop();
       await queue.boss.stop({ graceful: true, timeout: 5000 });
       await close();
       await sequelize.close();

@@ -3,6 +3,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { loadConfig, type Config } from '../../server/config';
 import { createFakeGithub } from '../../server/fakes/github/fake-github';
+import { createFakeSmtp } from '../../server/fakes/smtp/fake-smtp';
 import { loadDemoPeople } from '../../server/db/demo-content';
 import { prepareDatabase, repoRoot } from './bootstrap';
 
@@ -71,6 +72,12 @@ export async function bringUpLocal(overrides: Record<string, string> = {}) {
     const url = await fake.listen();
     console.log(`[fake-github] sign-in provider on ${url}`);
     stops.unshift(() => fake.close());
+  }
+  if (config.mail.fake) {
+    const smtp = createFakeSmtp({ smtpPort: config.mail.fakePorts.smtp, apiPort: config.mail.fakePorts.api });
+    const urls = await smtp.listen();
+    console.log(`[fake-smtp] mail capture on ${urls.smtpUrl} (messages listed for admins at /admin/outbox)`);
+    stops.unshift(() => smtp.close());
   }
   return {
     config,

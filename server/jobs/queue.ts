@@ -4,7 +4,7 @@ import type { Config } from '../config';
 /** Names of every job queue, with the instance prefix applied. */
 export function queueNames(config: Pick<Config, 'jobs'>) {
   const p = config.jobs.queuePrefix ? `${config.jobs.queuePrefix}-` : '';
-  return { clipProcess: `${p}clip-process` };
+  return { clipProcess: `${p}clip-process`, mailSend: `${p}mail-send` };
 }
 
 /**
@@ -16,18 +16,29 @@ export async function startQueue(config: Config) {
   boss.on('error', (err) => console.error('[jobs] pg-boss error', err));
   await boss.start();
   const names = queueNames(config);
-  for (const name of Object.values(names)) {
+  const queues = [
     // 'short': at most one waiting job per singletonKey, so re-queueing a clip is harmless.
-    const options = {
-      name,
+    {
+      name: names.clipProcess,
       policy: 'short' as const,
       retryLimit: config.jobs.retryLimit,
       retryDelay: 2,
       retryBackoff: true,
       expireInSeconds: config.jobs.expireSeconds,
-    };
-    await boss.createQueue(name, options);
-    await boss.updateQueue(name, options); // createQueue leaves an existing queue's settings alone
+    },
+    // 'standard': every message is its own job. Growing delays ride out a mail server that is down for a while.
+    {
+      name: names.mailSend,
+      policy: 'standard' as const,
+      retryLimit: config.mail.retryLimit,
+      retryDelay: config.mail.retryDelaySeconds,
+      retryBackoff: true,
+      expireInSeconds: 120,
+    },
+  ];
+  for (const options of queues) {
+    await boss.createQueue(options.name, options);
+    await boss.updateQueue(options.name, options); // createQueue leaves an existing queue's settings alone
   }
   return { boss, names };
 }

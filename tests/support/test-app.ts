@@ -9,6 +9,8 @@ import { createSequelize } from '../../server/db/sequelize';
 import { initModels } from '../../server/db/models';
 import { createLogger } from '../../server/logger';
 import { createFakeGithub, type FakeAccount } from '../../server/fakes/github/fake-github';
+import { createFakeSmtp } from '../../server/fakes/smtp/fake-smtp';
+import { startMailWorker } from '../../server/mail/mail.job';
 import { fakeAccounts } from '../../scripts/lib/run-local';
 import { startClipWorker, type ClipJobDeps } from '../../server/features/clips/clip.job';
 import { startQueue } from '../../server/jobs/queue';
@@ -18,6 +20,8 @@ export interface TestAppOptions {
   /** Start the job queue and the clip worker (own queue names, so test files never share jobs). */
   jobs?: boolean;
   faultAt?: ClipJobDeps['faultAt'];
+  /** Also send queued mail (needs `jobs`) to this app's own capture server, `t.smtp`. */
+  mail?: boolean;
 }
 
 let shared: ReturnType<typeof createSequelize> | null = null;
@@ -38,6 +42,9 @@ export async function startTestApp(env: Record<string, string> = {}, opts: TestA
   const fakeBase = { clientId: 'benchproof-local', clientSecret: 'benchproof-local-secret' };
   const fake = createFakeGithub({ ...fakeBase, accounts: fakeAccounts(), port: 0 });
   const fakeUrl = await fake.listen();
+  // Every app has its own capture server, so a test sees only the mail its app sent.
+  const smtp = createFakeSmtp();
+  const smtpUrls = await smtp.listen();
   const mediaDir = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-media-'));
   const config = loadConfig({
     NODE_ENV: 'test',
@@ -50,6 +57,9 @@ export async function startTestApp(env: Record<string, string> = {}, opts: TestA
     PUBLIC_URL: 'http://127.0.0.1:3999',
     LOG_LEVEL: 'silent',
     SIGN_IN_RATE_LIMIT: '1000',
+    FAKE_SMTP_URL: smtpUrls.smtpUrl,
+    FAKE_SMTP_API_URL: smtpUrls.apiUrl,
+    MAIL_RETRY_DELAY_SECONDS: '1',
     ...env,
   });
   // Models are bound once per test file to the test database; an app given another
@@ -61,11 +71,13 @@ export async function startTestApp(env: Record<string, string> = {}, opts: TestA
   const storage = localStorage(config.mediaDir);
   const queue = opts.jobs ? await startQueue(config) : null;
   const worker = queue ? await startClipWorker(config, queue, { storage, logger, faultAt: opts.faultAt }) : null;
+  const mailWorker = queue && opts.mail ? await startMailWorker(config, queue, { logger }) : null;
   const built = createApp({ config, sequelize, logger, storage, queue });
   return {
     app: built.app,
     config,
     fake,
+    smtp,
     sequelize,
     storage,
     queue,
@@ -73,10 +85,12 @@ export async function startTestApp(env: Record<string, string> = {}, opts: TestA
     mediaDir: config.mediaDir,
     async close() {
       await worker?.stop();
+      await mailWorker?.stop();
       await queue?.boss.stop({ graceful: false, wait: true });
       await built.close();
       fs.rmSync(mediaDir, { recursive: true, force: true });
       await fake.close();
+      await smtp.close();
       if (own) await own.close();
       else if (--users === 0) {
         await shared!.close();
