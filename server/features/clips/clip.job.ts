@@ -20,6 +20,8 @@ export interface ClipJobDeps {
   logger: Logger;
   /** Test hook: called at each stage; a throw simulates a crash there. */
   faultAt?: (stage: 'start' | 'web-copy' | 'stills', clipId: number, attempt: number) => void;
+  /** How often a running job touches its row; a third of the stall time at most (set by startClipWorker). */
+  heartbeatMs?: number;
 }
 
 export interface ClipJobData {
@@ -51,7 +53,7 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
     Clip.sequelize!.query(`UPDATE clips SET updated_at = now() WHERE id = :id AND status = 'processing'`, { replacements: { id: clip.id } }).catch((err: unknown) =>
       deps.logger.warn({ err, clipId: clip.id }, 'heartbeat not written'),
     );
-  }, 5000);
+  }, deps.heartbeatMs ?? 5000);
   heartbeat.unref();
   try {
     await fsp.mkdir(scratch, { recursive: true });
@@ -121,12 +123,23 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
   }
 }
 
+/** True when the clip has a job queued or waiting to be retried. */
+async function hasWaitingJob(queue: Queue, clipId: number): Promise<boolean> {
+  const [rows] = await Clip.sequelize!.query(
+    `SELECT 1 FROM pgboss.job WHERE name = :name AND singleton_key = :key AND state IN ('created', 'retry') LIMIT 1`,
+    { replacements: { name: queue.names.clipProcess, key: `clip-${clipId}` } },
+  );
+  return rows.length > 0;
+}
+
 /**
  * Starts the clip worker on the queue, and re-queues clips that a crash left behind: any clip
  * still uploaded/processing whose row has not changed for `stallSeconds` (processing writes a
  * heartbeat every second).
  */
-export async function startClipWorker(config: Config, queue: Queue, deps: ClipJobDeps) {
+export async function startClipWorker(config: Config, queue: Queue, given: ClipJobDeps) {
+  // Three heartbeats per stall period, so a busy machine never looks like a dead worker.
+  const deps = { ...given, heartbeatMs: Math.min(5000, Math.floor((config.jobs.stallSeconds * 1000) / 3)) };
   await queue.boss.work<ClipJobData>(
     queue.names.clipProcess,
     { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: 0.5 },
@@ -145,6 +158,8 @@ export async function startClipWorker(config: Config, queue: Queue, deps: ClipJo
       limit: 100,
     });
     for (const clip of stale) {
+      // A clip waiting for its retry (pg-boss backs off between attempts) is not lost: leave it to the queue.
+      if (await hasWaitingJob(queue, clip.id)) continue;
       deps.logger.warn({ clipId: clip.id }, 're-queueing a clip left unfinished');
       clip.changed('updatedAt', true); // touch, so the next sweep does not pick it again at once
       await clip.save();
