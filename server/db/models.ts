@@ -1,4 +1,7 @@
 import type { Sequelize } from 'sequelize';
+import { AuditEntry, initAuditModel } from '../features/audit/audit.model';
+import { Follow, initFollowModel } from '../features/follows/follow.model';
+import { CheckAnswer, EvidenceCheck, ReviewClaim, StoryPublication, initReviewModels } from '../features/review/review.model';
 import { Build, Part, initBuildModels } from '../features/builds/build.model';
 import { Clearance, ClearanceTerm, initClearanceModels } from '../features/clearances/clearance.model';
 import { Clip, Moment, initClipModels } from '../features/clips/clip.model';
@@ -18,6 +21,9 @@ export function initModels(sequelize: Sequelize) {
   initReadingModels(sequelize);
   initClearanceModels(sequelize);
   initStoryModels(sequelize);
+  initReviewModels(sequelize);
+  initAuditModel(sequelize);
+  initFollowModel(sequelize);
 
   Build.belongsTo(User, { as: 'owner', foreignKey: 'ownerId' });
   Build.hasMany(Part, { as: 'parts', foreignKey: 'buildId' });
@@ -66,4 +72,16 @@ export function initModels(sequelize: Sequelize) {
   Story.hasMany(StoryImage, { as: 'images', foreignKey: 'storyId' });
   StoryImage.belongsTo(Story, { foreignKey: 'storyId' });
   StoryImage.belongsTo(User, { as: 'uploader', foreignKey: 'createdBy' });
+
+  StoryPublication.belongsTo(Story, { as: 'story', foreignKey: 'storyId' });
+  StoryPublication.belongsTo(User, { as: 'publisher', foreignKey: 'publishedBy' });
+  Story.belongsTo(StoryPublication, { as: 'publication', foreignKey: 'publishedPublicationId', constraints: false });
+  ReviewClaim.belongsTo(User, { as: 'moderator', foreignKey: 'moderatorId' });
+  EvidenceCheck.belongsTo(User, { as: 'moderator', foreignKey: 'moderatorId' });
+  EvidenceCheck.hasMany(CheckAnswer, { as: 'answers', foreignKey: 'checkId' });
+  CheckAnswer.belongsTo(EvidenceCheck, { foreignKey: 'checkId' });
+  CheckAnswer.belongsTo(User, { as: 'author', foreignKey: 'authorId' });
+  AuditEntry.belongsTo(User, { as: 'actor', foreignKey: 'actorId' });
+  Follow.belongsTo(User, { as: 'follower', foreignKey: 'followerId' });
+  Follow.belongsTo(User, { as: 'builder', foreignKey: 'builderId' });
 }

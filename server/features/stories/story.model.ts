@@ -27,6 +27,12 @@ export class Story extends Model<InferAttributes<Story>, InferCreationAttributes
   declare createdBy: ForeignKey<User['id']>;
   declare updatedBy: ForeignKey<User['id']>;
   declare lockVersion: CreationOptional<number>;
+  /** The revision the public sees; null until first published. */
+  declare publishedPublicationId: CreationOptional<number | null>;
+  /** When it was last sent for review (the queue is oldest first). */
+  declare submittedAt: CreationOptional<Date | null>;
+  declare withdrawnReason: CreationOptional<string | null>;
+  declare withdrawnBy: CreationOptional<number | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
   declare build?: NonAttribute<Build>;
@@ -75,6 +81,10 @@ export function initStoryModels(sequelize: Sequelize) {
       body: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
       state: { type: DataTypes.STRING(24), allowNull: false, defaultValue: 'draft' },
       lockVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },
+      publishedPublicationId: { type: DataTypes.INTEGER, allowNull: true },
+      submittedAt: { type: DataTypes.DATE, allowNull: true },
+      withdrawnReason: { type: DataTypes.TEXT, allowNull: true },
+      withdrawnBy: { type: DataTypes.INTEGER, allowNull: true },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },
