@@ -2,11 +2,14 @@ import type { Sequelize } from 'sequelize';
 import { Build, Part } from '../features/builds/build.model';
 import { User } from '../features/users/user.model';
 import { loadDemoBuilds, loadDemoPeople } from './demo-content';
+import { seedLibrary, type LibrarySeedReport } from './seed-library';
 
 /** What a seed run did, so start-up can say it and tests can check it. */
 export interface SeedReport {
   created: string[];
   kept: string[];
+  /** The demo instruments and starter specs, reported apart from people and builds. */
+  library?: LibrarySeedReport;
 }
 
 /**
@@ -34,6 +37,7 @@ export async function seedDemo(sequelize: Sequelize): Promise<SeedReport> {
       });
       (created ? report.created : report.kept).push(p.login);
     }
+    report.library = await seedLibrary(transaction);
     for (const b of loadDemoBuilds()) {
       const owner = await User.findOne({ where: { login: b.owner }, transaction });
       if (!owner) throw new Error(`content/builds.json names an owner who is not in people.json: ${b.owner}`);

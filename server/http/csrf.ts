@@ -3,8 +3,11 @@ import { csrfSync } from 'csrf-sync';
 import { csrfHeaderName } from '@shared/http/error.schema';
 import { access } from './authorize';
 
-/** Paths that change nothing but take POST, so they are exempt (the public calculator). */
-const exempt = new Set(['/api/calc']);
+/**
+ * Exempt paths: the public calculator (changes nothing) and one-click unsubscribe (RFC 8058:
+ * a mail client posts it without a session; the signed token in the URL is the authority).
+ */
+const exempt = new Set(['/api/calc', '/api/unsubscribe']);
 
 /**
  * Synchroniser-token CSRF protection (csrf-sync): the token lives in the session, the client

@@ -180,7 +180,13 @@ export const instrumentListQuerySchema = z.object({
   limit: z.coerce.number().int().min(1).max(200).default(100),
 });
 export const instrumentIdParamsSchema = z.object({ instrumentId: z.coerce.number().int().positive() });
-export const zeroCheckListResponseSchema = z.object({ items: z.array(zeroCheckSchema) });
+/** Response of `GET /api/instruments/:instrumentId/zero-checks`: newest first; `nextBefore` asks for the page after. */
+export const zeroCheckListResponseSchema = z.object({ items: z.array(zeroCheckSchema), nextBefore: z.number().int().nullable().default(null) });
+/** Query of `GET /api/instruments/:instrumentId/zero-checks`: keyset `before` = the id of the last check shown. */
+export const zeroCheckListQuerySchema = z.object({
+  before: z.coerce.number().int().positive().optional(),
+  limit: z.coerce.number().int().min(1).max(200).default(100),
+});
 export const zeroCheckResponseSchema = z.object({ zeroCheck: zeroCheckSchema });
 
 /** The day a calibration falls due, YYYY-MM-DD, or null. */

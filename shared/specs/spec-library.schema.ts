@@ -46,6 +46,9 @@ function refineFigures(v: VersionFigures, ctx: z.RefinementCtx) {
   if (result.success) return;
   for (const issue of result.error.issues) {
     const [head, sub] = issue.path.map(String);
+    // Our own fields already check the source and rule with the same schemas; repeating the
+    // engine's copy would report one problem twice, the second time at a vaguer path.
+    if (head === 'source' || head === 'rule') continue;
     const path = head === 'preferred' ? (sub === 'max' ? 'preferredMax' : 'preferredMin') : (enginePath[head ?? ''] ?? head ?? 'min');
     ctx.addIssue({ code: 'custom', path: [path], message: issue.message.replace(/preferred\.min/g, 'preferredMin').replace(/preferred\.max/g, 'preferredMax') });
   }

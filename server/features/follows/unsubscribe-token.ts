@@ -1,0 +1,33 @@
+import crypto from 'node:crypto';
+
+/**
+ * Signed one-click unsubscribe tokens: `<payload>.<signature>`, payload = base64url JSON
+ * `{ f: followerId, b: builderId }`, signature = HMAC-SHA256 under a key derived from the
+ * session secret (so no new secret to manage). Tampering with either half fails verification;
+ * comparison is constant-time.
+ */
+function key(secret: string): Buffer {
+  return crypto.createHmac('sha256', secret).update('benchproof unsubscribe v1').digest();
+}
+
+export function signUnsubscribe(secret: string, followerId: number, builderId: number): string {
+  const payload = Buffer.from(JSON.stringify({ f: followerId, b: builderId })).toString('base64url');
+  const signature = crypto.createHmac('sha256', key(secret)).update(payload).digest('base64url');
+  return `${payload}.${signature}`;
+}
+
+/** The follower and builder a token names, or null when it is malformed or its signature is wrong. */
+export function verifyUnsubscribe(secret: string, token: string): { followerId: number; builderId: number } | null {
+  const [payload, signature, extra] = token.split('.');
+  if (!payload || !signature || extra !== undefined || token.length > 300) return null;
+  const expected = crypto.createHmac('sha256', key(secret)).update(payload).digest();
+  const given = Buffer.from(signature, 'base64url');
+  if (given.length !== expected.length || !crypto.timingSafeEqual(given, expected)) return null;
+  try {
+    const data = JSON.parse(Buffer.from(payload, 'base64url').toString('utf8')) as { f?: unknown; b?: unknown };
+    if (!Number.isInteger(data.f) || !Number.isInteger(data.b)) return null;
+    return { followerId: data.f as number, builderId: data.b as number };
+  } catch {
+    return null;
+  }
+}

@@ -1,0 +1,282 @@
+import { ForeignKeyConstraintError, Op, literal } from 'sequelize';
+import {
+  calibrationDueOn,
+  calibrationStateOn,
+  zeroCheckedKinds,
+  type Instrument as InstrumentDto,
+  type InstrumentPatch,
+  type ZeroCheck as ZeroCheckDto,
+  type instrumentInputSchema,
+  type zeroCheckInputSchema,
+} from '@shared/instruments/instrument.schema';
+import { formatNumber } from '@shared/measure/format';
+import { lengthTextIn } from '@shared/measure/length-text';
+import { parseLength } from '@shared/measure/parse';
+import type { LengthUnit } from '@shared/measure/units';
+import type { z } from 'zod';
+import { badRequest, conflict, forbidden, notFound, unauthorized } from '../../http/errors';
+import { updateWithLock } from '../../http/optimistic-lock';
+import { Build } from '../builds/build.model';
+import { Clip, Moment } from '../clips/clip.model';
+import { Reading } from '../readings/reading.model';
+import type { User } from '../users/user.model';
+import { Instrument, ZeroCheck } from './instrument.model';
+
+/** Roles that may look at any builder's register (to check readings taken with it). */
+const reviewers = new Set(['moderator', 'admin']);
+
+/** Today's date in UTC, YYYY-MM-DD: calibration states are judged on it. */
+function todayUtc(): string {
+  return new Date().toISOString().slice(0, 10);
+}
+
+/**
+ * Loads an instrument the user may see: its owner, moderators and admins. Unknown and
+ * not-yours both answer 404, so other builders' ids are not confirmed.
+ */
+export async function instrumentForViewer(instrumentId: number, user: User | undefined): Promise<Instrument> {
+  if (!user) throw unauthorized();
+  const instrument = await Instrument.findByPk(instrumentId);
+  if (!instrument || (instrument.ownerId !== user.id && !reviewers.has(user.role))) {
+    throw notFound('There is no instrument with that id.');
+  }
+  return instrument;
+}
+
+/**
+ * Loads an instrument the user may change: only the builder who keeps it. A reviewer who may
+ * see it gets 403 (as for builds); anyone else 404.
+ */
+export async function instrumentForOwner(instrumentId: number, user: User | undefined): Promise<Instrument> {
+  const instrument = await instrumentForViewer(instrumentId, user);
+  if (instrument.ownerId !== user!.id) throw forbidden('Only the builder who keeps this instrument can change it.');
+  return instrument;
+}
+
+/** Exact difference of two decimal texts in `unit`, at the finer of their two places. */
+function exactDifference(minuend: string, subtrahend: string, unit: LengthUnit): string {
+  const a = parseLength(minuend, { defaultUnit: unit });
+  const b = parseLength(subtrahend, { defaultUnit: unit });
+  if (!a.ok || !b.ok || a.length.unit !== unit || b.length.unit !== unit) {
+    throw new Error(`stored zero check figures are not lengths in ${unit}: ${minuend}, ${subtrahend}`);
+  }
+  // Both texts are exact at the finer place, so the difference is too: no rounding happens.
+  const places = Math.max(a.length.decimal.scale, b.length.decimal.scale);
+  return formatNumber(a.length.pm - b.length.pm, unit, places).replace('−', '-');
+}
+
+/** shown − standardSize, exact decimal text in the check's unit ("0.0002", "-0.0001", "0.0000"). */
+export function zeroCheckOffset(z: ZeroCheck): string {
+  return exactDifference(z.shown, z.standardSize, z.unit);
+}
+
+export function toZeroCheckDto(z: ZeroCheck): ZeroCheckDto {
+  return {
+    id: z.id,
+    instrumentId: z.instrumentId,
+    checkedOn: z.checkedOn,
+    unit: z.unit,
+    standardSize: z.standardSize,
+    shown: z.shown,
+    offset: zeroCheckOffset(z),
+    momentId: z.momentId ?? null,
+    note: z.note,
+    createdBy: z.createdBy,
+    createdAt: z.createdAt.toISOString(),
+  };
+}
+
+export function toInstrumentDto(instrument: Instrument, latestZeroCheck?: ZeroCheck | null): InstrumentDto {
+  const calibration = { lastCalibratedOn: instrument.lastCalibratedOn ?? null, calibrationIntervalDays: instrument.calibrationIntervalDays ?? null };
+  return {
+    id: instrument.id,
+    ownerId: instrument.ownerId,
+    name: instrument.name,
+    kind: instrument.kind,
+    serial: instrument.serial,
+    unit: instrument.unit,
+    resolution: instrument.resolution,
+    statedUncertainty: instrument.statedUncertainty ?? null,
+    calibrationIntervalDays: calibration.calibrationIntervalDays,
+    lastCalibratedOn: calibration.lastCalibratedOn,
+    calibrationDueOn: calibrationDueOn(calibration.lastCalibratedOn, calibration.calibrationIntervalDays),
+    calibrationState: calibrationStateOn(calibration, todayUtc()),
+    calibratedBy: instrument.calibratedBy,
+    note: instrument.note,
+    retired: instrument.retired,
+    needsZeroCheck: zeroCheckedKinds.has(instrument.kind),
+    latestZeroCheck: latestZeroCheck ? toZeroCheckDto(latestZeroCheck) : null,
+    lockVersion: instrument.lockVersion,
+    createdAt: instrument.createdAt.toISOString(),
+    updatedAt: instrument.updatedAt.toISOString(),
+  };
+}
+
+/** The newest zero check (by day, then by entry) of each instrument, in one query. */
+async function latestZeroChecks(instrumentIds: number[]): Promise<Map<number, ZeroCheck>> {
+  const ids = instrumentIds.filter((id) => Number.isSafeInteger(id));
+  if (ids.length === 0) return new Map();
+  const rows = await ZeroCheck.findAll({
+    where: {
+      id: {
+        [Op.in]: literal(
+          `(SELECT DISTINCT ON (instrument_id) id FROM zero_checks WHERE instrument_id IN (${ids.join(',')}) ORDER BY instrument_id, checked_on DESC, id DESC)`,
+        ),
+      },
+    },
+  });
+  return new Map(rows.map((z) => [z.instrumentId, z]));
+}
+
+/** The latest zero check of an instrument on a calendar day (YYYY-MM-DD), or null. */
+export async function zeroCheckOn(instrumentId: number, day: string): Promise<ZeroCheck | null> {
+  return ZeroCheck.findOne({ where: { instrumentId, checkedOn: day }, order: [['id', 'DESC']] });
+}
+
+async function oneDto(instrument: Instrument): Promise<InstrumentDto> {
+  return toInstrumentDto(instrument, (await latestZeroChecks([instrument.id])).get(instrument.id) ?? null);
+}
+
+export async function getInstrument(instrument: Instrument): Promise<InstrumentDto> {
+  return oneDto(instrument);
+}
+
+/** The caller's own register, by keyset on id ascending. */
+export async function listInstruments(owner: User, q: { after?: number; limit: number }) {
+  const rows = await Instrument.findAll({
+    where: { ownerId: owner.id, ...(q.after ? { id: { [Op.gt]: q.after } } : {}) },
+    order: [['id', 'ASC']],
+    limit: q.limit + 1,
+  });
+  const page = rows.slice(0, q.limit);
+  const latest = await latestZeroChecks(page.map((i) => i.id));
+  return {
+    items: page.map((i) => toInstrumentDto(i, latest.get(i.id) ?? null)),
+    nextAfter: rows.length > q.limit ? page[page.length - 1]!.id : null,
+  };
+}
+
+/** A length field as stored: decimal text in `unit`, or a 400 naming the field. */
+function storedLength(field: string, text: string, unit: LengthUnit, rule: 'positive' | 'not-negative' | 'any'): string {
+  const parsed = lengthTextIn(text, unit);
+  if (!parsed.ok) throw badRequest(`${field}: ${parsed.message}`, [{ path: field, message: parsed.message }]);
+  if (rule === 'positive' && parsed.length.pm <= 0n) {
+    throw badRequest(`${field} must be greater than 0.`, [{ path: field, message: `${field} must be greater than 0` }]);
+  }
+  if (rule === 'not-negative' && parsed.length.pm < 0n) {
+    throw badRequest(`${field} cannot be negative.`, [{ path: field, message: `${field} cannot be negative` }]);
+  }
+  return parsed.text;
+}
+
+type InstrumentInput = z.output<typeof instrumentInputSchema>;
+
+export async function createInstrument(owner: User, input: InstrumentInput): Promise<InstrumentDto> {
+  const instrument = await Instrument.create({
+    ownerId: owner.id,
+    name: input.name,
+    kind: input.kind,
+    serial: input.serial,
+    unit: input.unit,
+    resolution: storedLength('resolution', input.resolution, input.unit, 'positive'),
+    statedUncertainty: input.statedUncertainty === null ? null : storedLength('statedUncertainty', input.statedUncertainty, input.unit, 'not-negative'),
+    calibrationIntervalDays: input.calibrationIntervalDays,
+    lastCalibratedOn: input.lastCalibratedOn,
+    calibratedBy: input.calibratedBy,
+    note: input.note,
+    retired: input.retired,
+  });
+  return toInstrumentDto(instrument, null);
+}
+
+/**
+ * Saves the fields sent, if nobody saved since `lockVersion`. Lengths are read in the unit the
+ * instrument will have; changing the unit of an instrument with a stated uncertainty needs the
+ * uncertainty sent again, so a figure is never reinterpreted in another unit.
+ */
+export async function updateInstrument(instrument: Instrument, patch: InstrumentPatch): Promise<InstrumentDto> {
+  const { lockVersion, ...fields } = patch;
+  const unit = fields.unit ?? instrument.unit;
+  const changes: Record<string, unknown> = {};
+  for (const key of ['name', 'kind', 'serial', 'unit', 'calibrationIntervalDays', 'lastCalibratedOn', 'calibratedBy', 'note', 'retired'] as const) {
+    if (fields[key] !== undefined) changes[key] = fields[key];
+  }
+  if (fields.resolution !== undefined) changes.resolution = storedLength('resolution', fields.resolution, unit, 'positive');
+  if (fields.statedUncertainty !== undefined) {
+    changes.statedUncertainty = fields.statedUncertainty === null ? null : storedLength('statedUncertainty', fields.statedUncertainty, unit, 'not-negative');
+  } else if (unit !== instrument.unit && instrument.statedUncertainty != null) {
+    throw badRequest('Send the stated uncertainty in the new unit (or null) when you change the unit.', [
+      { path: 'statedUncertainty', message: 'send it in the new unit' },
+    ]);
+  }
+  await updateWithLock(Instrument, instrument, lockVersion, changes, { what: 'instrument' });
+  await instrument.reload();
+  return oneDto(instrument);
+}
+
+function inUse() {
+  return conflict(
+    'This instrument has readings or zero checks logged with it, so it stays in the register. Retire it instead (PATCH retired=true): it then drops out of the pickers and its records keep their evidence.',
+    'instrument_in_use',
+  );
+}
+
+/** Deletes an instrument nothing refers to; one with readings or zero checks is refused (409). */
+export async function deleteInstrument(instrument: Instrument): Promise<void> {
+  const [readings, checks] = await Promise.all([
+    Reading.count({ where: { instrumentId: instrument.id } }),
+    ZeroCheck.count({ where: { instrumentId: instrument.id } }),
+  ]);
+  if (readings > 0 || checks > 0) throw inUse();
+  // A reading logged between the count and the delete is caught by the foreign key.
+  await instrument.destroy().catch((err: unknown) => {
+    throw err instanceof ForeignKeyConstraintError ? inUse() : err;
+  });
+}
+
+/** Zero checks of an instrument, newest first (by day, then entry), by keyset on the last id shown. */
+export async function listZeroChecks(instrument: Instrument, q: { before?: number; limit: number }) {
+  let where: Record<string | symbol, unknown> = { instrumentId: instrument.id };
+  if (q.before) {
+    const last = await ZeroCheck.findOne({ where: { id: q.before, instrumentId: instrument.id } });
+    if (!last) throw badRequest('That page marker is not a zero check of this instrument.', [{ path: 'before', message: 'not a zero check of this instrument' }]);
+    where = {
+      ...where,
+      [Op.or]: [{ checkedOn: { [Op.lt]: last.checkedOn } }, { checkedOn: last.checkedOn, id: { [Op.lt]: last.id } }],
+    };
+  }
+  const rows = await ZeroCheck.findAll({ where, order: [['checkedOn', 'DESC'], ['id', 'DESC']], limit: q.limit + 1 });
+  const page = rows.slice(0, q.limit);
+  return { items: page.map(toZeroCheckDto), nextBefore: rows.length > q.limit ? page[page.length - 1]!.id : null };
+}
+
+type ZeroCheckInput = z.output<typeof zeroCheckInputSchema>;
+
+/**
+ * Logs a zero check. Its lengths are in the instrument's unit (a setting standard is read in the
+ * unit the instrument shows); a moment, when given, must be on a clip of one of the caller's builds.
+ */
+export async function addZeroCheck(instrument: Instrument, user: User, input: ZeroCheckInput): Promise<ZeroCheckDto> {
+  const standardSize = storedLength('standardSize', input.standardSize, instrument.unit, 'not-negative');
+  const shown = storedLength('shown', input.shown, instrument.unit, 'any');
+  if (input.momentId !== null) {
+    const moment = await Moment.findOne({
+      where: { id: input.momentId },
+      include: [{ model: Clip, as: 'clip', required: true, include: [{ model: Build, as: 'build', required: true, where: { ownerId: user.id } }] }],
+    });
+    if (!moment) {
+      throw badRequest('There is no moment with that id on a clip of your builds.', [{ path: 'momentId', message: 'not a moment on a clip of your builds' }]);
+    }
+  }
+  const z = await ZeroCheck.create({
+    instrumentId: instrument.id,
+    checkedOn: input.checkedOn,
+    unit: instrument.unit,
+    standardSize,
+    shown,
+    momentId: input.momentId,
+    note: input.note,
+    createdBy: user.id,
+  });
+  return toZeroCheckDto(z);
+}

@@ -1,0 +1,579 @@
+import { Op, type Transaction } from 'sequelize';
+import type { z } from 'zod';
+import type { Clearance as ClearanceDto } from '@shared/clearances/clearance.schema';
+import type { Reading as ReadingDto } from '@shared/readings/reading.schema';
+import type {
+  checkInputSchema,
+  EvidenceCheckDto,
+  PublishBlocker,
+  queueItemSchema,
+  TransitionInput,
+} from '@shared/review/review.schema';
+import { canTransition, type Actor } from '@shared/review/workflow';
+import { claimTargetsFrom } from '@shared/stories/claims';
+import { renderStory, type RenderedClaim } from '@shared/stories/render';
+import type { StoryState } from '@shared/stories/story.schema';
+import type { Config } from '../../config';
+import { AppError, badRequest, conflict, forbidden, notFound, unauthorized } from '../../http/errors';
+import { editConflict } from '../../http/optimistic-lock';
+import type { Queue } from '../../jobs/queue';
+import { enqueueMail, type OutgoingMail } from '../../mail/mail.job';
+import { audit } from '../audit/audit.service';
+import { Build } from '../builds/build.model';
+import { buildForViewer } from '../builds/builds.service';
+import { Clearance } from '../clearances/clearance.model';
+import { clearanceDtosForBuild } from '../clearances/clearances.service';
+import { Follow } from '../follows/follow.model';
+import { signUnsubscribe } from '../follows/unsubscribe-token';
+import { Reading } from '../readings/reading.model';
+import { readingDtosForBuild } from '../readings/readings.service';
+import { Story } from '../stories/story.model';
+import { User } from '../users/user.model';
+import { changesRequestedMail, followerMails, publishedMail, submittedMails, withdrawnMail, type Person } from './review.emails';
+import { CheckAnswer, EvidenceCheck, ReviewClaim, StoryPublication } from './review.model';
+
+/** How long a moderator's claim on a story lasts without being renewed. */
+export const CLAIM_MINUTES = 30;
+
+const reviewers = new Set(['moderator', 'admin']);
+
+export interface ReviewDeps {
+  config: Pick<Config, 'publicUrl' | 'sessionSecret'>;
+  queue: Queue | null;
+  logger?: { warn: (obj: object, msg: string) => void };
+  /** The clock, injectable so claim expiry can be tested without waiting. */
+  now?: () => Date;
+}
+
+// ---------------------------------------------------------------------------------------------
+// What a story relies on
+
+/** The evidence a story's body relies on, worked out from its claims and the build now. */
+export interface StoryEvidence {
+  readings: ReadingDto[];
+  clearances: ClearanceDto[];
+  claims: RenderedClaim[];
+  broken: ReturnType<typeof renderStory>['broken'];
+  /** Readings cited directly or through a cited clearance. */
+  citedReadings: ReadingDto[];
+  citedClearances: ClearanceDto[];
+}
+
+export async function evidenceOf(story: Pick<Story, 'buildId' | 'body'>): Promise<StoryEvidence> {
+  const [readings, clearances] = await Promise.all([readingDtosForBuild(story.buildId), clearanceDtosForBuild(story.buildId)]);
+  const rendered = renderStory(story.body, { targets: claimTargetsFrom(readings, clearances) });
+  const byReadingKey = new Map(readings.map((r) => [r.key, r]));
+  const byClearanceKey = new Map(clearances.map((c) => [c.key, c]));
+  const citedClearances = new Map<number, ClearanceDto>();
+  const citedReadings = new Map<number, ReadingDto>();
+  for (const claim of rendered.claims) {
+    if (claim.kind === 'clearance') {
+      const c = byClearanceKey.get(claim.key);
+      if (!c) continue;
+      citedClearances.set(c.id, c);
+      for (const term of c.terms) {
+        const r = readings.find((x) => x.id === term.readingId);
+        if (r) citedReadings.set(r.id, r);
+      }
+    } else {
+      const r = byReadingKey.get(claim.key);
+      if (r) citedReadings.set(r.id, r);
+    }
+  }
+  return {
+    readings,
+    clearances,
+    claims: rendered.claims,
+    broken: rendered.broken,
+    citedReadings: [...citedReadings.values()],
+    citedClearances: [...citedClearances.values()],
+  };
+}
+
+type Subject = { type: 'reading' | 'clearance'; id: number; lockVersion: number };
+
+/**
+ * The latest check of each subject, and whether it is still current (made on the version the
+ * subject has now: an edited reading needs a new check, an unchanged one keeps its check).
+ */
+export async function latestChecks(subjects: Subject[], transaction?: Transaction): Promise<Map<string, EvidenceCheck & { current: boolean }>> {
+  const out = new Map<string, EvidenceCheck & { current: boolean }>();
+  if (subjects.length === 0) return out;
+  const rows = await EvidenceCheck.findAll({
+    where: { [Op.or]: subjects.map((s) => ({ subjectType: s.type, subjectId: s.id })) },
+    order: [['id', 'DESC']],
+    transaction,
+  });
+  for (const s of subjects) {
+    const row = rows.find((r) => r.subjectType === s.type && r.subjectId === s.id);
+    if (row) out.set(`${s.type}:${s.id}`, Object.assign(row, { current: row.subjectLockVersion === s.lockVersion }));
+  }
+  return out;
+}
+
+function subjectsOf(e: StoryEvidence): Subject[] {
+  return [
+    ...e.citedReadings.map((r) => ({ type: 'reading' as const, id: r.id, lockVersion: r.lockVersion })),
+    ...e.citedClearances.map((c) => ({ type: 'clearance' as const, id: c.id, lockVersion: c.lockVersion })),
+  ];
+}
+
+/** Every reason publishing would be refused now, for `moderator`. Empty means it may be published. */
+export async function publishBlockers(story: Story, build: Build, moderator: User, now: Date): Promise<PublishBlocker[]> {
+  const blockers: PublishBlocker[] = [];
+  if (build.ownerId === moderator.id) {
+    blockers.push({ code: 'own-story', message: 'You cannot approve a story of your own build; another moderator must.', subject: { type: 'story', key: null } });
+  }
+  const claim = await ReviewClaim.findByPk(story.id);
+  if (!claim || claim.moderatorId !== moderator.id || claim.expiresAt <= now) {
+    blockers.push({ code: 'no-claim-held', message: 'Take the story for review first, so no one else is checking it at the same time.', subject: { type: 'story', key: null } });
+  }
+  const e = await evidenceOf(story);
+  if (e.claims.length === 0) {
+    blockers.push({ code: 'no-claims', message: 'The story makes no claims linked to readings or clearances, so there is nothing to check.', subject: { type: 'story', key: null } });
+  }
+  for (const b of e.broken) {
+    blockers.push({ code: 'claim-broken', message: `Line ${b.line}: "${b.text}" — ${b.message}`, subject: { type: 'claim', key: b.target } });
+  }
+  for (const c of e.claims) {
+    if (c.status.state === 'unknown-target') {
+      blockers.push({ code: 'claim-unknown', message: `Line ${c.line}: "${c.text}" — ${c.status.message}`, subject: { type: 'claim', key: `${c.kind}:${c.key}` } });
+    } else if (c.status.state === 'number-disagrees' || c.status.state === 'verdict-disagrees') {
+      blockers.push({ code: 'claim-disagrees', message: `Line ${c.line}: "${c.text}" — ${c.status.message}`, subject: { type: 'claim', key: `${c.kind}:${c.key}` } });
+    }
+  }
+  const checks = await latestChecks(subjectsOf(e));
+  const judge = (type: 'reading' | 'clearance', id: number, key: string, name: string) => {
+    const check = checks.get(`${type}:${id}`);
+    if (!check || !check.current) {
+      blockers.push({ code: 'unchecked', message: `The ${type} "${name}" (${key}) has not been checked${check ? ' since it was changed' : ''}.`, subject: { type, key } });
+    } else if (check.state === 'flagged') {
+      blockers.push({ code: 'flagged', message: `The ${type} "${name}" (${key}) is flagged: ${check.comment}`, subject: { type, key } });
+    }
+  };
+  for (const r of e.citedReadings) judge('reading', r.id, r.key, r.name);
+  for (const c of e.citedClearances) {
+    judge('clearance', c.id, c.key, c.name);
+    if (c.spec && c.spec.sourceText.trim().length === 0) {
+      blockers.push({ code: 'spec-without-source', message: `The spec of "${c.name}" cites no source.`, subject: { type: 'clearance', key: c.key } });
+    }
+  }
+  return blockers;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Loading
+
+/** A story for a reviewer or its builder, with its build; 404 to everyone else. */
+export async function storyForReview(storyId: number, user: User | undefined, transaction?: Transaction): Promise<{ story: Story; build: Build }> {
+  if (!user) throw unauthorized();
+  const story = await Story.findByPk(storyId, { transaction, ...(transaction && { lock: transaction.LOCK.UPDATE }) });
+  if (!story) throw notFound('There is no story with that id.');
+  const build = await buildForViewer(story.buildId, user).catch((err) => {
+    throw err instanceof AppError && err.status === 404 ? notFound('There is no story with that id.') : err;
+  });
+  return { story, build };
+}
+
+function actorFor(user: User, build: Build): Actor | null {
+  if (build.ownerId === user.id) return 'builder';
+  if (reviewers.has(user.role)) return 'moderator';
+  return null;
+}
+
+async function personsOf(ids: number[]): Promise<Map<number, User>> {
+  const unique = [...new Set(ids)];
+  return new Map((unique.length ? await User.findAll({ where: { id: unique } }) : []).map((u) => [u.id, u]));
+}
+
+const person = (u: User): Person => ({ id: u.id, displayName: u.displayName, email: u.email });
+
+// ---------------------------------------------------------------------------------------------
+// Claims on stories in review
+
+/** Takes (or renews) a story for review; refused while another moderator's claim is live. */
+export async function claimStory(storyId: number, moderator: User, deps: ReviewDeps) {
+  const now = deps.now?.() ?? new Date();
+  return Story.sequelize!.transaction(async (transaction) => {
+    const { story, build } = await storyForReview(storyId, moderator, transaction);
+    if (build.ownerId === moderator.id) throw forbidden('You cannot review a story of your own build.');
+    if (story.state !== 'in-review') throw conflict('Only a story in review can be taken for review.', 'story_not_in_review');
+    const existing = await ReviewClaim.findByPk(story.id, { transaction, lock: transaction.LOCK.UPDATE });
+    if (existing && existing.moderatorId !== moderator.id && existing.expiresAt > now) {
+      const holder = await User.findByPk(existing.moderatorId, { transaction });
+      throw conflict(
+        `${holder?.displayName ?? 'Another moderator'} is checking this story until ${existing.expiresAt.toISOString().slice(11, 16)} UTC.`,
+        'claimed_by_other',
+      );
+    }
+    const expiresAt = new Date(now.getTime() + CLAIM_MINUTES * 60_000);
+    if (existing) await existing.update({ moderatorId: moderator.id, claimedAt: now, expiresAt }, { transaction });
+    else await ReviewClaim.create({ storyId: story.id, moderatorId: moderator.id, claimedAt: now, expiresAt }, { transaction });
+    await audit({ actorId: moderator.id, action: 'review.claim', subjectType: 'story', subjectId: story.id, storyId: story.id, after: { expiresAt: expiresAt.toISOString() } }, transaction);
+    return { storyId: story.id, moderatorId: moderator.id, moderatorName: moderator.displayName, expiresAt: expiresAt.toISOString() };
+  });
+}
+
+/** Lets go of a claim (only its holder, or an admin). */
+export async function releaseClaim(storyId: number, moderator: User) {
+  await Story.sequelize!.transaction(async (transaction) => {
+    const { story } = await storyForReview(storyId, moderator, transaction);
+    const existing = await ReviewClaim.findByPk(story.id, { transaction, lock: transaction.LOCK.UPDATE });
+    if (!existing) return;
+    if (existing.moderatorId !== moderator.id && moderator.role !== 'admin') throw forbidden('Only the moderator holding the story can let it go.');
+    await existing.destroy({ transaction });
+    await audit({ actorId: moderator.id, action: 'review.release', subjectType: 'story', subjectId: story.id, storyId: story.id }, transaction);
+  });
+}
+
+async function assertClaimHeld(story: Story, moderator: User, now: Date, transaction: Transaction) {
+  const claim = await ReviewClaim.findByPk(story.id, { transaction });
+  if (!claim || claim.moderatorId !== moderator.id || claim.expiresAt <= now) {
+    throw conflict('Take the story for review first (or again: your hold lapsed), so no one else is checking it at the same time.', 'claim_not_held');
+  }
+}
+
+// ---------------------------------------------------------------------------------------------
+// Checks, flags, answers
+
+type CheckInput = z.output<typeof checkInputSchema>;
+
+/** Records a moderator's check or flag of one reading or clearance the story relies on. */
+export async function recordCheck(moderator: User, input: CheckInput, deps: ReviewDeps): Promise<EvidenceCheckDto> {
+  const now = deps.now?.() ?? new Date();
+  const id = await Story.sequelize!.transaction(async (transaction) => {
+    const { story, build } = await storyForReview(input.storyId, moderator, transaction);
+    if (build.ownerId === moderator.id) throw forbidden('You cannot check the readings of your own build.');
+    if (story.state !== 'in-review') throw conflict('Readings are checked while the story is in review.', 'story_not_in_review');
+    await assertClaimHeld(story, moderator, now, transaction);
+    const e = await evidenceOf(story);
+    const subject =
+      input.subjectType === 'reading' ? e.citedReadings.find((r) => r.id === input.subjectId) : e.citedClearances.find((c) => c.id === input.subjectId);
+    if (!subject) {
+      throw badRequest(`That ${input.subjectType} is not one this story relies on.`, [{ path: 'subjectId', message: `not a ${input.subjectType} the story cites` }]);
+    }
+    const check = await EvidenceCheck.create(
+      {
+        storyId: story.id,
+        subjectType: input.subjectType,
+        subjectId: subject.id,
+        subjectLockVersion: subject.lockVersion,
+        state: input.state,
+        comment: input.comment,
+        moderatorId: moderator.id,
+      },
+      { transaction },
+    );
+    const model = input.subjectType === 'reading' ? Reading : Clearance;
+    await (model as typeof Reading).update({ reviewState: input.state }, { where: { id: subject.id }, transaction, silent: true });
+    await audit(
+      {
+        actorId: moderator.id,
+        action: input.state === 'checked' ? 'check.checked' : 'check.flagged',
+        subjectType: input.subjectType,
+        subjectId: subject.id,
+        storyId: story.id,
+        before: { reviewState: subject.reviewState },
+        after: { reviewState: input.state, lockVersion: subject.lockVersion, comment: input.comment },
+      },
+      transaction,
+    );
+    return check.id;
+  });
+  return (await checkDtos({ where: { id } }))[0]!;
+}
+
+/** The builder answers a flag; the answer is kept with it. */
+export async function answerCheck(builder: User, checkId: number, body: string): Promise<EvidenceCheckDto> {
+  await Story.sequelize!.transaction(async (transaction) => {
+    const check = await EvidenceCheck.findByPk(checkId, { transaction });
+    if (!check) throw notFound('There is no check with that id.');
+    const { build } = await storyForReview(check.storyId, builder, transaction).catch((err) => {
+      throw err instanceof AppError && err.status === 404 ? notFound('There is no check with that id.') : err;
+    });
+    if (build.ownerId !== builder.id) throw forbidden('Only the builder answers flags on their readings.');
+    if (check.state !== 'flagged') throw conflict('Only a flag can be answered.', 'not_a_flag');
+    const answer = await CheckAnswer.create({ checkId: check.id, body, authorId: builder.id }, { transaction });
+    await audit({ actorId: builder.id, action: 'check.answered', subjectType: check.subjectType, subjectId: check.subjectId, storyId: check.storyId, after: { answerId: answer.id, body } }, transaction);
+  });
+  return (await checkDtos({ where: { id: checkId } }))[0]!;
+}
+
+/** Checks of a story (or by any filter), newest first, with their answers and whether each is current. */
+export async function checkDtos(q: { where: Record<string, unknown> }): Promise<EvidenceCheckDto[]> {
+  const rows = await EvidenceCheck.findAll({ where: q.where, order: [['id', 'DESC']], include: [{ model: CheckAnswer, as: 'answers' }] });
+  if (rows.length === 0) return [];
+  const readingIds = rows.filter((r) => r.subjectType === 'reading').map((r) => r.subjectId);
+  const clearanceIds = rows.filter((r) => r.subjectType === 'clearance').map((r) => r.subjectId);
+  const [readings, clearances] = await Promise.all([
+    readingIds.length ? Reading.findAll({ where: { id: readingIds }, attributes: ['id', 'key', 'name', 'lockVersion'] }) : [],
+    clearanceIds.length ? Clearance.findAll({ where: { id: clearanceIds }, attributes: ['id', 'key', 'name', 'lockVersion'] }) : [],
+  ]);
+  const subjects = new Map<string, { key: string; name: string; lockVersion: number }>([
+    ...readings.map((r) => [`reading:${r.id}`, r] as const),
+    ...clearances.map((c) => [`clearance:${c.id}`, c] as const),
+  ]);
+  const answers = rows.flatMap((r) => (r as EvidenceCheck & { answers?: CheckAnswer[] }).answers ?? []);
+  const people = await personsOf([...rows.map((r) => r.moderatorId), ...answers.map((a) => a.authorId)]);
+  return rows.map((r) => {
+    const s = subjects.get(`${r.subjectType}:${r.subjectId}`);
+    const own = ((r as EvidenceCheck & { answers?: CheckAnswer[] }).answers ?? []).sort((a, b) => a.id - b.id);
+    return {
+      id: r.id,
+      storyId: r.storyId,
+      subjectType: r.subjectType,
+      subjectId: r.subjectId,
+      subjectKey: s?.key ?? '',
+      subjectName: s?.name ?? '(removed)',
+      subjectLockVersion: r.subjectLockVersion,
+      current: s?.lockVersion === r.subjectLockVersion,
+      state: r.state,
+      comment: r.comment,
+      moderatorId: r.moderatorId,
+      moderatorName: people.get(r.moderatorId)?.displayName ?? '',
+      createdAt: r.createdAt.toISOString(),
+      answers: own.map((a) => ({ id: a.id, body: a.body, authorId: a.authorId, authorName: people.get(a.authorId)?.displayName ?? '', createdAt: a.createdAt.toISOString() })),
+    };
+  });
+}
+
+// ---------------------------------------------------------------------------------------------
+// Transitions
+
+/**
+ * Moves a story through the workflow (shared/review/workflow.ts), server side: role, state,
+ * reason, the claim for moderator actions, the publish gate, the audit line, and the mail
+ * (queued after the change commits, so a slow mail server never fails the move).
+ */
+export async function transition(storyId: number, user: User, input: TransitionInput, deps: ReviewDeps) {
+  const now = deps.now?.() ?? new Date();
+  const mails: OutgoingMail[] = [];
+  const result = await Story.sequelize!.transaction(async (transaction) => {
+    const { story, build } = await storyForReview(storyId, user, transaction);
+    const actor = actorFor(user, build);
+    if (!actor) throw forbidden('Only the builder or a moderator can do that.');
+    if (story.lockVersion !== input.lockVersion) throw editConflict('story', story);
+    const verdict = canTransition(input.action, story.state, actor, { hasPublicRevision: story.publishedPublicationId !== null, reason: input.reason });
+    if (!verdict.ok) {
+      if (verdict.code === 'reason_required') throw badRequest(verdict.message, [{ path: 'reason', message: verdict.message }]);
+      throw new AppError(verdict.code === 'not_your_role' ? 403 : 409, verdict.code === 'not_your_role' ? 'forbidden' : verdict.code, verdict.message);
+    }
+    const before = { state: story.state, publishedPublicationId: story.publishedPublicationId };
+    const owner = (await User.findByPk(build.ownerId, { transaction }))!;
+    const ref = { id: story.id, title: story.title, buildTitle: build.title, builderName: owner.displayName };
+    const reason = input.reason?.trim() ?? '';
+    const changes: Partial<Pick<Story, 'state' | 'submittedAt' | 'publishedPublicationId' | 'withdrawnReason' | 'withdrawnBy'>> = { state: verdict.to };
+    let publication: StoryPublication | null = null;
+
+    switch (input.action) {
+      case 'submit': {
+        changes.submittedAt = now;
+        await ReviewClaim.destroy({ where: { storyId: story.id }, transaction });
+        const moderators = await User.findAll({ where: { role: 'moderator', id: { [Op.ne]: owner.id } }, transaction });
+        mails.push(...submittedMails(deps.config.publicUrl, ref, moderators.map(person)));
+        break;
+      }
+      case 'request-changes': {
+        if (build.ownerId === user.id) throw forbidden('You cannot review a story of your own build.');
+        await assertClaimHeld(story, user, now, transaction);
+        const flags = (await checkDtos({ where: { storyId: story.id, state: 'flagged' } })).filter((c) => c.current);
+        mails.push(...changesRequestedMail(deps.config.publicUrl, ref, person(owner), reason, flags.map((f) => `${f.subjectName}: ${f.comment}`)));
+        await ReviewClaim.destroy({ where: { storyId: story.id }, transaction });
+        break;
+      }
+      case 'publish': {
+        const blockers = await publishBlockers(story, build, user, now);
+        if (blockers.length) {
+          throw new AppError(409, 'publish_blocked', `This story cannot be published yet: ${blockers.length} problem${blockers.length === 1 ? '' : 's'} to resolve.`, blockers.map((b) => ({ path: b.code, message: b.message })));
+        }
+        publication = await publish(story, build, user, transaction);
+        changes.publishedPublicationId = publication.id;
+        changes.withdrawnReason = null;
+        changes.withdrawnBy = null;
+        await ReviewClaim.destroy({ where: { storyId: story.id }, transaction });
+        mails.push(...publishedMail(deps.config.publicUrl, ref, person(owner), publication.number));
+        mails.push(...(await followerMailsFor(deps, { ...ref, summary: story.summary }, owner.id, transaction)));
+        break;
+      }
+      case 'withdraw': {
+        changes.withdrawnReason = reason;
+        changes.withdrawnBy = user.id;
+        await ReviewClaim.destroy({ where: { storyId: story.id }, transaction });
+        mails.push(...withdrawnMail(deps.config.publicUrl, ref, person(owner), reason, actor === 'moderator'));
+        break;
+      }
+      case 'republish': {
+        // A moderator's withdrawal stands until a moderator lifts it (or a new review passes).
+        if (actor === 'builder' && story.withdrawnBy !== null && story.withdrawnBy !== user.id) {
+          throw forbidden('A moderator withdrew this story; send it for review again instead.');
+        }
+        changes.withdrawnReason = null;
+        changes.withdrawnBy = null;
+        break;
+      }
+    }
+    await Story.update(changes, { where: { id: story.id }, transaction, silent: true });
+    await audit(
+      {
+        actorId: user.id,
+        action: `story.${input.action}`,
+        subjectType: 'story',
+        subjectId: story.id,
+        storyId: story.id,
+        before,
+        after: { state: verdict.to, publishedPublicationId: changes.publishedPublicationId ?? story.publishedPublicationId, ...(publication && { revision: publication.number }) },
+        note: reason,
+      },
+      transaction,
+    );
+    return { storyId: story.id, state: verdict.to as StoryState, revision: publication?.number ?? null };
+  });
+  await enqueueMail(deps.queue, mails, deps.logger as never);
+  return result;
+}
+
+async function followerMailsFor(deps: ReviewDeps, story: Parameters<typeof followerMails>[1], builderId: number, transaction: Transaction) {
+  const follows = await Follow.findAll({ where: { builderId, emailOnPublish: true }, transaction });
+  const people = await personsOf(follows.map((f) => f.followerId));
+  return followerMails(
+    deps.config.publicUrl,
+    story,
+    follows
+      .map((f) => people.get(f.followerId))
+      .filter((u): u is User => Boolean(u))
+      .map((u) => ({ ...person(u), unsubscribeToken: signUnsubscribe(deps.config.sessionSecret, u.id, builderId) })),
+  );
+}
+
+/** Writes the public revision: the story's text and the figures of every claim as judged now. */
+async function publish(story: Story, build: Build, moderator: User, transaction: Transaction): Promise<StoryPublication> {
+  const e = await evidenceOf(story);
+  const checks = await latestChecks(subjectsOf(e), transaction);
+  const people = await personsOf([...checks.values()].map((c) => c.moderatorId));
+  const checked = (type: 'reading' | 'clearance', id: number) => {
+    const c = checks.get(`${type}:${id}`)!;
+    return { by: c.moderatorId, byName: people.get(c.moderatorId)?.displayName ?? '', at: c.createdAt.toISOString(), lockVersion: c.subjectLockVersion };
+  };
+  const last = (await StoryPublication.max('number', { where: { storyId: story.id }, transaction })) as number | null;
+  return StoryPublication.create(
+    {
+      storyId: story.id,
+      number: (last ?? 0) + 1,
+      title: story.title,
+      summary: story.summary,
+      coverMomentId: story.coverMomentId,
+      tags: story.tags,
+      workDate: story.workDate,
+      body: story.body,
+      evidence: {
+        buildId: build.id,
+        claims: e.claims.map((c) => ({ kind: c.kind, key: c.key, text: c.text, line: c.line })),
+        readings: e.citedReadings.map((r) => ({ ...r, checked: checked('reading', r.id) })),
+        clearances: e.citedClearances.map((c) => ({ ...c, checked: checked('clearance', c.id) })),
+      },
+      publishedBy: moderator.id,
+    },
+    { transaction },
+  );
+}
+
+// ---------------------------------------------------------------------------------------------
+// The queue and the review sheet
+
+type QueueItem = z.infer<typeof queueItemSchema>;
+
+/** Stories in review, oldest sent first, keyset on (submittedAt, id). */
+export async function reviewQueue(q: { after?: string; limit: number }, now: Date): Promise<{ items: QueueItem[]; nextAfter: string | null }> {
+  const [afterAt, afterId] = q.after ? [new Date(q.after.split('_')[0]!), Number(q.after.split('_')[1])] : [null, null];
+  const rows = await Story.findAll({
+    where: {
+      state: 'in-review',
+      ...(afterAt && {
+        [Op.or]: [{ submittedAt: { [Op.gt]: afterAt } }, { submittedAt: afterAt, id: { [Op.gt]: afterId } }],
+      }),
+    },
+    order: [['submittedAt', 'ASC'], ['id', 'ASC']],
+    limit: q.limit + 1,
+  });
+  const page = rows.slice(0, q.limit);
+  const builds = new Map((page.length ? await Build.findAll({ where: { id: page.map((s) => s.buildId) } }) : []).map((b) => [b.id, b]));
+  const claims = new Map((page.length ? await ReviewClaim.findAll({ where: { storyId: page.map((s) => s.id) } }) : []).map((c) => [c.storyId, c]));
+  const people = await personsOf([...[...builds.values()].map((b) => b.ownerId), ...[...claims.values()].map((c) => c.moderatorId)]);
+  const items: QueueItem[] = [];
+  // Evidence per story is worked out from its build; a page is at most `limit` stories.
+  for (const s of page) {
+    const build = builds.get(s.buildId)!;
+    const e = await evidenceOf(s);
+    const checks = await latestChecks(subjectsOf(e));
+    const left = subjectsOf(e).filter((x) => {
+      const c = checks.get(`${x.type}:${x.id}`);
+      return !c || !c.current || c.state === 'flagged';
+    }).length;
+    const claim = claims.get(s.id);
+    const live = claim && claim.expiresAt > now ? claim : null;
+    items.push({
+      storyId: s.id,
+      title: s.title,
+      state: s.state,
+      buildId: build.id,
+      buildTitle: build.title,
+      builderId: build.ownerId,
+      builderName: people.get(build.ownerId)?.displayName ?? '',
+      submittedAt: (s.submittedAt ?? s.updatedAt).toISOString(),
+      readings: e.citedReadings.length,
+      clearances: e.citedClearances.length,
+      leftToCheck: left,
+      claim: live ? { moderatorId: live.moderatorId, moderatorName: people.get(live.moderatorId)?.displayName ?? '', expiresAt: live.expiresAt.toISOString() } : null,
+      republication: s.publishedPublicationId !== null,
+    });
+  }
+  const lastRow = page[page.length - 1];
+  return { items, nextAfter: rows.length > q.limit && lastRow ? `${(lastRow.submittedAt ?? lastRow.updatedAt).toISOString()}_${lastRow.id}` : null };
+}
+
+/**
+ * Everything a moderator needs to check a story, reading by reading: each cited reading with
+ * its instrument state and moment, the clearances that use it, the sentences that cite it, and
+ * its current check; the blockers to publishing; the claim; the checks with answers.
+ */
+export async function reviewSheet(storyId: number, user: User, deps: ReviewDeps) {
+  const now = deps.now?.() ?? new Date();
+  const { story, build } = await storyForReview(storyId, user);
+  const e = await evidenceOf(story);
+  const checks = await latestChecks(subjectsOf(e));
+  const checkOf = (type: 'reading' | 'clearance', id: number) => {
+    const c = checks.get(`${type}:${id}`);
+    return c ? { checkId: c.id, state: c.state, current: c.current, comment: c.comment } : null;
+  };
+  const sentences = (kind: 'reading' | 'clearance', key: string) =>
+    e.claims.filter((c) => c.kind === kind && c.key === key).map((c) => ({ text: c.text, line: c.line, status: c.status }));
+  const claim = await ReviewClaim.findByPk(story.id);
+  const holder = claim ? await User.findByPk(claim.moderatorId) : null;
+  const isModerator = reviewers.has(user.role) && build.ownerId !== user.id;
+  return {
+    story: {
+      id: story.id,
+      title: story.title,
+      state: story.state,
+      lockVersion: story.lockVersion,
+      buildId: build.id,
+      buildTitle: build.title,
+      builderId: build.ownerId,
+      body: story.body,
+      submittedAt: story.submittedAt?.toISOString() ?? null,
+      hasPublicRevision: story.publishedPublicationId !== null,
+    },
+    claim: claim && claim.expiresAt > now ? { moderatorId: claim.moderatorId, moderatorName: holder?.displayName ?? '', expiresAt: claim.expiresAt.toISOString() } : null,
+    readings: e.citedReadings.map((r) => ({
+      reading: r,
+      usedBy: e.citedClearances.filter((c) => c.terms.some((t) => t.readingId === r.id)).map((c) => ({ id: c.id, key: c.key, name: c.name, display: c.result?.display ?? null })),
+      citedIn: sentences('reading', r.key),
+      check: checkOf('reading', r.id),
+    })),
+    clearances: e.citedClearances.map((c) => ({ clearance: c, citedIn: sentences('clearance', c.key), check: checkOf('clearance', c.id) })),
+    claims: e.claims.map((c) => ({ kind: c.kind, key: c.key, text: c.text, line: c.line, status: c.status })),
+    broken: e.broken,
+    blockers: isModerator ? await publishBlockers(story, build, user, now) : [],
+    checks: await checkDtos({ where: { storyId: story.id } }),
+  };
+}
