@@ -126,7 +126,11 @@ export const bracketReadingSchema = z
     }
   });
 
-/** The same size measured several times; the mean is used. */
+/**
+ * The same size measured several times; the mean is used. `zeroOffset` (what the instrument
+ * showed on its setting standard that day, minus the standard) is subtracted from the mean;
+ * `uncertainty` is a stated standard uncertainty of the instrument, combined with the rest.
+ */
 export const repeatedReadingSchema = z
   .strictObject({
     kind: z.literal('repeated'),
@@ -136,10 +140,14 @@ export const repeatedReadingSchema = z
       .max(MAX_REPEATED_VALUES, `values may hold at most ${MAX_REPEATED_VALUES} numbers`),
     unit: unitSchema,
     resolution: finite('resolution').optional(),
+    uncertainty: finite('uncertainty').optional(),
+    zeroOffset: finite('zeroOffset').optional(),
   })
   .superRefine((reading, ctx) => {
     reading.values.forEach((value, index) => checkLength(ctx, ['values', index], value, reading.unit));
     checkLength(ctx, ['resolution'], reading.resolution, reading.unit, positiveResolution);
+    checkLength(ctx, ['uncertainty'], reading.uncertainty, reading.unit, nonNegative);
+    checkLength(ctx, ['zeroOffset'], reading.zeroOffset, reading.unit);
   });
 
 /** One reading of any kind, told apart by `kind`. */

@@ -180,32 +180,47 @@ function evaluateRepeated(key: string, reading: RepeatedReading): EvaluatedReadi
     ? pmOf(reading.resolution as number, unit, 'resolution')
     : reading.values.map((value) => lastPlaceOf(value, unit)).reduce((a, b) => (a < b ? a : b));
   const sum = valuesPm.reduce((a, b) => a + b, 0n);
-  const valuePm = divideRounded(sum, BigInt(n), 'half-even');
+  const meanPm = divideRounded(sum, BigInt(n), 'half-even');
+  // The offset shifts every value alike, so the spread (and u_A) is that of the values as read.
   const { sPm, uPm } = typeAUncertaintyOfMeanPm(valuesPm);
   const uA = uPm / 1e6;
   const sUm = sPm / 1e6;
   const uResolution = resolutionStandardUncertainty(picometresToMicrometres(resolutionPm));
-  const u = combineInQuadrature([uA, uResolution]);
+  const uReadings = combineInQuadrature([uA, uResolution]);
   // A mean is conventionally stated one digit finer than the readings (common practice).
   const displayStepPm = resolutionPm >= 10n ? resolutionPm / 10n : 1n;
   const resolutionText = formatLength(resolutionPm, unit, resolutionPm);
   const shown = reading.values.length <= 12 ? reading.values.map((v) => numberText(v, unit)).join(', ') : `${n} values`;
-  return {
-    key,
-    kind: 'repeated',
-    unit,
-    valuePm,
-    standardUncertaintyUm: u,
-    displayStepPm,
-    steps: [
-      `${key}: ${n} repeated readings (${shown}), resolution ${resolutionText}${
-        resolutionGiven ? '' : ' (not given: taken as the finest last decimal place entered)'
-      }.`,
-      `${key}: mean x̄ = Σx/n = ${both(valuePm, unit, displayStepPm)}; experimental standard deviation s = ${uText(sUm, unit)} (GUM 4.2.2).`,
-      `${key}: Type A uncertainty of the mean u_A = s/√n = s/√${n} = ${uText(uA, unit)} (GUM 4.2.3).`,
-      `${key}: resolution u_res = ${resolutionText}/(2√3) = ${uText(uResolution, unit)} (GUM F.2.2.1); u = √(u_A² + u_res²) = ${uText(u, unit)}.`,
-    ],
-  };
+  const steps = [
+    `${key}: ${n} repeated readings (${shown}), resolution ${resolutionText}${
+      resolutionGiven ? '' : ' (not given: taken as the finest last decimal place entered)'
+    }.`,
+    `${key}: mean x̄ = Σx/n = ${both(meanPm, unit, displayStepPm)}; experimental standard deviation s = ${uText(sUm, unit)} (GUM 4.2.2).`,
+  ];
+  let valuePm = meanPm;
+  if (reading.zeroOffset !== undefined && reading.zeroOffset !== 0) {
+    const zeroPm = pmOf(reading.zeroOffset, unit, 'zeroOffset');
+    valuePm = meanPm - zeroPm;
+    steps.push(
+      `${key}: zero check read ${numberText(reading.zeroOffset, unit)}; subtracted from the mean: ${formatLength(meanPm, unit, displayStepPm)} − ${numberText(
+        reading.zeroOffset,
+        unit,
+      )} = ${both(valuePm, unit, displayStepPm)}.`,
+    );
+  }
+  steps.push(
+    `${key}: Type A uncertainty of the mean u_A = s/√n = s/√${n} = ${uText(uA, unit)} (GUM 4.2.3).`,
+    `${key}: resolution u_res = ${resolutionText}/(2√3) = ${uText(uResolution, unit)} (GUM F.2.2.1); u = √(u_A² + u_res²) = ${uText(uReadings, unit)}.`,
+  );
+  let u = uReadings;
+  if (reading.uncertainty !== undefined) {
+    const stated = picometresToMicrometres(pmOf(reading.uncertainty, unit, 'uncertainty'));
+    u = combineInQuadrature([uA, uResolution, stated]);
+    steps.push(
+      `${key}: stated standard uncertainty ${uText(stated, unit)} combined in quadrature: u = √(u_A² + u_res² + u_stated²) = ${uText(u, unit)} (GUM eq. 10).`,
+    );
+  }
+  return { key, kind: 'repeated', unit, valuePm, standardUncertaintyUm: u, displayStepPm, steps };
 }
 
 /** Evaluates one validated reading: its estimate, its standard uncertainty and the working. */

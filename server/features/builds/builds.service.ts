@@ -1,8 +1,9 @@
 import { Op } from 'sequelize';
 import type { Build as BuildDto, BuildPatch, ListBuildsResponse } from '@shared/builds/build.schema';
 import { buildInputSchema } from '@shared/builds/build.schema';
-import { badRequest, forbidden, notFound, unauthorized } from '../../http/errors';
+import { AppError, badRequest, forbidden, notFound, unauthorized } from '../../http/errors';
 import { Clip } from '../clips/clip.model';
+import { Reading } from '../readings/reading.model';
 import type { User } from '../users/user.model';
 import { Build, Part } from './build.model';
 
@@ -107,7 +108,20 @@ export async function updateBuild(build: Build, patch: BuildPatch): Promise<Buil
         }
       }
       const gone = [...existing.keys()].filter((id) => !kept.has(id));
-      if (gone.length) await Part.destroy({ where: { id: gone }, transaction });
+      if (gone.length) {
+        // A reading names the part it was taken on; removing the part would orphan that record.
+        const used = await Reading.findAll({ attributes: ['partId'], where: { partId: gone }, group: ['partId'], transaction });
+        if (used.length) {
+          const names = used.map((r) => existing.get(r.partId!)!).map((p) => `"${p.name}"${p.serial ? ` (${p.serial})` : ''}`);
+          throw new AppError(
+            409,
+            'part_in_use',
+            `Readings are logged against ${names.join(', ')}, so ${used.length === 1 ? 'it' : 'they'} cannot be removed. Keep ${used.length === 1 ? 'it' : 'them'} in the list, or move those readings to another part first.`,
+            used.map((r) => ({ path: 'parts', message: `${existing.get(r.partId!)!.name} (part ${r.partId}) has readings` })),
+          );
+        }
+        await Part.destroy({ where: { id: gone }, transaction });
+      }
     }
   });
   build.parts = undefined;

@@ -23,6 +23,7 @@ import { validQuery, validate } from '../../http/validate';
 import type { Queue } from '../../jobs/queue';
 import type { Storage } from '../../storage/storage';
 import { buildForOwner, buildForViewer } from '../builds/builds.service';
+import { readingDisplaysForMoments } from '../readings/readings.service';
 import { enqueueClip } from './clip.job';
 import {
   acceptUpload,
@@ -31,6 +32,7 @@ import {
   clipForViewer,
   clipKeys,
   deleteClip,
+  deleteMoment,
   listClips,
   listMoments,
   momentForOwner,
@@ -44,7 +46,7 @@ import {
 } from './clips.service';
 import { MediaCommandFailed } from './media/ffmpeg-run';
 import { extractFrame } from './media/stills';
-import { chaptersVtt, cuesFromMoments } from './media/vtt';
+import { chaptersVtt, cuesFromMoments, momentCueText } from './media/vtt';
 
 export interface ClipRouteDeps {
   config: Config;
@@ -202,9 +204,11 @@ export function clipsRouter(deps: ClipRouteDeps) {
   router.get('/:clipId/chapters.vtt', access.signedIn, one, async (req, res) => {
     const clip = await clipForViewer(clipId(req), req.user);
     const moments = await momentsForChapters(clip.id);
+    const readings = await readingDisplaysForMoments(moments.map((m) => m.id));
     const durationMs = clip.probe ? Math.round(clip.probe.durationS * 1000) : 0;
+    const cues = cuesFromMoments(moments.map((m) => ({ atMs: m.atMs, label: momentCueText(m.label || 'Moment', readings.get(m.id)) })), durationMs);
     res.set('Cache-Control', 'no-cache');
-    res.type('text/vtt; charset=utf-8').send(chaptersVtt(cuesFromMoments(moments.map((m) => ({ atMs: m.atMs, label: m.label || 'Moment' })), durationMs)));
+    res.type('text/vtt; charset=utf-8').send(chaptersVtt(cues));
   });
 
   router.get('/:clipId/moments', access.signedIn, one, async (req, res) => {
@@ -227,7 +231,7 @@ export function momentsRouter() {
   });
   router.delete('/:momentId', access.role('builder'), validate({ params: momentIdParamsSchema }), async (req, res) => {
     const { moment } = await momentForOwner(Number(req.params.momentId), req.user, 'take-down');
-    await moment.destroy();
+    await deleteMoment(moment);
     res.status(204).end();
   });
   return router;

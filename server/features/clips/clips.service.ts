@@ -1,12 +1,14 @@
 import crypto from 'node:crypto';
 import fsp from 'node:fs/promises';
 import path from 'node:path';
-import { Op } from 'sequelize';
+import { ForeignKeyConstraintError, Op, type Transaction } from 'sequelize';
 import type { Clip as ClipDto, ClipPatch, Moment as MomentDto } from '@shared/clips/clip.schema';
 import { AppError, badRequest, conflict, notFound, unauthorized } from '../../http/errors';
 import type { Storage } from '../../storage/storage';
 import { Build } from '../builds/build.model';
 import { buildForOwner, buildForViewer, type OwnerAction } from '../builds/builds.service';
+import { ZeroCheck } from '../instruments/instrument.model';
+import { Reading } from '../readings/reading.model';
 import type { User } from '../users/user.model';
 import { Clip, Moment } from './clip.model';
 import { probeVideo, MediaRejected } from './media/probe';
@@ -200,20 +202,68 @@ export async function reorderClips(buildId: number, clipIds: number[]): Promise<
   return listClips(buildId);
 }
 
-/** Deletes a clip and its files, refused while moments are marked in it. */
+/** How many readings and zero checks are tied to these moments. */
+async function momentUses(momentIds: number[], transaction?: Transaction): Promise<{ readings: number; zeroChecks: number }> {
+  if (momentIds.length === 0) return { readings: 0, zeroChecks: 0 };
+  const [readings, zeroChecks] = await Promise.all([
+    Reading.count({ where: { momentId: momentIds }, transaction }),
+    ZeroCheck.count({ where: { momentId: momentIds }, transaction }),
+  ]);
+  return { readings, zeroChecks };
+}
+
+/** "One reading and 2 zero checks are", for a refusal. */
+function usesText(uses: { readings: number; zeroChecks: number }): string {
+  const parts = [
+    uses.readings ? (uses.readings === 1 ? 'one reading' : `${uses.readings} readings`) : '',
+    uses.zeroChecks ? (uses.zeroChecks === 1 ? 'one zero check' : `${uses.zeroChecks} zero checks`) : '',
+  ].filter(Boolean);
+  const text = parts.join(' and ');
+  return `${text.charAt(0).toUpperCase()}${text.slice(1)} ${uses.readings + uses.zeroChecks === 1 ? 'is' : 'are'}`;
+}
+
+/**
+ * Deletes a clip, its unused moments and its files; refused while a reading or a zero check is
+ * tied to one of its moments (the footage is their evidence). Stories whose cover was one of
+ * the moments lose the cover (the key is SET NULL).
+ */
 export async function deleteClip(storage: Storage, clip: Clip): Promise<void> {
   if (clip.status === 'processing') {
     throw conflict('This clip is being processed right now. Delete it when it is ready or has failed.', 'clip_busy');
   }
-  const moments = await Moment.count({ where: { clipId: clip.id } });
-  if (moments > 0) {
-    throw conflict(
-      `${moments === 1 ? 'One moment is' : `${moments} moments are`} marked in this clip, and readings are tied to moments. Remove the moments first.`,
-      'clip_in_use',
-    );
+  try {
+    await Clip.sequelize!.transaction(async (transaction) => {
+      const moments = await Moment.findAll({ attributes: ['id'], where: { clipId: clip.id }, transaction });
+      const uses = await momentUses(moments.map((m) => m.id), transaction);
+      if (uses.readings || uses.zeroChecks) {
+        throw conflict(
+          `${usesText(uses)} tied to moments of this clip, and the footage is their evidence. Remove those first; moments nothing uses go with the clip.`,
+          'clip_in_use',
+        );
+      }
+      await Moment.destroy({ where: { clipId: clip.id }, transaction });
+      await clip.destroy({ transaction });
+    });
+  } catch (err) {
+    // A reading was tied to one of its moments between the count and the delete.
+    if (err instanceof ForeignKeyConstraintError) throw conflict('A reading or zero check is tied to a moment of this clip now. Remove it first.', 'clip_in_use');
+    throw err;
   }
-  await clip.destroy();
   await storage.deletePrefix(clipKeys(clip).base);
+}
+
+/** Deletes a moment, refused while a reading or a zero check is tied to it (409 `moment_in_use`). */
+export async function deleteMoment(moment: Moment): Promise<void> {
+  const uses = await momentUses([moment.id]);
+  if (uses.readings || uses.zeroChecks) {
+    throw conflict(`${usesText(uses)} tied to this moment, and its still is the evidence. Remove or move ${uses.readings + uses.zeroChecks === 1 ? 'it' : 'them'} first.`, 'moment_in_use');
+  }
+  try {
+    await moment.destroy();
+  } catch (err) {
+    if (err instanceof ForeignKeyConstraintError) throw conflict('A reading or zero check is tied to this moment now. Remove it first.', 'moment_in_use');
+    throw err;
+  }
 }
 
 export function momentDto(m: Moment): MomentDto {

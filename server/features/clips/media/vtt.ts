@@ -36,6 +36,15 @@ function escapeCueText(text: string): string {
   return oneLine.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;');
 }
 
+/**
+ * The chapter title of a moment: its readings as "name: value with unit", joined with "; ",
+ * or its own label when no reading is tied to it.
+ */
+export function momentCueText(label: string, readings: readonly { name: string; display: string }[] = []): string {
+  if (readings.length === 0) return label;
+  return readings.map((r) => `${r.name}: ${r.display}`).join('; ');
+}
+
 const LAST_CUE_MS = 5000;
 
 /**

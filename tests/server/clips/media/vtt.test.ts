@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { WebVTTParser, type Entity } from 'webvtt-parser';
 import htmlEntities from 'webvtt-parser/html-entities.json';
-import { chaptersVtt, cuesFromMoments } from '../../../../server/features/clips/media/vtt';
+import { chaptersVtt, cuesFromMoments, momentCueText } from '../../../../server/features/clips/media/vtt';
 
 /**
  * Parses with the W3C's webvtt.js (w3c/webvtt.js, the parser of the W3C's online validator).
@@ -107,5 +107,29 @@ describe('cuesFromMoments', () => {
     const cues = cuesFromMoments([{ atMs: 8000, label: 'At the end' }], 8000);
     expect(cues).toEqual([{ startMs: 8000, endMs: 13_000, text: 'At the end' }]);
     expect(parse(chaptersVtt(cues)).errors).toEqual([]);
+  });
+});
+
+describe('momentCueText', () => {
+  it('names the readings at a moment with their values, joined with "; ", else keeps the label', () => {
+    expect(momentCueText('Pump body on the plate')).toBe('Pump body on the plate');
+    expect(momentCueText('Pump body on the plate', [])).toBe('Pump body on the plate');
+    expect(momentCueText('ignored', [{ name: 'Bore depth', display: '0.5642 in' }])).toBe('Bore depth: 0.5642 in');
+    expect(
+      momentCueText('ignored', [
+        { name: 'Rotor tip gap', display: '0.0035 in' },
+        { name: 'Runout', display: '−0.012 mm' },
+      ]),
+    ).toBe('Rotor tip gap: 0.0035 in; Runout: −0.012 mm');
+  });
+
+  it('keeps the track valid when a reading name holds cue syntax', () => {
+    const text = momentCueText('x', [{ name: 'gap --> <b>tight</b>\n\n00:00:09.000 --> 00:00:10.000', display: '0.0035 in' }]);
+    const { cues, errors } = parse(chaptersVtt(cuesFromMoments([{ atMs: 1000, label: text }, { atMs: 2000, label: 'next' }], 5000)));
+    expect(errors).toEqual([]);
+    expect(cues).toHaveLength(2);
+    expect(cues[0]!.tree.children.map((c) => ('value' in c ? c.value : '')).join('')).toBe(
+      'gap --> <b>tight</b> 00:00:09.000 --> 00:00:10.000: 0.0035 in',
+    );
   });
 });

@@ -1,0 +1,219 @@
+import { Op, type Transaction } from 'sequelize';
+import type { z } from 'zod';
+import { computeClearance } from '@shared/clearances/clearance-calc';
+import type { Clearance as ClearanceDto, ClearancePatch, clearanceInputSchema, clearanceListQuerySchema } from '@shared/clearances/clearance.schema';
+import { AppError, badRequest, notFound } from '../../http/errors';
+import { editConflict, updateWithLock } from '../../http/optimistic-lock';
+import { Build } from '../builds/build.model';
+import { buildForOwner, buildForViewer, type OwnerAction } from '../builds/builds.service';
+import { Reading } from '../readings/reading.model';
+import { allocateKey, storiesCiting, toReadingDtos } from '../readings/readings.service';
+import { Spec, SpecVersion } from '../specs/spec.model';
+import { latestVersionNumbers, specVersionUsableBy, toSpecVersionDto } from '../specs/specs.service';
+import type { User } from '../users/user.model';
+import { Clearance, ClearanceTerm } from './clearance.model';
+
+export type { ClearanceDto };
+type ClearanceInput = z.output<typeof clearanceInputSchema>;
+type ClearanceListQuery = z.output<typeof clearanceListQuerySchema>;
+
+/**
+ * API shapes for clearances, each worked out now from its stored readings. A page costs a fixed
+ * number of queries: terms, readings (and what they need), spec versions, newest versions.
+ */
+async function toDtos(rows: Clearance[], transaction?: Transaction): Promise<ClearanceDto[]> {
+  if (rows.length === 0) return [];
+  const ids = rows.map((c) => c.id);
+  const terms = await ClearanceTerm.findAll({ where: { clearanceId: ids }, order: [['clearanceId', 'ASC'], ['position', 'ASC']], transaction });
+  const readingIds = [...new Set(terms.map((t) => t.readingId))];
+  const versionIds = [...new Set(rows.map((c) => c.specVersionId).filter((id): id is number => id !== null))];
+  const [readingRows, versions] = await Promise.all([
+    readingIds.length ? Reading.findAll({ where: { id: readingIds }, transaction }) : [],
+    versionIds.length ? SpecVersion.findAll({ where: { id: versionIds }, include: [{ model: Spec, as: 'spec' }], transaction }) : [],
+  ]);
+  const [readings, latest] = await Promise.all([
+    toReadingDtos(readingRows, transaction),
+    latestVersionNumbers([...new Set(versions.map((v) => v.specId))]),
+  ]);
+  const readingById = new Map(readings.map((r) => [r.id, r]));
+  const versionById = new Map(versions.map((v) => [v.id, v]));
+  const termsOf = new Map<number, ClearanceTerm[]>();
+  for (const t of terms) termsOf.set(t.clearanceId, [...(termsOf.get(t.clearanceId) ?? []), t]);
+
+  return rows.map((c) => {
+    const own = termsOf.get(c.id) ?? [];
+    const version = c.specVersionId === null ? null : (versionById.get(c.specVersionId) ?? null);
+    const coverageFactor = Number(c.coverageFactor);
+    const termReadings = own.map((t) => ({ term: t, reading: readingById.get(t.readingId)! }));
+    const computed = computeClearance({
+      terms: termReadings.map(({ term, reading }) => ({ key: reading.key, engine: reading.engine, sign: term.sign })),
+      spec: version ? toSpecVersionDto(version) : null,
+      coverageFactor,
+    });
+    const newest = version ? latest.get(version.specId) : undefined;
+    return {
+      id: c.id,
+      buildId: c.buildId,
+      key: c.key,
+      name: c.name,
+      template: c.template,
+      terms: termReadings.map(({ term, reading }) => ({ readingId: reading.id, readingKey: reading.key, readingName: reading.name, sign: term.sign })),
+      specVersionId: c.specVersionId,
+      spec: version
+        ? {
+            specId: version.specId,
+            name: version.spec?.name ?? '',
+            version: version.version,
+            sourceKind: version.sourceKind,
+            sourceText: version.sourceText,
+            newerVersion: newest !== undefined && newest > version.version ? newest : null,
+          }
+        : null,
+      coverageFactor,
+      note: c.note,
+      reviewState: c.reviewState,
+      result: computed.ok ? computed.result : null,
+      problems: computed.ok ? [] : computed.problems,
+      lockVersion: c.lockVersion,
+      createdAt: c.createdAt.toISOString(),
+      updatedAt: c.updatedAt.toISOString(),
+    };
+  });
+}
+
+/** Every clearance of a build as the API shows it, oldest first (for stories). */
+export async function clearanceDtosForBuild(buildId: number): Promise<ClearanceDto[]> {
+  return toDtos(await Clearance.findAll({ where: { buildId }, order: [['id', 'ASC']] }));
+}
+
+/** A page of a build's clearances by keyset on id ascending. */
+export async function listClearances(buildId: number, q: ClearanceListQuery): Promise<{ items: ClearanceDto[]; nextAfter: number | null }> {
+  const rows = await Clearance.findAll({
+    where: { buildId, ...(q.after !== undefined && { id: { [Op.gt]: q.after } }) },
+    order: [['id', 'ASC']],
+    limit: q.limit + 1,
+  });
+  const page = rows.slice(0, q.limit);
+  return { items: await toDtos(page), nextAfter: rows.length > q.limit ? page[page.length - 1]!.id : null };
+}
+
+export async function getClearance(clearance: Clearance): Promise<ClearanceDto> {
+  return (await toDtos([clearance]))[0]!;
+}
+
+/** A clearance the user may see (as for its build); 404 for everything else. */
+export async function clearanceForViewer(clearanceId: number, user: User | undefined): Promise<{ clearance: Clearance; build: Build }> {
+  const clearance = await Clearance.findByPk(clearanceId);
+  if (!clearance) throw notFound('There is no clearance with that id.');
+  const build = await buildForViewer(clearance.buildId, user).catch((err) => {
+    throw err instanceof AppError && err.status === 404 ? notFound('There is no clearance with that id.') : err;
+  });
+  return { clearance, build };
+}
+
+/** A clearance the user may change: the build's builder (an admin too, to take it down). */
+export async function clearanceForOwner(clearanceId: number, user: User | undefined, action: OwnerAction = 'change') {
+  const { clearance } = await clearanceForViewer(clearanceId, user);
+  const build = await buildForOwner(clearance.buildId, user, action);
+  return { clearance, build };
+}
+
+/** Every term's reading must be a reading of this build; refusals name terms.N.readingId. */
+async function checkTerms(buildId: number, terms: { readingId: number }[], transaction?: Transaction) {
+  const found = await Reading.findAll({ attributes: ['id'], where: { id: terms.map((t) => t.readingId), buildId }, transaction });
+  const have = new Set(found.map((r) => r.id));
+  const problems = terms.flatMap((t, i) => (have.has(t.readingId) ? [] : [{ path: `terms.${i}.readingId`, message: 'not a reading of this build' }]));
+  if (problems.length) throw badRequest(`Some fields are not right: ${problems[0]!.path}: ${problems[0]!.message}`, problems, 'invalid_request');
+}
+
+function termRows(clearanceId: number, terms: { readingId: number; sign: 1 | -1 }[]) {
+  return terms.map((t, position) => ({ clearanceId, readingId: t.readingId, sign: t.sign, position }));
+}
+
+/** Makes a clearance from readings of the build; 201's body. */
+export async function createClearance(build: Build, user: User, input: ClearanceInput): Promise<ClearanceDto> {
+  await checkTerms(build.id, input.terms);
+  if (input.specVersionId !== null) await specVersionUsableBy(input.specVersionId, user);
+  const clearance = await Clearance.sequelize!.transaction(async (transaction) => {
+    await Build.findByPk(build.id, { transaction, lock: transaction.LOCK.UPDATE });
+    const key = await allocateKey(Clearance, build.id, { key: input.key, name: input.name }, transaction, 'clearance');
+    const c = await Clearance.create(
+      {
+        buildId: build.id,
+        key,
+        name: input.name,
+        template: input.template,
+        specVersionId: input.specVersionId,
+        coverageFactor: String(input.coverageFactor),
+        note: input.note,
+        createdBy: user.id,
+      },
+      { transaction },
+    );
+    await ClearanceTerm.bulkCreate(termRows(c.id, input.terms), { transaction });
+    return c;
+  });
+  return getClearance(clearance);
+}
+
+/**
+ * Saves an edit made from `lockVersion` (409 `edit_conflict` when stale, nothing stored). Terms
+ * sent replace the terms as a whole. A change to what the figures rest on (terms, spec, k)
+ * sends a checked clearance back to unchecked.
+ */
+export async function patchClearance(clearance: Clearance, build: Build, user: User, patch: ClearancePatch): Promise<ClearanceDto> {
+  if (patch.lockVersion !== clearance.lockVersion) throw editConflict('clearance', clearance);
+  const changes: Record<string, unknown> = {};
+  if (patch.terms) await checkTerms(build.id, patch.terms);
+  if (patch.specVersionId !== undefined && patch.specVersionId !== clearance.specVersionId) {
+    if (patch.specVersionId !== null) await specVersionUsableBy(patch.specVersionId, user);
+    changes.specVersionId = patch.specVersionId;
+  }
+  if (patch.coverageFactor !== undefined && patch.coverageFactor !== Number(clearance.coverageFactor)) changes.coverageFactor = String(patch.coverageFactor);
+  for (const field of ['name', 'note', 'template'] as const) {
+    if (patch[field] !== undefined && patch[field] !== clearance[field]) changes[field] = patch[field];
+  }
+  if (patch.key !== undefined && patch.key !== clearance.key) changes.key = patch.key;
+
+  await Clearance.sequelize!.transaction(async (transaction) => {
+    if (changes.key !== undefined) {
+      await Build.findByPk(build.id, { transaction, lock: transaction.LOCK.UPDATE });
+      const citing = await storiesCiting(build.id, 'clearance', clearance.key, transaction);
+      if (citing.length) throw citedRefusal(clearance.key, citing, 'change its key');
+      await allocateKey(Clearance, build.id, { key: changes.key as string, name: clearance.name }, transaction, 'clearance');
+    }
+    let termsChanged = false;
+    if (patch.terms) {
+      const before = await ClearanceTerm.findAll({ where: { clearanceId: clearance.id }, order: [['position', 'ASC']], transaction });
+      termsChanged = JSON.stringify(before.map((t) => [t.readingId, t.sign])) !== JSON.stringify(patch.terms.map((t) => [t.readingId, t.sign]));
+    }
+    if (clearance.reviewState !== 'unchecked' && (termsChanged || changes.specVersionId !== undefined || changes.coverageFactor !== undefined)) {
+      changes.reviewState = 'unchecked';
+    }
+    // The lock first: a stale save must not touch the terms either.
+    await updateWithLock(Clearance, clearance, patch.lockVersion, changes, { what: 'clearance', transaction });
+    if (patch.terms && termsChanged) {
+      await ClearanceTerm.destroy({ where: { clearanceId: clearance.id }, transaction });
+      await ClearanceTerm.bulkCreate(termRows(clearance.id, patch.terms), { transaction });
+    }
+  });
+  await clearance.reload();
+  return getClearance(clearance);
+}
+
+function citedRefusal(key: string, stories: { id: number; title: string }[], doing: string): AppError {
+  const titles = stories.map((s) => `"${s.title}"`).join(', ');
+  return new AppError(
+    409,
+    'clearance_cited',
+    `${stories.length === 1 ? 'The story' : 'The stories'} ${titles} cite${stories.length === 1 ? 's' : ''} this clearance as (clearance:${key}). Take the claim out of the story first, then ${doing}.`,
+    stories.map((s) => ({ path: 'key', message: `cited by story ${s.id}` })),
+  );
+}
+
+/** Removes a clearance (its terms go with it), refused while a story cites it (409 `clearance_cited`). */
+export async function deleteClearance(clearance: Clearance): Promise<void> {
+  const citing = await storiesCiting(clearance.buildId, 'clearance', clearance.key);
+  if (citing.length) throw citedRefusal(clearance.key, citing, 'remove the clearance');
+  await clearance.destroy();
+}

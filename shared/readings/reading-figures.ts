@@ -1,0 +1,266 @@
+/**
+ * From the texts a builder types to the figures we store, and from stored figures to the
+ * engine's reading. The browser form and the server run the same checks, so a refusal reads the
+ * same in both places and names the same field.
+ */
+import type { InstrumentKind } from '../instruments/instrument.schema';
+import { readingSchema as engineReadingSchema, type Reading as EngineReading } from '../measure/calc.schema';
+import { formatNumber } from '../measure/format';
+import { picometresToExactText } from '../measure/length-text';
+import { parseLength, type EnteredLength } from '../measure/parse';
+import { parseDecimalText } from '../measure/decimal';
+import { decimalToPicometres, maxExactDecimals, picometresPerUnit, type LengthUnit, unitSymbols } from '../measure/units';
+import type { ReadingKind, ReadingWarning } from './reading.schema';
+
+/** A reading's figures as stored: decimal text in `unit`, and the texts exactly as typed. */
+export interface ReadingFigures {
+  unit: LengthUnit;
+  value: string | null;
+  passes: string | null;
+  stops: string | null;
+  values: string[] | null;
+  entered: Record<string, string | string[]>;
+}
+
+/** The figures, or every problem found, each naming its field (`value`, `stops`, `values.2`). */
+export type FiguresResult = { ok: true; figures: ReadingFigures } | { ok: false; problems: { path: string; message: string }[] };
+
+/**
+ * Kinds that show a deviation from a setting rather than a size, so a reading below zero is
+ * real: the dial of a test indicator or a bore gauge set to a master reads either side of zero.
+ */
+export const deviationKinds: ReadonlySet<InstrumentKind> = new Set(['dial-test-indicator', 'dial-bore-gauge']);
+
+type FigureField = 'value' | 'passes' | 'stops' | 'values';
+
+const fieldsOfKind: Readonly<Record<ReadingKind, readonly FigureField[]>> = {
+  direct: ['value'],
+  bracket: ['passes', 'stops'],
+  repeated: ['values'],
+};
+
+const missingMessage: Readonly<Record<FigureField, string>> = {
+  value: 'enter the value as shown',
+  passes: 'enter the thickest blade that enters',
+  stops: 'enter the thinnest blade that does not enter',
+  values: 'enter each value',
+};
+
+/** True when the text carries a unit of its own (parsing it without a default unit succeeds). */
+function typedUnitOf(text: string): LengthUnit | null {
+  const alone = parseLength(text);
+  return alone.ok ? alone.length.unit : null;
+}
+
+/**
+ * Texts as typed → decimal text in one unit. The reading's unit is the unit typed in the texts
+ * (all must agree), else input.unit, else the instrument's. Refuses, naming the field: a unit
+ * the engine cannot read, texts in different units, a negative length (except from a dial test
+ * indicator or dial bore gauge, which show deviations), a feeler bracket whose stops is not
+ * thicker than its passes, and anything the engine's own reading schema refuses.
+ */
+export function normaliseReadingFigures(
+  input: { kind: ReadingKind; unit?: LengthUnit; value?: string; passes?: string; stops?: string; values?: string[] },
+  instrument: { unit: LengthUnit; kind: InstrumentKind },
+): FiguresResult {
+  const problems: { path: string; message: string }[] = [];
+  const texts: { path: string; field: FigureField; text: string }[] = [];
+  for (const field of fieldsOfKind[input.kind]) {
+    const sent = input[field];
+    if (sent === undefined) {
+      problems.push({ path: field, message: missingMessage[field] });
+    } else if (Array.isArray(sent)) {
+      if (sent.length < 2) problems.push({ path: field, message: 'a repeated reading needs at least 2 values' });
+      sent.forEach((text, i) => texts.push({ path: `${field}.${i}`, field, text }));
+    } else {
+      texts.push({ path: field, field, text: sent });
+    }
+  }
+  for (const field of ['value', 'passes', 'stops', 'values'] as const) {
+    if (!fieldsOfKind[input.kind].includes(field) && input[field] !== undefined) {
+      problems.push({ path: field, message: `a ${input.kind} reading has no ${field}` });
+    }
+  }
+
+  // First pass: which units were typed. Unreadable texts are reported here, once.
+  const fallback = input.unit ?? instrument.unit;
+  let typed: { unit: LengthUnit; path: string } | null = null;
+  const readable: typeof texts = [];
+  for (const t of texts) {
+    const parsed = parseLength(t.text, { defaultUnit: fallback });
+    if (!parsed.ok) {
+      problems.push({ path: t.path, message: parsed.message });
+      continue;
+    }
+    const own = typedUnitOf(t.text);
+    if (own !== null) {
+      if (typed === null) typed = { unit: own, path: t.path };
+      else if (typed.unit !== own) {
+        problems.push({
+          path: t.path,
+          message: `this is in ${unitSymbols[own]} but ${typed.path} is in ${unitSymbols[typed.unit]}; enter every figure of one reading in the same unit`,
+        });
+        continue;
+      }
+    }
+    readable.push(t);
+  }
+  const unit: LengthUnit = typed?.unit ?? fallback;
+
+  // Second pass: every text read in the reading's unit (a text without a unit takes it).
+  const lengths = new Map<string, EnteredLength>();
+  for (const t of readable) {
+    const parsed = parseLength(t.text, { defaultUnit: unit });
+    if (!parsed.ok) {
+      problems.push({ path: t.path, message: parsed.message });
+      continue;
+    }
+    const length = parsed.length;
+    if (length.pm < 0n) {
+      if (input.kind === 'bracket') {
+        problems.push({ path: t.path, message: 'a feeler blade cannot be thinner than nothing; enter its thickness as marked' });
+        continue;
+      }
+      if (!deviationKinds.has(instrument.kind)) {
+        problems.push({
+          path: t.path,
+          message: 'a length cannot be negative; only a dial test indicator or a dial bore gauge reads below zero',
+        });
+        continue;
+      }
+    }
+    lengths.set(t.path, length);
+  }
+
+  if (input.kind === 'bracket') {
+    const passes = lengths.get('passes');
+    const stops = lengths.get('stops');
+    if (passes && stops && stops.pm <= passes.pm) {
+      problems.push({
+        path: 'stops',
+        message: 'stops must be thicker than passes (the thinnest blade that does not enter is thicker than the thickest that does)',
+      });
+    }
+  }
+  if (problems.length) return { ok: false, problems };
+
+  const textAt = (path: string) => lengths.get(path)!.text;
+  const figures: ReadingFigures = {
+    unit,
+    value: input.kind === 'direct' ? textAt('value') : null,
+    passes: input.kind === 'bracket' ? textAt('passes') : null,
+    stops: input.kind === 'bracket' ? textAt('stops') : null,
+    values: input.kind === 'repeated' ? (input.values ?? []).map((_, i) => textAt(`values.${i}`)) : null,
+    entered: {},
+  };
+  for (const field of fieldsOfKind[input.kind]) figures.entered[field] = input[field] as string | string[];
+
+  const engineProblems = engineReadingProblems(bareEngineReading(input.kind, figures));
+  return engineProblems.length ? { ok: false, problems: engineProblems } : { ok: true, figures };
+}
+
+/** The engine's field names are ours except for a few; list positions stay as they are. */
+function fieldPathOf(path: readonly PropertyKey[]): string {
+  const [head, ...rest] = path.map(String);
+  const ours: Record<string, string> = { resolution: 'instrumentId', uncertainty: 'instrumentId', zeroOffset: 'instrumentId' };
+  return [ours[head ?? ''] ?? head ?? 'value', ...rest].join('.');
+}
+
+function bareEngineReading(kind: ReadingKind, f: Pick<ReadingFigures, 'unit' | 'value' | 'passes' | 'stops' | 'values'>): EngineReading {
+  switch (kind) {
+    case 'direct':
+      return { kind, value: Number(f.value), unit: f.unit };
+    case 'bracket':
+      return { kind, passes: Number(f.passes), stops: Number(f.stops), unit: f.unit };
+    case 'repeated':
+      return { kind, values: (f.values ?? []).map(Number), unit: f.unit };
+  }
+}
+
+/** Exact picometres of stored decimal text in `unit` (NUMERIC text from the database). */
+function pmOfText(text: string, unit: LengthUnit): bigint | null {
+  const decimal = parseDecimalText(text.trim());
+  return decimal ? decimalToPicometres(decimal, unit) : null;
+}
+
+/**
+ * A length moved into `unit`: exact when it can be, else rounded (half away from zero) to the
+ * unit's finest exact place, and never to zero for a step that must be positive.
+ */
+function convertInto(
+  text: string,
+  from: LengthUnit,
+  to: LengthUnit,
+  opts: { positive?: boolean } = {},
+): { number: number; exact: boolean; shownFrom: string; shownTo: string } | null {
+  const pm = pmOfText(text, from);
+  if (pm === null) return null;
+  const exactText = picometresToExactText(pm, to);
+  const places = maxExactDecimals[to];
+  let out = exactText ?? formatNumber(pm, to, places).replace('−', '-');
+  if (opts.positive && pmOfText(out, to) === 0n) out = formatNumber(picometresPerUnit[to] / 10n ** BigInt(places), to, places);
+  return { number: Number(out), exact: exactText !== null, shownFrom: `${text.trim()} ${unitSymbols[from]}`, shownTo: `${out} ${unitSymbols[to]}` };
+}
+
+/**
+ * The engine's own reading schema run over a built engine reading, its issues renamed to our
+ * fields: the instrument's figures (resolution, stated uncertainty) and the day's zero offset
+ * come from the instrument, so their issues name `instrumentId`.
+ */
+export function engineReadingProblems(engine: EngineReading): { path: string; message: string }[] {
+  const result = engineReadingSchema.safeParse(engine);
+  return result.success ? [] : result.error.issues.map((issue) => ({ path: fieldPathOf(issue.path), message: issue.message }));
+}
+
+/**
+ * The engine's reading for stored figures: resolution and stated uncertainty from the
+ * instrument (converted exactly into the reading's unit where possible, else rounded to the
+ * unit's finest exact place with a 'resolution-converted' warning), the day's zero offset
+ * (converted likewise). A bracket takes none of them: the blades' marked sizes are the figures.
+ */
+export function toEngineReading(
+  stored: ReadingFigures & { kind: ReadingKind; temperatureC: number | null; material: string | null },
+  instrument: { unit: LengthUnit; kind: InstrumentKind; resolution: string; statedUncertainty: string | null },
+  zero: { offset: string; unit: LengthUnit } | null,
+): { engine: EngineReading; warnings: ReadingWarning[] } {
+  const warnings: ReadingWarning[] = [];
+  const unit = stored.unit;
+  const take = (what: string, text: string, from: LengthUnit, positive = false): number | undefined => {
+    const c = convertInto(text, from, unit, { positive });
+    if (!c) return undefined;
+    if (!c.exact) {
+      warnings.push({
+        code: 'resolution-converted',
+        message: `The ${what} ${c.shownFrom} has no exact value in ${unitSymbols[unit]} (this reading's unit); it was rounded to ${c.shownTo}.`,
+      });
+    }
+    return c.number;
+  };
+
+  if (stored.kind === 'bracket') {
+    return { engine: { kind: 'bracket', passes: Number(stored.passes), stops: Number(stored.stops), unit }, warnings };
+  }
+  const resolution = take("instrument's resolution", instrument.resolution, instrument.unit, true);
+  const uncertainty =
+    instrument.statedUncertainty === null ? undefined : take("instrument's stated uncertainty", instrument.statedUncertainty, instrument.unit);
+  const zeroOffset = zero === null ? undefined : take('zero offset', zero.offset, zero.unit);
+  const extras = {
+    ...(resolution !== undefined && { resolution }),
+    ...(uncertainty !== undefined && { uncertainty }),
+    ...(zeroOffset !== undefined && { zeroOffset }),
+  };
+  if (stored.kind === 'direct') {
+    return {
+      engine: {
+        kind: 'direct',
+        value: Number(stored.value),
+        unit,
+        ...extras,
+        ...(stored.temperatureC !== null && { temperatureC: stored.temperatureC }),
+        ...(stored.material !== null && { material: stored.material }),
+      },
+      warnings,
+    };
+  }
+  return { engine: { kind: 'repeated', values: (stored.values ?? []).map(Number), unit, ...extras }, warnings };
+}
