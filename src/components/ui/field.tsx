@@ -38,7 +38,7 @@ export function Field({ label, hint, error, required, id, className, children }:
       <label htmlFor={controlId} className="text-sm font-medium text-ink">
         {label}
         {required && (
-          <span className="ml-1 font-normal text-ink-muted">(required)</span>
+          <span className="ml-1 font-normal text-ink-muted" aria-hidden="true">(required)</span>
         )}
       </label>
       {hint && (

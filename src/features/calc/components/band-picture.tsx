@@ -1,26 +1,36 @@
 import { useId } from 'react';
 import { formatNumber, formatUncertainty } from '@shared/measure/format';
-import type { BandPm, GuardedLimitsPm, Verdict } from '@shared/measure/spec';
+import type { BandPm, DecisionRule, GuardedLimitsPm, Verdict } from '@shared/measure/spec';
 import { verdictWords } from '@shared/measure/spec';
 import { type LengthUnit, unitSymbols } from '@shared/measure/units';
 import { VerdictGlyph } from '@/components/ui/badge';
 
-export interface BandPictureProps {
+interface SpecOnlyProps {
   unit: LengthUnit;
   /** Decimal places for the scale labels. */
   decimals: number;
+  band: BandPm;
+  preferred?: BandPm | null;
+  rejectPm?: bigint | null;
+}
+
+interface MeasuredProps {
   valuePm: bigint;
   /** Expanded uncertainty U, picometres; drawn as the bar value ± U. */
   expandedPm: bigint;
   coverageFactor: number;
-  band: BandPm;
-  preferred?: BandPm | null;
-  rejectPm?: bigint | null;
   /** Where the verdict changes (from the shared engine); drawn as dashed ticks. */
   limits: GuardedLimitsPm;
   verdict: Verdict;
-  rule: 'guarded' | 'simple';
+  rule: DecisionRule;
 }
+
+/**
+ * The spec's band, preferred band and reject limit, and — when `valuePm` is given — the
+ * measured value with its ± U bar, verdict shape and guarded limits. Without a value (a spec
+ * shown on its own) only the spec is drawn.
+ */
+export type BandPictureProps = SpecOnlyProps & (MeasuredProps | { [K in keyof MeasuredProps]?: undefined });
 
 // Full class names so Tailwind sees them.
 const verdictColour: Record<Verdict, string> = {
@@ -45,18 +55,22 @@ const MARK_Y = 34;
  * print and without colour.
  */
 export function BandPicture(props: BandPictureProps) {
-  const { unit, decimals, valuePm, expandedPm, coverageFactor, band, preferred, rejectPm, limits, verdict, rule } = props;
+  const { unit, decimals, band, preferred, rejectPm } = props;
+  const measured = props.valuePm === undefined ? null : props;
   const id = useId().replace(/:/g, '');
-  const U = expandedPm < 0n ? -expandedPm : expandedPm;
+  const U = measured ? (measured.expandedPm < 0n ? -measured.expandedPm : measured.expandedPm) : 0n;
 
   // Scale: everything that must be visible, plus a margin; open sides get room for the bar.
-  const points: bigint[] = [valuePm - U, valuePm + U];
-  for (const p of [band.minPm, band.maxPm, preferred?.minPm, preferred?.maxPm, rejectPm, limits.rejectBelowPm, limits.rejectAbovePm]) {
+  const points: bigint[] = measured ? [measured.valuePm - U, measured.valuePm + U] : [];
+  for (const p of [band.minPm, band.maxPm, preferred?.minPm, preferred?.maxPm, rejectPm, measured?.limits.rejectBelowPm, measured?.limits.rejectAbovePm]) {
     if (p !== undefined && p !== null) points.push(p);
   }
+  if (points.length === 0) points.push(0n);
   const lo = Number(points.reduce((a, b) => (a < b ? a : b)));
   const hi = Number(points.reduce((a, b) => (a > b ? a : b)));
-  const span = Math.max(hi - lo, Number(U) * 4, 1);
+  // A spec alone with a single limit has no width of its own: give it half its size either side.
+  const alone = !measured && hi === lo ? Math.abs(hi) * 0.5 : 0;
+  const span = Math.max(hi - lo, Number(U) * 4, alone, 1);
   const pad = span * 0.14;
   const from = lo - pad - (band.minPm === undefined ? span * 0.2 : 0);
   const to = hi + pad + (band.maxPm === undefined ? span * 0.2 : 0);
@@ -66,24 +80,38 @@ export function BandPicture(props: BandPictureProps) {
 
   const bandLeft = band.minPm === undefined ? LEFT : x(band.minPm);
   const bandRight = band.maxPm === undefined ? RIGHT : x(band.maxPm);
-  const vx = x(valuePm);
   // Limit labels closer than about six characters would overprint: drop the max label a row.
   const crowded = band.minPm !== undefined && band.maxPm !== undefined && x(band.maxPm) - x(band.minPm) < 44;
-  const words = verdictWords[verdict];
-  const summary =
-    `Measured ${label(valuePm)} ${unitSymbols[unit]} ± ${formatUncertainty(Number(U) / 1e6, unit)} (k = ${coverageFactor}); ` +
-    `spec ${band.minPm !== undefined ? `from ${label(band.minPm)} ` : ''}${band.maxPm !== undefined ? `to ${label(band.maxPm)} ` : ''}${unitSymbols[unit]}; ` +
-    `${words} by the ${rule} rule.`;
-
+  const specText = `spec ${band.minPm !== undefined ? `from ${label(band.minPm)} ` : ''}${band.maxPm !== undefined ? `to ${label(band.maxPm)} ` : ''}${unitSymbols[unit]}`;
   const rejectSide = rejectPm === undefined || rejectPm === null ? null : band.maxPm !== undefined && rejectPm >= band.maxPm ? 'upper' : 'lower';
-  const dashed = [limits.acceptMinPm, limits.acceptMaxPm, ...(rule === 'guarded' ? [limits.rejectBelowPm, limits.rejectAbovePm] : [])].filter(
-    (p): p is bigint => p !== undefined,
-  );
+  const summary = measured
+    ? `Measured ${label(measured.valuePm)} ${unitSymbols[unit]} ± ${formatUncertainty(Number(U) / 1e6, unit)} (k = ${measured.coverageFactor}); ` +
+      `${specText}; ${verdictWords[measured.verdict]} by the ${measured.rule} rule.`
+    : `Spec alone, no measured value: ${specText.slice(5)}` +
+      `${preferred ? `; preferred band ${preferred.minPm !== undefined ? `from ${label(preferred.minPm)} ` : ''}${preferred.maxPm !== undefined ? `to ${label(preferred.maxPm)}` : ''}`.trimEnd() : ''}` +
+      `${rejectSide && rejectPm !== null && rejectPm !== undefined ? `; reject ${rejectSide === 'upper' ? 'at or above' : 'at or below'} ${label(rejectPm)}` : ''}.`;
+
+  // The reject label reads outward from its line unless that would run it off the picture
+  // (about 5.6 units a character at font size 10); then it turns back over the band.
+  const rejectLabelOutward = (() => {
+    if (rejectPm === undefined || rejectPm === null) return true;
+    const width = `reject ${label(rejectPm)}`.length * 5.6;
+    return rejectSide === 'upper' ? x(rejectPm) + 3 + width <= W - 2 : x(rejectPm) - 3 - width >= 2;
+  })();
+  const dashed = measured
+    ? [
+        measured.limits.acceptMinPm,
+        measured.limits.acceptMaxPm,
+        ...(measured.rule === 'guarded' ? [measured.limits.rejectBelowPm, measured.limits.rejectAbovePm] : []),
+      ].filter((p): p is bigint => p !== undefined)
+    : [];
+  // Without a value the rows above the band (value label, mark) are empty: leave them out.
+  const top = measured ? 0 : BAND_TOP - 12;
 
   return (
     <figure className="w-full" data-band-picture="">
       <svg
-        viewBox={`0 0 ${W} ${H}`}
+        viewBox={`0 ${top} ${W} ${H - top}`}
         className="block h-auto w-full text-ink"
         role="img"
         aria-labelledby={`${id}-title ${id}-desc`}
@@ -112,10 +140,10 @@ export function BandPicture(props: BandPictureProps) {
             />
             <line x1={x(rejectPm)} x2={x(rejectPm)} y1={BAND_TOP - 6} y2={AXIS_Y + 4} stroke="currentColor" strokeWidth="2" />
             <text
-              x={clampText(x(rejectPm) + (rejectSide === 'upper' ? 3 : -3))}
+              x={clampText(x(rejectPm) + (rejectLabelOutward ? (rejectSide === 'upper' ? 3 : -3) : rejectSide === 'upper' ? -3 : 3))}
               y={H - 4}
               fontSize="10"
-              textAnchor={rejectSide === 'upper' ? 'start' : 'end'}
+              textAnchor={(rejectSide === 'upper') === rejectLabelOutward ? 'start' : 'end'}
               fill="currentColor"
             >
               reject {label(rejectPm)}
@@ -156,24 +184,28 @@ export function BandPicture(props: BandPictureProps) {
         ))}
 
         {/* The measurement: value ± U as a capped bar, and a mark whose shape is the verdict. */}
-        <g className={verdictColour[verdict]}>
-          <line x1={x(valuePm - U)} x2={x(valuePm + U)} y1={MARK_Y} y2={MARK_Y} stroke="currentColor" strokeWidth="1.6" />
-          <line x1={x(valuePm - U)} x2={x(valuePm - U)} y1={MARK_Y - 4} y2={MARK_Y + 4} stroke="currentColor" strokeWidth="1.6" />
-          <line x1={x(valuePm + U)} x2={x(valuePm + U)} y1={MARK_Y - 4} y2={MARK_Y + 4} stroke="currentColor" strokeWidth="1.6" />
-          <line x1={vx} x2={vx} y1={MARK_Y + 6} y2={AXIS_Y} stroke="currentColor" strokeWidth="0.8" />
-          <VerdictShape verdict={verdict} cx={vx} cy={MARK_Y} />
-          <text x={clampText(vx)} y={14} fontSize="12" textAnchor="middle" fill="currentColor" fontWeight="600" className="figures">
-            {label(valuePm)}
-          </text>
-        </g>
+        {measured && (
+          <g className={verdictColour[measured.verdict]}>
+            <line x1={x(measured.valuePm - U)} x2={x(measured.valuePm + U)} y1={MARK_Y} y2={MARK_Y} stroke="currentColor" strokeWidth="1.6" />
+            <line x1={x(measured.valuePm - U)} x2={x(measured.valuePm - U)} y1={MARK_Y - 4} y2={MARK_Y + 4} stroke="currentColor" strokeWidth="1.6" />
+            <line x1={x(measured.valuePm + U)} x2={x(measured.valuePm + U)} y1={MARK_Y - 4} y2={MARK_Y + 4} stroke="currentColor" strokeWidth="1.6" />
+            <line x1={x(measured.valuePm)} x2={x(measured.valuePm)} y1={MARK_Y + 6} y2={AXIS_Y} stroke="currentColor" strokeWidth="0.8" />
+            <VerdictShape verdict={measured.verdict} cx={x(measured.valuePm)} cy={MARK_Y} />
+            <text x={clampText(x(measured.valuePm))} y={14} fontSize="12" textAnchor="middle" fill="currentColor" fontWeight="600" className="figures">
+              {label(measured.valuePm)}
+            </text>
+          </g>
+        )}
       </svg>
       <figcaption className="mt-2 flex flex-wrap gap-x-4 gap-y-1 text-xs text-ink-muted">
         <span>Scale in {unitSymbols[unit]}</span>
         <span>Grey: spec band</span>
         {preferred && <span>Dotted: preferred band</span>}
         {rejectSide && <span>Hatched: past the reject limit</span>}
-        <span>Bar: value ± U (k = {coverageFactor})</span>
-        {dashed.length > 0 && <span>Dashed: {rule === 'guarded' ? 'limits moved by U (guarded rule)' : 'limits (simple rule)'}</span>}
+        {measured && <span>Bar: value ± U (k = {measured.coverageFactor})</span>}
+        {measured && dashed.length > 0 && (
+          <span>Dashed: {measured.rule === 'guarded' ? 'limits moved by U (guarded rule)' : 'limits (simple rule)'}</span>
+        )}
       </figcaption>
     </figure>
   );

@@ -1,0 +1,173 @@
+import type { ReactNode } from 'react';
+import { useForm, useWatch, type Path } from 'react-hook-form';
+import { instrumentKindNames, instrumentKinds } from '@shared/instruments/instrument.schema';
+import { lengthTextIn } from '@shared/measure/length-text';
+import { lengthUnits, unitNames, unitSymbols, type LengthUnit } from '@shared/measure/units';
+import { Button } from '@/components/ui/button';
+import { Field, Input, Select, Textarea } from '@/components/ui/field';
+import { ApiError, errorMessage } from '@/lib/api';
+import { instrumentFormResolver, type InstrumentFormOutput, type InstrumentFormValues } from '../lib/instrument-form';
+import { resolutionOnlyUncertainty } from '../lib/instrument-format';
+import { LengthInput } from './length-input';
+
+export interface InstrumentFormProps {
+  mode: 'create' | 'edit';
+  defaultValues: InstrumentFormValues;
+  submitLabel: string;
+  pendingLabel: string;
+  /** Resolves when saved; a rejected ApiError's field details are shown beside the fields. */
+  onSubmit: (values: InstrumentFormOutput) => Promise<unknown>;
+  /** Shown above the buttons when the save was refused as a conflict (edit mode). */
+  conflict?: ReactNode;
+  secondaryAction?: ReactNode;
+}
+
+const formFields: ReadonlySet<string> = new Set([
+  'name',
+  'kind',
+  'serial',
+  'unit',
+  'resolution',
+  'statedUncertainty',
+  'calibrationIntervalDays',
+  'lastCalibratedOn',
+  'calibratedBy',
+  'note',
+  'retired',
+]);
+
+/** Live check of a length box against the record's unit, before the form is sent. */
+function liveLengthProblem(text: string, unit: LengthUnit, positive: boolean): string | undefined {
+  if (text.trim() === '') return undefined;
+  const parsed = lengthTextIn(text, unit);
+  if (!parsed.ok) return parsed.message;
+  if (positive && parsed.length.pm <= 0n) return 'resolution must be greater than 0';
+  if (!positive && parsed.length.pm < 0n) return 'uncertainty cannot be negative';
+  return undefined;
+}
+
+/** Name, kind, serial, unit and resolution, stated uncertainty and calibration of one instrument. */
+export function InstrumentForm({ mode, defaultValues, submitLabel, pendingLabel, onSubmit, conflict, secondaryAction }: InstrumentFormProps) {
+  const form = useForm<InstrumentFormValues, unknown, InstrumentFormOutput>({
+    resolver: instrumentFormResolver(mode),
+    defaultValues,
+    mode: 'onTouched',
+  });
+  const { register, control, formState, setError, handleSubmit } = form;
+  const errors = formState.errors;
+  const unit = useWatch({ control, name: 'unit' });
+  const resolution = useWatch({ control, name: 'resolution' });
+  const stated = useWatch({ control, name: 'statedUncertainty' });
+  const symbol = unitSymbols[unit];
+  const defaultU = resolutionOnlyUncertainty(resolution, unit);
+  const resolutionError = errors.resolution?.message ?? liveLengthProblem(resolution, unit, true);
+  const statedError = errors.statedUncertainty?.message ?? liveLengthProblem(stated, unit, false);
+
+  const submit = handleSubmit(async (values) => {
+    try {
+      await onSubmit(values);
+    } catch (error) {
+      const details = error instanceof ApiError ? error.details : [];
+      let placed = false;
+      for (const detail of details) {
+        if (detail.path && formFields.has(detail.path)) {
+          setError(detail.path as Path<InstrumentFormValues>, { message: detail.message });
+          placed = true;
+        }
+      }
+      if (!(error instanceof ApiError && error.code === 'edit_conflict')) {
+        setError('root.server', { message: placed ? `${errorMessage(error)} See the fields marked above.` : errorMessage(error) });
+      }
+    }
+  });
+
+  return (
+    <form noValidate onSubmit={submit} className="flex flex-col gap-4">
+      <div className="grid gap-3 sm:grid-cols-2">
+        <Field label="Name" required error={errors.name?.message} className="sm:col-span-2" hint="What you call it at the bench, e.g. “0–1 in outside micrometer”.">
+          <Input {...register('name')} autoComplete="off" />
+        </Field>
+        <Field label="Kind" error={errors.kind?.message}>
+          <Select {...register('kind')}>
+            {instrumentKinds.map((kind) => (
+              <option key={kind} value={kind}>
+                {instrumentKindNames[kind]}
+              </option>
+            ))}
+          </Select>
+        </Field>
+        <Field label="Serial" error={errors.serial?.message} hint="As engraved or tagged; blank if it has none.">
+          <Input {...register('serial')} autoComplete="off" className="figures" />
+        </Field>
+      </div>
+
+      <fieldset className="grid gap-3 rounded-md border border-rule p-3 sm:grid-cols-2">
+        <legend className="px-1 text-sm font-medium">Scale and uncertainty</legend>
+        <Field label="Unit" error={errors.unit?.message} className="sm:col-span-2" hint="The unit the instrument reads in. Its resolution, uncertainty and zero checks are in this unit.">
+          <Select {...register('unit', { deps: ['resolution', 'statedUncertainty'] })}>
+            {lengthUnits.map((u) => (
+              <option key={u} value={u}>
+                {unitNames[u]}
+              </option>
+            ))}
+          </Select>
+        </Field>
+        <Field label={`Resolution (${symbol})`} required error={resolutionError} hint="One step of the scale or the last digit of the display.">
+          <LengthInput unit={unit} {...register('resolution')} placeholder={unit === 'in' ? '0.0001' : unit === 'mm' ? '0.001' : ''} />
+        </Field>
+        <Field
+          label={`Stated uncertainty (${symbol})`}
+          error={statedError}
+          hint="Standard uncertainty from a calibration certificate or the maker. Optional."
+        >
+          <LengthInput unit={unit} {...register('statedUncertainty')} />
+        </Field>
+        <p className="text-xs text-ink-muted sm:col-span-2" data-testid="default-uncertainty">
+          Without a stated figure the engine uses the resolution alone: u = resolution / (2√3)
+          {defaultU ? <span className="figures"> = {defaultU}</span> : null} (GUM F.2.2.1, a reading anywhere within half a step either side).
+          {stated.trim() !== '' && ' You have stated one, so that is used instead.'}
+        </p>
+      </fieldset>
+
+      <fieldset className="grid gap-3 rounded-md border border-rule p-3 sm:grid-cols-2">
+        <legend className="px-1 text-sm font-medium">Calibration</legend>
+        <Field label="Last calibrated on" error={errors.lastCalibratedOn?.message} hint="Blank if there is no record.">
+          <Input type="date" {...register('lastCalibratedOn')} className="figures" />
+        </Field>
+        <Field label="Interval (days)" error={errors.calibrationIntervalDays?.message} hint="How long a calibration holds, e.g. 365.">
+          <Input {...register('calibrationIntervalDays')} inputMode="numeric" autoComplete="off" className="figures" />
+        </Field>
+        <Field label="Calibrated by" error={errors.calibratedBy?.message} className="sm:col-span-2" hint="The lab, or yourself against which standard.">
+          <Input {...register('calibratedBy')} autoComplete="off" />
+        </Field>
+      </fieldset>
+
+      <Field label="Note" error={errors.note?.message}>
+        <Textarea {...register('note')} rows={2} />
+      </Field>
+
+      {mode === 'edit' && (
+        <label className="flex items-start gap-2 text-sm">
+          <input type="checkbox" {...register('retired')} className="mt-1 size-4 accent-[var(--color-accent)]" />
+          <span>
+            <span className="font-medium">Retired</span>
+            <span className="block text-ink-muted">Kept with the readings taken with it, but no longer offered for new ones.</span>
+          </span>
+        </label>
+      )}
+
+      {conflict}
+      {errors.root?.server && (
+        <p role="alert" className="text-sm text-danger">
+          Not saved: {errors.root.server.message}
+        </p>
+      )}
+      <div className="flex flex-wrap justify-end gap-2">
+        {secondaryAction}
+        <Button type="submit" variant="primary" loading={formState.isSubmitting} loadingText={pendingLabel}>
+          {submitLabel}
+        </Button>
+      </div>
+    </form>
+  );
+}

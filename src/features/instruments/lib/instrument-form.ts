@@ -1,0 +1,122 @@
+import type { FieldErrors, Resolver, ResolverResult } from 'react-hook-form';
+import { zodResolver } from '@hookform/resolvers/zod';
+import type { z } from 'zod';
+import {
+  instrumentInputSchema,
+  instrumentPatchSchema,
+  type Instrument,
+  type InstrumentInput,
+  type InstrumentKind,
+  type InstrumentPatch,
+} from '@shared/instruments/instrument.schema';
+import type { LengthUnit } from '@shared/measure/units';
+
+/** The instrument form as typed: every box is text until the shared schema reads it. */
+export interface InstrumentFormValues {
+  name: string;
+  kind: InstrumentKind;
+  serial: string;
+  unit: LengthUnit;
+  resolution: string;
+  statedUncertainty: string;
+  calibrationIntervalDays: string;
+  lastCalibratedOn: string;
+  calibratedBy: string;
+  note: string;
+  retired: boolean;
+  /** Only when editing: the version the editor started from. */
+  lockVersion: number | null;
+}
+
+export const blankInstrument: InstrumentFormValues = {
+  name: '',
+  kind: 'outside-micrometer',
+  serial: '',
+  unit: 'in',
+  resolution: '',
+  statedUncertainty: '',
+  calibrationIntervalDays: '',
+  lastCalibratedOn: '',
+  calibratedBy: '',
+  note: '',
+  retired: false,
+  lockVersion: null,
+};
+
+/** The form's starting values for an instrument as stored. */
+export function formValuesFrom(instrument: Instrument): InstrumentFormValues {
+  return {
+    name: instrument.name,
+    kind: instrument.kind,
+    serial: instrument.serial,
+    unit: instrument.unit,
+    resolution: instrument.resolution,
+    statedUncertainty: instrument.statedUncertainty ?? '',
+    calibrationIntervalDays: instrument.calibrationIntervalDays === null ? '' : String(instrument.calibrationIntervalDays),
+    lastCalibratedOn: instrument.lastCalibratedOn ?? '',
+    calibratedBy: instrument.calibratedBy,
+    note: instrument.note,
+    retired: instrument.retired,
+    lockVersion: instrument.lockVersion,
+  };
+}
+
+const WHOLE_DAYS = /^\d+$/;
+
+/**
+ * Text → the body the API takes. A malformed interval is reported here and left out of the
+ * body, because a wrong type would stop the shared schema before its length checks, and the
+ * builder should see every problem at once.
+ */
+function toBody(values: InstrumentFormValues): { body: InstrumentInput; intervalProblem: string | null } {
+  const interval = values.calibrationIntervalDays.trim();
+  const intervalOk = interval === '' || WHOLE_DAYS.test(interval);
+  return {
+    body: {
+      name: values.name,
+      kind: values.kind,
+      serial: values.serial,
+      unit: values.unit,
+      resolution: values.resolution,
+      statedUncertainty: values.statedUncertainty.trim() === '' ? null : values.statedUncertainty,
+      calibrationIntervalDays: interval === '' || !intervalOk ? null : Number(interval),
+      lastCalibratedOn: values.lastCalibratedOn.trim() === '' ? null : values.lastCalibratedOn.trim(),
+      calibratedBy: values.calibratedBy,
+      note: values.note,
+      retired: values.retired,
+    },
+    intervalProblem: intervalOk ? null : 'enter whole days, e.g. 365, or leave it blank',
+  };
+}
+
+export type InstrumentFormOutput =
+  | { mode: 'create'; body: z.output<typeof instrumentInputSchema> }
+  | { mode: 'edit'; patch: InstrumentPatch };
+
+/**
+ * Validates with the schema the server uses: `instrumentInputSchema` for a new instrument,
+ * `instrumentPatchSchema` (with the starting `lockVersion`) for an edit.
+ */
+export function instrumentFormResolver(mode: 'create' | 'edit'): Resolver<InstrumentFormValues, unknown, InstrumentFormOutput> {
+  const createResolver = zodResolver(instrumentInputSchema);
+  const editResolver = zodResolver(instrumentPatchSchema);
+  return async (values, context, options): Promise<ResolverResult<InstrumentFormValues, InstrumentFormOutput>> => {
+    const { body, intervalProblem } = toBody(values);
+    // The zod resolver only reads `names`/`fields` for native validation and criteria; our field names are the schema's.
+    const opts = options as never;
+    const result =
+      mode === 'create'
+        ? await createResolver(body, context, opts)
+        : await editResolver({ ...body, lockVersion: values.lockVersion ?? 0 }, context, opts);
+    const errors = { ...(result.errors as FieldErrors<InstrumentFormValues>) };
+    if (intervalProblem) errors.calibrationIntervalDays = { type: 'pattern', message: intervalProblem };
+    if (Object.keys(errors).length > 0) return { values: {}, errors };
+    return {
+      values:
+        mode === 'create'
+          ? { mode: 'create', body: result.values as z.output<typeof instrumentInputSchema> }
+          : { mode: 'edit', patch: result.values as InstrumentPatch },
+      errors: {},
+    };
+  };
+}

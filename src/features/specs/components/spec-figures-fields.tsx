@@ -1,0 +1,123 @@
+import { useFormContext, useWatch } from 'react-hook-form';
+import { specSourceKinds } from '@shared/measure/spec.schema';
+import { lengthTextIn } from '@shared/measure/length-text';
+import { lengthUnits, unitNames, unitSymbols } from '@shared/measure/units';
+import { specVersionInputSchema } from '@shared/specs/spec-library.schema';
+import { BandPicture } from '@/features/calc/components/band-picture';
+import { LengthInput } from '@/features/instruments/components/length-input';
+import { Field, Input, Select, Textarea } from '@/components/ui/field';
+import { figuresBody, type SpecFiguresValues } from '../lib/spec-form';
+import { bandOf, specSourceKindNames } from '../lib/spec-format';
+
+type FigureName = 'min' | 'max' | 'preferredMin' | 'preferredMax' | 'reject';
+
+const figureLabels: Record<FigureName, { label: string; hint: string }> = {
+  min: { label: 'Band from', hint: 'Smallest that is within spec. Blank for no lower limit.' },
+  max: { label: 'Band to', hint: 'Largest that is within spec. Blank for no upper limit.' },
+  preferredMin: { label: 'Preferred from', hint: 'Optional: the builder’s target, inside the band.' },
+  preferredMax: { label: 'Preferred to', hint: 'Optional: blank takes the band’s own limit.' },
+  reject: { label: 'Reject limit', hint: 'Optional: scrap or replace at or past this, outside the band.' },
+};
+
+/**
+ * Unit, band, preferred band, reject limit, decision rule, source and note of one version,
+ * with every length checked against the unit as it is typed and the band drawn once it is whole.
+ * For forms whose values extend `SpecFiguresValues`.
+ */
+export function SpecFiguresFields() {
+  const { register, control, formState } = useFormContext<SpecFiguresValues>();
+  const errors = formState.errors;
+  const values = useWatch({ control }) as SpecFiguresValues;
+  const unit = values.unit;
+  const symbol = unitSymbols[unit];
+
+  const live = (name: FigureName) => {
+    const text = values[name] ?? '';
+    if (text.trim() === '') return undefined;
+    const parsed = lengthTextIn(text, unit);
+    return parsed.ok ? undefined : parsed.message;
+  };
+  const figure = (name: FigureName) => (
+    <Field label={`${figureLabels[name].label} (${symbol})`} hint={figureLabels[name].hint} error={errors[name]?.message ?? live(name)}>
+      <LengthInput unit={unit} {...register(name)} />
+    </Field>
+  );
+
+  const checked = specVersionInputSchema.safeParse(figuresBody(values));
+  const picture = checked.success ? bandOf(checked.data) : null;
+
+  return (
+    <div className="flex flex-col gap-4">
+      <Field label="Unit" error={errors.unit?.message} hint="Every figure of this version is in this unit." className="sm:w-64">
+        <Select {...register('unit', { deps: ['min', 'max', 'preferredMin', 'preferredMax', 'reject'] })}>
+          {lengthUnits.map((u) => (
+            <option key={u} value={u}>
+              {unitNames[u]}
+            </option>
+          ))}
+        </Select>
+      </Field>
+      <fieldset className="grid gap-3 rounded-md border border-rule p-3 sm:grid-cols-2">
+        <legend className="px-1 text-sm font-medium">Band</legend>
+        {figure('min')}
+        {figure('max')}
+        {figure('preferredMin')}
+        {figure('preferredMax')}
+        {figure('reject')}
+      </fieldset>
+
+      <fieldset>
+        <legend className="text-sm font-medium">Decision rule</legend>
+        <div className="mt-1 flex flex-col gap-1 text-sm">
+          <label className="flex items-start gap-2">
+            <input type="radio" value="guarded" {...register('rule')} className="mt-1 accent-[var(--color-accent)]" />
+            <span>
+              <strong className="font-medium">Guarded</strong> (ISO 14253-1): within spec only when the value is at least U inside the limits.
+            </span>
+          </label>
+          <label className="flex items-start gap-2">
+            <input type="radio" value="simple" {...register('rule')} className="mt-1 accent-[var(--color-accent)]" />
+            <span>
+              <strong className="font-medium">Simple</strong>: the value alone against the limits; never “too close to call”.
+            </span>
+          </label>
+        </div>
+        {errors.rule?.message && <p className="mt-1 text-sm text-danger">{errors.rule.message}</p>}
+      </fieldset>
+
+      <fieldset className="grid gap-3 rounded-md border border-rule p-3">
+        <legend className="px-1 text-sm font-medium">Source</legend>
+        <Field label="Kind of source" error={errors.source?.kind?.message} className="sm:w-72">
+          <Select {...register('source.kind')}>
+            {specSourceKinds.map((kind) => (
+              <option key={kind} value={kind}>
+                {specSourceKindNames[kind]}
+              </option>
+            ))}
+          </Select>
+        </Field>
+        <Field
+          label="Where the figures come from"
+          required
+          error={errors.source?.text?.message ?? errors.source?.message}
+          hint="Manual and section, standard and clause, or why it is common practice."
+        >
+          <Input {...register('source.text')} autoComplete="off" />
+        </Field>
+      </fieldset>
+
+      <Field label="Note" error={errors.note?.message} hint="Optional: conditions (cold, at 20 °C), or why the figures changed.">
+        <Textarea {...register('note')} rows={2} />
+      </Field>
+
+      <div className="rounded-md border border-rule p-3" aria-live="polite">
+        <p className="mb-2 text-sm font-medium">The band as entered</p>
+        {picture ? (
+          <BandPicture unit={unit} decimals={picture.decimals} band={picture.band} preferred={picture.preferred} rejectPm={picture.rejectPm} />
+        ) : (
+          <p className="text-sm text-ink-muted">Appears here once the figures agree: at least one band limit, every figure a length in {unitNames[unit]}, the preferred band inside the band and the reject limit outside it.</p>
+        )}
+      </div>
+    </div>
+  );
+}

@@ -1,0 +1,54 @@
+import { decisionRuleText } from '@shared/measure/spec';
+import { unitNames } from '@shared/measure/units';
+import type { SpecVersion } from '@shared/specs/spec-library.schema';
+import { BandPicture } from '@/features/calc/components/band-picture';
+import { Badge } from '@/components/ui/badge';
+import { bandOf, bandSummary, dayOf, isInventedForDemo, specSourceKindNames } from '../lib/spec-format';
+
+/** One version: its figures, rule, source, note and date, and the band drawn alone. */
+export function SpecVersionCard({ version, latest }: { version: SpecVersion; latest: boolean }) {
+  const picture = bandOf(version);
+  const headingId = `spec-version-${version.id}`;
+  const hasBand = picture.band.minPm !== undefined || picture.band.maxPm !== undefined;
+  return (
+    <article aria-labelledby={headingId} className="rounded-lg border border-rule bg-paper" data-spec-version={version.version}>
+      <header className="flex flex-wrap items-center gap-2 border-b border-rule px-4 py-2.5">
+        <h3 id={headingId} className="text-md font-semibold">
+          Version {version.version}
+        </h3>
+        {latest && <Badge tone="strong">latest</Badge>}
+        <span className="text-sm text-ink-muted">
+          saved <time dateTime={version.createdAt} className="figures">{dayOf(version.createdAt)}</time>
+        </span>
+        {isInventedForDemo(version) && <Badge>figures invented for the demo</Badge>}
+      </header>
+      <div className="grid gap-4 p-4 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
+        <dl className="grid gap-x-4 gap-y-2 text-sm sm:grid-cols-[max-content_minmax(0,1fr)]">
+          <dt className="text-ink-muted">Band</dt>
+          <dd className="figures">{bandSummary(version)}</dd>
+          <dt className="text-ink-muted">Unit</dt>
+          <dd>{unitNames[version.unit]}</dd>
+          <dt className="text-ink-muted">Decision rule</dt>
+          <dd>
+            <span className="font-medium">{version.rule === 'guarded' ? 'Guarded' : 'Simple'}</span>
+            <span className="block text-xs text-ink-muted">{decisionRuleText[version.rule]}</span>
+          </dd>
+          <dt className="text-ink-muted">Source</dt>
+          <dd>
+            <span className="font-medium">{specSourceKindNames[version.source.kind]}</span>
+            <span className="block">{version.source.text}</span>
+          </dd>
+          <dt className="text-ink-muted">Note</dt>
+          <dd className={version.note ? 'whitespace-pre-line' : 'text-ink-muted'}>{version.note || 'none'}</dd>
+        </dl>
+        <div>
+          {hasBand ? (
+            <BandPicture unit={version.unit} decimals={picture.decimals} band={picture.band} preferred={picture.preferred} rejectPm={picture.rejectPm} />
+          ) : (
+            <p className="text-sm text-ink-muted">This version has no band to draw.</p>
+          )}
+        </div>
+      </div>
+    </article>
+  );
+}

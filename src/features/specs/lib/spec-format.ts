@@ -1,0 +1,93 @@
+import type { SpecSourceKind } from '@shared/measure/spec.schema';
+import type { BandPm } from '@shared/measure/spec';
+import { lengthTextIn } from '@shared/measure/length-text';
+import { displayDecimals } from '@shared/measure/format';
+import { unitSymbols, type LengthUnit } from '@shared/measure/units';
+
+/** What people see for each kind of source. */
+export const specSourceKindNames: Record<SpecSourceKind, string> = {
+  manual: 'Manufacturer’s manual',
+  standard: 'Standard',
+  'common-practice': 'Common practice (no published source)',
+};
+
+/** The figures of one version as stored: decimal text in `unit`, null where not set. */
+export interface VersionFigures {
+  unit: LengthUnit;
+  min: string | null;
+  max: string | null;
+  preferredMin: string | null;
+  preferredMax: string | null;
+  reject: string | null;
+}
+
+function pm(text: string | null, unit: LengthUnit): bigint | undefined {
+  if (text === null || text.trim() === '') return undefined;
+  const parsed = lengthTextIn(text, unit);
+  return parsed.ok ? parsed.length.pm : undefined;
+}
+
+function places(text: string | null, unit: LengthUnit): number {
+  if (text === null || text.trim() === '') return 0;
+  const parsed = lengthTextIn(text, unit);
+  return parsed.ok ? displayDecimals(parsed.length.lastPlacePm, unit) : 0;
+}
+
+/**
+ * The version's limits in picometres for a band picture, read exactly from the stored text;
+ * the preferred band falls back to the band's own limit on an open side, as the engine judges it.
+ */
+export function bandOf(v: VersionFigures): { band: BandPm; preferred: BandPm | null; rejectPm: bigint | null; decimals: number } {
+  const min = pm(v.min, v.unit);
+  const max = pm(v.max, v.unit);
+  const pMin = pm(v.preferredMin, v.unit);
+  const pMax = pm(v.preferredMax, v.unit);
+  const hasPreferred = pMin !== undefined || pMax !== undefined;
+  const prefMin = pMin ?? min;
+  const prefMax = pMax ?? max;
+  return {
+    band: { ...(min !== undefined && { minPm: min }), ...(max !== undefined && { maxPm: max }) },
+    preferred: hasPreferred ? { ...(prefMin !== undefined && { minPm: prefMin }), ...(prefMax !== undefined && { maxPm: prefMax }) } : null,
+    rejectPm: pm(v.reject, v.unit) ?? null,
+    decimals: Math.max(...[v.min, v.max, v.preferredMin, v.preferredMax, v.reject].map((t) => places(t, v.unit))),
+  };
+}
+
+function range(lo: string | null, hi: string | null): string {
+  if (lo !== null && hi !== null) return `${lo}–${hi}`;
+  if (lo !== null) return `at least ${lo}`;
+  if (hi !== null) return `at most ${hi}`;
+  return '';
+}
+
+/** Which side of the band the reject limit is on (at or above max: above), as the engine reads it. */
+export function rejectSide(v: VersionFigures): 'above' | 'below' | null {
+  const reject = pm(v.reject, v.unit);
+  if (reject === undefined) return null;
+  const max = pm(v.max, v.unit);
+  const min = pm(v.min, v.unit);
+  if (max !== undefined && reject >= max) return 'above';
+  if (min !== undefined && reject <= min) return 'below';
+  return null;
+}
+
+/** "0.0020–0.0040 in, preferred 0.0025–0.0035, reject above 0.0050". */
+export function bandSummary(v: VersionFigures): string {
+  const parts = [`${range(v.min, v.max)} ${unitSymbols[v.unit]}`];
+  if (v.preferredMin !== null || v.preferredMax !== null) parts.push(`preferred ${range(v.preferredMin ?? v.min, v.preferredMax ?? v.max)}`);
+  const side = rejectSide(v);
+  if (side && v.reject !== null) parts.push(`reject ${side} ${v.reject}`);
+  return parts.join(', ');
+}
+
+const INVENTED = /invented for (the )?(benchproof )?demo/i;
+
+/** True for the starter specs the demo ships with, whose figures are made up and say so. */
+export function isInventedForDemo(v: { source: { text: string }; note: string }): boolean {
+  return INVENTED.test(v.source.text) || INVENTED.test(v.note);
+}
+
+/** A timestamp as the day it fell on, YYYY-MM-DD (UTC, as the server records it). */
+export function dayOf(iso: string): string {
+  return iso.slice(0, 10);
+}
