@@ -1,6 +1,6 @@
 import { useState } from 'react';
 import type { Build } from '@shared/builds/build.schema';
-import { Button } from '@/components/ui/button';
+import { Button, ButtonLink } from '@/components/ui/button';
 import { Dialog, DialogClose, DialogContent } from '@/components/ui/dialog';
 import { useToast } from '@/components/ui/toast';
 import { useUpdateBuild } from '../api/build-mutations';
@@ -25,9 +25,14 @@ export function BuildHeader({ build }: { build: Build }) {
             <p className="mt-0.5 text-sm text-ink-muted">Not said yet what is being built. Add it with “Edit build”.</p>
           )}
         </div>
-        <Button size="sm" onClick={() => setEditing(true)} data-print="hide">
-          Edit build
-        </Button>
+        <div className="flex flex-wrap items-center gap-2" data-print="hide">
+          <ButtonLink to={`/builds/${build.id}/stories`} size="sm">
+            Diary
+          </ButtonLink>
+          <Button size="sm" onClick={() => setEditing(true)}>
+            Edit build
+          </Button>
+        </div>
       </div>
 
       <div>
