@@ -30,6 +30,8 @@ const envSchema = z.object({
   SIGN_IN_RATE_LIMIT: z.coerce.number().int().positive().default(30),
   /** Largest clip accepted, bytes (default 2 GiB). */
   UPLOAD_MAX_BYTES: z.coerce.number().int().positive().default(2 * 1024 ** 3),
+  /** Largest image accepted into a story, bytes (default 10 MiB). */
+  STORY_IMAGE_MAX_BYTES: z.coerce.number().int().positive().default(10 * 1024 ** 2),
   CLIPS_PER_BUILD_MAX: z.coerce.number().int().positive().default(200),
   UPLOAD_RATE_LIMIT: z.coerce.number().int().positive().default(60),
   /** Longest clip accepted, seconds. */
@@ -98,7 +100,7 @@ export interface Config {
   mediaDir: string;
   clientDir: string;
   signInRateLimit: number;
-  uploads: { maxBytes: number; clipsPerBuild: number; ratePerMinute: number; maxSeconds: number };
+  uploads: { maxBytes: number; clipsPerBuild: number; ratePerMinute: number; maxSeconds: number; maxImageBytes: number };
   jobs: { worker: 'inline' | 'off'; retryLimit: number; expireSeconds: number; stallSeconds: number; queuePrefix: string };
   /** Holds S3 credentials when configured: never log a Config. */
   storage: StorageSettings;
@@ -158,6 +160,7 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
       clipsPerBuild: e.CLIPS_PER_BUILD_MAX,
       ratePerMinute: e.UPLOAD_RATE_LIMIT,
       maxSeconds: e.CLIP_MAX_SECONDS,
+      maxImageBytes: e.STORY_IMAGE_MAX_BYTES,
     },
     jobs: {
       worker: e.WORKER,

@@ -106,7 +106,16 @@ export const storyRevisionSchema = z.object({
   createdAt: z.string(),
 });
 export type StoryRevision = z.infer<typeof storyRevisionSchema>;
-export const storyRevisionListResponseSchema = z.object({ items: z.array(storyRevisionSchema.omit({ body: true })) });
+/** Query of `GET /api/stories/:storyId/revisions`: newest first, keyset `before` on the revision number. */
+export const storyRevisionListQuerySchema = z.object({
+  before: z.coerce.number().int().positive().optional(),
+  limit: z.coerce.number().int().min(1).max(100).default(50),
+});
+export const storyRevisionListResponseSchema = z.object({
+  items: z.array(storyRevisionSchema.omit({ body: true })),
+  /** Pass as `before` for the next (older) page; null on the last page. */
+  nextBefore: z.number().int().nullable().optional(),
+});
 export const storyRevisionResponseSchema = z.object({ revision: storyRevisionSchema });
 export const storyRevisionParamsSchema = z.object({
   storyId: z.coerce.number().int().positive(),
