@@ -1,5 +1,6 @@
 // `npm start`: database, migrations, demo data, client build, local fakes, then the server.
 import { seedDemoClips } from '../server/db/seed-clips';
+import { seedDemoDiary } from '../server/db/seed-diary';
 import { startServer } from '../server/server';
 import { buildClientIfChanged } from './lib/client-build';
 import { bringUpLocal, demoSignInLines, onShutdown } from './lib/run-local';
@@ -17,6 +18,8 @@ try {
   running = await startServer(local.config);
   // Generated once: the demo builds' clips (test patterns with captions), processed by the worker.
   await seedDemoClips({ config: local.config, storage: running.storage, queue: running.queue, logger: running.logger });
+  // Then their invented readings, clearances and diary entries, taken through review (only while the demo is in use).
+  if (local.config.github.fake) await seedDemoDiary({ config: local.config, logger: running.logger });
   const url = local.config.publicUrl;
   console.log(
     [

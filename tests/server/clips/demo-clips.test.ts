@@ -1,12 +1,17 @@
 import { describe, expect, it } from 'vitest';
 import { loadDemoBuilds } from '../../../server/db/demo-content';
 import { seedDemoClips } from '../../../server/db/seed-clips';
+import { loadDemoDiary, seedDemoDiary } from '../../../server/db/seed-diary';
+import { Reading } from '../../../server/features/readings/reading.model';
+import { EvidenceCheck, StoryPublication } from '../../../server/features/review/review.model';
+import { evidenceOf } from '../../../server/features/review/review.service';
+import { Story } from '../../../server/features/stories/story.model';
 import { Clip, Moment } from '../../../server/features/clips/clip.model';
 import { createLogger } from '../../../server/logger';
 import { startTestApp } from '../../support/test-app';
 
 describe('the demo clips', () => {
-  it('are generated once for the invented builds, processed to ready, and not again on a second start', async () => {
+  it('are generated once for the invented builds, processed to ready, and not again on a second start; the invented diary goes on top of them once', async () => {
     const t = await startTestApp({}, { jobs: true });
     try {
       const deps = { config: t.config, storage: t.storage, queue: t.queue!, logger: createLogger(t.config) };
@@ -22,6 +27,25 @@ describe('the demo clips', () => {
       expect(clips.map((c) => c.status)).toEqual(clips.map(() => 'ready'));
       const moments = await Moment.count({ where: { clipId: clips.map((c) => c.id) } });
       expect(moments).toBe(loadDemoBuilds().reduce((n, b) => n + b.clips.reduce((m, c) => m + c.moments.length, 0), 0));
+
+      // The diary on top: readings, clearances and entries in their demo states, once.
+      const diary = loadDemoDiary();
+      const entries = diary.builds.flatMap((b) => b.stories);
+      expect(await seedDemoDiary(deps)).toBe(entries.length);
+      expect(await seedDemoDiary(deps)).toBe(0);
+      expect(await Reading.count({ where: { key: diary.builds.flatMap((b) => b.readings.map((r) => r.key)) } })).toBe(
+        diary.builds.reduce((n, b) => n + b.readings.length, 0),
+      );
+      for (const entry of entries) {
+        const story = (await Story.findOne({ where: { title: entry.title } }))!;
+        expect(story.state, entry.title).toBe(entry.state);
+        // Every claim the demo makes holds against the engine's figures, except where a flag is the point.
+        const e = await evidenceOf(story);
+        expect(e.broken, entry.title).toEqual([]);
+        expect(e.claims.filter((c) => c.status.state !== 'ok').map((c) => `${c.text}: ${JSON.stringify(c.status)}`), entry.title).toEqual([]);
+        if (entry.state === 'published') expect(await StoryPublication.count({ where: { storyId: story.id } })).toBe(1);
+        if (entry.flag) expect(await EvidenceCheck.count({ where: { storyId: story.id, state: 'flagged' } })).toBe(1);
+      }
     } finally {
       await t.close();
     }
