@@ -3,19 +3,27 @@ import { useQuery, useSuspenseQuery, type UseQueryResult } from '@tanstack/react
 import { data, useBlocker, useParams, useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { buildIdParamsSchema } from '@shared/builds/build.schema';
 import type { Clip } from '@shared/clips/clip.schema';
+import type { Reading } from '@shared/readings/reading.schema';
 import { requireArea } from '@/features/auth/lib/require-role';
 import { clipQueries } from '@/features/clips/api/clip-queries';
 import { useClipUploads } from '@/features/clips/api/use-clip-uploads';
-import { ClipPlayer } from '@/features/clips/components/clip-player';
+import { ClipPlayer, type LogReadingAt } from '@/features/clips/components/clip-player';
 import { clipStatusWords } from '@/features/clips/components/clip-status';
 import { ClipTimeline } from '@/features/clips/components/clip-timeline';
 import { UploadPanel } from '@/features/clips/components/upload-panel';
+import { ClearancesPanel } from '@/features/clearances/components/clearances-panel';
+import { ReadingForm } from '@/features/readings/components/reading-form';
+import { ReadingsPanel } from '@/features/readings/components/readings-panel';
 import { ButtonLink } from '@/components/ui/button';
 import { ConfirmDialog } from '@/components/ui/dialog';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { Panel } from '@/components/ui/panel';
+import { useToast } from '@/components/ui/toast';
 import { ApiError, errorMessage } from '@/lib/api';
+import { cn } from '@/lib/cn';
 import { queryClient } from '@/lib/query-client';
+import { clearanceQueries } from '@/features/clearances/api/clearance-queries';
+import { readingQueries } from '@/features/readings/api/reading-queries';
 import { useInvalidateBuilds } from '../api/build-mutations';
 import { buildQueries } from '../api/build-queries';
 import { BuildHeader } from '../components/build-header';
@@ -31,6 +39,8 @@ export async function loader({ request, params }: LoaderFunctionArgs) {
   const buildId = buildIdFrom(params);
   // The clips may load on their own (their panel has its own states); the build must exist.
   void queryClient.prefetchQuery(clipQueries.list(buildId));
+  void queryClient.prefetchInfiniteQuery(readingQueries.list(buildId));
+  void queryClient.prefetchInfiniteQuery(clearanceQueries.list(buildId));
   try {
     await queryClient.ensureQueryData(buildQueries.detail(buildId));
   } catch (error) {
@@ -40,7 +50,17 @@ export async function loader({ request, params }: LoaderFunctionArgs) {
   return null;
 }
 
-/** The build at the bench: its parts, its clips in order, uploads, and the player with moment marking. */
+/** The reading form's place: which clip, where in it, and a number that starts a fresh form. */
+interface LoggingAt {
+  clipId: number;
+  at: LogReadingAt;
+  seq: number;
+}
+
+/**
+ * The build at the bench: its parts, its clips in order, uploads, the player with moment
+ * marking and the reading form beside it, the readings table and the clearances.
+ */
 export function Component() {
   const buildId = buildIdFrom(useParams());
   const { data: build } = useSuspenseQuery(buildQueries.detail(buildId));
@@ -49,6 +69,9 @@ export function Component() {
   const uploads = useClipUploads(buildId, { onSent: invalidateBuilds });
   const [params, setParams] = useSearchParams();
   const [focusRequest, setFocusRequest] = useState(0);
+  const [logging, setLogging] = useState<LoggingAt | null>(null);
+  const [seekRequest, setSeekRequest] = useState<{ clipId: number; atMs: number; seq: number } | null>(null);
+  const { toast } = useToast();
 
   const clipList = clips.data;
   const requestedId = Number(params.get('clip')) || null;
@@ -71,6 +94,7 @@ export function Component() {
 
   const select = useCallback(
     (clipId: number) => {
+      setSeekRequest(null);
       setParams(
         (current) => {
           const next = new URLSearchParams(current);
@@ -84,6 +108,34 @@ export function Component() {
     },
     [setParams],
   );
+
+  const seekTo = useCallback((clipId: number, atMs: number) => {
+    setSeekRequest((current) => ({ clipId, atMs, seq: (current?.seq ?? 0) + 1 }));
+  }, []);
+
+  const openReading = useCallback(
+    (reading: Reading) => {
+      setParams(
+        (current) => {
+          const next = new URLSearchParams(current);
+          next.set('clip', String(reading.clipId));
+          return next;
+        },
+        { replace: true },
+      );
+      seekTo(reading.clipId, reading.atMs);
+      setFocusRequest((n) => n + 1);
+    },
+    [setParams, seekTo],
+  );
+
+  const closeForm = useCallback(() => {
+    setLogging(null);
+    // Back into the player, so R and M work again at once.
+    setFocusRequest((n) => n + 1);
+  }, []);
+
+  const formOpen = logging !== null && selected !== null && logging.clipId === selected.id;
 
   const onDeleted = useCallback(
     (clipId: number) => {
@@ -111,32 +163,46 @@ export function Component() {
         </ButtonLink>
       </p>
       <BuildHeader build={build} />
+      <nav aria-label="Sections of this build" className="-mt-2 mb-4 flex flex-wrap gap-x-4 gap-y-1 text-sm" data-print="hide">
+        <a href="#workbench">Clips and player</a>
+        <a href="#readings">Readings</a>
+        <a href="#clearances">Clearances</a>
+      </nav>
 
-      <div className="grid items-start gap-5 lg:grid-cols-[minmax(0,23rem)_minmax(0,1fr)]">
-        <Panel
-          title="Clips"
-          description="In the order a reader will see them. Drag a card, or use Up and Down."
-          className="lg:sticky lg:top-4"
-        >
-          <div className="flex flex-col gap-4">
-            <UploadPanel
-              items={uploads.items}
-              clips={clipList}
-              onAdd={uploads.add}
-              onCancel={uploads.cancel}
-              onRetry={uploads.retry}
-              onDismiss={uploads.dismiss}
-              onOpen={select}
-            />
-            <ClipsBody
-              buildId={buildId}
-              query={clips}
-              selectedId={selected?.id ?? null}
-              onSelect={select}
-              onDeleted={onDeleted}
-            />
-          </div>
-        </Panel>
+      <div
+        id="workbench"
+        className={cn(
+          'grid scroll-mt-4 items-start gap-5',
+          // While a reading is logged the form takes the clips' place, beside the player.
+          formOpen ? 'lg:grid-cols-[minmax(0,1fr)_minmax(0,23rem)]' : 'lg:grid-cols-[minmax(0,23rem)_minmax(0,1fr)]',
+        )}
+      >
+        {!formOpen && (
+          <Panel
+            title="Clips"
+            description="In the order a reader will see them. Drag a card, or use Up and Down."
+            className="lg:sticky lg:top-4"
+          >
+            <div className="flex flex-col gap-4">
+              <UploadPanel
+                items={uploads.items}
+                clips={clipList}
+                onAdd={uploads.add}
+                onCancel={uploads.cancel}
+                onRetry={uploads.retry}
+                onDismiss={uploads.dismiss}
+                onOpen={select}
+              />
+              <ClipsBody
+                buildId={buildId}
+                query={clips}
+                selectedId={selected?.id ?? null}
+                onSelect={select}
+                onDeleted={onDeleted}
+              />
+            </div>
+          </Panel>
+        )}
 
         <PlayerArea
           buildId={buildId}
@@ -145,7 +211,35 @@ export function Component() {
           requestedId={requestedId}
           loading={clips.isPending}
           focusRequest={focusRequest}
+          onLogReading={(at) => selected && setLogging((current) => ({ clipId: selected.id, at, seq: (current?.seq ?? 0) + 1 }))}
+          seekRequest={seekRequest && seekRequest.clipId === selected?.id ? seekRequest : null}
         />
+
+        {formOpen && (
+          <div>
+            <ReadingForm
+              key={logging.seq}
+              build={build}
+              clip={selected}
+              at={logging.at}
+              onSeek={(atMs) => seekTo(selected.id, atMs)}
+              onClose={closeForm}
+              onSaved={(reading) => {
+                toast({ tone: 'success', title: 'Reading saved', description: `${reading.name}: ${reading.result.display}. It is in the readings table below.` });
+                closeForm();
+              }}
+            />
+          </div>
+        )}
+      </div>
+
+      <div className="mt-6 flex flex-col gap-6">
+        <div id="readings" className="scroll-mt-4">
+          <ReadingsPanel build={build} onOpen={openReading} />
+        </div>
+        <div id="clearances" className="scroll-mt-4">
+          <ClearancesPanel build={build} />
+        </div>
       </div>
 
       <ConfirmDialog
@@ -217,6 +311,8 @@ function PlayerArea({
   requestedId,
   loading,
   focusRequest,
+  onLogReading,
+  seekRequest,
 }: {
   buildId: number;
   clips: Clip[] | undefined;
@@ -224,6 +320,8 @@ function PlayerArea({
   requestedId: number | null;
   loading: boolean;
   focusRequest: number;
+  onLogReading: (at: LogReadingAt) => void;
+  seekRequest: { atMs: number; seq: number } | null;
 }) {
   if (loading) return <LoadingState label="Loading the player…" />;
   if (!clips) return null;
@@ -255,5 +353,14 @@ function PlayerArea({
       </EmptyState>
     );
   }
-  return <ClipPlayer key={selected.id} clip={selected} buildId={buildId} focusRequest={focusRequest} />;
+  return (
+    <ClipPlayer
+      key={selected.id}
+      clip={selected}
+      buildId={buildId}
+      focusRequest={focusRequest}
+      onLogReading={onLogReading}
+      seekRequest={seekRequest}
+    />
+  );
 }

@@ -16,12 +16,30 @@ import { TrimEditor } from './trim-editor';
 /** Seconds "play from before" starts ahead of a moment. */
 const LEAD_IN_S = 3;
 
+/** Where the reading form should open: a time, and the moment already marked there if any. */
+export interface LogReadingAt {
+  atMs: number;
+  momentId: number | null;
+}
+
+export interface ClipPlayerProps {
+  clip: Clip;
+  buildId: number;
+  /** Bump to move focus into the player (after choosing a clip). */
+  focusRequest?: number;
+  /** Opens the reading form (button, R, or a moment's "Log a reading"); without it there is none. */
+  onLogReading?: (at: LogReadingAt) => void;
+  /** Seek here (ms from the start of the original) whenever `seq` changes, once the video can seek. */
+  seekRequest?: { atMs: number; seq: number } | null;
+}
+
 /**
  * A ready clip at the bench: the native player plus our own controls for
  * exact work (frame steps, jumps, a thumbnail scrub strip), the trimmed range,
- * and marking moments (button or M while the player has focus).
+ * marking moments (button or M while the player has focus) and logging a
+ * reading at the current time (button or R).
  */
-export function ClipPlayer({ clip, buildId, focusRequest = 0 }: { clip: Clip; buildId: number; /** Bump to move focus into the player (after choosing a clip). */ focusRequest?: number }) {
+export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seekRequest = null }: ClipPlayerProps) {
   const videoRef = useRef<HTMLVideoElement>(null);
   const regionRef = useRef<HTMLElement>(null);
   const [time, setTime] = useState(clip.trimInS ?? 0);
@@ -46,6 +64,21 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0 }: { clip: Clip; bu
   useEffect(() => {
     if (focusRequest > 0) regionRef.current?.focus({ preventScroll: false });
   }, [focusRequest]);
+
+  // A seek asked for before the video knows its length waits for loadedmetadata.
+  const pendingSeek = useRef<number | null>(null);
+  useEffect(() => {
+    if (!seekRequest) return;
+    const video = videoRef.current;
+    const target = seekRequest.atMs / 1000;
+    if (video && video.readyState >= 1) {
+      video.pause();
+      video.currentTime = target;
+      setTime(target);
+    } else {
+      pendingSeek.current = target;
+    }
+  }, [seekRequest]);
 
   const clamp = useCallback((seconds: number) => Math.min(Math.max(seconds, 0), duration || Infinity), [duration]);
 
@@ -150,13 +183,26 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0 }: { clip: Clip; bu
     );
   }
 
+  function logReading() {
+    const video = videoRef.current;
+    if (!video || !onLogReading) return;
+    video.pause();
+    const atMs = Math.round(video.currentTime * 1000);
+    // A moment already marked on this frame is reused rather than marked twice.
+    const frameIndex = frameIndexAt(video.currentTime, fps);
+    const existing = moments.data?.find((m) => frameIndexAt(m.atMs / 1000, fps) === frameIndex) ?? null;
+    onLogReading({ atMs: existing?.atMs ?? atMs, momentId: existing?.id ?? null });
+  }
+
   function onRegionKeyDown(event: KeyboardEvent<HTMLElement>) {
-    if (event.key !== 'm' && event.key !== 'M') return;
+    const key = event.key.toLowerCase();
+    if (key !== 'm' && !(key === 'r' && onLogReading)) return;
     if (event.ctrlKey || event.metaKey || event.altKey) return;
     const target = event.target as HTMLElement;
     if (target.closest('input, textarea, select, [contenteditable="true"]')) return;
     event.preventDefault();
-    mark();
+    if (key === 'm') mark();
+    else logReading();
   }
 
   return (
@@ -195,7 +241,11 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0 }: { clip: Clip; bu
         onLoadedMetadata={(event) => {
           const video = event.currentTarget;
           if (Number.isFinite(video.duration)) setMediaDuration(video.duration);
-          if (clip.trimInS != null) video.currentTime = clip.trimInS;
+          if (pendingSeek.current !== null) {
+            video.currentTime = pendingSeek.current;
+            setTime(pendingSeek.current);
+            pendingSeek.current = null;
+          } else if (clip.trimInS != null) video.currentTime = clip.trimInS;
         }}
         onPlay={onPlay}
         onPause={() => {
@@ -299,10 +349,18 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0 }: { clip: Clip; bu
               M
             </kbd>
           </Button>
+          {onLogReading && (
+            <Button className="h-9" onClick={logReading} aria-keyshortcuts="r">
+              Log a reading
+              <kbd aria-hidden="true" className="figures rounded-sm border border-line px-1 text-2xs">
+                R
+              </kbd>
+            </Button>
+          )}
           <p id={shortcutId} className="w-full text-xs text-ink-muted" aria-live="off">
             {hasFocus
-              ? 'Press M to mark the moment at the current time (not while typing in a box).'
-              : 'Shortcut: click the player or tab into it, then press M to mark the current time.'}
+              ? `Press M to mark the moment at the current time${onLogReading ? ', R to log a reading there' : ''} (not while typing in a box).`
+              : `Shortcut: click the player or tab into it, then press M to mark the current time${onLogReading ? ' or R to log a reading at it' : ''}.`}
           </p>
         </form>
         <TrimEditor key={`${clip.trimInS}-${clip.trimOutS}`} buildId={buildId} clip={clip} duration={duration} currentTime={time} />
@@ -318,6 +376,14 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0 }: { clip: Clip; bu
         }}
         onPlayFrom={(seconds) => playFrom(seconds - LEAD_IN_S)}
         leadInS={LEAD_IN_S}
+        onLogReading={
+          onLogReading &&
+          ((moment) => {
+            videoRef.current?.pause();
+            seek(moment.atMs / 1000, true);
+            onLogReading({ atMs: moment.atMs, momentId: moment.id });
+          })
+        }
       />
     </section>
   );

@@ -17,10 +17,21 @@ export interface MomentsListProps {
   onSeek: (seconds: number) => void;
   onPlayFrom: (seconds: number) => void;
   leadInS: number;
+  /** Opens the reading form on a moment; without it the rows have no "Log a reading" button. */
+  onLogReading?: (moment: Moment) => void;
+}
+
+/**
+ * Where a moment lands when nudged by `frames`: the middle of that frame (frame boundaries are
+ * where the container's rounding decides which frame shows), kept inside the clip.
+ */
+export function nudgedAtMs(atMs: number, frames: number, fps: number, durationMs: number): number {
+  const index = frameIndexAt(atMs / 1000, fps) + frames;
+  return Math.min(Math.max(0, Math.round(((index + 0.5) / fps) * 1000)), durationMs);
 }
 
 /** The clip's marked moments by time: label, evidence still, nudge by a frame, play into it, delete. */
-export function MomentsList({ clip, query, fps, onSeek, onPlayFrom, leadInS }: MomentsListProps) {
+export function MomentsList({ clip, query, fps, onSeek, onPlayFrom, leadInS, onLogReading }: MomentsListProps) {
   let body;
   if (query.isPending) body = <LoadingState label="Loading the moments of this clip…" className="py-4" />;
   else if (!query.data)
@@ -44,7 +55,17 @@ export function MomentsList({ clip, query, fps, onSeek, onPlayFrom, leadInS }: M
     body = (
       <ol aria-label={`Moments in ${clip.title}`} className="flex flex-col divide-y divide-rule rounded-md border border-rule">
         {sorted.map((moment, index) => (
-          <MomentRow key={moment.id} moment={moment} index={index} clip={clip} fps={fps} onSeek={onSeek} onPlayFrom={onPlayFrom} leadInS={leadInS} />
+          <MomentRow
+            key={moment.id}
+            moment={moment}
+            index={index}
+            clip={clip}
+            fps={fps}
+            onSeek={onSeek}
+            onPlayFrom={onPlayFrom}
+            leadInS={leadInS}
+            onLogReading={onLogReading}
+          />
         ))}
       </ol>
     );
@@ -73,6 +94,7 @@ function MomentRow({
   onSeek,
   onPlayFrom,
   leadInS,
+  onLogReading,
 }: {
   moment: Moment;
   index: number;
@@ -81,6 +103,7 @@ function MomentRow({
   onSeek: (seconds: number) => void;
   onPlayFrom: (seconds: number) => void;
   leadInS: number;
+  onLogReading?: (moment: Moment) => void;
 }) {
   const update = useUpdateMoment(clip.id);
   const remove = useDeleteMoment(clip.id);
@@ -111,8 +134,7 @@ function MomentRow({
   }
 
   function nudge(frames: number) {
-    const index = frameIndexAt(seconds, fps) + frames;
-    const atMs = Math.min(Math.max(0, Math.round(((index + 0.5) / fps) * 1000)), durationMs);
+    const atMs = nudgedAtMs(moment.atMs, frames, fps, durationMs);
     setError(null);
     update.mutate(
       { momentId: moment.id, patch: { atMs } },
@@ -180,6 +202,11 @@ function MomentRow({
         <Button size="sm" variant="quiet" className="h-7 px-2" onClick={() => nudge(1)} disabled={update.isPending} aria-label={`Nudge ${name} one frame later`}>
           +1 f
         </Button>
+        {onLogReading && (
+          <Button size="sm" variant="quiet" className="h-7 px-2" onClick={() => onLogReading(moment)} aria-label={`Log a reading at ${name}`}>
+            Log a reading
+          </Button>
+        )}
         <Button size="sm" variant="quiet" className="h-7 px-2" onClick={() => onPlayFrom(seconds)} aria-label={`Play ${name} from ${leadInS} seconds before`}>
           Play from −{leadInS} s
         </Button>

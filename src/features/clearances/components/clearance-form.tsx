@@ -1,0 +1,437 @@
+import { useDeferredValue, useId, useMemo, useState } from 'react';
+import { useFieldArray, useForm, useWatch, type Path, type UseFormReturn } from 'react-hook-form';
+import { useQuery, useQueryClient } from '@tanstack/react-query';
+import type { Build } from '@shared/builds/build.schema';
+import type { Clearance } from '@shared/clearances/clearance.schema';
+import { computeClearance } from '@shared/clearances/clearance-calc';
+import { clearanceTemplate, clearanceTemplates } from '@shared/clearances/templates';
+import { keyFromName, type Reading } from '@shared/readings/reading.schema';
+import { Button } from '@/components/ui/button';
+import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
+import { Field, Input, Select, Textarea } from '@/components/ui/field';
+import { useToast } from '@/components/ui/toast';
+import { EDIT_CONFLICT } from '@/features/readings/api/reading-mutations';
+import { WarningIcon } from '@/features/readings/components/reading-badges';
+import { estimateText } from '@/features/readings/lib/reading-text';
+import { ApiError, errorMessage } from '@/lib/api';
+import { cn } from '@/lib/cn';
+import { useCreateClearance, useUpdateClearance } from '../api/clearance-mutations';
+import { clearanceQueries, clearanceSpecQueries } from '../api/clearance-queries';
+import {
+  blankClearanceForm,
+  clearanceFormOf,
+  clearanceFormPath,
+  clearanceFormResolver,
+  termsForTemplate,
+  toClearanceInput,
+  versionSummary,
+  type ClearanceFormValues,
+} from '../lib/clearance-form';
+import { ClearanceResultView, specSourceWords } from './clearance-result-view';
+
+export interface ClearanceFormProps {
+  build: Build;
+  readings: Reading[];
+  /** The clearance being edited; a new one when absent. */
+  clearance?: Clearance;
+  onDone: (saved: Clearance | null) => void;
+}
+
+/**
+ * Define or edit a clearance: a template (its explanation in words) whose slots take readings,
+ * or custom terms with + and −; a spec version from the library; k. Value, U, verdict, band
+ * picture and working update as readings and spec are chosen, by the engine the server runs.
+ */
+export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceFormProps) {
+  const form = useForm<ClearanceFormValues>({
+    defaultValues: clearance ? clearanceFormOf(clearance) : blankClearanceForm(),
+    resolver: clearanceFormResolver,
+    mode: 'onTouched',
+  });
+  const { register, control, formState, setError, handleSubmit, setValue, getValues } = form;
+  const terms = useFieldArray({ control, name: 'terms' });
+  const watched = useWatch({ control }) as ClearanceFormValues;
+  const values = useDeferredValue(watched);
+  const create = useCreateClearance(build.id);
+  const update = useUpdateClearance();
+  const queryClient = useQueryClient();
+  const { toast } = useToast();
+  const [lockVersion, setLockVersion] = useState(clearance?.lockVersion ?? 1);
+  const [conflict, setConflict] = useState<'stale' | 'reloaded' | null>(null);
+  const [reloading, setReloading] = useState(false);
+  const templateLegendId = useId();
+  const errors = formState.errors;
+  const template = clearanceTemplate(watched.template);
+  const byId = useMemo(() => new Map(readings.map((r) => [String(r.id), r])), [readings]);
+  const sortedReadings = useMemo(() => [...readings].sort((a, b) => a.name.localeCompare(b.name)), [readings]);
+
+  const spec = useQuery({ ...clearanceSpecQueries.detail(Number(values.specId)), enabled: Boolean(values.specId) });
+  const version = spec.data?.versions?.find((v) => String(v.id) === values.specVersionId) ?? null;
+
+  const live = useMemo(() => {
+    const chosen = values.terms.flatMap((t) => {
+      const r = byId.get(t.readingId);
+      return r ? [{ key: r.key, engine: r.engine, sign: t.sign === '1' ? (1 as const) : (-1 as const) }] : [];
+    });
+    if (chosen.length === 0) return null;
+    const k = Number(values.coverageFactor.replace(',', '.'));
+    return computeClearance({ terms: chosen, spec: version, coverageFactor: Number.isFinite(k) && k >= 1 && k <= 4 ? k : 2 });
+  }, [values.terms, values.coverageFactor, byId, version]);
+
+  function chooseTemplate(id: ClearanceFormValues['template']) {
+    const next = clearanceTemplate(id);
+    setValue('terms', termsForTemplate(id, getValues('terms')));
+    // The suggested name and key follow the template until the builder types their own.
+    if (!formState.dirtyFields.name || getValues('name') === template.suggestedName) setValue('name', next.suggestedName);
+    if (!formState.dirtyFields.key || getValues('key') === template.suggestedKey) setValue('key', next.suggestedKey);
+  }
+
+  const submit = handleSubmit(async (formValues) => {
+    const input = toClearanceInput(formValues);
+    try {
+      const saved = clearance
+        ? await update.mutateAsync({
+            clearanceId: clearance.id,
+            patch: {
+              lockVersion,
+              name: input.name,
+              key: input.key ?? keyFromName(input.name),
+              template: input.template ?? null,
+              terms: input.terms,
+              specVersionId: input.specVersionId ?? null,
+              coverageFactor: input.coverageFactor ?? 2,
+              note: input.note ?? '',
+            },
+          })
+        : await create.mutateAsync(input);
+      toast({ tone: 'success', title: clearance ? 'Clearance saved' : 'Clearance defined', description: `${saved.name}: ${saved.result?.display ?? 'not worked out'}` });
+      onDone(saved);
+    } catch (error) {
+      if (error instanceof ApiError && error.code === EDIT_CONFLICT) {
+        setConflict('stale');
+        return;
+      }
+      const details = error instanceof ApiError ? error.details.filter((d) => d.path) : [];
+      for (const d of details) setError(clearanceFormPath(d.path ?? '') as Path<ClearanceFormValues>, { message: d.message });
+      setError('root.server', { message: errorMessage(error) });
+    }
+  });
+
+  async function reload() {
+    if (!clearance) return;
+    setReloading(true);
+    try {
+      await queryClient.refetchQueries({ queryKey: clearanceQueries.list(build.id).queryKey });
+      const pages = queryClient.getQueryData(clearanceQueries.list(build.id).queryKey)?.pages ?? [];
+      const fresh = pages.flatMap((p) => p.items).find((c) => c.id === clearance.id);
+      if (!fresh) {
+        setError('root.server', { message: 'This clearance was deleted elsewhere. Cancel to close the form.' });
+        setConflict(null);
+        return;
+      }
+      setLockVersion(fresh.lockVersion);
+      setConflict('reloaded');
+    } catch (error) {
+      setError('root.server', { message: `Could not reload: ${errorMessage(error)}` });
+    } finally {
+      setReloading(false);
+    }
+  }
+
+  const readingOptions = (
+    <>
+      <option value="">Choose a reading…</option>
+      {sortedReadings.map((r) => (
+        <option key={r.id} value={r.id}>
+          {r.name} · {r.key} · {r.result.display}
+        </option>
+      ))}
+    </>
+  );
+
+  return (
+    <form noValidate onSubmit={submit} aria-label={clearance ? `Edit clearance ${clearance.name}` : 'New clearance'} className="grid gap-5 lg:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
+      <div className="flex min-w-0 flex-col gap-4">
+        <fieldset aria-labelledby={templateLegendId} className="flex flex-col gap-1.5">
+          <legend id={templateLegendId} className="mb-1 text-sm font-medium">
+            How it is made
+          </legend>
+          {clearanceTemplates.map((t) => (
+            <label
+              key={t.id}
+              className={cn('flex cursor-pointer items-start gap-2 rounded-md border px-2.5 py-2', watched.template === t.id ? 'border-ink bg-paper-2' : 'border-rule')}
+            >
+              <input
+                type="radio"
+                value={t.id}
+                {...register('template', { onChange: (e: { target: { value: string } }) => chooseTemplate(e.target.value as ClearanceFormValues['template']) })}
+                className="mt-1 accent-(--color-ink)"
+              />
+              <span className="min-w-0">
+                <span className="text-sm font-medium">{t.name}</span>
+                <span className="block text-xs text-ink-muted">{t.explanation}</span>
+              </span>
+            </label>
+          ))}
+        </fieldset>
+
+        <fieldset className="flex flex-col gap-2">
+          <legend className="mb-1 text-sm font-medium">{template.slots.length ? 'Readings for each slot' : 'Terms (+ adds, − subtracts)'}</legend>
+          {readings.length === 0 && <p className="text-sm text-ink-muted">No readings logged in this build yet: log them at their moments first.</p>}
+          <ol className="flex flex-col gap-2">
+            {terms.fields.map((field, index) => {
+              const slot = template.slots[index];
+              const picked = byId.get(watched.terms[index]?.readingId ?? '');
+              return (
+                <li key={field.id} className="grid grid-cols-[2.25rem_minmax(0,1fr)_auto] items-start gap-2">
+                  {slot ? (
+                    <span className="figures mt-7 text-center text-lg" aria-label={slot.sign === 1 ? 'plus' : 'minus'}>
+                      {slot.sign === 1 ? '+' : '−'}
+                    </span>
+                  ) : (
+                    <Field label={<span className="sr-only">Sign of term {index + 1}</span>} className="mt-6 [&>label]:sr-only">
+                      <Select size="sm" {...register(`terms.${index}.sign`)} className="figures px-1 pr-1">
+                        <option value="1">+</option>
+                        <option value="-1">−</option>
+                      </Select>
+                    </Field>
+                  )}
+                  <Field
+                    label={slot ? slot.label : `Term ${index + 1}`}
+                    hint={slot?.hint}
+                    error={errors.terms?.[index]?.readingId?.message}
+                  >
+                    <Select size="sm" {...register(`terms.${index}.readingId`)}>
+                      {readingOptions}
+                    </Select>
+                  </Field>
+                  {!slot && terms.fields.length > 1 ? (
+                    <Button size="sm" variant="quiet" className="mt-6 px-2" onClick={() => terms.remove(index)} aria-label={`Remove term ${index + 1}`}>
+                      ✕
+                    </Button>
+                  ) : (
+                    <span />
+                  )}
+                  {picked && (
+                    <p className="figures col-start-2 -mt-1 text-xs text-ink-muted">
+                      {picked.name}: {estimateText(picked)}
+                      {picked.reviewState === 'flagged' && ' · flagged in review'}
+                    </p>
+                  )}
+                </li>
+              );
+            })}
+          </ol>
+          {errors.terms?.root?.message && (
+            <p className="flex items-start gap-1.5 text-sm text-danger">
+              <WarningIcon />
+              <span>{errors.terms.root.message}</span>
+            </p>
+          )}
+          {template.slots.length === 0 && terms.fields.length < 20 && (
+            <Button size="sm" variant="quiet" className="self-start" onClick={() => terms.append({ readingId: '', sign: '1' })}>
+              Add a term
+            </Button>
+          )}
+        </fieldset>
+
+        <div className="grid gap-3 sm:grid-cols-2">
+          <Field label="Name" required error={errors.name?.message}>
+            <Input {...register('name')} autoComplete="off" className="h-8! text-sm" />
+          </Field>
+          <Field label="Key" error={errors.key?.message} hint={`How claims name it; blank = ${keyFromName(watched.name || 'clearance')}.`}>
+            <Input {...register('key')} autoComplete="off" className="figures h-8! text-sm" />
+          </Field>
+        </div>
+
+        <SpecPicker form={form} error={errors.specId?.message} />
+
+        <div className="grid gap-3 sm:grid-cols-[minmax(0,10rem)_minmax(0,1fr)]">
+          <Field label="Coverage factor k" error={errors.coverageFactor?.message} hint="2 gives about 95 % coverage (GUM 6.3.3).">
+            <Input {...register('coverageFactor')} inputMode="decimal" className="figures h-8! text-sm" />
+          </Field>
+          <Field label="Note" error={errors.note?.message}>
+            <Textarea {...register('note')} rows={2} className="text-sm" />
+          </Field>
+        </div>
+      </div>
+
+      <section aria-label="Live result" className="flex min-w-0 flex-col gap-2 lg:sticky lg:top-4 lg:col-start-2 lg:row-span-2 lg:row-start-1 lg:self-start">
+        <h3 className="text-sm font-semibold">Result, as you choose</h3>
+        {!live ? (
+          <p className="rounded-md border border-dashed border-line px-3 py-4 text-sm text-ink-muted">
+            Pick the readings{template.slots.length ? ` (${template.slots.map((s) => s.label.toLowerCase()).join(', ')})` : ''} and the clearance,
+            its uncertainty and, with a spec, its verdict appear here.
+          </p>
+        ) : live.ok ? (
+          <div aria-live="polite">
+            <ClearanceResultView result={live.result} readings={values.terms.flatMap((t) => byId.get(t.readingId) ?? [])} />
+          </div>
+        ) : (
+          <div role="alert" className="rounded-md border border-danger/50 bg-danger-wash/50 px-3 py-2 text-sm">
+            <p className="font-medium">This cannot be worked out yet:</p>
+            <ul className="mt-1 list-disc pl-5">
+              {live.problems.map((p) => (
+                <li key={p}>{p}</li>
+              ))}
+            </ul>
+          </div>
+        )}
+      </section>
+
+      <div className="flex min-w-0 flex-col gap-3 lg:col-start-1">
+        {conflict === 'stale' && (
+          <div role="alert" className="flex flex-wrap items-center gap-2 rounded-md border border-verdict-undecided/50 px-3 py-2 text-sm">
+            <WarningIcon className="text-verdict-undecided" />
+            <span className="font-medium">Saved elsewhere since you opened it.</span>
+            <span className="text-ink-muted">Your change was not saved. Reload the stored version; what you chose here stays in the form.</span>
+            <Button size="sm" onClick={() => void reload()} loading={reloading} loadingText="Reloading…">
+              Reload
+            </Button>
+          </div>
+        )}
+        {conflict === 'reloaded' && (
+          <p role="status" className="text-sm text-ink-muted">
+            Reloaded: the list shows the version saved elsewhere. Save puts this form over it; Cancel keeps that version.
+          </p>
+        )}
+        {errors.root?.server?.message && (
+          <p role="alert" className="flex items-start gap-1.5 text-sm text-danger">
+            <WarningIcon />
+            <span>Not saved: {errors.root.server.message}</span>
+          </p>
+        )}
+        <div className="flex flex-wrap gap-2">
+          <Button type="submit" variant="primary" loading={formState.isSubmitting} loadingText="Saving…">
+            {clearance ? 'Save changes' : 'Save clearance'}
+          </Button>
+          <Button variant="quiet" onClick={() => onDone(null)}>
+            Cancel
+          </Button>
+        </div>
+      </div>
+    </form>
+  );
+}
+
+/** Search the spec library, attach one, pick its version; its source is shown beside it. */
+function SpecPicker({ form, error }: { form: UseFormReturn<ClearanceFormValues>; error?: string }) {
+  const { setValue, control, formState } = form;
+  const specId = useWatch({ control, name: 'specId' });
+  const specVersionId = useWatch({ control, name: 'specVersionId' });
+  const [q, setQ] = useState('');
+  const deferredQ = useDeferredValue(q);
+  const searchId = useId();
+  const versionId = useId();
+  const spec = useQuery({ ...clearanceSpecQueries.detail(Number(specId)), enabled: Boolean(specId) });
+  const results = useQuery({ ...clearanceSpecQueries.search(deferredQ), enabled: !specId });
+
+  // The version first: checking the spec field looks at both, and must see the pair.
+  function attach(id: number, latestVersionId: number) {
+    setValue('specVersionId', String(latestVersionId), { shouldDirty: true });
+    setValue('specId', String(id), { shouldDirty: true, shouldValidate: formState.isSubmitted });
+  }
+
+  function detach() {
+    setValue('specVersionId', '', { shouldDirty: true });
+    setValue('specId', '', { shouldDirty: true, shouldValidate: formState.isSubmitted });
+  }
+
+  return (
+    <fieldset className="flex flex-col gap-2 rounded-md border border-rule p-3" data-spec-picker="">
+      <legend className="px-1 text-sm font-medium">Spec to judge it against</legend>
+      {specId ? (
+        spec.isPending ? (
+          <LoadingState label="Loading the spec…" className="py-2" />
+        ) : !spec.data ? (
+          <ErrorState title="The spec could not be loaded" error={spec.error} onRetry={() => void spec.refetch()} retrying={spec.isRefetching} />
+        ) : (
+          <div className="flex flex-col gap-2">
+            <div className="flex flex-wrap items-start justify-between gap-2">
+              <div className="min-w-0">
+                <p className="text-sm font-medium">{spec.data.name}</p>
+                {spec.data.appliesTo && <p className="text-xs text-ink-muted">{spec.data.appliesTo}</p>}
+              </div>
+              <Button size="sm" variant="quiet" onClick={detach}>
+                Remove spec
+              </Button>
+            </div>
+            <div className="flex flex-col gap-1">
+              <label htmlFor={versionId} className="text-sm font-medium">
+                Version
+              </label>
+              <Select id={versionId} size="sm" value={specVersionId} onChange={(e) => {
+                  setValue('specVersionId', e.target.value, { shouldDirty: true });
+                  if (formState.isSubmitted) void form.trigger('specId');
+                }}
+              >
+                {(spec.data.versions ?? [spec.data.latest]).map((v) => (
+                  <option key={v.id} value={v.id}>
+                    v{v.version}
+                    {v.id === spec.data.latest.id ? ' (latest)' : ''} · {versionSummary(v)}
+                  </option>
+                ))}
+              </Select>
+            </div>
+            {(() => {
+              const v = (spec.data.versions ?? [spec.data.latest]).find((x) => String(x.id) === specVersionId);
+              if (!v) return null;
+              return (
+                <p className="text-xs text-ink-muted">
+                  <span className="figures text-ink">{versionSummary(v)}</span>
+                  <br />
+                  Source, {specSourceWords[v.source.kind] ?? v.source.kind}: {v.source.text}
+                  {v.id !== spec.data.latest.id && <span className="block text-verdict-undecided">A newer version (v{spec.data.latest.version}) is in the library.</span>}
+                </p>
+              );
+            })()}
+          </div>
+        )
+      ) : (
+        <>
+          <div className="flex flex-col gap-1">
+            <label htmlFor={searchId} className="text-sm font-medium">
+              Search the spec library
+            </label>
+            <Input id={searchId} type="search" value={q} onChange={(e) => setQ(e.target.value)} placeholder="e.g. end float, oil pump" className="h-8! text-sm" />
+          </div>
+          {results.isPending ? (
+            <LoadingState label="Searching…" className="py-2" />
+          ) : !results.data ? (
+            <ErrorState title="The library could not be searched" error={results.error} onRetry={() => void results.refetch()} retrying={results.isRefetching} />
+          ) : results.data.length === 0 ? (
+            <EmptyState title={deferredQ ? `No spec matches “${deferredQ}”` : 'The library is empty'} className="px-3 py-3">
+              Try other words, or add the spec in the spec library with the source of its figures. Without a spec the clearance is
+              worked out but not judged.
+            </EmptyState>
+          ) : (
+            <ul className="flex max-h-64 flex-col divide-y divide-rule overflow-auto rounded-md border border-rule" aria-label="Specs found">
+              {results.data.map((s) => (
+                <li key={s.id} className="flex items-start justify-between gap-2 px-2 py-1.5">
+                  <div className="min-w-0 text-xs">
+                    <p className="text-sm font-medium">
+                      {s.name} <span className="font-normal text-ink-muted">v{s.latest.version}</span>
+                    </p>
+                    <p className="figures">{versionSummary(s.latest)}</p>
+                    <p className="text-ink-muted">
+                      {specSourceWords[s.latest.source.kind] ?? s.latest.source.kind}: {s.latest.source.text}
+                    </p>
+                  </div>
+                  <Button size="sm" onClick={() => attach(s.id, s.latest.id)} aria-label={`Use ${s.name}`}>
+                    Use
+                  </Button>
+                </li>
+              ))}
+            </ul>
+          )}
+        </>
+      )}
+      {error && (
+        <p className="flex items-start gap-1.5 text-sm text-danger">
+          <WarningIcon />
+          <span>{error}</span>
+        </p>
+      )}
+    </fieldset>
+  );
+}

@@ -1,0 +1,107 @@
+import type { ClearanceResult } from '@shared/clearances/clearance.schema';
+import type { Reading } from '@shared/readings/reading.schema';
+import { formatUncertainty } from '@shared/measure/format';
+import { decisionRuleText, type Verdict } from '@shared/measure/spec';
+import { VerdictBadge } from '@/components/ui/badge';
+import { BandPicture } from '@/features/calc/components/band-picture';
+import { CalcSteps } from '@/features/calc/components/calc-steps';
+import { cn } from '@/lib/cn';
+import { bandPictureProps } from '../lib/clearance-view';
+
+const preferredWords: Record<Verdict, string> = {
+  conforms: 'Within the preferred band',
+  'does-not-conform': 'Outside the preferred band',
+  undecided: 'Too close to call against the preferred band',
+};
+
+const rejectWords: Record<Verdict, string> = {
+  conforms: 'Clear of the reject limit',
+  'does-not-conform': 'Past the reject limit',
+  undecided: 'Too close to call against the reject limit',
+};
+
+/** Where spec figures come from, in words. */
+export const specSourceWords: Record<string, string> = {
+  manual: 'manufacturer’s manual',
+  standard: 'published standard',
+  'common-practice': 'common practice (no published source)',
+};
+
+/** The verdict, the rule it was judged by, and the preferred-band and reject-limit verdicts. */
+export function ClearanceVerdicts({ result, size = 'md' }: { result: ClearanceResult; size?: 'sm' | 'md' }) {
+  if (!result.verdict || !result.rule) return <span className="text-sm text-ink-muted">no spec, no verdict</span>;
+  return (
+    <span className="inline-flex flex-wrap items-center gap-1.5">
+      <VerdictBadge verdict={result.verdict} rule={`${result.rule} rule, k = ${result.coverageFactor}`} size={size} />
+      {result.preferredVerdict && (
+        <VerdictBadge verdict={result.preferredVerdict} size="sm">
+          {preferredWords[result.preferredVerdict]}
+        </VerdictBadge>
+      )}
+      {result.rejectVerdict && (
+        <VerdictBadge verdict={result.rejectVerdict} size="sm">
+          {rejectWords[result.rejectVerdict]}
+        </VerdictBadge>
+      )}
+    </span>
+  );
+}
+
+/** The caution every verdict carries. */
+export function VerdictCaution({ className }: { className?: string }) {
+  return (
+    <p className={cn('text-xs text-ink-muted', className)}>
+      These are the builder’s own figures. Follow the manufacturer’s manual, local rules and qualified practice before relying on
+      them; engine and machining work can hurt people.
+    </p>
+  );
+}
+
+/**
+ * A worked-out clearance in full: value, u_c and U, the verdict with its rule in words, the band
+ * picture, and the engine's working in a disclosure.
+ */
+export function ClearanceResultView({
+  result,
+  readings = [],
+  stepsOpen = false,
+}: {
+  result: ClearanceResult;
+  /** The readings summed, so the band picture's scale shows their places. */
+  readings?: readonly Pick<Reading, 'unit' | 'result'>[];
+  stepsOpen?: boolean;
+}) {
+  const picture = bandPictureProps(result, readings);
+  return (
+    <div className="flex flex-col gap-3" data-clearance-result="">
+      <dl className="grid gap-x-4 gap-y-0.5 text-sm sm:grid-cols-[max-content_minmax(0,1fr)] sm:gap-y-1">
+        <dt className="text-ink-muted">Clearance ± U</dt>
+        <dd className="figures text-base font-semibold">{result.display}</dd>
+        <dt className="text-ink-muted">Standard uncertainty u_c</dt>
+        <dd className="figures">{formatUncertainty(result.standardUncertaintyUm, result.unit)}</dd>
+        <dt className="text-ink-muted">Expanded U (k = {result.coverageFactor})</dt>
+        <dd className="figures">± {formatUncertainty(result.expandedUncertaintyUm, result.unit)}</dd>
+      </dl>
+      {result.verdict && result.rule ? (
+        <>
+          <ClearanceVerdicts result={result} />
+          <p className="max-w-prose text-xs text-ink-muted">{decisionRuleText[result.rule]}</p>
+        </>
+      ) : (
+        <p className="text-sm text-ink-muted">No spec attached, so no verdict: attach a spec version to judge it.</p>
+      )}
+      {picture && (
+        <div className="max-w-xl">
+          <BandPicture {...picture} />
+        </div>
+      )}
+      {result.verdict && <VerdictCaution />}
+      <details open={stepsOpen} className="rounded-md border border-rule px-3 py-2">
+        <summary className="cursor-pointer text-sm font-medium">How it was worked out ({result.steps.length} steps)</summary>
+        <div className="mt-2">
+          <CalcSteps steps={result.steps} />
+        </div>
+      </details>
+    </div>
+  );
+}

@@ -1,0 +1,604 @@
+import { useEffect, useId, useMemo, useRef, useState, type ReactNode } from 'react';
+import { useFieldArray, useForm, useWatch, type Path } from 'react-hook-form';
+import { useQuery } from '@tanstack/react-query';
+import { Link } from 'react-router-dom';
+import type { Build } from '@shared/builds/build.schema';
+import type { Clip } from '@shared/clips/clip.schema';
+import { calibrationDueOn, calibrationStateOn, zeroCheckedKinds, type Instrument } from '@shared/instruments/instrument.schema';
+import { readingSchema as engineReadingSchema } from '@shared/measure/calc.schema';
+import { formatLength, formatUncertainty } from '@shared/measure/format';
+import { evaluateReading } from '@shared/measure/readings';
+import { materialExpansion, materialNames } from '@shared/measure/thermal';
+import { unitSymbols } from '@shared/measure/units';
+import { keyFromName, MAX_ENTERED_REPEATS, type Reading, type ReadingKind } from '@shared/readings/reading.schema';
+import { normaliseReadingFigures, toEngineReading } from '@shared/readings/reading-figures';
+import { Button } from '@/components/ui/button';
+import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
+import { Field, Input, Select, Textarea } from '@/components/ui/field';
+import { useToast } from '@/components/ui/toast';
+import { useCreateMoment, useDeleteMoment, useUpdateMoment } from '@/features/clips/api/clip-mutations';
+import { clipQueries } from '@/features/clips/api/clip-queries';
+import type { LogReadingAt } from '@/features/clips/components/clip-player';
+import { nudgedAtMs } from '@/features/clips/components/moments-list';
+import { formatTime, frameDuration, frameIndexAt } from '@/features/clips/lib/clip-format';
+import { ApiError, errorMessage } from '@/lib/api';
+import { cn } from '@/lib/cn';
+import { useCreateReading } from '../api/reading-mutations';
+import { readingInstrumentsQuery } from '../api/reading-queries';
+import { blankReadingForm, defaultKindFor, figuresOf, formPathOf, readingFormResolver, toReadingInput, type ReadingFormValues } from '../lib/reading-form';
+import { CalibrationBadge, instrumentOptionText, WarningIcon } from './reading-badges';
+
+export interface ReadingFormProps {
+  build: Build;
+  clip: Clip;
+  /** Where it opened: the player's time, and the moment there if one was marked. */
+  at: LogReadingAt;
+  /** Moves the player to a time (ms), so it shows what the still shows. */
+  onSeek: (atMs: number) => void;
+  onSaved: (reading: Reading) => void;
+  onClose: () => void;
+}
+
+const kindChoices: { kind: ReadingKind; label: string; hint: string }[] = [
+  { kind: 'direct', label: 'One indication', hint: 'micrometer, depth micrometer, bore gauge' },
+  { kind: 'bracket', label: 'Feeler bracket', hint: 'the blade that enters and the one that does not' },
+  { kind: 'repeated', label: 'Repeated', hint: 'the same size read several times; the mean is used' },
+];
+
+function secondsText(atMs: number): string {
+  return (atMs / 1000).toFixed(3);
+}
+
+/** The message the server gave for `path`, if its refusal named that field. */
+function detailFor(error: unknown, path: string): string | null {
+  return error instanceof ApiError ? (error.details.find((d) => d.path === path)?.message ?? null) : null;
+}
+
+/**
+ * The compact form beside the player: the moment (marked on opening if there was none, nudged a
+ * frame at a time, the still following), the instrument with its calibration and zero check, the
+ * part, and the figures as shown, read back live by the same code the server checks them with.
+ */
+export function ReadingForm({ build, clip, at, onSeek, onSaved, onClose }: ReadingFormProps) {
+  const instruments = useQuery(readingInstrumentsQuery);
+  const usable = useMemo(() => (instruments.data ?? []).filter((i) => !i.retired), [instruments.data]);
+  const headingId = useId();
+
+  return (
+    <section aria-labelledby={headingId} className="flex flex-col gap-3 rounded-lg border border-ink bg-paper p-3" data-reading-form="">
+      <header className="flex items-start justify-between gap-2">
+        <div>
+          <h2 id={headingId} className="text-md font-semibold">
+            Log a reading
+          </h2>
+          <p className="text-xs text-ink-muted">
+            In <span className="font-medium text-ink">{clip.title}</span>. Press R in the player to start another at the current time.
+          </p>
+        </div>
+        <Button size="sm" variant="quiet" onClick={onClose} aria-label="Close the reading form">
+          ✕
+        </Button>
+      </header>
+      <MomentPicker clip={clip} at={at} onSeek={onSeek} onCancelled={onClose}>
+        {(momentId, cancel) =>
+          instruments.isPending ? (
+            <LoadingState label="Loading your instruments…" className="py-3" />
+          ) : !instruments.data ? (
+            <ErrorState
+              title="Your instruments could not be loaded"
+              error={instruments.error}
+              whatToDo="A reading needs the instrument it was taken with. Try again; the moment stays marked."
+              onRetry={() => void instruments.refetch()}
+              retrying={instruments.isRefetching}
+            />
+          ) : usable.length === 0 ? (
+            <EmptyState title="No instruments to log with" action={<Link to="/instruments">Open the instruments register</Link>}>
+              Add the instrument you measured with (its unit and resolution, and when it was last calibrated) to your register, then
+              come back to this moment: it stays marked.
+            </EmptyState>
+          ) : (
+            <ReadingFields build={build} instruments={usable} momentId={momentId} onSaved={onSaved} onCancel={cancel} />
+          )
+        }
+      </MomentPicker>
+    </section>
+  );
+}
+
+/**
+ * The moment the reading belongs to: marks one at the opening time when none was given, shows
+ * its evidence still, and moves it (typed time or ±1 frame). Cancel takes back a moment it marked.
+ */
+function MomentPicker({
+  clip,
+  at,
+  onSeek,
+  onCancelled,
+  children,
+}: {
+  clip: Clip;
+  at: LogReadingAt;
+  onSeek: (atMs: number) => void;
+  onCancelled: () => void;
+  children: (momentId: number | null, cancel: () => void) => ReactNode;
+}) {
+  const moments = useQuery(clipQueries.moments(clip.id));
+  const create = useCreateMoment(clip.id);
+  const update = useUpdateMoment(clip.id);
+  const remove = useDeleteMoment(clip.id);
+  const { toast } = useToast();
+  const [momentId, setMomentId] = useState<number | null>(at.momentId);
+  const [markedHere, setMarkedHere] = useState(false);
+  const [timeText, setTimeText] = useState(secondsText(at.atMs));
+  const [error, setError] = useState<string | null>(null);
+  const started = useRef(false);
+  const timeId = useId();
+  const fps = clip.probe?.frameRate ?? 1 / frameDuration(clip);
+  const durationMs = clip.probe ? Math.round(clip.probe.durationS * 1000) : null;
+  const moment = moments.data?.find((m) => m.id === momentId) ?? null;
+  const busy = create.isPending || update.isPending;
+
+  function checkTime(atMs: number): string | null {
+    if (durationMs !== null && atMs > durationMs) {
+      return `That is after the end of the clip (${(durationMs / 1000).toFixed(3)} s). Enter a time from 0 to ${(durationMs / 1000).toFixed(3)} s.`;
+    }
+    return null;
+  }
+
+  function refused(e: unknown, what: string) {
+    setError(detailFor(e, 'atMs') ? `${what}: ${detailFor(e, 'atMs')}. ${errorMessage(e)}` : `${what}: ${errorMessage(e)}`);
+  }
+
+  function markAt(atMs: number) {
+    const problem = checkTime(atMs);
+    if (problem) return setError(problem);
+    setError(null);
+    create.mutate(
+      { atMs, label: '' },
+      {
+        onSuccess: (m) => {
+          setMomentId(m.id);
+          setMarkedHere(true);
+          setTimeText(secondsText(m.atMs));
+          onSeek(m.atMs);
+        },
+        onError: (e) => refused(e, 'The moment was not marked'),
+      },
+    );
+  }
+
+  function moveTo(atMs: number) {
+    if (!moment) return markAt(atMs);
+    const problem = checkTime(atMs);
+    if (problem) return setError(problem);
+    setError(null);
+    update.mutate(
+      { momentId: moment.id, patch: { atMs } },
+      {
+        onSuccess: (m) => {
+          setTimeText(secondsText(m.atMs));
+          onSeek(m.atMs);
+        },
+        onError: (e) => refused(e, 'The moment was not moved'),
+      },
+    );
+  }
+
+  useEffect(() => {
+    if (started.current || at.momentId !== null) return;
+    started.current = true;
+    markAt(at.atMs);
+    // Only on opening (the ref keeps it to once); later marks come from the buttons.
+  });
+
+  function submitTime() {
+    const text = timeText.trim().replace(',', '.');
+    const seconds = Number(text);
+    if (!text || !Number.isFinite(seconds) || seconds < 0) {
+      setError('Enter the time in seconds from the start of the clip, e.g. 1.533.');
+      return;
+    }
+    moveTo(Math.round(seconds * 1000));
+  }
+
+  function cancel() {
+    if (markedHere && moment) {
+      remove.mutate(moment.id, {
+        onError: (e) => toast({ tone: 'error', title: 'The moment stays marked', description: `${errorMessage(e)} Delete it from the moments list if you do not need it.` }),
+      });
+    }
+    onCancelled();
+  }
+
+  const seconds = (moment?.atMs ?? at.atMs) / 1000;
+  return (
+    <>
+      <div className="flex flex-col gap-2 rounded-md border border-rule bg-paper-2/50 p-2">
+        <div className="relative aspect-video w-full overflow-hidden rounded-sm border border-rule bg-paper-3">
+          {moment ? (
+            <img src={moment.frameUrl} alt={`Evidence still at ${formatTime(seconds)}, frame ${frameIndexAt(seconds, fps) + 1}`} className="size-full object-contain" />
+          ) : (
+            <p className="p-3 text-xs text-ink-muted">{busy ? 'Marking the moment…' : 'No moment marked yet.'}</p>
+          )}
+        </div>
+        <form
+          noValidate
+          className="flex flex-wrap items-end gap-1.5"
+          onSubmit={(event) => {
+            event.preventDefault();
+            submitTime();
+          }}
+        >
+          <div className="flex min-w-0 flex-1 flex-col gap-1">
+            <label htmlFor={timeId} className="text-sm font-medium">
+              Moment at <span className="font-normal text-ink-muted">(seconds)</span>
+            </label>
+            <Input
+              id={timeId}
+              value={timeText}
+              inputMode="decimal"
+              onChange={(event) => setTimeText(event.target.value)}
+              aria-invalid={error ? true : undefined}
+              aria-describedby={error ? `${timeId}-error` : `${timeId}-hint`}
+              className="figures h-8! text-sm"
+            />
+          </div>
+          <Button type="submit" size="sm" loading={busy} loadingText="Saving…">
+            {moment ? 'Move' : 'Mark'}
+          </Button>
+          <Button size="sm" variant="quiet" className="px-2" disabled={!moment || busy} onClick={() => moment && moveTo(nudgedAtMs(moment.atMs, -1, fps, durationMs ?? Infinity))} aria-label="Nudge the moment one frame earlier">
+            −1 f
+          </Button>
+          <Button size="sm" variant="quiet" className="px-2" disabled={!moment || busy} onClick={() => moment && moveTo(nudgedAtMs(moment.atMs, 1, fps, durationMs ?? Infinity))} aria-label="Nudge the moment one frame later">
+            +1 f
+          </Button>
+        </form>
+        {error ? (
+          <p id={`${timeId}-error`} role="alert" className="flex items-start gap-1.5 text-sm text-danger">
+            <WarningIcon />
+            <span>{error}</span>
+          </p>
+        ) : (
+          <p id={`${timeId}-hint`} className="figures text-xs text-ink-muted">
+            {moment ? `${formatTime(seconds)} · frame ${frameIndexAt(seconds, fps) + 1}` : 'The moment is marked when the form opens.'}
+            {moment && markedHere && ' · marked for this reading (Cancel takes it back)'}
+          </p>
+        )}
+      </div>
+      {children(moment?.id ?? null, cancel)}
+    </>
+  );
+}
+
+function ReadingFields({
+  build,
+  instruments,
+  momentId,
+  onSaved,
+  onCancel,
+}: {
+  build: Build;
+  instruments: Instrument[];
+  momentId: number | null;
+  onSaved: (reading: Reading) => void;
+  onCancel: () => void;
+}) {
+  const create = useCreateReading(build.id);
+  const instrumentsRef = useRef(instruments);
+  instrumentsRef.current = instruments;
+  const resolver = useMemo(() => readingFormResolver(() => instrumentsRef.current), []);
+  const onlyPart = build.parts.length === 1 ? build.parts[0]!.id : null;
+  const form = useForm<ReadingFormValues>({ defaultValues: blankReadingForm(instruments[0], onlyPart), resolver, mode: 'onTouched' });
+  const { register, control, formState, setError, handleSubmit, setValue, getValues } = form;
+  const repeats = useFieldArray({ control, name: 'values' });
+  const watched = useWatch({ control }) as ReadingFormValues;
+  const errors = formState.errors;
+  const instrument = instruments.find((i) => String(i.id) === watched.instrumentId);
+  const [momentMissing, setMomentMissing] = useState(false);
+  const kindLegendId = useId();
+
+  const submit = handleSubmit(async (values) => {
+    if (momentId === null) {
+      setMomentMissing(true);
+      return;
+    }
+    setMomentMissing(false);
+    try {
+      const reading = await create.mutateAsync(toReadingInput(values, momentId));
+      onSaved(reading);
+    } catch (error) {
+      const details = error instanceof ApiError ? error.details.filter((d) => d.path) : [];
+      for (const d of details) {
+        const path = d.path === 'key' ? 'name' : formPathOf(d.path ?? '', values);
+        setError(path as Path<ReadingFormValues>, { message: d.message });
+      }
+      setError('root.server', { message: errorMessage(error) });
+    }
+  });
+
+  const registerInstrument = register('instrumentId', {
+    onChange: (event: { target: { value: string } }) => {
+      // A feeler set is read by bracketing; switch the kind while nothing has been typed yet.
+      const next = instruments.find((i) => String(i.id) === event.target.value);
+      const v = getValues();
+      if (!v.value && !v.passes && !v.stops && v.values.every((x) => !x.text)) setValue('kind', defaultKindFor(next));
+    },
+  });
+
+  return (
+    <form noValidate onSubmit={submit} className="flex flex-col gap-3" aria-label="Reading">
+      <Field
+        label="Name"
+        required
+        error={errors.name?.message}
+        hint={watched.name?.trim() ? <>Key <span className="figures">{keyFromName(watched.name)}</span>: how clearances and claims name it.</> : 'e.g. “Bore depth, as supplied”.'}
+      >
+        {/* The form opens from R or a button in the player: typing goes straight into the name. */}
+        <Input {...register('name')} autoComplete="off" className="h-8! text-sm" autoFocus />
+      </Field>
+
+      <Field label="Instrument" required error={errors.instrumentId?.message}>
+        <Select {...registerInstrument} size="sm">
+          {instruments.map((i) => (
+            <option key={i.id} value={i.id}>
+              {instrumentOptionText(i)}
+            </option>
+          ))}
+        </Select>
+      </Field>
+      {instrument && <InstrumentState instrument={instrument} takenOn={watched.takenOn} />}
+
+      <Field label="Part" error={errors.partId?.message} hint={build.parts.length === 0 ? 'This build lists no parts; add them with “Edit build”.' : undefined}>
+        <Select {...register('partId')} size="sm">
+          <option value="">Not tied to a part</option>
+          {build.parts.map((p) => (
+            <option key={p.id} value={p.id}>
+              {p.name}
+              {p.serial ? ` · ${p.serial}` : ''}
+            </option>
+          ))}
+        </Select>
+      </Field>
+
+      <fieldset aria-labelledby={kindLegendId} className="flex flex-col gap-1">
+        <legend id={kindLegendId} className="mb-1 text-sm font-medium">
+          How it was read
+        </legend>
+        <div className="flex flex-col gap-1">
+          {kindChoices.map((choice) => (
+            <label
+              key={choice.kind}
+              className={cn(
+                'flex cursor-pointer items-baseline gap-2 rounded-md border px-2 py-1 text-sm',
+                watched.kind === choice.kind ? 'border-ink bg-paper-2' : 'border-rule',
+              )}
+            >
+              <input type="radio" value={choice.kind} {...register('kind')} className="translate-y-0.5 accent-(--color-ink)" />
+              <span>
+                <span className="font-medium">{choice.label}</span>
+                <span className="text-xs text-ink-muted"> · {choice.hint}</span>
+              </span>
+            </label>
+          ))}
+        </div>
+      </fieldset>
+
+      <FigureFields form={form} repeats={repeats} instrument={instrument} values={watched} />
+
+      <div className="grid grid-cols-2 gap-2">
+        <Field label="Temperature, °C" error={errors.temperatureC?.message} hint="Of the part; optional.">
+          <Input {...register('temperatureC')} inputMode="decimal" className="figures h-8! text-sm" />
+        </Field>
+        <Field label="Material" error={errors.material?.message} hint="To correct to 20 °C.">
+          <Select {...register('material')} size="sm">
+            <option value="">None</option>
+            {materialNames.map((m) => (
+              <option key={m} value={m}>
+                {materialExpansion[m].label}
+              </option>
+            ))}
+          </Select>
+        </Field>
+      </div>
+
+      <Field label="Taken on" error={errors.takenOn?.message} hint="Calibration and zero checks are judged on this day.">
+        <Input type="date" {...register('takenOn')} className="figures h-8! text-sm" />
+      </Field>
+      <Field label="Note" error={errors.note?.message}>
+        <Textarea {...register('note')} rows={2} className="text-sm" />
+      </Field>
+
+      {momentMissing && momentId === null && (
+        <p role="alert" className="flex items-start gap-1.5 text-sm text-danger">
+          <WarningIcon />
+          <span>No moment is marked for this reading: mark one above (Mark), then save.</span>
+        </p>
+      )}
+      {errors.root?.moment?.message && (
+        <p role="alert" className="flex items-start gap-1.5 text-sm text-danger">
+          <WarningIcon />
+          <span>Moment: {errors.root.moment.message}</span>
+        </p>
+      )}
+      {errors.root?.server?.message && (
+        <p role="alert" className="flex items-start gap-1.5 text-sm text-danger">
+          <WarningIcon />
+          <span>Not saved: {errors.root.server.message}</span>
+        </p>
+      )}
+
+      <div className="flex flex-wrap gap-2">
+        <Button type="submit" variant="primary" loading={formState.isSubmitting} loadingText="Saving…">
+          Save reading
+        </Button>
+        <Button variant="quiet" onClick={onCancel}>
+          Cancel
+        </Button>
+      </div>
+    </form>
+  );
+}
+
+/** The instrument's unit, resolution, calibration on the day and zero check, with warnings right there. */
+function InstrumentState({ instrument, takenOn }: { instrument: Instrument; takenOn: string }) {
+  const day = /^\d{4}-\d{2}-\d{2}$/.test(takenOn) ? takenOn : null;
+  const state = day ? calibrationStateOn(instrument, day) : instrument.calibrationState;
+  const due = calibrationDueOn(instrument.lastCalibratedOn, instrument.calibrationIntervalDays);
+  const symbol = unitSymbols[instrument.unit];
+  const needsZero = zeroCheckedKinds.has(instrument.kind);
+  const zeroToday = instrument.latestZeroCheck && instrument.latestZeroCheck.checkedOn === day ? instrument.latestZeroCheck : null;
+  return (
+    <div className="-mt-1 flex flex-col gap-1 text-xs" data-instrument-state="">
+      <p className="flex flex-wrap items-center gap-x-2 gap-y-1 text-ink-muted">
+        <span className="figures">
+          reads in {symbol}, resolution {instrument.resolution} {symbol}
+          {instrument.statedUncertainty ? `, stated u ${instrument.statedUncertainty} ${symbol}` : ''}
+        </span>
+        <CalibrationBadge state={state} />
+      </p>
+      {state === 'overdue' && (
+        <p className="flex items-start gap-1 text-danger">
+          <WarningIcon />
+          <span>
+            Calibration was due on {due}. A reading taken on {day} carries a calibration warning; check it against a standard or use
+            another instrument.
+          </span>
+        </p>
+      )}
+      {state === 'no-record' && (
+        <p className="flex items-start gap-1 text-verdict-undecided">
+          <WarningIcon />
+          <span>No calibration date on record: the reading carries a warning. Add it in the instruments register.</span>
+        </p>
+      )}
+      {needsZero && !zeroToday && (
+        <p className="flex items-start gap-1 text-verdict-undecided">
+          <WarningIcon />
+          <span>
+            No zero check on {day ?? 'that day'}
+            {instrument.latestZeroCheck ? ` (latest ${instrument.latestZeroCheck.checkedOn})` : ''}: no offset is subtracted and the
+            reading carries a warning. <Link to="/instruments">Log a zero check</Link> first if you can.
+          </span>
+        </p>
+      )}
+      {needsZero && zeroToday && (
+        <p className="figures text-ink-muted">
+          Zero check that day: offset {zeroToday.offset} {unitSymbols[zeroToday.unit]}, subtracted from this reading.
+        </p>
+      )}
+    </div>
+  );
+}
+
+/** The figure boxes for the chosen kind, each read back live ("reads as 0.5642 in") or told why not. */
+function FigureFields({
+  form,
+  repeats,
+  instrument,
+  values,
+}: {
+  form: ReturnType<typeof useForm<ReadingFormValues>>;
+  repeats: ReturnType<typeof useFieldArray<ReadingFormValues, 'values'>>;
+  instrument: Instrument | undefined;
+  values: ReadingFormValues;
+}) {
+  const { register, formState } = form;
+  const errors = formState.errors;
+  const unitHint = instrument ? `in ${unitSymbols[instrument.unit]} unless you type a unit` : 'with its unit';
+  const readBack = useMemo(() => readBackOf(values, instrument), [values, instrument]);
+  const fieldHasError = Boolean(errors.value || errors.passes || errors.stops || errors.values);
+
+  return (
+    <div className="flex flex-col gap-2">
+      {values.kind === 'direct' && (
+        <Field label="Value as shown" required error={errors.value?.message} hint={`As the instrument shows it, ${unitHint}: 0.5642, 0.5642 in, 564.2 thou.`}>
+          <Input {...register('value')} autoComplete="off" inputMode="decimal" className="figures h-8! text-sm" />
+        </Field>
+      )}
+      {values.kind === 'bracket' && (
+        <div className="grid grid-cols-2 gap-2">
+          <Field label="Thickest blade that enters" required error={errors.passes?.message} hint={unitHint}>
+            <Input {...register('passes')} autoComplete="off" inputMode="decimal" className="figures h-8! text-sm" />
+          </Field>
+          <Field label="Thinnest blade that does not" required error={errors.stops?.message} hint="must be thicker">
+            <Input {...register('stops')} autoComplete="off" inputMode="decimal" className="figures h-8! text-sm" />
+          </Field>
+        </div>
+      )}
+      {values.kind === 'repeated' && (
+        <fieldset className="flex flex-col gap-1.5">
+          <legend className="mb-1 text-sm font-medium">
+            Values as shown <span className="font-normal text-ink-muted">(at least 2; {unitHint})</span>
+          </legend>
+          <ol className="grid grid-cols-2 gap-1.5">
+            {repeats.fields.map((field, index) => (
+              <li key={field.id} className="flex items-start gap-1">
+                <Field
+                  label={<span className="sr-only">Value {index + 1}</span>}
+                  error={errors.values?.[index]?.text?.message}
+                  className="min-w-0 flex-1 [&>label]:sr-only"
+                >
+                  <Input {...register(`values.${index}.text`)} placeholder={`value ${index + 1}`} autoComplete="off" inputMode="decimal" className="figures h-8! text-sm" />
+                </Field>
+                {repeats.fields.length > 2 && (
+                  <Button size="sm" variant="quiet" className="h-8 px-1.5" onClick={() => repeats.remove(index)} aria-label={`Remove value ${index + 1}`}>
+                    ✕
+                  </Button>
+                )}
+              </li>
+            ))}
+          </ol>
+          {errors.values?.root?.message && (
+            <p className="flex items-start gap-1.5 text-sm text-danger">
+              <WarningIcon />
+              <span>{errors.values.root.message}</span>
+            </p>
+          )}
+          {repeats.fields.length < MAX_ENTERED_REPEATS && (
+            <Button size="sm" variant="quiet" className="self-start" onClick={() => repeats.append({ text: '' })}>
+              Add a value
+            </Button>
+          )}
+        </fieldset>
+      )}
+      {readBack && !(fieldHasError && !readBack.ok) && (
+        <p role="status" className={cn('figures flex items-start gap-1.5 text-xs', readBack.ok ? 'text-ink' : 'text-verdict-undecided')} data-read-back="">
+          {!readBack.ok && <WarningIcon />}
+          <span>{readBack.text}</span>
+        </p>
+      )}
+    </div>
+  );
+}
+
+/**
+ * What the typed figures read as, by `normaliseReadingFigures` (the server's check), and the
+ * engine's estimate with its standard uncertainty; or the first reason they do not read.
+ */
+function readBackOf(values: ReadingFormValues, instrument: Instrument | undefined): { ok: boolean; text: string } | null {
+  const figures = figuresOf(values);
+  const typed = 'value' in figures ? figures.value : 'passes' in figures ? `${figures.passes}${figures.stops}` : figures.values.join('');
+  if (!instrument || !typed?.trim()) return null;
+  const normal = normaliseReadingFigures(figures, instrument);
+  if (!normal.ok) return { ok: false, text: normal.problems[0]?.message ?? 'These figures do not read as lengths.' };
+  const f = normal.figures;
+  const symbol = unitSymbols[f.unit];
+  const shown =
+    values.kind === 'direct'
+      ? `reads as ${f.value} ${symbol}`
+      : values.kind === 'bracket'
+        ? `reads as ${f.passes} ${symbol} enters, ${f.stops} ${symbol} does not`
+        : `reads as ${f.values?.length ?? 0} values in ${symbol}: ${(f.values ?? []).join(', ')}`;
+  const zero = instrument.latestZeroCheck && instrument.latestZeroCheck.checkedOn === values.takenOn ? instrument.latestZeroCheck : null;
+  const temperature = values.temperatureC.trim() ? Number(values.temperatureC) : null;
+  const { engine } = toEngineReading(
+    { ...f, kind: values.kind, temperatureC: Number.isFinite(temperature) ? temperature : null, material: values.material || null },
+    instrument,
+    zero,
+  );
+  const checked = engineReadingSchema.safeParse(engine);
+  if (!checked.success) return { ok: true, text: shown };
+  const evaluated = evaluateReading(keyFromName(values.name || 'reading'), checked.data);
+  const estimate = formatLength(evaluated.valuePm, evaluated.unit, evaluated.displayStepPm);
+  return { ok: true, text: `${shown}; estimate ${estimate}, u = ${formatUncertainty(evaluated.standardUncertaintyUm, evaluated.unit)}` };
+}
