@@ -44,10 +44,10 @@ describe('a builder keeps an instruments register and a spec library', () => {
       await page.goto(`${site.url}/auth/github?login=demo-builder&returnTo=%2Finstruments`);
       await page.getByRole('heading', { name: 'Instruments', level: 1 }).waitFor();
       const table = page.getByRole('table', { name: 'Your instruments' });
-      await table.getByText('0–1 in outside micrometer').waitFor();
+      await table.getByText('0–1 in outside micrometer', { exact: true }).first().waitFor();
       // The seed keeps one of Ines's instruments past its due date on purpose.
       await expect(table.locator('[data-calibration="overdue"]').count()).resolves.toBeGreaterThan(0);
-      await page.getByText(/past the calibration due date/).waitFor();
+      await page.getByText(/past the calibration due date/).first().waitFor();
 
       const name = `Browser check micrometer ${run}`;
       await page.getByRole('button', { name: 'Add an instrument' }).click();
@@ -161,7 +161,7 @@ describe('a builder keeps an instruments register and a spec library', () => {
       await page.goto(`${site.url}/auth/github?login=demo-builder&returnTo=%2Fspecs`);
       await page.getByRole('heading', { name: 'Spec library', level: 1 }).waitFor();
       const table = page.getByRole('table', { name: 'Specs in the library' });
-      await table.getByText('Vellum 1100 oil pump rotor end float').waitFor();
+      await table.getByText('Vellum 1100 oil pump rotor end float').first().waitFor();
       // Starter specs say their figures are invented for the demo.
       await expect(table.getByText('demo figures').count()).resolves.toBeGreaterThan(0);
       await page.screenshot({ path: shot('specs-1280'), fullPage: true });
