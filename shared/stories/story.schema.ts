@@ -75,6 +75,8 @@ export const storySchema = z.object({
   coverUrl: z.string().nullable(),
   body: z.string(),
   state: z.enum(storyStates),
+  /** An earlier revision is public (it stays public while a newer one is in review). */
+  hasPublicRevision: z.boolean(),
   wordCount: z.number().int().nonnegative(),
   lockVersion: z.number().int().positive(),
   updatedBy: z.number().int().positive(),

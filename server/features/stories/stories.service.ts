@@ -72,6 +72,7 @@ function toDto(story: Story, build: Build, covers: Map<number, string>): StoryDt
     coverUrl: story.coverMomentId == null ? null : (covers.get(story.coverMomentId) ?? null),
     body: story.body,
     state: story.state,
+    hasPublicRevision: story.publishedPublicationId !== null,
     wordCount: countWords(story.body),
     lockVersion: story.lockVersion,
     updatedBy: story.updatedBy,
