@@ -13,6 +13,7 @@ export const capturedMessageSchema = z.object({
   headers: z.record(z.string(), z.string()),
   sizeBytes: z.number().int().nonnegative(),
 });
+/** A captured message. */
 export type CapturedMessage = z.infer<typeof capturedMessageSchema>;
 
 /** Response of `GET /api/admin/outbox`: `capturing` is false when real SMTP is configured. */
@@ -20,4 +21,5 @@ export const outboxResponseSchema = z.object({ capturing: z.boolean(), items: z.
 
 /** Response of `GET /api/unsubscribe?token=`: what the token would stop. */
 export const unsubscribeInfoSchema = z.object({ builderName: z.string(), followerName: z.string(), subscribed: z.boolean() });
+/** Query of `GET` and `POST /api/unsubscribe`: the signed token from the message. */
 export const unsubscribeQuerySchema = z.object({ token: z.string().min(10).max(300) });

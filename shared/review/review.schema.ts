@@ -13,11 +13,13 @@ export const transitionInputSchema = z.strictObject({
   /** The story version the person was looking at; a newer one is refused (409 edit_conflict). */
   lockVersion: z.number().int().positive(),
 });
+/** A parsed transition body. */
 export type TransitionInput = z.infer<typeof transitionInputSchema>;
 
-/** Why publishing is refused, one line per problem. */
+/** Why publishing is refused, one line per problem (409 `publish_blocked`, one detail each, `path` = the code). */
 export const publishBlockerCodes = [
   'unchecked',
+  'changed-since-checked',
   'flagged',
   'claim-broken',
   'claim-unknown',
@@ -27,11 +29,13 @@ export const publishBlockerCodes = [
   'no-claim-held',
   'no-claims',
 ] as const;
+/** One reason publishing is refused: its code, words a moderator can act on, and what it is about. */
 export const publishBlockerSchema = z.object({
   code: z.enum(publishBlockerCodes),
   message: z.string(),
   subject: z.object({ type: z.enum(['reading', 'clearance', 'claim', 'story']), key: z.string().nullable() }),
 });
+/** One reason publishing is refused. */
 export type PublishBlocker = z.infer<typeof publishBlockerSchema>;
 
 /** Body of `POST /api/review/checks`: one judgement of a reading or clearance, for a story. */
@@ -53,6 +57,7 @@ export const answerInputSchema = z.strictObject({
   body: z.string().trim().min(3, 'write an answer (at least 3 characters)').max(4000, 'at most 4000 characters'),
 });
 
+/** The builder's answer to a flag, as the API shows it. */
 export const checkAnswerSchema = z.object({
   id: z.number().int().positive(),
   body: z.string(),
@@ -61,6 +66,7 @@ export const checkAnswerSchema = z.object({
   createdAt: z.string(),
 });
 
+/** A moderator's check or flag of one reading or clearance, with the builder's answers. */
 export const evidenceCheckSchema = z.object({
   id: z.number().int().positive(),
   storyId: z.number().int().positive(),
@@ -78,6 +84,7 @@ export const evidenceCheckSchema = z.object({
   createdAt: z.string(),
   answers: z.array(checkAnswerSchema),
 });
+/** A check as the API shows it. */
 export type EvidenceCheckDto = z.infer<typeof evidenceCheckSchema>;
 
 /** One row of the review queue. */
@@ -98,13 +105,16 @@ export const queueItemSchema = z.object({
   /** Already published once: this is a new revision. */
   republication: z.boolean(),
 });
+/** Response of `GET /api/review/queue`: oldest sent first; pass `nextAfter` as `after` for the next page. */
 export const queueResponseSchema = z.object({ items: z.array(queueItemSchema), nextAfter: z.string().nullable() });
+/** Query of `GET /api/review/queue`. */
 export const queueQuerySchema = z.object({
   /** Keyset: `<submittedAt ISO>_<storyId>` of the last row seen. */
   after: z.string().regex(/^\d{4}-\d{2}-\d{2}T[\d:.]+Z_\d+$/).optional(),
   limit: z.coerce.number().int().min(1).max(100).default(50),
 });
 
+/** One line of the audit log: who did what to what, when, with the state before and after. */
 export const auditEntrySchema = z.object({
   id: z.string(),
   at: z.string(),
@@ -118,7 +128,9 @@ export const auditEntrySchema = z.object({
   after: z.record(z.string(), z.unknown()).nullable(),
   note: z.string(),
 });
+/** Response of the audit routes: newest first; pass `nextBefore` as `before` for older lines. */
 export const auditListResponseSchema = z.object({ items: z.array(auditEntrySchema), nextBefore: z.string().nullable() });
+/** Query of `GET /api/review/audit` and `GET /api/stories/:storyId/audit`. */
 export const auditQuerySchema = z.object({
   storyId: z.coerce.number().int().positive().optional(),
   before: z.string().regex(/^\d+$/).optional(),

@@ -7,6 +7,7 @@ import type { StoryState } from '../stories/story.schema';
 
 /** Actions on a story's workflow. */
 export const storyActions = ['submit', 'request-changes', 'publish', 'withdraw', 'republish'] as const;
+/** One action on a story's workflow. */
 export type StoryAction = (typeof storyActions)[number];
 
 /** Who is acting, relative to the story. */

@@ -66,7 +66,7 @@ export function changesRequestedMail(publicUrl: string, story: StoryRef, builder
     compose({
       to: builder,
       kind: 'changes-requested',
-      subject: `Changes asked for: ${story.title}`,
+      subject: `Changes requested: ${story.title}`,
       paragraphs: [
         `A moderator looked at "${story.title}" and asked for changes before it can be published.`,
         `Reason: ${reason}`,
@@ -104,14 +104,16 @@ export function withdrawnMail(publicUrl: string, story: StoryRef, builder: Perso
 }
 
 /**
- * To each follower: a builder they follow published. Carries a signed one-click unsubscribe
- * link in the body and in the List-Unsubscribe / List-Unsubscribe-Post headers (RFC 8058).
+ * To each follower: a builder they follow published (or published a revised version of) a story.
+ * Carries a signed one-click unsubscribe link in the body and in the List-Unsubscribe and
+ * List-Unsubscribe-Post headers (RFC 8058), so a mail client can offer its own button.
  */
 export function followerMails(
   publicUrl: string,
-  story: StoryRef & { summary: string },
+  story: StoryRef & { summary: string; revision: number },
   followers: (Person & { unsubscribeToken: string })[],
 ): OutgoingMail[] {
+  const revised = story.revision > 1;
   return followers
     .map((to) => {
       const oneClick = `${publicUrl}/api/unsubscribe?token=${encodeURIComponent(to.unsubscribeToken)}`;
@@ -119,14 +121,16 @@ export function followerMails(
       return compose({
         to,
         kind: 'follower-story-published',
-        subject: `${story.builderName} published: ${story.title}`,
+        subject: `${story.builderName} ${revised ? 'revised' : 'published'}: ${story.title}`,
         paragraphs: [
-          `${story.builderName} published a new diary entry of ${story.buildTitle}: "${story.title}".`,
+          revised
+            ? `${story.builderName} published a revised version of a diary entry of ${story.buildTitle}: "${story.title}" (revision ${story.revision}).`
+            : `${story.builderName} published a new diary entry of ${story.buildTitle}: "${story.title}".`,
           ...(story.summary ? [story.summary] : []),
-          'Every claim in it links to the reading, the moment in the clip and the computation, checked by a moderator.',
+          'Every claim in it links to the reading, the moment in the clip and the computation, checked by a moderator against the footage.',
         ],
         link: { url: `${publicUrl}/stories/${story.id}`, label: 'Read it' },
-        footer: [STANDING_NOTE, `You get this because you follow ${story.builderName}. Stop these messages: ${page}`],
+        footer: [STANDING_NOTE, `You get this because you follow ${story.builderName}. Stop these messages with one click: ${page}`],
         headers: { 'List-Unsubscribe': `<${oneClick}>`, 'List-Unsubscribe-Post': 'List-Unsubscribe=One-Click' },
       });
     })

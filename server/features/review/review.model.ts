@@ -85,6 +85,8 @@ export function initReviewModels(sequelize: Sequelize) {
   EvidenceCheck.init(
     {
       id: { type: DataTypes.INTEGER, autoIncrement: true, primaryKey: true },
+      // Declared here: no association from checks to stories defines the column.
+      storyId: { type: DataTypes.INTEGER, allowNull: false },
       subjectType: { type: DataTypes.STRING(16), allowNull: false },
       subjectId: { type: DataTypes.INTEGER, allowNull: false },
       subjectLockVersion: { type: DataTypes.INTEGER, allowNull: false },

@@ -1,3 +1,4 @@
+import type { Logger } from 'pino';
 import { Op, type Transaction } from 'sequelize';
 import type { z } from 'zod';
 import type { Clearance as ClearanceDto } from '@shared/clearances/clearance.schema';
@@ -9,7 +10,7 @@ import type {
   queueItemSchema,
   TransitionInput,
 } from '@shared/review/review.schema';
-import { canTransition, type Actor } from '@shared/review/workflow';
+import { canTransition, transitions, type Actor, type StoryAction } from '@shared/review/workflow';
 import { claimTargetsFrom } from '@shared/stories/claims';
 import { renderStory, type RenderedClaim } from '@shared/stories/render';
 import type { StoryState } from '@shared/stories/story.schema';
@@ -40,7 +41,7 @@ const reviewers = new Set(['moderator', 'admin']);
 export interface ReviewDeps {
   config: Pick<Config, 'publicUrl' | 'sessionSecret'>;
   queue: Queue | null;
-  logger?: { warn: (obj: object, msg: string) => void };
+  logger?: Logger;
   /** The clock, injectable so claim expiry can be tested without waiting. */
   now?: () => Date;
 }
@@ -118,19 +119,35 @@ function subjectsOf(e: StoryEvidence): Subject[] {
   ];
 }
 
-/** Every reason publishing would be refused now, for `moderator`. Empty means it may be published. */
-export async function publishBlockers(story: Story, build: Build, moderator: User, now: Date): Promise<PublishBlocker[]> {
+/** The evidence of a story and the latest check of each thing it relies on, read once for a decision. */
+export interface Judged {
+  evidence: StoryEvidence;
+  checks: Awaited<ReturnType<typeof latestChecks>>;
+}
+
+async function judge(story: Pick<Story, 'buildId' | 'body'>, transaction?: Transaction): Promise<Judged> {
+  const evidence = await evidenceOf(story);
+  return { evidence, checks: await latestChecks(subjectsOf(evidence), transaction) };
+}
+
+/**
+ * Every reason publishing would be refused now, for `moderator`, one line per problem. Empty
+ * means it may be published. `judged` is passed when the caller has already read the evidence,
+ * so the decision and the publication are made from the same figures.
+ */
+export async function publishBlockers(story: Story, build: Build, moderator: User, now: Date, judged?: Judged, transaction?: Transaction): Promise<PublishBlocker[]> {
   const blockers: PublishBlocker[] = [];
+  const storySubject = { type: 'story' as const, key: null };
   if (build.ownerId === moderator.id) {
-    blockers.push({ code: 'own-story', message: 'You cannot approve a story of your own build; another moderator must.', subject: { type: 'story', key: null } });
+    blockers.push({ code: 'own-story', message: 'You cannot approve a story of your own build; another moderator must.', subject: storySubject });
   }
-  const claim = await ReviewClaim.findByPk(story.id);
+  const claim = await ReviewClaim.findByPk(story.id, { transaction });
   if (!claim || claim.moderatorId !== moderator.id || claim.expiresAt <= now) {
-    blockers.push({ code: 'no-claim-held', message: 'Take the story for review first, so no one else is checking it at the same time.', subject: { type: 'story', key: null } });
+    blockers.push({ code: 'no-claim-held', message: 'Take the story for review first, so no one else is checking it at the same time.', subject: storySubject });
   }
-  const e = await evidenceOf(story);
-  if (e.claims.length === 0) {
-    blockers.push({ code: 'no-claims', message: 'The story makes no claims linked to readings or clearances, so there is nothing to check.', subject: { type: 'story', key: null } });
+  const { evidence: e, checks } = judged ?? (await judge(story, transaction));
+  if (e.claims.length === 0 && e.broken.length === 0) {
+    blockers.push({ code: 'no-claims', message: 'The story makes no claims linked to readings or clearances, so there is nothing to check.', subject: storySubject });
   }
   for (const b of e.broken) {
     blockers.push({ code: 'claim-broken', message: `Line ${b.line}: "${b.text}" — ${b.message}`, subject: { type: 'claim', key: b.target } });
@@ -142,23 +159,33 @@ export async function publishBlockers(story: Story, build: Build, moderator: Use
       blockers.push({ code: 'claim-disagrees', message: `Line ${c.line}: "${c.text}" — ${c.status.message}`, subject: { type: 'claim', key: `${c.kind}:${c.key}` } });
     }
   }
-  const checks = await latestChecks(subjectsOf(e));
-  const judge = (type: 'reading' | 'clearance', id: number, key: string, name: string) => {
+  const judgeOne = (type: 'reading' | 'clearance', id: number, key: string, name: string) => {
     const check = checks.get(`${type}:${id}`);
-    if (!check || !check.current) {
-      blockers.push({ code: 'unchecked', message: `The ${type} "${name}" (${key}) has not been checked${check ? ' since it was changed' : ''}.`, subject: { type, key } });
+    if (!check) {
+      blockers.push({ code: 'unchecked', message: `The ${type} "${name}" (${key}) has not been checked against the footage.`, subject: { type, key } });
+    } else if (!check.current) {
+      // The check was of what the builder had entered then; what is there now has not been looked at.
+      blockers.push({ code: 'changed-since-checked', message: `The ${type} "${name}" (${key}) has changed since it was ${check.state}; check it again.`, subject: { type, key } });
     } else if (check.state === 'flagged') {
       blockers.push({ code: 'flagged', message: `The ${type} "${name}" (${key}) is flagged: ${check.comment}`, subject: { type, key } });
     }
   };
-  for (const r of e.citedReadings) judge('reading', r.id, r.key, r.name);
+  for (const r of e.citedReadings) judgeOne('reading', r.id, r.key, r.name);
   for (const c of e.citedClearances) {
-    judge('clearance', c.id, c.key, c.name);
+    judgeOne('clearance', c.id, c.key, c.name);
     if (c.spec && c.spec.sourceText.trim().length === 0) {
       blockers.push({ code: 'spec-without-source', message: `The spec of "${c.name}" cites no source.`, subject: { type: 'clearance', key: c.key } });
     }
   }
   return blockers;
+}
+
+/**
+ * Whether a published revision is shown to the public now. A withdrawal stands until it is
+ * lifted (republish) or a new revision passes review, even while a new revision is in review.
+ */
+export function isPublicNow(story: Pick<Story, 'publishedPublicationId' | 'withdrawnBy' | 'state'>): boolean {
+  return story.publishedPublicationId !== null && story.withdrawnBy === null && story.state !== 'withdrawn';
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -175,9 +202,17 @@ export async function storyForReview(storyId: number, user: User | undefined, tr
   return { story, build };
 }
 
-function actorFor(user: User, build: Build): Actor | null {
-  if (build.ownerId === user.id) return 'builder';
-  if (reviewers.has(user.role)) return 'moderator';
+/**
+ * Who the user is for this action. A moderator who is also the builder acts as the builder where
+ * builders may act, and as a moderator elsewhere, so that approving their own story is refused by
+ * the publish gate (own-story) rather than passing for a builder's move.
+ */
+function actorFor(user: User, build: Build, action: StoryAction): Actor | null {
+  const owns = build.ownerId === user.id;
+  const reviews = reviewers.has(user.role);
+  const builderMay = transitions.find((t) => t.action === action)?.by.includes('builder') ?? false;
+  if (owns && (builderMay || !reviews)) return 'builder';
+  if (reviews) return 'moderator';
   return null;
 }
 
@@ -209,7 +244,18 @@ export async function claimStory(storyId: number, moderator: User, deps: ReviewD
     const expiresAt = new Date(now.getTime() + CLAIM_MINUTES * 60_000);
     if (existing) await existing.update({ moderatorId: moderator.id, claimedAt: now, expiresAt }, { transaction });
     else await ReviewClaim.create({ storyId: story.id, moderatorId: moderator.id, claimedAt: now, expiresAt }, { transaction });
-    await audit({ actorId: moderator.id, action: 'review.claim', subjectType: 'story', subjectId: story.id, storyId: story.id, after: { expiresAt: expiresAt.toISOString() } }, transaction);
+    await audit(
+      {
+        actorId: moderator.id,
+        action: 'review.claim',
+        subjectType: 'story',
+        subjectId: story.id,
+        storyId: story.id,
+        before: existing ? { moderatorId: existing.moderatorId, expiresAt: existing.expiresAt.toISOString() } : null,
+        after: { moderatorId: moderator.id, expiresAt: expiresAt.toISOString() },
+      },
+      transaction,
+    );
     return { storyId: story.id, moderatorId: moderator.id, moderatorName: moderator.displayName, expiresAt: expiresAt.toISOString() };
   });
 }
@@ -222,7 +268,18 @@ export async function releaseClaim(storyId: number, moderator: User) {
     if (!existing) return;
     if (existing.moderatorId !== moderator.id && moderator.role !== 'admin') throw forbidden('Only the moderator holding the story can let it go.');
     await existing.destroy({ transaction });
-    await audit({ actorId: moderator.id, action: 'review.release', subjectType: 'story', subjectId: story.id, storyId: story.id }, transaction);
+    await audit(
+      {
+        actorId: moderator.id,
+        action: 'review.release',
+        subjectType: 'story',
+        subjectId: story.id,
+        storyId: story.id,
+        before: { moderatorId: existing.moderatorId, expiresAt: existing.expiresAt.toISOString() },
+        after: null,
+      },
+      transaction,
+    );
   });
 }
 
@@ -264,8 +321,9 @@ export async function recordCheck(moderator: User, input: CheckInput, deps: Revi
       },
       { transaction },
     );
+    // Only the version judged: if the builder saved a change meanwhile, that one stays unchecked.
     const model = input.subjectType === 'reading' ? Reading : Clearance;
-    await (model as typeof Reading).update({ reviewState: input.state }, { where: { id: subject.id }, transaction, silent: true });
+    await (model as typeof Reading).update({ reviewState: input.state }, { where: { id: subject.id, lockVersion: subject.lockVersion }, transaction, silent: true });
     await audit(
       {
         actorId: moderator.id,
@@ -273,8 +331,8 @@ export async function recordCheck(moderator: User, input: CheckInput, deps: Revi
         subjectType: input.subjectType,
         subjectId: subject.id,
         storyId: story.id,
-        before: { reviewState: subject.reviewState },
-        after: { reviewState: input.state, lockVersion: subject.lockVersion, comment: input.comment },
+        before: { reviewState: subject.reviewState, lockVersion: subject.lockVersion },
+        after: { reviewState: input.state, lockVersion: subject.lockVersion, checkId: check.id, comment: input.comment },
       },
       transaction,
     );
@@ -294,7 +352,18 @@ export async function answerCheck(builder: User, checkId: number, body: string):
     if (build.ownerId !== builder.id) throw forbidden('Only the builder answers flags on their readings.');
     if (check.state !== 'flagged') throw conflict('Only a flag can be answered.', 'not_a_flag');
     const answer = await CheckAnswer.create({ checkId: check.id, body, authorId: builder.id }, { transaction });
-    await audit({ actorId: builder.id, action: 'check.answered', subjectType: check.subjectType, subjectId: check.subjectId, storyId: check.storyId, after: { answerId: answer.id, body } }, transaction);
+    await audit(
+      {
+        actorId: builder.id,
+        action: 'check.answered',
+        subjectType: check.subjectType,
+        subjectId: check.subjectId,
+        storyId: check.storyId,
+        before: { checkId: check.id, state: check.state, comment: check.comment },
+        after: { checkId: check.id, answerId: answer.id, body },
+      },
+      transaction,
+    );
   });
   return (await checkDtos({ where: { id: checkId } }))[0]!;
 }
@@ -350,15 +419,17 @@ export async function transition(storyId: number, user: User, input: TransitionI
   const mails: OutgoingMail[] = [];
   const result = await Story.sequelize!.transaction(async (transaction) => {
     const { story, build } = await storyForReview(storyId, user, transaction);
-    const actor = actorFor(user, build);
+    const actor = actorFor(user, build, input.action);
     if (!actor) throw forbidden('Only the builder or a moderator can do that.');
     if (story.lockVersion !== input.lockVersion) throw editConflict('story', story);
-    const verdict = canTransition(input.action, story.state, actor, { hasPublicRevision: story.publishedPublicationId !== null, reason: input.reason });
+    // Republishing shows a withdrawn revision again; every other move asks whether one is public now.
+    const hasPublicRevision = input.action === 'republish' ? story.publishedPublicationId !== null : isPublicNow(story);
+    const verdict = canTransition(input.action, story.state, actor, { hasPublicRevision, reason: input.reason });
     if (!verdict.ok) {
-      if (verdict.code === 'reason_required') throw badRequest(verdict.message, [{ path: 'reason', message: verdict.message }]);
+      if (verdict.code === 'reason_required') throw badRequest(verdict.message, [{ path: 'reason', message: verdict.message }], 'reason_required');
       throw new AppError(verdict.code === 'not_your_role' ? 403 : 409, verdict.code === 'not_your_role' ? 'forbidden' : verdict.code, verdict.message);
     }
-    const before = { state: story.state, publishedPublicationId: story.publishedPublicationId };
+    const before = { state: story.state, publishedPublicationId: story.publishedPublicationId, withdrawnBy: story.withdrawnBy };
     const owner = (await User.findByPk(build.ownerId, { transaction }))!;
     const ref = { id: story.id, title: story.title, buildTitle: build.title, builderName: owner.displayName };
     const reason = input.reason?.trim() ?? '';
@@ -368,6 +439,7 @@ export async function transition(storyId: number, user: User, input: TransitionI
     switch (input.action) {
       case 'submit': {
         changes.submittedAt = now;
+        // A new submission is a new review: whoever held the last one lets go.
         await ReviewClaim.destroy({ where: { storyId: story.id }, transaction });
         const moderators = await User.findAll({ where: { role: 'moderator', id: { [Op.ne]: owner.id } }, transaction });
         mails.push(...submittedMails(deps.config.publicUrl, ref, moderators.map(person)));
@@ -376,23 +448,35 @@ export async function transition(storyId: number, user: User, input: TransitionI
       case 'request-changes': {
         if (build.ownerId === user.id) throw forbidden('You cannot review a story of your own build.');
         await assertClaimHeld(story, user, now, transaction);
-        const flags = (await checkDtos({ where: { storyId: story.id, state: 'flagged' } })).filter((c) => c.current);
-        mails.push(...changesRequestedMail(deps.config.publicUrl, ref, person(owner), reason, flags.map((f) => `${f.subjectName}: ${f.comment}`)));
+        const { evidence, checks } = await judge(story, transaction);
+        const names = new Map<string, string>([
+          ...evidence.citedReadings.map((r) => [`reading:${r.id}`, r.name] as const),
+          ...evidence.citedClearances.map((c) => [`clearance:${c.id}`, c.name] as const),
+        ]);
+        // The flags that stand now: a later check of the same version replaces an earlier flag.
+        const flags = [...checks.entries()].filter(([, c]) => c.current && c.state === 'flagged').map(([k, c]) => `${names.get(k) ?? k}: ${c.comment}`);
+        mails.push(...changesRequestedMail(deps.config.publicUrl, ref, person(owner), reason, flags));
         await ReviewClaim.destroy({ where: { storyId: story.id }, transaction });
         break;
       }
       case 'publish': {
-        const blockers = await publishBlockers(story, build, user, now);
+        const judged = await judge(story, transaction);
+        const blockers = await publishBlockers(story, build, user, now, judged, transaction);
         if (blockers.length) {
-          throw new AppError(409, 'publish_blocked', `This story cannot be published yet: ${blockers.length} problem${blockers.length === 1 ? '' : 's'} to resolve.`, blockers.map((b) => ({ path: b.code, message: b.message })));
+          throw new AppError(
+            409,
+            'publish_blocked',
+            `This story cannot be published yet: ${blockers.length} problem${blockers.length === 1 ? '' : 's'} to resolve.`,
+            blockers.map((b) => ({ path: b.code, message: b.message })),
+          );
         }
-        publication = await publish(story, build, user, transaction);
+        publication = await publish(story, build, user, judged, transaction);
         changes.publishedPublicationId = publication.id;
         changes.withdrawnReason = null;
         changes.withdrawnBy = null;
         await ReviewClaim.destroy({ where: { storyId: story.id }, transaction });
         mails.push(...publishedMail(deps.config.publicUrl, ref, person(owner), publication.number));
-        mails.push(...(await followerMailsFor(deps, { ...ref, summary: story.summary }, owner.id, transaction)));
+        mails.push(...(await followerMailsFor(deps, { ...ref, summary: story.summary, revision: publication.number }, owner.id, transaction)));
         break;
       }
       case 'withdraw': {
@@ -405,7 +489,7 @@ export async function transition(storyId: number, user: User, input: TransitionI
       case 'republish': {
         // A moderator's withdrawal stands until a moderator lifts it (or a new review passes).
         if (actor === 'builder' && story.withdrawnBy !== null && story.withdrawnBy !== user.id) {
-          throw forbidden('A moderator withdrew this story; send it for review again instead.');
+          throw new AppError(403, 'withdrawn_by_moderator', 'A moderator withdrew this story; only a moderator can show it again. Send it for review instead.');
         }
         changes.withdrawnReason = null;
         changes.withdrawnBy = null;
@@ -421,14 +505,24 @@ export async function transition(storyId: number, user: User, input: TransitionI
         subjectId: story.id,
         storyId: story.id,
         before,
-        after: { state: verdict.to, publishedPublicationId: changes.publishedPublicationId ?? story.publishedPublicationId, ...(publication && { revision: publication.number }) },
+        after: {
+          state: verdict.to,
+          publishedPublicationId: changes.publishedPublicationId ?? story.publishedPublicationId,
+          withdrawnBy: changes.withdrawnBy !== undefined ? changes.withdrawnBy : story.withdrawnBy,
+          ...(publication && { revision: publication.number }),
+        },
         note: reason,
       },
       transaction,
     );
     return { storyId: story.id, state: verdict.to as StoryState, revision: publication?.number ?? null };
   });
-  await enqueueMail(deps.queue, mails, deps.logger as never);
+  // The move has committed; mail that cannot be queued now is logged, never turned into a failed move.
+  try {
+    await enqueueMail(deps.queue, mails, deps.logger);
+  } catch (err) {
+    deps.logger?.error({ err, storyId, action: input.action, count: mails.length }, 'could not queue the mail for a story move');
+  }
   return result;
 }
 
@@ -445,15 +539,20 @@ async function followerMailsFor(deps: ReviewDeps, story: Parameters<typeof follo
   );
 }
 
-/** Writes the public revision: the story's text and the figures of every claim as judged now. */
-async function publish(story: Story, build: Build, moderator: User, transaction: Transaction): Promise<StoryPublication> {
-  const e = await evidenceOf(story);
-  const checks = await latestChecks(subjectsOf(e), transaction);
+/**
+ * Writes the public revision: the story's text and, for every claim, what it was judged on: the
+ * reading's or clearance's version and figures, the spec version, and who checked it and when.
+ */
+async function publish(story: Story, build: Build, moderator: User, judged: Judged, transaction: Transaction): Promise<StoryPublication> {
+  const { evidence: e, checks } = judged;
   const people = await personsOf([...checks.values()].map((c) => c.moderatorId));
   const checked = (type: 'reading' | 'clearance', id: number) => {
+    // The gate has just passed, so every cited subject has a current check.
     const c = checks.get(`${type}:${id}`)!;
-    return { by: c.moderatorId, byName: people.get(c.moderatorId)?.displayName ?? '', at: c.createdAt.toISOString(), lockVersion: c.subjectLockVersion };
+    return { checkId: c.id, by: c.moderatorId, byName: people.get(c.moderatorId)?.displayName ?? '', at: c.createdAt.toISOString(), lockVersion: c.subjectLockVersion };
   };
+  const readingByKey = new Map(e.citedReadings.map((r) => [r.key, r]));
+  const clearanceByKey = new Map(e.citedClearances.map((c) => [c.key, c]));
   const last = (await StoryPublication.max('number', { where: { storyId: story.id }, transaction })) as number | null;
   return StoryPublication.create(
     {
@@ -467,7 +566,25 @@ async function publish(story: Story, build: Build, moderator: User, transaction:
       body: story.body,
       evidence: {
         buildId: build.id,
-        claims: e.claims.map((c) => ({ kind: c.kind, key: c.key, text: c.text, line: c.line })),
+        storyLockVersion: story.lockVersion,
+        claims: e.claims.map((c) => {
+          const subject = c.kind === 'reading' ? readingByKey.get(c.key) : clearanceByKey.get(c.key);
+          const clearance = c.kind === 'clearance' ? clearanceByKey.get(c.key) : undefined;
+          return {
+            kind: c.kind,
+            key: c.key,
+            text: c.text,
+            line: c.line,
+            status: c.status.state,
+            display: c.target?.display ?? null,
+            verdict: c.target?.verdict ?? null,
+            subjectId: subject?.id ?? null,
+            lockVersion: subject?.lockVersion ?? null,
+            specVersionId: clearance?.specVersionId ?? null,
+            specVersion: clearance?.spec?.version ?? null,
+            checked: subject ? checked(c.kind, subject.id) : null,
+          };
+        }),
         readings: e.citedReadings.map((r) => ({ ...r, checked: checked('reading', r.id) })),
         clearances: e.citedClearances.map((c) => ({ ...c, checked: checked('clearance', c.id) })),
       },
@@ -561,7 +678,8 @@ export async function reviewSheet(storyId: number, user: User, deps: ReviewDeps)
       builderId: build.ownerId,
       body: story.body,
       submittedAt: story.submittedAt?.toISOString() ?? null,
-      hasPublicRevision: story.publishedPublicationId !== null,
+      hasPublicRevision: isPublicNow(story),
+      publishedPublicationId: story.publishedPublicationId,
     },
     claim: claim && claim.expiresAt > now ? { moderatorId: claim.moderatorId, moderatorName: holder?.displayName ?? '', expiresAt: claim.expiresAt.toISOString() } : null,
     readings: e.citedReadings.map((r) => ({

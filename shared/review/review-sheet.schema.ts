@@ -1,0 +1,85 @@
+/**
+ * Responses of the review routes that carry more than one feature's records: the review sheet
+ * of one story, a claim on it, a recorded check and a workflow move. Built from the readings',
+ * clearances' and review's own schemas so the browser parses exactly what the server sends.
+ */
+import { z } from 'zod';
+import { clearanceSchema } from '../clearances/clearance.schema';
+import { readingSchema } from '../readings/reading.schema';
+import { storyStates } from '../stories/story.schema';
+import { evidenceCheckSchema, publishBlockerSchema } from './review.schema';
+
+/** How a claim stands against its target (shared/stories/claims.ts `ClaimStatus`). */
+export const claimStatusSchema = z.discriminatedUnion('state', [
+  z.object({ state: z.literal('ok') }),
+  z.object({ state: z.literal('unknown-target'), message: z.string() }),
+  z.object({ state: z.literal('number-disagrees'), message: z.string(), statedUm: z.number() }),
+  z.object({ state: z.literal('verdict-disagrees'), message: z.string() }),
+]);
+
+/** A sentence of the story that cites a reading or clearance, with how its words stand. */
+export const citingSentenceSchema = z.object({ text: z.string(), line: z.number().int(), status: claimStatusSchema });
+
+/** The latest check of a subject: `current` is false once the subject changed after it. */
+export const sheetCheckSchema = z.object({
+  checkId: z.number().int().positive(),
+  state: z.enum(['checked', 'flagged']),
+  current: z.boolean(),
+  comment: z.string(),
+});
+export type SheetCheck = z.infer<typeof sheetCheckSchema>;
+
+/** Who holds a story for review, and until when (a live claim only). */
+export const reviewClaimSchema = z.object({
+  moderatorId: z.number().int().positive(),
+  moderatorName: z.string(),
+  expiresAt: z.string(),
+});
+
+/** Response of `GET /api/review/stories/:storyId`: everything needed to check one story. */
+export const reviewSheetSchema = z.object({
+  story: z.object({
+    id: z.number().int().positive(),
+    title: z.string(),
+    state: z.enum(storyStates),
+    lockVersion: z.number().int().positive(),
+    buildId: z.number().int().positive(),
+    buildTitle: z.string(),
+    builderId: z.number().int().positive(),
+    body: z.string(),
+    submittedAt: z.string().nullable(),
+    hasPublicRevision: z.boolean(),
+  }),
+  claim: reviewClaimSchema.nullable(),
+  readings: z.array(
+    z.object({
+      reading: readingSchema,
+      /** The cited clearances that sum this reading. */
+      usedBy: z.array(z.object({ id: z.number().int().positive(), key: z.string(), name: z.string(), display: z.string().nullable() })),
+      citedIn: z.array(citingSentenceSchema),
+      check: sheetCheckSchema.nullable(),
+    }),
+  ),
+  clearances: z.array(z.object({ clearance: clearanceSchema, citedIn: z.array(citingSentenceSchema), check: sheetCheckSchema.nullable() })),
+  claims: z.array(z.object({ kind: z.enum(['reading', 'clearance']), key: z.string(), text: z.string(), line: z.number().int(), status: claimStatusSchema })),
+  broken: z.array(z.object({ target: z.string(), text: z.string(), start: z.number().int(), end: z.number().int(), line: z.number().int(), message: z.string() })),
+  /** Empty for the story's builder (blockers are worked out for moderators). */
+  blockers: z.array(publishBlockerSchema),
+  /** Every check of the story, newest first, with the builder's answers. */
+  checks: z.array(evidenceCheckSchema),
+});
+export type ReviewSheet = z.infer<typeof reviewSheetSchema>;
+
+/** Response of `POST /api/review/stories/:storyId/claim`. */
+export const claimResponseSchema = z.object({ claim: reviewClaimSchema.extend({ storyId: z.number().int().positive() }) });
+
+/** Response of `POST /api/review/checks` and `POST /api/review/checks/:checkId/answers`. */
+export const checkResponseSchema = z.object({ check: evidenceCheckSchema });
+
+/** Response of `POST /api/stories/:storyId/transitions`. */
+export const transitionResponseSchema = z.object({
+  storyId: z.number().int().positive(),
+  state: z.enum(storyStates),
+  /** The public revision's number after a publish; null otherwise. */
+  revision: z.number().int().positive().nullable(),
+});
