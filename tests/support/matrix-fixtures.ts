@@ -1,5 +1,9 @@
+import path from 'node:path';
 import request from 'supertest';
 import { clipSchema, type Clip as ClipDto } from '@shared/clips/clip.schema';
+import { Follow } from '../../server/features/follows/follow.model';
+import { signUnsubscribe } from '../../server/features/follows/unsubscribe-token';
+import { ffmpegDirect } from './clips';
 import { csrfToken, freshAccount, signIn, type TestApp } from './test-app';
 
 /**
@@ -59,19 +63,114 @@ export async function waitUntilReady(s: Session, clipId: number, ms = 90_000): P
   }
 }
 
+type Verb = 'post' | 'patch' | 'delete';
+
+/** A state-changing request as `s`, with its CSRF token. */
+function send(s: Session, verb: Verb, url: string, body?: object) {
+  const req = s.agent[verb](url).set('x-csrf-token', s.token);
+  return body === undefined ? req : req.send(body);
+}
+
+/** The body of a request the fixture needs to succeed; anything else stops the set-up with what the server said. */
+async function expectStatus<T = Record<string, unknown>>(what: string, status: number, res: Promise<{ status: number; body: unknown }>): Promise<T> {
+  const r = await res;
+  if (r.status !== status) throw new Error(`fixture ${what} answered ${r.status}: ${JSON.stringify(r.body)}`);
+  return r.body as T;
+}
+
+/** One entry per actor, made by `make` (in parallel: each is independent of the others). */
+async function perActor(make: (actor: Actor, i: number) => Promise<number>): Promise<Record<Actor, number>> {
+  const ids = await Promise.all(actors.map((actor, i) => make(actor, i)));
+  return Object.fromEntries(actors.map((actor, i) => [actor, ids[i]!])) as Record<Actor, number>;
+}
+
+/** A key that is valid in the API ("matrix-spare-otherbuilder") for an actor's throwaway. */
+const keyFor = (prefix: string, actor: Actor) => `${prefix}-${actor.toLowerCase()}`;
+
 async function createBuild(owner: Session, title: string): Promise<{ buildId: number; partId: number }> {
-  const res = await owner.agent
-    .post('/api/builds')
-    .set('x-csrf-token', owner.token)
-    .send({ title, subject: 'invented engine for the authorization matrix', parts: [{ name: 'Matrix oil pump', serial: 'AM-0001' }] });
-  if (res.status !== 201) throw new Error(`fixture build answered ${res.status}: ${JSON.stringify(res.body)}`);
-  return { buildId: res.body.build.id as number, partId: res.body.build.parts[0].id as number };
+  const body = await expectStatus<{ build: { id: number; parts: { id: number }[] } }>(
+    'build',
+    201,
+    send(owner, 'post', '/api/builds', { title, subject: 'invented engine for the authorization matrix', parts: [{ name: 'Matrix oil pump', serial: 'AM-0001' }] }),
+  );
+  return { buildId: body.build.id, partId: body.build.parts[0]!.id };
 }
 
 async function addMoment(owner: Session, clipId: number, atMs: number, label: string): Promise<number> {
-  const res = await owner.agent.post(`/api/clips/${clipId}/moments`).set('x-csrf-token', owner.token).send({ atMs, label });
-  if (res.status !== 201) throw new Error(`fixture moment on clip ${clipId} answered ${res.status}: ${JSON.stringify(res.body)}`);
-  return res.body.moment.id as number;
+  const body = await expectStatus<{ moment: { id: number } }>(`moment on clip ${clipId}`, 201, send(owner, 'post', `/api/clips/${clipId}/moments`, { atMs, label }));
+  return body.moment.id;
+}
+
+async function addInstrument(owner: Session, name: string, kind: 'depth-micrometer' | 'outside-micrometer'): Promise<number> {
+  const body = await expectStatus<{ instrument: { id: number } }>(
+    `instrument ${name}`,
+    201,
+    send(owner, 'post', '/api/instruments', { name, kind, unit: 'in', resolution: '0.0001', serial: 'AM-MIC', lastCalibratedOn: '2026-01-05', calibrationIntervalDays: 3650 }),
+  );
+  return body.instrument.id;
+}
+
+async function addReading(owner: Session, buildId: number, fields: Record<string, unknown>): Promise<number> {
+  const body = await expectStatus<{ reading: { id: number } }>(
+    `reading ${String(fields.key)}`,
+    201,
+    send(owner, 'post', `/api/builds/${buildId}/readings`, { kind: 'direct', takenOn: '2026-11-20', ...fields }),
+  );
+  return body.reading.id;
+}
+
+async function addClearance(owner: Session, buildId: number, fields: Record<string, unknown>): Promise<number> {
+  const body = await expectStatus<{ clearance: { id: number } }>(`clearance ${String(fields.key)}`, 201, send(owner, 'post', `/api/builds/${buildId}/clearances`, fields));
+  return body.clearance.id;
+}
+
+async function addStory(owner: Session, buildId: number, title: string, body = matrixStoryBody): Promise<number> {
+  const res = await expectStatus<{ story: { id: number } }>(`story ${title}`, 201, send(owner, 'post', `/api/builds/${buildId}/stories`, { title, body }));
+  return res.story.id;
+}
+
+/** A story's lock version now, as its builder sees it. */
+export async function storyLockVersion(owner: Session, storyId: number): Promise<number> {
+  const res = await owner.agent.get(`/api/stories/${storyId}`);
+  if (res.status !== 200) throw new Error(`GET /api/stories/${storyId} answered ${res.status}`);
+  return res.body.story.lockVersion as number;
+}
+
+/** Sends a draft for review as its builder. */
+async function submit(owner: Session, storyId: number): Promise<void> {
+  const lockVersion = await storyLockVersion(owner, storyId);
+  await expectStatus(`submit of story ${storyId}`, 200, send(owner, 'post', `/api/stories/${storyId}/transitions`, { action: 'submit', lockVersion }));
+}
+
+/** A story in review, taken for review by `claimant` when given. */
+async function storyInReview(owner: Session, buildId: number, title: string, claimant?: Session): Promise<number> {
+  const id = await addStory(owner, buildId, title);
+  await submit(owner, id);
+  if (claimant) await expectStatus(`claim of story ${id}`, 200, send(claimant, 'post', `/api/review/stories/${id}/claim`));
+  return id;
+}
+
+/** Keys of the fixture build's cited reading and clearance. */
+export const matrixKeys = { depth: 'matrix-bore-depth', height: 'matrix-rotor-height', clearance: 'matrix-end-float' } as const;
+
+/**
+ * The body of every fixture story: two claims (a reading, and a clearance made of both readings),
+ * so a moderator has readings to check. Figures invented: 0.5642 in − 0.5595 in = 0.0047 in.
+ */
+export const matrixStoryBody = [
+  'The invented pump body sat on the surface plate, clean and dry, before anything was measured.',
+  '',
+  `[The bore depth read 0.5642 in](reading:${matrixKeys.depth}) with the depth micrometer.`,
+  '',
+  `[End float is 0.0047 in](clearance:${matrixKeys.clearance}), the rotor height taken off the bore depth.`,
+  '',
+].join('\n');
+
+/** A small real PNG (ffmpeg's test pattern, encoded by the ffmpeg the product runs), for image uploads. */
+export async function makeTestPng(dir: string, name = 'matrix.png'): Promise<string> {
+  const file = path.join(dir, name);
+  await ffmpegDirect(['-v', 'error', '-y', '-f', 'lavfi', '-i', 'testsrc2=size=64x48', '-frames:v', '1', file]);
+  return file;
 }
 
 export interface MatrixFixtures {
@@ -80,42 +179,190 @@ export interface MatrixFixtures {
   partId: number;
   /** A ready clip in that build: every `:clipId` except DELETE's. */
   clipId: number;
-  /** A moment on that clip: every `:momentId` except DELETE's. */
+  /** A moment on that clip: every `:momentId` except DELETE's; the fixture readings are taken at it. */
   momentId: number;
-  /** A fresh follower account: `:id` of the admin user routes. */
+  /** A fresh follower account: `:id` of the admin user routes, and the follower in the unsubscribe token. */
   userId: number;
+  /** The account id behind each signed-in actor. */
+  actorIds: Record<Exclude<Actor, 'anonymous'>, number>;
   /** Per actor, a clip of its own to try to delete (in a second build of the owner's). */
   clipToDelete: Record<Actor, number>;
   /** Per actor, a moment of its own to try to delete (on the ready clip). */
   momentToDelete: Record<Actor, number>;
+  /** The owner's inch depth micrometer, with readings logged: every `:instrumentId` except DELETE's. */
+  instrumentId: number;
+  /** Per actor, an instrument of the owner's with nothing logged, to try to delete. */
+  instrumentToDelete: Record<Actor, number>;
+  /** An unshared spec of the owner's (only its builder and reviewers may read it). */
+  specId: number;
+  /** The cited depth reading: every `:readingId` except DELETE's. */
+  readingId: number;
+  /** The rotor-height reading (the clearance's second term). */
+  heightReadingId: number;
+  /** Per actor, a reading no clearance uses and no story cites, to try to delete. */
+  readingToDelete: Record<Actor, number>;
+  /** The cited end-float clearance: every `:clearanceId` except DELETE's. */
+  clearanceId: number;
+  /** Per actor, a clearance no story cites, to try to delete. */
+  clearanceToDelete: Record<Actor, number>;
+  /** A draft citing the reading and the clearance, with a kept revision and an image. */
+  storyId: number;
+  /** The number of that story's kept revision (`:number`). */
+  revisionNumber: number;
+  /** An image of that story (`:imageId`). */
+  imageId: number;
+  /** Per actor, a draft to try to delete. */
+  storyToDelete: Record<Actor, number>;
+  /** Per actor, a draft to try to send for review. */
+  storyToSubmit: Record<Actor, number>;
+  /** Per actor, a story in review that nobody holds, to try to take for review. */
+  storyToClaim: Record<Actor, number>;
+  /** Per actor, a story in review held by the moderator, to try to let go. */
+  storyToRelease: Record<Actor, number>;
+  /**
+   * Per actor, a story in review to record a check on: the moderator's and the admin's are held
+   * by themselves (a check needs the hold), everyone else's by the moderator.
+   */
+  storyToCheck: Record<Actor, number>;
+  /** A story in review held by the moderator, whose depth reading the moderator flagged. */
+  flaggedStoryId: number;
+  /** That flag (`:checkId`), for the builder to answer. */
+  checkId: number;
+  /** A signed one-click unsubscribe token for `userId`'s mail about the owner (a real follows row). */
+  unsubscribeToken: string;
 }
 
 /**
- * Builds the fixtures once (call in beforeAll) as the owning builder: a build with a part, a
- * processed clip with a moment, a fresh follower account, and one throwaway clip and moment per
- * actor for the destructive routes, so that one actor's successful DELETE cannot change what
- * another actor's DELETE answers.
+ * Builds the fixtures once (call in beforeAll): as the owning builder, a build with a part, a
+ * processed clip with a moment, instruments, a spec, readings, a clearance and stories; as the
+ * moderator and admin, the holds and the flag the review routes need; a fresh follower account
+ * that follows the owner; and one throwaway per actor for every route whose success changes
+ * state, so that one actor's success cannot change what another actor's request answers.
+ * Independent steps run in parallel.
  */
-export async function buildMatrixFixtures(t: TestApp, owner: Session, clipFile: string): Promise<MatrixFixtures> {
-  const { buildId, partId } = await createBuild(owner, 'Authorization matrix build');
-  const clipId = await uploadClip(owner, buildId, clipFile);
-  await waitUntilReady(owner, clipId);
-  const momentId = await addMoment(owner, clipId, 500, 'Matrix moment');
+export async function buildMatrixFixtures(
+  t: TestApp,
+  sessions: Record<Actor, Session>,
+  files: { clip: string; image: string },
+): Promise<MatrixFixtures> {
+  const { owner, moderator, admin } = sessions;
+  const signedIn = actors.filter((a): a is Exclude<Actor, 'anonymous'> => a !== 'anonymous');
 
-  const spare = await createBuild(owner, 'Authorization matrix throwaway build');
+  const [main, spare, instrumentId, micId, instrumentToDelete, spec, actorIdList] = await Promise.all([
+    createBuild(owner, 'Authorization matrix build'),
+    createBuild(owner, 'Authorization matrix throwaway build'),
+    addInstrument(owner, 'Matrix depth micrometer 0–6 in', 'depth-micrometer'),
+    addInstrument(owner, 'Matrix outside micrometer 0–1 in', 'outside-micrometer'),
+    perActor((actor) => addInstrument(owner, `Matrix spare micrometer for ${actor}`, 'outside-micrometer')),
+    expectStatus<{ spec: { id: number; latest: { id: number } } }>(
+      'spec',
+      201,
+      send(owner, 'post', '/api/specs', {
+        name: 'Matrix pump end float (invented)',
+        appliesTo: 'Invented rotor oil pump',
+        shared: false,
+        unit: 'in',
+        min: '0.003',
+        max: '0.005',
+        source: { kind: 'manual', text: 'Matrix manual (invented), p. 1' },
+      }),
+    ),
+    Promise.all(signedIn.map(async (a) => (await sessions[a].agent.get('/api/me').expect(200)).body.user.id as number)),
+  ]);
+  const actorIds = Object.fromEntries(signedIn.map((a, i) => [a, actorIdList[i]!])) as MatrixFixtures['actorIds'];
+  const { buildId, partId } = main;
+
+  const clipId = await uploadClip(owner, buildId, files.clip);
   const clipToDelete = {} as Record<Actor, number>;
-  const momentToDelete = {} as Record<Actor, number>;
-  for (const [i, actor] of actors.entries()) {
-    clipToDelete[actor] = await uploadClip(owner, spare.buildId, clipFile);
-    momentToDelete[actor] = await addMoment(owner, clipId, 1000 + i, `Throwaway moment for ${actor}`);
-  }
+  for (const actor of actors) clipToDelete[actor] = await uploadClip(owner, spare.buildId, files.clip);
   // Wait for processing, so no worker is still writing a clip's files when a test deletes it.
-  await Promise.all(Object.values(clipToDelete).map((id) => waitUntilReady(owner, id)));
+  await Promise.all([clipId, ...Object.values(clipToDelete)].map((id) => waitUntilReady(owner, id)));
+
+  const momentId = await addMoment(owner, clipId, 500, 'Matrix moment');
+  const momentToDelete = await perActor((actor, i) => addMoment(owner, clipId, 1000 + i, `Throwaway moment for ${actor}`));
+
+  const reading = (key: string, instrument: number, value: string, name: string) =>
+    addReading(owner, buildId, { key, name, value, momentId, instrumentId: instrument, partId });
+  const [readingId, heightReadingId, readingToDelete] = await Promise.all([
+    reading(matrixKeys.depth, instrumentId, '0.5642', 'Bore depth'),
+    reading(matrixKeys.height, micId, '0.5595', 'Rotor height'),
+    perActor((actor) => reading(keyFor('matrix-spare', actor), micId, '0.5595', `Spare rotor height for ${actor}`)),
+  ]);
+  const terms = [
+    { readingId, sign: 1 },
+    { readingId: heightReadingId, sign: -1 },
+  ];
+  const [clearanceId, clearanceToDelete] = await Promise.all([
+    addClearance(owner, buildId, { key: matrixKeys.clearance, name: 'End float', terms, specVersionId: spec.spec.latest.id }),
+    perActor((actor) => addClearance(owner, buildId, { key: keyFor('matrix-spare-gap', actor), name: `Spare end float for ${actor}`, terms })),
+  ]);
+
+  const storyId = await addStory(owner, buildId, 'Matrix diary entry');
+  const [revision, image] = await Promise.all([
+    expectStatus<{ revision: { number: number } }>('kept revision', 201, send(owner, 'post', `/api/stories/${storyId}/revisions`)),
+    expectStatus<{ image: { id: number } }>(
+      'story image',
+      201,
+      owner.agent.post(`/api/stories/${storyId}/images`).set('x-csrf-token', owner.token).attach('file', files.image, 'matrix.png'),
+    ),
+  ]);
+
+  const title = (what: string, actor: Actor) => `Matrix ${what} (${actor})`;
+  const [storyToDelete, storyToSubmit, storyToClaim, storyToRelease, storyToCheck, flaggedStoryId] = await Promise.all([
+    perActor((actor) => addStory(owner, buildId, title('draft to delete', actor))),
+    perActor((actor) => addStory(owner, buildId, title('draft to send', actor))),
+    perActor((actor) => storyInReview(owner, buildId, title('story to take', actor))),
+    perActor((actor) => storyInReview(owner, buildId, title('story to let go', actor), moderator)),
+    perActor((actor) => storyInReview(owner, buildId, title('story to check', actor), actor === 'admin' ? admin : moderator)),
+    storyInReview(owner, buildId, 'Matrix story with a flag', moderator),
+  ]);
+  const flag = await expectStatus<{ check: { id: number } }>(
+    'flag',
+    201,
+    send(moderator, 'post', '/api/review/checks', {
+      storyId: flaggedStoryId,
+      subjectType: 'reading',
+      subjectId: readingId,
+      state: 'flagged',
+      comment: 'The thimble is not readable in the footage at this moment.',
+    }),
+  );
 
   const person = freshAccount(t, 'matrix-user');
   const newcomer = await signIn(t, person.login);
   const me = await newcomer.get('/api/me').expect(200);
   if (me.body.user.role !== 'follower') throw new Error(`a fresh account should be a follower, got ${me.body.user.role}`);
+  const userId = me.body.user.id as number;
+  // No route creates a follow, so the row is written with the model the unsubscribe route reads.
+  await Follow.create({ followerId: userId, builderId: actorIds.owner });
 
-  return { buildId, partId, clipId, momentId, userId: me.body.user.id as number, clipToDelete, momentToDelete };
+  return {
+    buildId,
+    partId,
+    clipId,
+    momentId,
+    userId,
+    actorIds,
+    clipToDelete,
+    momentToDelete,
+    instrumentId,
+    instrumentToDelete,
+    specId: spec.spec.id,
+    readingId,
+    heightReadingId,
+    readingToDelete,
+    clearanceId,
+    clearanceToDelete,
+    storyId,
+    revisionNumber: revision.revision.number,
+    imageId: image.image.id,
+    storyToDelete,
+    storyToSubmit,
+    storyToClaim,
+    storyToRelease,
+    storyToCheck,
+    flaggedStoryId,
+    checkId: flag.check.id,
+    unsubscribeToken: signUnsubscribe(t.config.sessionSecret, userId, actorIds.owner),
+  };
 }

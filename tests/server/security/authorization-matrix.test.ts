@@ -3,8 +3,18 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { listRoutes } from '../../../server/http/routes';
+import { Follow } from '../../../server/features/follows/follow.model';
 import { makeTestClip } from '../../support/clips';
-import { actors, buildMatrixFixtures, sessionFor, type Actor, type MatrixFixtures, type Session } from '../../support/matrix-fixtures';
+import {
+  actors,
+  buildMatrixFixtures,
+  makeTestPng,
+  sessionFor,
+  storyLockVersion,
+  type Actor,
+  type MatrixFixtures,
+  type Session,
+} from '../../support/matrix-fixtures';
 import { startTestApp, type TestApp } from '../../support/test-app';
 
 /*
@@ -19,19 +29,20 @@ import { startTestApp, type TestApp } from '../../support/test-app';
  *  - V8.2 General Authorization Design, 8.2.1 (function-level access only with explicit
  *    permission: the role columns, 401/403) and 8.2.2 (data-specific access only to the data
  *    items one is entitled to, against IDOR/BOLA: the other-builder and follower columns on
- *    the owner's build, clip and moment ids, 404).
+ *    the ids of the owner's build and everything in it, 404).
  *  - V8.3 Operation Level Authorization, 8.3.1: enforced in the server, whatever the client
  *    does; every request here is made directly against the API, no UI involved.
  *
- * Admin column: access.role() lets admins through every role check, and buildForOwner /
- * clipForOwner / momentForOwner are owner-or-admin, so an admin may change, upload into,
- * reorder and delete any builder's build, clips and moments. The table encodes that as the code
- * does it; whether an admin should author evidence in another builder's name is a product
- * question (see the REVIEW notes), not a failing cell.
+ * Admin column: access.role() lets admins through every role check, so an admin reaches every
+ * service; there the rule is that nobody writes in a builder's name (buildForOwner(…, 'change'),
+ * instrumentForOwner, specForOwner, storyForOwner answer 403 to an admin), while an admin may take
+ * content down (buildForOwner(…, 'take-down'): clips, moments, readings, clearances) and may let go
+ * of a moderator's hold on a story.
  *
- * Statuses: 401 not signed in; 403 signed in but the role may not do this; 404 signed in and
- * the role may, but this build/clip/moment is not theirs to see (its existence is not confirmed,
- * the same answer as for an unknown id).
+ * Statuses: 401 not signed in; 403 signed in but the role may not do this, or the caller may see
+ * the thing but not change it (a reviewer on a builder's figures); 404 signed in and the role
+ * may, but this build/clip/moment/instrument/spec/reading/clearance/story is not theirs to see
+ * (its existence is not confirmed, the same answer as for an unknown id).
  */
 
 type Expected = Record<Actor, number>;
@@ -51,6 +62,8 @@ const TABLE: Record<string, Expected> = {
   // Admin only.
   'GET /api/admin/users':                    { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 403, admin: 200 },
   'PATCH /api/admin/users/:id':              { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 403, admin: 200 },
+  // What the local capture server received: admin only (the test app runs its own capture server).
+  'GET /api/admin/outbox':                   { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 403, admin: 200 },
 
   // Builds. Listing and creating: role builder (admins pass every role check); the list is the caller's own.
   'GET /api/builds':                         { anonymous: 401, follower: 403, owner: 200, otherBuilder: 200, moderator: 403, admin: 200 },
@@ -81,6 +94,85 @@ const TABLE: Record<string, Expected> = {
   // Moments: changed through their clip's build.
   'PATCH /api/moments/:momentId':            { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
   'DELETE /api/moments/:momentId':           { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 204 },
+
+  // The instrument register. The list and new entries: role builder, the caller's own register
+  // (an admin's is empty but theirs). One instrument and its zero checks: its keeper and
+  // reviewers read (a moderator checks the readings taken with it); only its keeper changes it
+  // or logs a zero check, admins included in the refusal; others' ids answer 404.
+  'GET /api/instruments':                    { anonymous: 401, follower: 403, owner: 200, otherBuilder: 200, moderator: 403, admin: 200 },
+  'POST /api/instruments':                   { anonymous: 401, follower: 403, owner: 201, otherBuilder: 201, moderator: 403, admin: 201 },
+  'GET /api/instruments/:instrumentId':      { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'PATCH /api/instruments/:instrumentId':    { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
+  'DELETE /api/instruments/:instrumentId':   { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
+  'GET /api/instruments/:instrumentId/zero-checks':  { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'POST /api/instruments/:instrumentId/zero-checks': { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+
+  // The spec library: anyone signed in lists it (their own and shared specs); builders add to
+  // it. The fixture spec is unshared: its builder and reviewers read it, others get 404; only
+  // its builder renames it or adds a version.
+  'GET /api/specs':                          { anonymous: 401, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'POST /api/specs':                         { anonymous: 401, follower: 403, owner: 201, otherBuilder: 201, moderator: 403, admin: 201 },
+  'GET /api/specs/:specId':                  { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'PATCH /api/specs/:specId':                { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
+  'POST /api/specs/:specId/versions':        { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+
+  // Readings and clearances: as for their build. Read by its builder and reviewers; logged and
+  // edited by its builder only; removed by its builder or an admin taking content down.
+  'GET /api/builds/:buildId/readings':       { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'POST /api/builds/:buildId/readings':      { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+  'GET /api/builds/:buildId/readings.csv':   { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'GET /api/readings/:readingId':            { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'PATCH /api/readings/:readingId':          { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
+  'DELETE /api/readings/:readingId':         { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 204 },
+  'GET /api/readings/:readingId/history':    { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'GET /api/builds/:buildId/clearances':     { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'POST /api/builds/:buildId/clearances':    { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+  'GET /api/clearances/:clearanceId':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'PATCH /api/clearances/:clearanceId':      { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
+  'DELETE /api/clearances/:clearanceId':     { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 204 },
+
+  // Stories while they are being written: read by the build's builder and reviewers, written by
+  // its builder only. Deleting is for drafts, by their builder: a draft is not public, so there
+  // is nothing for an admin to take down (a public story is taken down by withdrawing it).
+  'GET /api/builds/:buildId/stories':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'POST /api/builds/:buildId/stories':       { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+  'GET /api/stories/:storyId':               { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'PATCH /api/stories/:storyId':             { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
+  'DELETE /api/stories/:storyId':            { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
+  'GET /api/stories/:storyId/revisions':     { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'POST /api/stories/:storyId/revisions':    { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+  'GET /api/stories/:storyId/revisions/:number': { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'GET /api/stories/:storyId/claims':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'GET /api/stories/:storyId/images':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'POST /api/stories/:storyId/images':       { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+  'GET /api/story-images/:imageId':          { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+
+  // Workflow moves: signed in, then the story as for its build (404 to those who may not see
+  // it), then shared/review/workflow.ts decides by actor and state. Sending a draft for review
+  // is the builder's move; a moderator or admin who may see the draft is refused by role (403).
+  'POST /api/stories/:storyId/transitions':  { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
+  // The audit trail is for moderators and admins (its builder sees the checks on the review sheet).
+  'GET /api/stories/:storyId/audit':         { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 200, admin: 200 },
+
+  // The moderators' side. The queue and the whole audit log: role moderator.
+  'GET /api/review/queue':                   { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 200, admin: 200 },
+  'GET /api/review/audit':                   { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 200, admin: 200 },
+  // The review sheet: those who may see the story (its builder reads the flags to answer).
+  'GET /api/review/stories/:storyId':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  // Taking a story for review, letting it go, and recording a check: role moderator; a check
+  // also needs the hold on the story (the fixtures take it with that actor's session). Letting
+  // go is for the holder or an admin: the admin's throwaway is held by the moderator.
+  'POST /api/review/stories/:storyId/claim':   { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 200, admin: 200 },
+  'DELETE /api/review/stories/:storyId/claim': { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 204, admin: 204 },
+  'POST /api/review/checks':                 { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 201, admin: 201 },
+  // Answering a flag: role builder, and only the builder of the story's build; an admin passes
+  // the role check and is refused there (answers are the builder's words), others' ids 404.
+  'POST /api/review/checks/:checkId/answers': { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+
+  // One-click unsubscribe (RFC 8058): the signed token is the authority, so it is public, needs
+  // no session and no CSRF token (sent here without one), and answers the same to everyone.
+  'GET /api/unsubscribe':                    { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'POST /api/unsubscribe':                   { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
 };
 
 /** A request the public calculator answers (end float, from tests/server/calc/calc.api.test.ts). */
@@ -99,6 +191,7 @@ const calcRequest = {
 let t: TestApp;
 let work: string;
 let clipFile: string;
+let pngFile: string;
 let fx: MatrixFixtures;
 const sessions = {} as Record<Actor, Session>;
 
@@ -107,14 +200,30 @@ const sessions = {} as Record<Actor, Session>;
  * valid bodies, queries and files. Routes not named here are sent without a body.
  */
 interface Shape {
-  query?: string;
-  body?: () => unknown;
-  attach?: boolean;
+  query?: () => string;
+  /** The body; may differ per actor (its throwaway) and may read the current lock version first. */
+  body?: (actor: Actor) => unknown;
+  /** Sent as an HTML form (application/x-www-form-urlencoded) instead of JSON. */
+  form?: Record<string, string>;
+  /** A multipart upload in the field `file`. */
+  attach?: () => { file: string; name: string };
   /** Path parameters that differ per actor (throwaway fixtures for destructive routes). */
   params?: (actor: Actor) => Partial<Record<string, number>>;
   /** Sent from a new session of the actor, because the request ends the session. */
   ownSession?: boolean;
+  /** Sent without the CSRF header, because the route is exempt (a signed token is its authority). */
+  noCsrf?: boolean;
 }
+
+/** The resource's lock version now, as its builder sees it (a PATCH sends the version it started from). */
+async function lockVersionAt(url: string, field: string): Promise<number> {
+  const res = await sessions.owner.agent.get(url).expect(200);
+  return res.body[field].lockVersion as number;
+}
+
+const clip = () => ({ file: clipFile, name: 'matrix-upload.mp4' });
+const png = () => ({ file: pngFile, name: 'matrix.png' });
+const token = () => `?token=${encodeURIComponent(fx.unsubscribeToken)}`;
 
 const SHAPES: Record<string, Shape> = {
   'POST /auth/sign-out': { ownSession: true },
@@ -122,13 +231,70 @@ const SHAPES: Record<string, Shape> = {
   'PATCH /api/admin/users/:id': { body: () => ({ role: 'follower' }) },
   'POST /api/builds': { body: () => ({ title: 'Matrix new build', parts: [{ name: 'Matrix crank' }] }) },
   'PATCH /api/builds/:buildId': { body: () => ({ title: 'Matrix check title' }) },
-  'POST /api/builds/:buildId/clips': { attach: true },
+  'POST /api/builds/:buildId/clips': { attach: clip },
   'PATCH /api/clips/:clipId': { body: () => ({ title: 'x' }) },
   'DELETE /api/clips/:clipId': { params: (actor) => ({ clipId: fx.clipToDelete[actor] }) },
-  'GET /api/clips/:clipId/frame': { query: '?t=0.5' },
+  'GET /api/clips/:clipId/frame': { query: () => '?t=0.5' },
   'POST /api/clips/:clipId/moments': { body: () => ({ atMs: 100 }) },
   'PATCH /api/moments/:momentId': { body: () => ({ label: 'Matrix check label' }) },
   'DELETE /api/moments/:momentId': { params: (actor) => ({ momentId: fx.momentToDelete[actor] }) },
+
+  'POST /api/instruments': { body: () => ({ name: 'Matrix new feeler set', kind: 'feeler-blades', unit: 'in', resolution: '0.001' }) },
+  'PATCH /api/instruments/:instrumentId': {
+    body: async () => ({ note: 'Matrix check note', lockVersion: await lockVersionAt(`/api/instruments/${fx.instrumentId}`, 'instrument') }),
+  },
+  'DELETE /api/instruments/:instrumentId': { params: (actor) => ({ instrumentId: fx.instrumentToDelete[actor] }) },
+  'POST /api/instruments/:instrumentId/zero-checks': { body: () => ({ checkedOn: '2026-12-01', standardSize: '0', shown: '0.0001' }) },
+
+  'POST /api/specs': {
+    body: () => ({ name: 'Matrix new spec', unit: 'in', min: '0.002', max: '0.004', source: { kind: 'manual', text: 'Matrix manual (invented), p. 1' } }),
+  },
+  'PATCH /api/specs/:specId': {
+    body: async () => ({ appliesTo: 'Invented rotor oil pump, matrix check', lockVersion: await lockVersionAt(`/api/specs/${fx.specId}`, 'spec') }),
+  },
+  'POST /api/specs/:specId/versions': {
+    body: () => ({ unit: 'in', min: '0.002', max: '0.004', source: { kind: 'manual', text: 'Matrix manual (invented), p. 1' } }),
+  },
+
+  'POST /api/builds/:buildId/readings': {
+    body: () => ({ momentId: fx.momentId, instrumentId: fx.instrumentId, partId: fx.partId, kind: 'direct', name: 'Matrix new bore depth', value: '0.5643', takenOn: '2026-11-20' }),
+  },
+  'PATCH /api/readings/:readingId': {
+    body: async () => ({ note: 'Matrix check note', lockVersion: await lockVersionAt(`/api/readings/${fx.readingId}`, 'reading') }),
+  },
+  'DELETE /api/readings/:readingId': { params: (actor) => ({ readingId: fx.readingToDelete[actor] }) },
+  'POST /api/builds/:buildId/clearances': {
+    body: () => ({
+      name: 'Matrix new end float',
+      terms: [
+        { readingId: fx.readingId, sign: 1 },
+        { readingId: fx.heightReadingId, sign: -1 },
+      ],
+    }),
+  },
+  'PATCH /api/clearances/:clearanceId': {
+    body: async () => ({ note: 'Matrix check note', lockVersion: await lockVersionAt(`/api/clearances/${fx.clearanceId}`, 'clearance') }),
+  },
+  'DELETE /api/clearances/:clearanceId': { params: (actor) => ({ clearanceId: fx.clearanceToDelete[actor] }) },
+
+  'POST /api/builds/:buildId/stories': { body: () => ({ title: 'Matrix new entry' }) },
+  'PATCH /api/stories/:storyId': {
+    body: async () => ({ summary: 'Matrix check summary', lockVersion: await storyLockVersion(sessions.owner, fx.storyId) }),
+  },
+  'DELETE /api/stories/:storyId': { params: (actor) => ({ storyId: fx.storyToDelete[actor] }) },
+  'POST /api/stories/:storyId/images': { attach: png },
+  'POST /api/stories/:storyId/transitions': {
+    params: (actor) => ({ storyId: fx.storyToSubmit[actor] }),
+    body: async (actor) => ({ action: 'submit', lockVersion: await storyLockVersion(sessions.owner, fx.storyToSubmit[actor]) }),
+  },
+
+  'POST /api/review/stories/:storyId/claim': { params: (actor) => ({ storyId: fx.storyToClaim[actor] }) },
+  'DELETE /api/review/stories/:storyId/claim': { params: (actor) => ({ storyId: fx.storyToRelease[actor] }) },
+  'POST /api/review/checks': { body: (actor) => ({ storyId: fx.storyToCheck[actor], subjectType: 'reading', subjectId: fx.readingId, state: 'checked' }) },
+  'POST /api/review/checks/:checkId/answers': { body: () => ({ body: 'Matrix answer: the reading was taken again with the thimble in view.' }) },
+
+  'GET /api/unsubscribe': { query: token },
+  'POST /api/unsubscribe': { query: token, form: { 'List-Unsubscribe': 'One-Click' }, noCsrf: true },
 };
 
 /** The clip ids of the fixture build as they are now (uploads in the matrix add some), for PUT order. */
@@ -144,6 +310,14 @@ function fill(routePath: string, actor: Actor, shape: Shape): string {
     clipId: fx.clipId,
     momentId: fx.momentId,
     id: fx.userId,
+    instrumentId: fx.instrumentId,
+    specId: fx.specId,
+    readingId: fx.readingId,
+    clearanceId: fx.clearanceId,
+    storyId: fx.storyId,
+    number: fx.revisionNumber,
+    imageId: fx.imageId,
+    checkId: fx.checkId,
     ...shape.params?.(actor),
   };
   return routePath.replace(/:(\w+)/g, (_, name: string) => {
@@ -157,21 +331,106 @@ async function send(routeKey: string, actor: Actor) {
   const [method, routePath] = routeKey.split(' ') as [string, string];
   const shape = SHAPES[routeKey] ?? {};
   const s = shape.ownSession ? await sessionFor(t, actor) : sessions[actor];
-  const url = fill(routePath, actor, shape) + (shape.query ?? '');
+  const url = fill(routePath, actor, shape) + (shape.query?.() ?? '');
   const verb = method.toLowerCase() as 'get' | 'post' | 'put' | 'patch' | 'delete';
+  // Worked out before the request starts, so reading the current lock version is not part of it.
+  const body = routeKey === 'PUT /api/builds/:buildId/clips/order' ? { clipIds: await currentClipIds() } : await shape.body?.(actor);
   let req = s.agent[verb](url);
-  if (verb !== 'get') req = req.set('x-csrf-token', s.token);
-  if (shape.attach) return { s, res: await req.attach('file', clipFile, 'matrix-upload.mp4') };
-  const body = routeKey === 'PUT /api/builds/:buildId/clips/order' ? { clipIds: await currentClipIds() } : shape.body?.();
+  if (verb !== 'get' && !shape.noCsrf) req = req.set('x-csrf-token', s.token);
+  if (shape.attach) {
+    const { file, name } = shape.attach();
+    return { s, res: await req.attach('file', file, name) };
+  }
+  if (shape.form) return { s, res: await req.type('form').send(shape.form) };
   return { s, res: await (body === undefined ? req : req.send(body as object)) };
+}
+
+/** The review sheet of a story as the moderator sees it: its hold and its checks. */
+async function sheet(storyId: number): Promise<{ claim: { moderatorId: number } | null; checks: { id: number; moderatorId: number; answers: { authorId: number }[] }[] }> {
+  const res = await sessions.moderator.agent.get(`/api/review/stories/${storyId}`).expect(200);
+  return res.body;
+}
+
+/** The owner's GET of `url` answers 200 while the thing exists and 404 once it is gone. */
+async function stillThere(url: string, gone: boolean) {
+  await sessions.owner.agent.get(url).expect(gone ? 404 : 200);
+}
+
+let answersSoFar = 0;
+
+/**
+ * What each state-changing row must have done, checked after every cell: a refusal changed
+ * nothing; a success really did the one thing asked, to the actor's own throwaway.
+ */
+const EFFECTS: Record<string, (actor: Actor, status: number, s: Session, res: { headers: Record<string, string>; body: unknown }) => Promise<void>> = {
+  'DELETE /api/clips/:clipId': (actor, status) => stillThere(`/api/clips/${fx.clipToDelete[actor]}`, status === 204),
+  'DELETE /api/moments/:momentId': async (actor, status) => {
+    const list = await sessions.owner.agent.get(`/api/clips/${fx.clipId}/moments`).expect(200);
+    const ids = (list.body.items as { id: number }[]).map((m) => m.id);
+    if (status === 204) expect(ids).not.toContain(fx.momentToDelete[actor]);
+    else expect(ids).toContain(fx.momentToDelete[actor]);
+  },
+  'DELETE /api/instruments/:instrumentId': (actor, status) => stillThere(`/api/instruments/${fx.instrumentToDelete[actor]}`, status === 204),
+  'DELETE /api/readings/:readingId': (actor, status) => stillThere(`/api/readings/${fx.readingToDelete[actor]}`, status === 204),
+  'DELETE /api/clearances/:clearanceId': (actor, status) => stillThere(`/api/clearances/${fx.clearanceToDelete[actor]}`, status === 204),
+  'DELETE /api/stories/:storyId': (actor, status) => stillThere(`/api/stories/${fx.storyToDelete[actor]}`, status === 204),
+  'POST /api/stories/:storyId/transitions': async (actor, status) => {
+    const res = await sessions.owner.agent.get(`/api/stories/${fx.storyToSubmit[actor]}`).expect(200);
+    expect(res.body.story.state).toBe(status === 200 ? 'in-review' : 'draft');
+  },
+  'POST /api/review/stories/:storyId/claim': async (actor, status) => {
+    const { claim } = await sheet(fx.storyToClaim[actor]);
+    if (status === 200) expect(claim?.moderatorId).toBe(fx.actorIds[actor as Exclude<Actor, 'anonymous'>]);
+    else expect(claim).toBeNull();
+  },
+  'DELETE /api/review/stories/:storyId/claim': async (actor, status) => {
+    const { claim } = await sheet(fx.storyToRelease[actor]);
+    if (status === 204) expect(claim).toBeNull();
+    else expect(claim?.moderatorId).toBe(fx.actorIds.moderator);
+  },
+  'POST /api/review/checks': async (actor, status) => {
+    const { checks } = await sheet(fx.storyToCheck[actor]);
+    if (status === 201) expect(checks.map((c) => c.moderatorId)).toEqual([fx.actorIds[actor as Exclude<Actor, 'anonymous'>]]);
+    else expect(checks).toEqual([]);
+  },
+  'POST /api/review/checks/:checkId/answers': async (_actor, status) => {
+    if (status === 201) answersSoFar += 1;
+    const { checks } = await sheet(fx.flaggedStoryId);
+    const answers = checks.find((c) => c.id === fx.checkId)?.answers ?? [];
+    expect(answers).toHaveLength(answersSoFar);
+    expect(answers.every((a) => a.authorId === fx.actorIds.owner)).toBe(true);
+  },
+  // GET only describes (mail scanners follow links); POST turns the mail off, and again is harmless.
+  'GET /api/unsubscribe': async (_actor, _status, _s, res) => {
+    expect((res.body as { subscribed: boolean }).subscribed).toBe(true);
+    expect((await Follow.findOne({ where: { followerId: fx.userId, builderId: fx.actorIds.owner } }))?.emailOnPublish).toBe(true);
+  },
+  'POST /api/unsubscribe': async (_actor, _status, _s, res) => {
+    expect((res.body as { subscribed: boolean }).subscribed).toBe(false);
+    expect((await Follow.findOne({ where: { followerId: fx.userId, builderId: fx.actorIds.owner } }))?.emailOnPublish).toBe(false);
+  },
+  // Without a code from the provider both OAuth routes start the round trip at its authorize
+  // endpoint, and neither signs anyone in or out.
+  'GET /auth/github': (actor, _status, s, res) => oauthStarts(actor, s, res.headers),
+  'GET /auth/github/callback': (actor, _status, s, res) => oauthStarts(actor, s, res.headers),
+  // Sign-out ends the session it was sent from (a throwaway one), whoever sent it.
+  'POST /auth/sign-out': async (_actor, _status, s) => {
+    await s.agent.get('/api/me').expect(401);
+  },
+};
+
+async function oauthStarts(actor: Actor, s: Session, headers: Record<string, string>) {
+  expect(new URL(headers.location!).pathname).toBe('/login/oauth/authorize');
+  await s.agent.get('/api/me').expect(actor === 'anonymous' ? 401 : 200);
 }
 
 beforeAll(async () => {
   work = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-authz-matrix-'));
-  clipFile = await makeTestClip({ seconds: 2, format: 'mp4-h264', dir: work });
+  [clipFile, pngFile] = await Promise.all([makeTestClip({ seconds: 2, format: 'mp4-h264', dir: work }), makeTestPng(work)]);
   t = await startTestApp({}, { jobs: true });
-  for (const actor of actors) sessions[actor] = await sessionFor(t, actor);
-  fx = await buildMatrixFixtures(t, sessions.owner, clipFile);
+  const opened = await Promise.all(actors.map((actor) => sessionFor(t, actor)));
+  actors.forEach((actor, i) => (sessions[actor] = opened[i]!));
+  fx = await buildMatrixFixtures(t, sessions, { clip: clipFile, image: pngFile });
 }, 240_000);
 
 afterAll(async () => {
@@ -193,8 +452,9 @@ describe('the matrix covers exactly the routes the app mounts (ASVS 5.0.0 V8.1.1
     expect(stale, 'rows in TABLE for routes that are no longer mounted').toEqual([]);
   });
 
-  it('request shapes name only rows of the table', () => {
+  it('request shapes and effect checks name only rows of the table', () => {
     expect(Object.keys(SHAPES).filter((key) => !(key in TABLE))).toEqual([]);
+    expect(Object.keys(EFFECTS).filter((key) => !(key in TABLE))).toEqual([]);
   });
 });
 
@@ -208,26 +468,6 @@ describe.each(Object.entries(TABLE))('%s', (routeKey, expected) => {
       // A refusal is our error body, and carries no resource data.
       expect(res.body?.error?.code).toBe({ 401: 'unauthorized', 403: 'forbidden', 404: 'not_found' }[status]);
     }
-
-    // Destructive routes: a refusal changed nothing; a success really removed the actor's own throwaway.
-    if (routeKey === 'DELETE /api/clips/:clipId') {
-      await sessions.owner.agent.get(`/api/clips/${fx.clipToDelete[actor]}`).expect(status === 204 ? 404 : 200);
-    }
-    if (routeKey === 'DELETE /api/moments/:momentId') {
-      const list = await sessions.owner.agent.get(`/api/clips/${fx.clipId}/moments`).expect(200);
-      const ids = (list.body.items as { id: number }[]).map((m) => m.id);
-      if (status === 204) expect(ids).not.toContain(fx.momentToDelete[actor]);
-      else expect(ids).toContain(fx.momentToDelete[actor]);
-    }
-    // Without a code from the provider both OAuth routes start the round trip at its authorize
-    // endpoint, and neither signs anyone in or out.
-    if (routeKey === 'GET /auth/github' || routeKey === 'GET /auth/github/callback') {
-      expect(new URL(res.headers.location!).pathname).toBe('/login/oauth/authorize');
-      await s.agent.get('/api/me').expect(actor === 'anonymous' ? 401 : 200);
-    }
-    // Sign-out ends the session it was sent from (a throwaway one), whoever sent it.
-    if (routeKey === 'POST /auth/sign-out') {
-      await s.agent.get('/api/me').expect(401);
-    }
+    await EFFECTS[routeKey]?.(actor, status, s, res);
   });
 });
