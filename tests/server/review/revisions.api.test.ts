@@ -131,3 +131,13 @@ describe('a published story edited and reviewed again', () => {
     expect(claimsOf(r3)[1]).toMatchObject({ specVersionId: v2.id, specVersion: 2, checked: { by: moderatorId } });
   }, 60_000);
 });
+
+describe('a published revision', () => {
+  it('can never be changed or removed: the database refuses UPDATE and DELETE on story_publications', async () => {
+    const [first] = await publications();
+    expect(first).toBeDefined();
+    await expect(t.sequelize.query(`UPDATE story_publications SET title = 'rewritten' WHERE id = ${first!.id}`)).rejects.toThrow(/written once and never changed/);
+    await expect(t.sequelize.query(`DELETE FROM story_publications WHERE id = ${first!.id}`)).rejects.toThrow(/written once and never changed/);
+    expect((await StoryPublication.findByPk(first!.id))!.title).toBe(first!.title);
+  });
+});
