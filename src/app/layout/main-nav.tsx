@@ -15,8 +15,11 @@ const entries: NavEntry[] = [
   { to: '/', label: 'Stories', end: true },
   { to: '/calculator', label: 'Calculator' },
   { to: '/builds', label: 'My builds', area: 'builds' },
+  { to: '/instruments', label: 'Instruments', area: 'instruments' },
+  { to: '/specs', label: 'Specs', area: 'specs' },
   { to: '/review', label: 'Review queue', area: 'review' },
   { to: '/admin/users', label: 'Users', area: 'adminUsers' },
+  { to: '/admin/outbox', label: 'Outbox', area: 'adminOutbox' },
 ];
 
 /** The main navigation; role-gated entries appear only for roles that may open them. */

@@ -7,8 +7,14 @@ import type { Role } from '@shared/users/user.schema';
  */
 export const areaAccess = {
   builds: ['builder'],
+  instruments: ['builder'],
+  // Moderators check readings against the specs they cite, so they may read the library too.
+  specs: ['builder', 'moderator', 'admin'],
   review: ['moderator', 'admin'],
+  // One story's review sheet: reviewers, and its builder (to read and answer the flags); the server says 404 to other builders.
+  storyReview: ['builder', 'moderator', 'admin'],
   adminUsers: ['admin'],
+  adminOutbox: ['admin'],
 } as const satisfies Record<string, readonly Role[]>;
 
 export type Area = keyof typeof areaAccess;

@@ -1,0 +1,161 @@
+import type { ReactNode } from 'react';
+import type { EvidenceCheckDto } from '@shared/review/review.schema';
+import type { ReviewSheet } from '@shared/review/review-sheet.schema';
+import { unitNames, unitSymbols } from '@shared/measure/units';
+import { CalibrationBadge } from '@/features/instruments/components/calibration-badge';
+import { ReadingWarnings, WarningIcon } from '@/features/readings/components/reading-badges';
+import { enteredFigures, estimateText, readingKindWords } from '@/features/readings/lib/reading-text';
+import { formatTime } from '@/features/clips/lib/clip-format';
+import { calibrationFromWarnings } from '../lib/review-format';
+import { CitingSentences } from './citing-sentences';
+import { EvidenceStateBadge } from './evidence-state-badge';
+import { JudgeBar, SubjectChecks, type JudgeProps } from './judge-bar';
+import { MomentVideo } from './moment-video';
+
+type SheetReading = ReviewSheet['readings'][number];
+
+/** One row of a compact fact list. */
+export function Fact({ term, children }: { term: string; children: ReactNode }) {
+  return (
+    <>
+      <dt className="text-ink-muted">{term}</dt>
+      <dd className="min-w-0">{children}</dd>
+    </>
+  );
+}
+
+/**
+ * One reading laid out for checking against the footage: the evidence still large, the clip from
+ * just before the moment, the figures as typed, the instrument with its calibration and zero
+ * check, the clearances that use it and the sentences that cite it.
+ */
+export function ReadingReview({
+  item,
+  checks,
+  headingId,
+  judge,
+}: {
+  item: SheetReading;
+  checks: readonly EvidenceCheckDto[];
+  headingId: string;
+  /** The moderator's buttons; left out for the builder, who answers flags instead. */
+  judge?: JudgeProps;
+}) {
+  const { reading, usedBy, citedIn, check } = item;
+  const zeroMissing = reading.warnings.some((w) => w.code === 'no-zero-check');
+  return (
+    <div className="flex flex-col gap-4" data-review-subject={`reading:${reading.key}`}>
+      <header className="flex flex-wrap items-center gap-x-3 gap-y-1">
+        <h2 id={headingId} className="text-lg font-semibold">
+          <span className="sr-only">Reading: </span>
+          {reading.name}
+        </h2>
+        <span className="figures text-sm text-ink-muted">{reading.key}</span>
+        <EvidenceStateBadge check={check} />
+      </header>
+
+      <div className="grid gap-3 md:grid-cols-2">
+        <figure className="flex flex-col gap-1.5">
+          <img
+            src={reading.frameUrl}
+            alt={`Evidence still of ${reading.name}: ${reading.clipTitle} at ${formatTime(reading.atMs / 1000)}`}
+            className="aspect-video w-full rounded-md border border-rule bg-ink object-contain"
+          />
+          <figcaption className="text-xs text-ink-muted">
+            Evidence still · {reading.clipTitle} at <span className="figures text-ink">{formatTime(reading.atMs / 1000)}</span>
+          </figcaption>
+        </figure>
+        <MomentVideo clipId={reading.clipId} atMs={reading.atMs} label={reading.name} />
+      </div>
+
+      <dl className="grid grid-cols-[max-content_minmax(0,1fr)] gap-x-4 gap-y-1 text-sm">
+        <Fact term="As entered">
+          <span className="figures text-base font-semibold" data-entered="">
+            {enteredFigures(reading)}
+          </span>
+        </Fact>
+        <Fact term="Estimate ± u">
+          <span className="figures">{estimateText(reading)}</span>
+        </Fact>
+        <Fact term="Kind">{readingKindWords[reading.kind]}</Fact>
+        <Fact term="Unit">
+          {unitNames[reading.unit]} (<span className="figures">{unitSymbols[reading.unit]}</span>)
+        </Fact>
+        <Fact term="Instrument">
+          <span className="inline-flex flex-wrap items-center gap-2">
+            {reading.instrumentName}
+            <CalibrationBadge state={calibrationFromWarnings(reading.warnings)} />
+          </span>
+        </Fact>
+        <Fact term="Zero check">
+          {reading.zeroCheck ? (
+            <span>
+              offset <span className="figures">{reading.zeroCheck.offset} {unitSymbols[reading.zeroCheck.unit]}</span> applied, from that day’s zero check
+            </span>
+          ) : zeroMissing ? (
+            <span className="inline-flex items-start gap-1 text-verdict-undecided">
+              <WarningIcon />
+              none recorded on {reading.takenOn}, so no offset was applied
+            </span>
+          ) : (
+            <span className="text-ink-muted">{reading.kind === 'bracket' ? 'not used: blades are taken at their marked size' : 'not needed for this instrument'}</span>
+          )}
+        </Fact>
+        <Fact term="Taken on">
+          <span className="figures">{reading.takenOn}</span>
+          {reading.temperatureC !== null && (
+            <span>
+              {' '}
+              at <span className="figures">{reading.temperatureC} °C</span>
+              {reading.material && <> ({reading.material}, corrected to 20 °C)</>}
+            </span>
+          )}
+        </Fact>
+        {reading.partName && <Fact term="Part">{reading.partName}</Fact>}
+        <Fact term="Logged by">{reading.createdByName}</Fact>
+        {reading.note && (
+          <Fact term="Note">
+            <span className="whitespace-pre-line">{reading.note}</span>
+          </Fact>
+        )}
+        <Fact term="Warnings">
+          <ReadingWarnings warnings={reading.warnings} />
+        </Fact>
+      </dl>
+
+      <section aria-labelledby={`${headingId}-used`} className="flex flex-col gap-1">
+        <h3 id={`${headingId}-used`} className="text-sm font-semibold">
+          Clearances that use it
+        </h3>
+        {usedBy.length === 0 ? (
+          <p className="text-sm text-ink-muted">None of the story’s clearances sums it.</p>
+        ) : (
+          <ul className="flex flex-col gap-0.5 text-sm">
+            {usedBy.map((c) => (
+              <li key={c.id}>
+                {c.name} <span className="figures text-xs text-ink-muted">{c.key}</span>:{' '}
+                <span className="figures">{c.display ?? 'cannot be worked out'}</span>
+              </li>
+            ))}
+          </ul>
+        )}
+      </section>
+
+      <section aria-labelledby={`${headingId}-cited`} className="flex flex-col gap-1">
+        <h3 id={`${headingId}-cited`} className="text-sm font-semibold">
+          Where the story cites it
+        </h3>
+        <CitingSentences sentences={citedIn} />
+      </section>
+
+      <section aria-labelledby={`${headingId}-checks`} className="flex flex-col gap-1">
+        <h3 id={`${headingId}-checks`} className="text-sm font-semibold">
+          Checks and answers
+        </h3>
+        <SubjectChecks checks={checks} />
+      </section>
+
+      {judge && <JudgeBar {...judge} />}
+    </div>
+  );
+}

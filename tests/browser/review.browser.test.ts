@@ -1,0 +1,296 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import type { Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { readingResponseSchema } from '@shared/readings/reading.schema';
+import { launchBrowser } from '../../scripts/lib/chromium';
+import { repoRoot } from '../../scripts/lib/bootstrap';
+import { Follow } from '../../server/features/follows/follow.model';
+import { User } from '../../server/features/users/user.model';
+import { startBrowserApp } from '../support/browser-app';
+import { makeTestClip } from '../support/clips';
+import { sessionFor, type Session } from '../support/matrix-fixtures';
+import { fixtureBody, makeReviewFixture, move, publishThroughReview, sessionWithRole, type ReviewFixture } from '../support/review-fixtures';
+
+let site: Awaited<ReturnType<typeof startBrowserApp>>;
+let browser: Awaited<ReturnType<typeof launchBrowser>>;
+let work: string;
+let owner: Session;
+let fixture: ReviewFixture;
+let feelerReadingId: number;
+const artifacts = path.join(repoRoot, 'tests/artifacts');
+const TITLE = 'Invented flat-twin oil pump (review screen test)';
+const FLAG_COMMENT = 'the blade shown is not the one logged';
+const REASON = 'The feeler blade in the still is not the one logged: re-film the bracket or correct the reading.';
+// Where the bracket is taken in the clip; the player should start 3 s before it.
+const FEELER_AT_MS = 3800;
+
+async function signInAs(page: Page, login: string, returnTo: string) {
+  await browser.clearCookies();
+  await page.goto(`${site.url}/auth/github?login=${login}&returnTo=${encodeURIComponent(returnTo)}`);
+}
+
+beforeAll(async () => {
+  work = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-browser-review-'));
+  site = await startBrowserApp({ jobs: true, mail: true });
+  browser = await launchBrowser();
+  fs.mkdirSync(artifacts, { recursive: true });
+  owner = await sessionFor(site, 'owner');
+  const clipFile = await makeTestClip({ seconds: 5, format: 'mp4-h264', dir: work, name: 'pump-review' });
+
+  // The story under review: the fixture's two claims plus a feeler bracket the moderator will flag.
+  fixture = await makeReviewFixture(owner, {
+    clipFile,
+    title: TITLE,
+    body: fixtureBody({ extra: '[The outer rotor took the 0.004 in blade but not the 0.005 in](reading:rotor-to-body) in the body.' }),
+  });
+  const send = (url: string, body: object) => owner.agent.post(url).set('x-csrf-token', owner.token).send(body);
+  const moment = await send(`/api/clips/${fixture.clipId}/moments`, { atMs: FEELER_AT_MS, label: 'Feeler blade between outer rotor and body' });
+  expect(moment.status).toBe(201);
+  // Past its calibration date on the day of the reading, so the screen has a warning to show.
+  const blades = await send('/api/instruments', {
+    name: 'Feeler blade set 0.0015–0.025 in (test)',
+    kind: 'feeler-blades',
+    serial: 'INV-FB-01',
+    unit: 'in',
+    resolution: '0.0005',
+    lastCalibratedOn: '2024-01-10',
+    calibrationIntervalDays: 365,
+  });
+  expect(blades.status).toBe(201);
+  const feeler = await send(`/api/builds/${fixture.buildId}/readings`, {
+    momentId: moment.body.moment.id,
+    instrumentId: blades.body.instrument.id,
+    key: 'rotor-to-body',
+    name: 'Outer rotor to body',
+    kind: 'bracket',
+    passes: '0.004',
+    stops: '0.005',
+    takenOn: '2026-11-20',
+  });
+  expect(feeler.status).toBe(201);
+  feelerReadingId = readingResponseSchema.parse(feeler.body).reading.id;
+  expect((await move(owner, fixture.story.id, 'submit')).status).toBe(200);
+
+  // A second story, published through review, so a follower of the builder gets a mail with an unsubscribe link.
+  const [follower, builder] = await Promise.all([User.findOne({ where: { login: 'demo-follower' } }), User.findOne({ where: { login: 'demo-builder' } })]);
+  await Follow.upsert({ followerId: follower!.id, builderId: builder!.id, emailOnPublish: true });
+  const second = await makeReviewFixture(owner, { clipFile, title: 'Invented flat-twin crank (published for the outbox test)' });
+  await publishThroughReview(owner, await sessionFor(site, 'moderator'), second);
+}, 300_000);
+
+afterAll(async () => {
+  await browser?.dispose();
+  await site?.close();
+  fs.rmSync(work, { recursive: true, force: true });
+});
+
+describe('a moderator checking a story against the footage', () => {
+  it('takes it from the queue, checks a reading by key, flags the bracket with a comment, sees what stops publishing, is refused a publish, and asks for changes', async () => {
+    const page = await browser.newPage();
+    page.setDefaultTimeout(15_000);
+    try {
+      await signInAs(page, 'demo-moderator', '/review');
+      await page.getByRole('heading', { name: 'Review queue' }).waitFor();
+      const row = page.locator(`[data-queue-story="${fixture.story.id}"]`);
+      await row.waitFor();
+      const rowText = await row.innerText();
+      expect(rowText).toContain(`${TITLE}: end float`);
+      expect(rowText).toContain('Ines Calloway');
+      // Cited: bore depth and the bracket directly, rotor height through the clearance.
+      expect(rowText).toContain('Relies on 3 readings and 1 clearance');
+      expect(rowText).toContain('4 left to check');
+      expect(rowText).toContain('Not taken by anyone');
+      await page.screenshot({ path: path.join(artifacts, 'review-queue-1280.png'), fullPage: true });
+
+      // Another moderator takes it first: the refusal says who holds it; once they let go it can be taken.
+      const other = await sessionWithRole(site, 'moderator');
+      const otherName = (await other.agent.get('/api/me').expect(200)).body.user.displayName as string;
+      await other.agent.post(`/api/review/stories/${fixture.story.id}/claim`).set('x-csrf-token', other.token).expect(200);
+      await row.getByRole('button', { name: 'Take for review' }).click();
+      const taken = row.getByRole('alert');
+      await taken.waitFor();
+      expect(await taken.innerText()).toMatch(new RegExp(`^Taken already: ${otherName} is checking this story until \\d{2}:\\d{2} UTC\\.$`));
+      await row.locator(`[data-claim-holder="${otherName}"]`).waitFor();
+      await other.agent.delete(`/api/review/stories/${fixture.story.id}/claim`).set('x-csrf-token', other.token).expect(204);
+      await page.getByRole('button', { name: 'Refresh' }).click();
+      await row.locator('[data-claim-holder=""]').waitFor();
+
+      await row.getByRole('button', { name: 'Take for review' }).click();
+      await page.waitForURL(`**/review/stories/${fixture.story.id}`);
+      await page.getByRole('heading', { name: `${TITLE}: end float`, level: 1 }).waitFor();
+      await page.locator('[data-claim-box="mine"]').waitFor();
+
+      const option = (key: string) => page.locator(`[role="option"][data-evidence-id="${key}"]`);
+      const depthId = `reading:${fixture.readings.depth.id}`;
+      const heightId = `reading:${fixture.readings.height.id}`;
+      const feelerId = `reading:${feelerReadingId}`;
+      expect(await option(depthId).getAttribute('aria-selected')).toBe('true');
+      expect(await page.locator('[data-current] [data-entered]').innerText()).toBe('0.5642 in');
+
+      // c marks the reading on screen checked and moves on to the next that needs a look.
+      await page.locator('body').press('c');
+      await page.locator(`[role="option"][data-evidence-id="${depthId}"][data-evidence-state="checked"]`).waitFor();
+      await expect.poll(() => option(heightId).getAttribute('aria-selected')).toBe('true');
+
+      // j moves down to the feeler bracket; its clip starts 3 s before the moment.
+      await page.locator('body').press('j');
+      await expect.poll(() => option(feelerId).getAttribute('aria-selected')).toBe('true');
+      const current = page.locator('[data-current]');
+      expect(await current.innerText()).toContain('0.004 in enters · 0.005 in does not');
+      await current.locator('[data-calibration="overdue"]').waitFor();
+      await page.waitForFunction(() => {
+        const v = document.querySelector<HTMLVideoElement>('[data-current] video');
+        return v !== null && v.readyState >= 1 && v.currentTime > 0.5;
+      });
+      const started = await current.locator('video').evaluate((v: HTMLVideoElement) => ({ lead: Number(v.dataset.leadInS), at: v.currentTime }));
+      expect(started.lead).toBeCloseTo(0.8, 6);
+      expect(started.at).toBeGreaterThanOrEqual(0.75);
+
+      // f asks for a comment; an empty one is refused beside the field by the shared schema.
+      await page.locator('body').press('f');
+      const dialog = page.getByRole('dialog', { name: 'Flag “Outer rotor to body”' });
+      await dialog.waitFor();
+      await dialog.getByRole('button', { name: 'Flag it' }).click();
+      await dialog.getByText('say what is wrong (at least 3 characters)').waitFor();
+      await dialog.getByLabel('What is wrong').fill(FLAG_COMMENT);
+      await dialog.getByRole('button', { name: 'Flag it' }).click();
+      await dialog.waitFor({ state: 'detached' });
+      await page.locator(`[role="option"][data-evidence-id="${feelerId}"][data-evidence-state="flagged"]`).waitFor();
+
+      // The blockers list is worked out again: the flag, and what is still unchecked.
+      const blockers = page.getByRole('list', { name: 'What stops publishing' });
+      await blockers.locator('[data-blocker="flagged"]').waitFor();
+      expect(await blockers.locator('[data-blocker="flagged"]').innerText()).toContain(FLAG_COMMENT);
+      expect(await blockers.locator('[data-blocker="unchecked"]').count()).toBe(2);
+      // The record shows the check and the flag.
+      await page.locator('[data-audit-action="check.flagged"]').waitFor();
+      expect(await page.locator('[data-audit-action="check.checked"]').count()).toBe(1);
+
+      await page.evaluate(() => window.scrollTo(0, 0));
+      await page.screenshot({ path: path.join(artifacts, 'review-screen-1280.png'), fullPage: true });
+      await page.setViewportSize({ width: 390, height: 844 });
+      await page.evaluate(() => window.scrollTo(0, 0));
+      await page.screenshot({ path: path.join(artifacts, 'review-screen-390.png'), fullPage: true });
+      await page.setViewportSize({ width: 1280, height: 860 });
+
+      // Publishing is refused while the flag stands; the server's reasons are listed.
+      const workflow = page.locator('[data-workflow-bar]');
+      await workflow.getByRole('button', { name: 'Publish' }).click();
+      await page.getByRole('dialog', { name: 'Publish this story?' }).getByRole('button', { name: 'Publish' }).click();
+      const refusal = workflow.locator('[data-refusal="publish_blocked"]');
+      await refusal.waitFor();
+      expect(await refusal.getByRole('list', { name: 'Why it cannot be published' }).innerText()).toContain(FLAG_COMMENT);
+
+      // Asking for changes needs a reason.
+      await workflow.getByRole('button', { name: 'Ask for changes…' }).click();
+      const ask = page.getByRole('dialog', { name: 'Ask the builder for changes' });
+      await ask.getByRole('button', { name: 'Ask for changes' }).click();
+      await ask.getByText('Give a reason (at least 3 characters)').waitFor();
+      await ask.getByLabel('Reason').fill(REASON);
+      await ask.getByRole('button', { name: 'Ask for changes' }).click();
+      await ask.waitFor({ state: 'detached' });
+      await workflow.locator('[data-story-state="changes-requested"]').waitFor();
+      await page.locator('[data-audit-action="story.request-changes"]').waitFor();
+    } finally {
+      await page.close();
+    }
+  }, 120_000);
+});
+
+describe('the builder after changes were asked for', () => {
+  it('sees the flag with the moderator’s comment on the review sheet and answers it', async () => {
+    const page = await browser.newPage();
+    page.setDefaultTimeout(15_000);
+    try {
+      await signInAs(page, 'demo-builder', `/review/stories/${fixture.story.id}`);
+      await page.getByRole('heading', { name: `${TITLE}: end float`, level: 1 }).waitFor();
+      const flags = page.getByRole('list', { name: 'Flags to answer' });
+      const flag = flags.locator('[data-flag="reading:rotor-to-body"]');
+      await flag.waitFor();
+      expect(await flag.innerText()).toContain(FLAG_COMMENT);
+      expect(await flag.innerText()).toContain('Dagny Orlov');
+      expect(await flags.locator('li').count()).toBe(1);
+      // The builder has no check buttons here.
+      expect(await page.getByRole('button', { name: /^Checked/ }).count()).toBe(0);
+
+      await flag.getByRole('button', { name: 'Send answer' }).click();
+      await flag.getByText('write an answer (at least 3 characters)').waitFor();
+      await flag.getByLabel(/Your answer/).fill('Re-filmed the bracket at 0:04: the 0.004 in blade is the one in the still now.');
+      await flag.getByRole('button', { name: 'Send answer' }).click();
+      await flag.getByRole('list', { name: 'Answers to the flag on Outer rotor to body' }).getByText('Re-filmed the bracket').waitFor();
+      // Sending it again is the builder's move from here.
+      await page.locator('[data-workflow-bar]').getByRole('button', { name: 'Send for review' }).waitFor();
+      await page.screenshot({ path: path.join(artifacts, 'review-builder-1280.png'), fullPage: true });
+    } finally {
+      await page.close();
+    }
+  }, 60_000);
+});
+
+describe('the admin outbox and the unsubscribe page', () => {
+  it('lists the captured messages newest first, opens one with both parts and its List-Unsubscribe header, and the link in it stops the mail', async () => {
+    // Mail goes through the job queue; wait until the capture server has what the page should list.
+    // Messages are picked by what they say, not by their subject lines' exact words.
+    const [changesMail] = await site.smtp.waitFor((m) => m.to.includes('ines@marrow-and-vane.example') && m.text.includes(REASON));
+    const [waitingMail] = await site.smtp.waitFor((m) => m.to.includes('dagny@orlov-inspection.example') && m.text.includes(`/review/stories/${fixture.story.id}`));
+    const [followerMail] = await site.smtp.waitFor((m) => 'list-unsubscribe' in m.headers && m.to.includes('sam@okafor-garage.example'));
+    const page = await browser.newPage();
+    page.setDefaultTimeout(15_000);
+    try {
+      await signInAs(page, 'demo-admin', '/admin/outbox');
+      await page.getByRole('heading', { name: 'Outbox', level: 1 }).waitFor();
+      const list = page.getByRole('list', { name: /Captured messages, newest first/ });
+      await list.waitFor();
+      const subjects = await list.locator('[data-outbox-row]').evaluateAll((rows) => rows.map((r) => r.getAttribute('data-outbox-row')));
+      expect(subjects).toContain(waitingMail!.subject);
+      // The last mail sent (changes asked for) is at the top.
+      expect(subjects[0]).toBe(changesMail!.subject);
+
+      await list.locator(`[data-outbox-row="${changesMail!.subject}"]`).click();
+      const message = page.locator('article[data-message]');
+      await message.waitFor();
+      const frame = message.locator('iframe');
+      expect(await frame.getAttribute('sandbox')).toBe('');
+      expect(await frame.getAttribute('srcdoc')).toContain(`Reason: ${REASON}`);
+      expect(await message.locator('pre').innerText()).toContain(FLAG_COMMENT);
+      // The HTML renders in its own frame (the page's CSP lets it draw), never in this page.
+      await message.frameLocator('iframe').getByText(`Reason: ${REASON}`).waitFor();
+      expect(await page.locator('main p', { hasText: 'Hello Ines Calloway' }).count()).toBe(0);
+      // The sandboxed frame lays itself out on its own: size the window to the whole page first (a
+      // full-page capture resizes it mid-shot), then let the frame settle before the picture.
+      const height = await page.evaluate(() => document.documentElement.scrollHeight);
+      await page.setViewportSize({ width: 1280, height });
+      await message.frameLocator('iframe').getByText(`Reason: ${REASON}`).waitFor();
+      await page.evaluate(() => new Promise((resolve) => requestAnimationFrame(() => requestAnimationFrame(resolve))));
+      await page.screenshot({ path: path.join(artifacts, 'review-outbox-1280.png') });
+      await page.setViewportSize({ width: 1280, height: 860 });
+
+      await list.locator(`[data-outbox-row="${followerMail!.subject}"]`).click();
+      const header = message.locator('[data-list-unsubscribe]');
+      await expect.poll(() => header.getAttribute('data-list-unsubscribe')).toMatch(/^<http:\/\/127\.0\.0\.1:\d+\/api\/unsubscribe\?token=/);
+      expect(await message.innerText()).toContain('List-Unsubscribe=One-Click');
+
+      // The page link from the follower's mail, opened signed out.
+      const link = /(http:\/\/\S+\/unsubscribe\?token=\S+)/.exec(followerMail!.text)?.[1];
+      expect(link).toBeTruthy();
+      await browser.clearCookies();
+      await page.setViewportSize({ width: 390, height: 844 });
+      await page.goto(link!);
+      await page.getByRole('heading', { name: 'Stop e-mails from Ines Calloway to Sam Okafor?' }).waitFor();
+      await page.screenshot({ path: path.join(artifacts, 'review-unsubscribe-390.png') });
+      await page.getByRole('button', { name: 'Stop these e-mails' }).click();
+      await page.getByRole('heading', { name: 'Done: no more e-mails from Ines Calloway to Sam Okafor' }).waitFor();
+      const [follower, builder] = await Promise.all([User.findOne({ where: { login: 'demo-follower' } }), User.findOne({ where: { login: 'demo-builder' } })]);
+      expect((await Follow.findOne({ where: { followerId: follower!.id, builderId: builder!.id } }))?.emailOnPublish).toBe(false);
+
+      // A link that was cut or changed is explained, and nothing changes.
+      await page.goto(`${site.url}/unsubscribe?token=${'x'.repeat(24)}.changed`);
+      await page.getByRole('heading', { name: 'This unsubscribe link does not work' }).waitFor();
+      expect(await page.locator('[data-unsubscribe="invalid"]').innerText()).toContain('not valid');
+    } finally {
+      await page.close();
+    }
+  }, 90_000);
+});
