@@ -26,6 +26,8 @@ import { applyEdit, revealRange } from '../lib/textarea';
 import { useStoryAutosave } from '../lib/use-story-autosave';
 import { BodyEditor } from './body-editor';
 import { ClaimPicker, pickableTargets, type PickableTarget } from './claim-picker';
+import { FlagsToAnswer } from '@/features/review/components/flags-to-answer';
+import { StoryWorkflowBar } from '@/features/review/components/story-workflow-bar';
 import { ClaimsPanel } from './claims-panel';
 import { CoverPicker, useBuildMoments } from './cover-picker';
 import { ConflictNotice, RestoreOffer } from './editor-notices';
@@ -400,6 +402,8 @@ export function StoryEditor({ story }: { story: Story }) {
           onClaim={openPicker}
         />
       </form>
+      {/* A moderator's flags come back here to answer, once the story has been reviewed. */}
+      {story.state !== 'draft' && <FlagsToAnswer storyId={storyId} />}
       <ClaimsPanel
         claims={rendered.claims}
         broken={rendered.broken}
@@ -437,6 +441,18 @@ export function StoryEditor({ story }: { story: Story }) {
         <div className="flex flex-wrap items-center gap-2">
           <Badge>{storyStateWords[story.state]}</Badge>
           <SaveStatus state={saveState} onRetry={() => void autosave.flush()} />
+          {/* Moves are made on what is saved: the bar waits until the last change is stored. */}
+          {saveState.kind === 'saved' ? (
+            <StoryWorkflowBar
+              storyId={storyId}
+              state={story.state}
+              lockVersion={autosave.lockVersion()}
+              isBuilder
+              hasPublicRevision={story.hasPublicRevision}
+            />
+          ) : (
+            <span className="text-xs text-ink-muted">Sending for review waits until your changes are saved.</span>
+          )}
         </div>
       </header>
 
