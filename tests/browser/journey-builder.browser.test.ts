@@ -57,7 +57,7 @@ describe('journey 1: a builder at the bench, from clip to a story sent for revie
   it('builds, films, logs, computes, writes two claims and submits; the moderators are told by e-mail', async () => {
     const run = Date.now().toString(36);
     const clip = await makeTestClip({ seconds: 6, format: 'mp4-h264', dir: work, name: 'journey-pump' });
-    const [depthMic, outsideMic, blades] = await Promise.all(['MV-DM-02', 'MV-OM-01', 'MV-FB-03'].map(instrumentId));
+    const [depthMic, outsideMic, blades] = (await Promise.all(['MV-DM-02', 'MV-OM-01', 'MV-FB-03'].map(instrumentId))) as [string, string, string];
     await browser.clearCookies();
     const page = await browser.newPage();
     page.setDefaultTimeout(20_000);

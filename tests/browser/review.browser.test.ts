@@ -294,3 +294,45 @@ describe('the admin outbox and the unsubscribe page', () => {
     }
   }, 90_000);
 });
+
+// Journey 2 ends here: the builder resubmits, the moderator checks what is left and publishes, and the builder is told.
+describe('the builder resubmits and the moderator publishes', () => {
+  it('sends the answered story back, the moderator checks each remaining reading and the clearance and publishes it, and the builder gets the mail', async () => {
+    const page = await browser.newPage();
+    page.setDefaultTimeout(15_000);
+    try {
+      await signInAs(page, 'demo-builder', `/review/stories/${fixture.story.id}`);
+      const bar = page.locator('[data-workflow-bar]');
+      await bar.getByRole('button', { name: 'Send for review' }).click();
+      const confirm = page.getByRole('dialog');
+      if (await confirm.count()) await confirm.getByRole('button', { name: 'Send for review' }).click();
+      await bar.locator('[data-story-state="in-review"]').waitFor();
+
+      await browser.clearCookies();
+      await signInAs(page, 'demo-moderator', '/review');
+      const row = page.locator(`[data-queue-story="${fixture.story.id}"]`);
+      await row.getByRole('button', { name: 'Take for review' }).click();
+      await page.waitForURL(`**/review/stories/${fixture.story.id}`);
+      await page.locator('[data-claim-box="mine"]').waitFor();
+      // Everything not checked at its current version gets a look and a check (c), the flagged bracket included.
+      const pending = page.locator('[role="option"][data-evidence-id]:not([data-evidence-state="checked"])');
+      for (let guard = 0; guard < 10 && (await pending.count()) > 0; guard += 1) {
+        const next = pending.first();
+        const id = await next.getAttribute('data-evidence-id');
+        await next.click();
+        await expect.poll(() => page.locator(`[role="option"][data-evidence-id="${id}"]`).getAttribute('aria-selected')).toBe('true');
+        await page.locator('body').press('c');
+        await page.locator(`[role="option"][data-evidence-id="${id}"][data-evidence-state="checked"]`).waitFor();
+      }
+      const workflow = page.locator('[data-workflow-bar]');
+      await workflow.getByRole('button', { name: 'Publish' }).click();
+      await page.getByRole('dialog', { name: 'Publish this story?' }).getByRole('button', { name: 'Publish' }).click();
+      await workflow.locator('[data-story-state="published"]').waitFor();
+      await page.screenshot({ path: path.join(artifacts, 'journey-moderator-last.png') });
+      const [published] = await site.smtp.waitFor((m) => m.to.includes('ines@marrow-and-vane.example') && m.subject.startsWith('Published') && m.text.includes(`/stories/${fixture.story.id}`));
+      expect(published!.html).toContain(`/stories/${fixture.story.id}`);
+    } finally {
+      await page.close();
+    }
+  }, 120_000);
+});

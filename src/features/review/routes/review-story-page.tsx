@@ -222,7 +222,7 @@ function ReviewScreen({ sheet, meId, isBuilder }: { sheet: ReviewSheet; meId: nu
                 · sent <time dateTime={story.submittedAt}>{relativeTime(story.submittedAt, now)}</time> ({exactTime(story.submittedAt)})
               </>
             )}
-            {story.hasPublicRevision && ' · a new revision of a published story'}
+            {story.hasPublicRevision && story.state !== 'published' && story.state !== 'withdrawn' && ' · a new revision of a published story'}
           </>
         }
         actions={
@@ -309,9 +309,12 @@ function ReviewScreen({ sheet, meId, isBuilder }: { sheet: ReviewSheet; meId: nu
 
         {!isBuilder && (
           <div className="flex flex-col gap-4 lg:sticky lg:top-4 lg:col-start-2 lg:row-span-2 lg:row-start-2 lg:self-start">
-            <Panel title="What stops publishing" description="Worked out again after every check.">
-              <BlockersList blockers={sheet.blockers} onOpen={openSubject} />
-            </Panel>
+            {/* The gate only matters while the story is in review. */}
+            {story.state === 'in-review' && (
+              <Panel title="What stops publishing" description="Worked out again after every check.">
+                <BlockersList blockers={sheet.blockers} onOpen={openSubject} />
+              </Panel>
+            )}
             {workflow}
           </div>
         )}
