@@ -18,6 +18,11 @@ import { healthRouter } from './features/health/health.routes';
 import { instrumentsRouter } from './features/instruments/instruments.routes';
 import { specsRouter } from './features/specs/specs.routes';
 import { unsubscribeRouter } from './features/follows/unsubscribe.routes';
+import { followsRouter, meFollowsRouter } from './features/follows/follows.routes';
+import { publicRouter } from './features/public/public.routes';
+import { feedsRouter } from './features/feeds/feeds.routes';
+import { sheetsApiRouter, sheetsPdfRouter } from './features/sheets/sheets.routes';
+import { questionsRouter, storyQuestionsRouter } from './features/questions/questions.routes';
 import { outboxRouter } from './features/outbox/outbox.routes';
 import { reviewRouter, storyTransitionsRouter } from './features/review/review.routes';
 import { buildStoriesRouter, storiesRouter } from './features/stories/stories.routes';
@@ -77,6 +82,8 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
   app.use(express.json({ limit: '256kb' }));
 
   const sessionPool = new pg.Pool({ connectionString: config.databaseUrl, max: 5 });
+  // An idle client dropped by a restarting database emits 'error'; unheard, that would end the process.
+  sessionPool.on('error', (err) => logger.warn({ err }, 'session store connection lost; it reconnects on the next request'));
   app.use(sessionMiddleware(config, sessionPool));
   const passport = createPassport(config);
   app.use(passport.initialize());
@@ -111,6 +118,14 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
   mount(app, '/api/review', reviewRouter(review));
   mount(app, '/api/admin/outbox', outboxRouter(config));
   mount(app, '/api/unsubscribe', unsubscribeRouter(config));
+  mount(app, '/api/public', publicRouter({ storage }));
+  mount(app, '/api/builders', followsRouter());
+  mount(app, '/api/me', meFollowsRouter());
+  mount(app, '/feeds', feedsRouter(config));
+  mount(app, '/api/public', sheetsApiRouter(config));
+  mount(app, '/sheets', sheetsPdfRouter(config));
+  mount(app, '/api/public/stories', storyQuestionsRouter());
+  mount(app, '/api/questions', questionsRouter());
 
   app.use(['/api', '/auth'], apiNotFound);
   serveClient(app, config);

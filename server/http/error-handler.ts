@@ -10,6 +10,23 @@ function body(code: string, message: string, details: ErrorBody['error']['detail
   return { error: { code, message, details } };
 }
 
+const connectionCodes = new Set(['ECONNREFUSED', 'ECONNRESET', 'ETIMEDOUT', 'EPIPE', '57P01', '57P02', '57P03', '08000', '08003', '08006']);
+const connectionErrorNames = new Set(['SequelizeConnectionError', 'SequelizeConnectionRefusedError', 'SequelizeConnectionTimedOutError', 'SequelizeHostNotReachableError', 'SequelizeConnectionAcquireTimeoutError']);
+
+/**
+ * A lost or refused database connection (Sequelize's connection errors, pg's socket errors and
+ * the server-shutdown SQLSTATEs 57P01–57P03 / class 08): a 503 the client can retry, not a 500.
+ */
+function isDatabaseUnavailable(err: unknown): boolean {
+  for (let e = err as { name?: string; code?: string; parent?: unknown; original?: unknown; message?: string } | undefined, i = 0; e && i < 4; i += 1) {
+    if (e.name && connectionErrorNames.has(e.name)) return true;
+    if (e.code && connectionCodes.has(e.code)) return true;
+    if (typeof e.message === 'string' && /Connection terminated|terminating connection due to administrator command|the database system is (shutting down|starting up)/.test(e.message)) return true;
+    e = (e.parent ?? e.original) as typeof e;
+  }
+  return false;
+}
+
 /** 404 in the error contract for any /api or /auth path no router answered. */
 export const apiNotFound: RequestHandler = (_req, _res, next) => next(notFound());
 
@@ -58,6 +75,12 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
           ? 'The request body is too large.'
           : 'The request could not be understood.';
     res.status(status).json(body(err?.type === 'entity.too.large' ? 'too_large' : 'bad_request', message));
+    return;
+  }
+  if (isDatabaseUnavailable(err)) {
+    req.log?.warn({ err }, 'database unavailable');
+    res.set('Retry-After', '5');
+    res.status(503).json(body('database_unavailable', 'The database is not answering just now, so nothing was read or saved. Try again in a few seconds.'));
     return;
   }
   req.log?.error({ err }, 'unhandled error');

@@ -20,6 +20,8 @@ export interface TestAppOptions {
   /** Start the job queue and the clip worker (own queue names, so test files never share jobs). */
   jobs?: boolean;
   faultAt?: ClipJobDeps['faultAt'];
+  /** With env.DATABASE_URL: bind the models to that database too (only for a file that uses no other). */
+  ownDatabase?: boolean;
   /** Also send queued mail (needs `jobs`) to this app's own capture server, `t.smtp`. */
   mail?: boolean;
 }
@@ -65,6 +67,8 @@ export async function startTestApp(env: Record<string, string> = {}, opts: TestA
   // Models are bound once per test file to the test database; an app given another
   // DATABASE_URL (to see a broken database) gets its own instance for health checks only.
   const own = env.DATABASE_URL ? createSequelize(config.databaseUrl) : null;
+  // A test file that owns its whole database (a fault test that stops it) binds the models to it.
+  if (own && opts.ownDatabase) initModels(own);
   const sequelize = own ?? sharedSequelize();
   if (!own) users += 1;
   const logger = createLogger(config);
