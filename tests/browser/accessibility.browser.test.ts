@@ -32,7 +32,7 @@ async function demoBuildId() {
   return (await Build.findOne({ where: { ownerId: owner!.id }, order: [['id', 'ASC']] }))!.id;
 }
 
-const pages: { as: string | null; path: () => Promise<string> | string; ready: string }[] = [
+const pages: { as: string | null; path: string | (() => Promise<string>); ready: string }[] = [
   { as: null, path: '/', ready: 'main' },
   { as: null, path: '/sign-in', ready: 'main' },
   { as: null, path: '/calculator', ready: 'main' },
