@@ -7,6 +7,7 @@ import { createLogger } from './logger';
 import { startClipWorker } from './features/clips/clip.job';
 import { startQueue } from './jobs/queue';
 import { startMailWorker } from './mail/mail.job';
+import { startWeeklyDigest } from './features/public/weekly-digest.job';
 import { storageFromConfig } from './storage/select-storage';
 
 /** Starts the API + client server; `stop()` drains connections and closes the database pools. */
@@ -19,6 +20,7 @@ export async function startServer(config: Config) {
   const queue = await startQueue(config);
   const worker = config.jobs.worker === 'inline' ? await startClipWorker(config, queue, { storage, logger }) : null;
   const mailWorker = config.jobs.worker === 'inline' ? await startMailWorker(config, queue, { logger }) : null;
+  const digest = config.jobs.worker === 'inline' ? await startWeeklyDigest(config, queue, { logger }) : null;
   const { app, close } = createApp({ config, sequelize, logger, storage, queue });
   const server = http.createServer(app);
   await new Promise<void>((resolve, reject) => {
@@ -39,6 +41,7 @@ export async function startServer(config: Config) {
       });
       await worker?.stop();
       await mailWorker?.stop();
+      await digest?.stop();
       await queue.boss.stop({ graceful: true, timeout: 5000 });
       await close();
       await sequelize.close();

@@ -10,6 +10,8 @@ import { Reading, ReadingRevision, initReadingModels } from '../features/reading
 import { Spec, SpecVersion, initSpecModels } from '../features/specs/spec.model';
 import { Story, StoryImage, StoryRevision, initStoryModels } from '../features/stories/story.model';
 import { User, initUserModel } from '../features/users/user.model';
+import { Question, initQuestionModel } from '../features/questions/question.model';
+import { initReaderPreferencesModel } from '../features/public/reader-preferences.model';
 
 /** Initialises every feature's models and their associations on one Sequelize instance. */
 export function initModels(sequelize: Sequelize) {
@@ -24,6 +26,8 @@ export function initModels(sequelize: Sequelize) {
   initReviewModels(sequelize);
   initAuditModel(sequelize);
   initFollowModel(sequelize);
+  initQuestionModel(sequelize);
+  initReaderPreferencesModel(sequelize);
 
   Build.belongsTo(User, { as: 'owner', foreignKey: 'ownerId' });
   Build.hasMany(Part, { as: 'parts', foreignKey: 'buildId' });
@@ -84,4 +88,6 @@ export function initModels(sequelize: Sequelize) {
   AuditEntry.belongsTo(User, { as: 'actor', foreignKey: 'actorId' });
   Follow.belongsTo(User, { as: 'follower', foreignKey: 'followerId' });
   Follow.belongsTo(User, { as: 'builder', foreignKey: 'builderId' });
+  Question.belongsTo(Story, { as: 'story', foreignKey: 'storyId' });
+  Question.belongsTo(User, { as: 'author', foreignKey: 'authorId' });
 }

@@ -1,0 +1,129 @@
+import crypto from 'node:crypto';
+import fsp from 'node:fs/promises';
+import path from 'node:path';
+import { Router } from 'express';
+import { frameQuerySchema } from '@shared/clips/clip.schema';
+import type { UnitSystem } from '@shared/measure/format';
+import { publicBuilderParamsSchema, publicBuildParamsSchema } from '@shared/public/public-build.schema';
+import {
+  publicClipParamsSchema,
+  publicStoryListQuerySchema,
+  publicStoryParamsSchema,
+  publicStoryQuerySchema,
+  type PublicStoryListQuery,
+} from '@shared/public/public-story.schema';
+import { access } from '../../http/authorize';
+import { AppError, badRequest, notFound } from '../../http/errors';
+import { limiter } from '../../http/rate-limit';
+import { validQuery, validate } from '../../http/validate';
+import type { Storage } from '../../storage/storage';
+import { clipKeys, playableContentType, playableKey } from '../clips/clips.service';
+import { MediaCommandFailed } from '../clips/media/ffmpeg-run';
+import { extractFrame } from '../clips/media/stills';
+import {
+  cachedPublicStory,
+  currentPublicationOf,
+  listPublicStories,
+  publicBuild,
+  publicBuilderProfile,
+  publicClipScope,
+  storyEtag,
+} from './public.service';
+
+/** Published pages change only with a new publication: shared caches may keep them a minute. */
+const PUBLIC_PAGE_CACHE = 'public, max-age=60, stale-while-revalidate=300';
+
+/**
+ * The public side under /api/public: published stories, builds, builders and the media their
+ * evidence cites. Everything is read from publications; drafts stay private.
+ */
+export function publicRouter(deps: { storage: Storage }) {
+  const router = Router();
+
+  router.get('/stories', access.public, validate({ query: publicStoryListQuerySchema }), async (_req, res) => {
+    res.set('Cache-Control', 'public, max-age=30');
+    res.json(await listPublicStories(validQuery<PublicStoryListQuery>(res)));
+  });
+
+  router.get('/stories/following', access.signedIn, validate({ query: publicStoryListQuerySchema }), async (req, res) => {
+    res.set('Cache-Control', 'private, no-cache');
+    res.json(await listPublicStories(validQuery<PublicStoryListQuery>(res), { followerId: req.user!.id }));
+  });
+
+  router.get('/stories/:storyId', access.public, validate({ params: publicStoryParamsSchema, query: publicStoryQuerySchema }), async (req, res) => {
+    const publicationId = await currentPublicationOf(Number(req.params.storyId));
+    if (publicationId === null) throw notFound('There is no published story with that id.');
+    const units = validQuery<{ units?: UnitSystem }>(res).units ?? null;
+    res.set('ETag', storyEtag(publicationId, units));
+    res.set('Cache-Control', PUBLIC_PAGE_CACHE);
+    // Answered before anything is built: the tag names the publication, which never changes.
+    if (req.fresh) {
+      res.status(304).end();
+      return;
+    }
+    res.json(await cachedPublicStory(publicationId, units));
+  });
+
+  router.get('/builds/:buildId', access.public, validate({ params: publicBuildParamsSchema }), async (req, res) => {
+    res.set('Cache-Control', 'public, max-age=60');
+    res.json(await publicBuild(Number(req.params.buildId)));
+  });
+
+  router.get('/builders/:login', access.public, validate({ params: publicBuilderParamsSchema }), async (req, res) => {
+    // Whether the caller follows is personal.
+    res.set('Cache-Control', 'private, no-cache');
+    res.json(await publicBuilderProfile(String(req.params.login), req.user));
+  });
+
+  const clipId = (req: { params: Record<string, unknown> }) => Number(req.params.clipId);
+  const fullClip = async (id: number) => {
+    const scope = await publicClipScope(id);
+    if (!scope.full) throw notFound('There is no public clip with that id.');
+    return scope.clip;
+  };
+
+  router.get('/clips/:clipId/video', access.public, validate({ params: publicClipParamsSchema }), async (req, res) => {
+    const clip = await fullClip(clipId(req));
+    res.set('Cache-Control', 'public, max-age=60');
+    await deps.storage.send(res, playableKey(clip), { contentType: playableContentType(clip) });
+  });
+
+  router.get('/clips/:clipId/poster', access.public, validate({ params: publicClipParamsSchema }), async (req, res) => {
+    const clip = await fullClip(clipId(req));
+    res.set('Cache-Control', 'public, max-age=300');
+    await deps.storage.send(res, clipKeys(clip).poster, { contentType: 'image/jpeg' });
+  });
+
+  // Each new millisecond makes and stores a still: cap how fast one address can ask.
+  const frameLimiter = limiter({ windowMs: 60_000, limit: 240, message: 'Too many evidence stills asked for from here. Wait a minute and try again.' });
+  router.get('/clips/:clipId/frame', access.public, frameLimiter, validate({ params: publicClipParamsSchema, query: frameQuerySchema }), async (req, res) => {
+    const scope = await publicClipScope(clipId(req));
+    const { clip } = scope;
+    const atMs = Math.round(validQuery<{ t: number }>(res).t * 1000);
+    // A clip that is only a cover shows only the cover still.
+    if (!scope.full && !scope.coverTimesMs.has(atMs)) throw notFound('There is no public still at that time.');
+    const durationMs = Math.round((clip.probe?.durationS ?? 0) * 1000);
+    if (atMs > durationMs) {
+      throw badRequest(`The clip is ${(durationMs / 1000).toFixed(3)} s long; ask for a time inside it.`, [{ path: 't', message: 'after the end of the clip' }]);
+    }
+    const key = clipKeys(clip).frame(atMs);
+    if (!(await deps.storage.stat(key))) {
+      // The same still, from the same file, as the builder's and the moderator's view.
+      const source = await deps.storage.localCopy(playableKey(clip));
+      const out = path.join(deps.storage.scratchDir(), `frame-${crypto.randomUUID()}.jpg`);
+      try {
+        await extractFrame(source.path, atMs / 1000, out).catch((err: unknown) => {
+          throw err instanceof MediaCommandFailed ? new AppError(422, 'no_frame', err.message) : err;
+        });
+        await deps.storage.putFile(key, out, { contentType: 'image/jpeg' });
+      } finally {
+        await source.release();
+        await fsp.rm(out, { force: true });
+      }
+    }
+    res.set('Cache-Control', 'public, max-age=300');
+    await deps.storage.send(res, key, { contentType: 'image/jpeg' });
+  });
+
+  return router;
+}

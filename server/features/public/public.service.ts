@@ -1,0 +1,392 @@
+import { QueryTypes } from 'sequelize';
+import type { UnitSystem } from '@shared/measure/format';
+import type { PublicBuild, PublicBuilderProfile, PublicClearanceFigure, PublicClearanceSummary } from '@shared/public/public-build.schema';
+import {
+  builderFeedPath,
+  type PublicClaim,
+  type PublicStory,
+  type PublicStoryListItem,
+  type PublicStoryListQuery,
+  type PublicStoryListResponse,
+} from '@shared/public/public-story.schema';
+import { STANDING_NOTE } from '@shared/stories/cautions';
+import { claimTargetsFrom } from '@shared/stories/claims';
+import { renderStory } from '@shared/stories/render';
+import type { StoryTags } from '@shared/stories/story.schema';
+import { notFound } from '../../http/errors';
+import { Build, Part } from '../builds/build.model';
+import { Clip, Moment } from '../clips/clip.model';
+import { Follow } from '../follows/follow.model';
+import { escapeLike } from '../readings/readings.service';
+import { StoryPublication } from '../review/review.model';
+import { Story } from '../stories/story.model';
+import { User } from '../users/user.model';
+import { LruCache } from './public.cache';
+import {
+  PUBLIC_STORY_SQL,
+  builderRef,
+  currentPublications,
+  evidenceOf,
+  publicClearance,
+  publicClipUrls,
+  publicReading,
+  type PublishedEvidence,
+} from './publication';
+
+const sql = () => Story.sequelize!;
+
+// ---------------------------------------------------------------------------------------------
+// Lists
+
+interface ListRow {
+  story_id: number;
+  publication_id: number;
+  number: number;
+  title: string;
+  summary: string;
+  tags: StoryTags;
+  work_date: string | null;
+  cover_moment_id: number | null;
+  published_at: Date;
+  cursor_at: string;
+  claim_count: number;
+  out_of_spec: boolean;
+  build_id: number;
+  build_title: string;
+  builder_id: number;
+  login: string;
+  display_name: string;
+  shop: string | null;
+}
+
+const OUT_OF_SPEC = JSON.stringify([{ result: { verdict: 'does-not-conform' } }]);
+
+/**
+ * Published stories, newest publication first, by keyset on (publishedAt, publication id).
+ * `followerId` narrows to builders that account follows.
+ */
+export async function listPublicStories(q: PublicStoryListQuery, opts: { followerId?: number } = {}): Promise<PublicStoryListResponse> {
+  const where = [PUBLIC_STORY_SQL];
+  const replacements: Record<string, unknown> = { limit: q.limit + 1, oos: OUT_OF_SPEC };
+  if (q.before) {
+    const cut = q.before.lastIndexOf('_');
+    where.push('(p.published_at, p.id) < (CAST(:beforeAt AS timestamptz), :beforeId)');
+    replacements.beforeAt = q.before.slice(0, cut);
+    replacements.beforeId = Number(q.before.slice(cut + 1));
+  }
+  if (q.tag) {
+    // Containment per group, so the GIN index on tags can answer it.
+    where.push('(p.tags @> CAST(:tagMachine AS jsonb) OR p.tags @> CAST(:tagComponent AS jsonb) OR p.tags @> CAST(:tagOperation AS jsonb))');
+    replacements.tagMachine = JSON.stringify({ machine: [q.tag] });
+    replacements.tagComponent = JSON.stringify({ component: [q.tag] });
+    replacements.tagOperation = JSON.stringify({ operation: [q.tag] });
+  }
+  if (q.builder) {
+    where.push('u.login = :builder');
+    replacements.builder = q.builder;
+  }
+  if (q.verdict === 'out-of-spec') where.push(`(p.evidence->'clearances') @> CAST(:oos AS jsonb)`);
+  if (q.q) {
+    where.push(`(p.title ILIKE :q OR p.summary ILIKE :q)`);
+    replacements.q = `%${escapeLike(q.q)}%`;
+  }
+  if (opts.followerId !== undefined) {
+    where.push('b.owner_id IN (SELECT f.builder_id FROM follows f WHERE f.follower_id = :followerId)');
+    replacements.followerId = opts.followerId;
+  }
+  const rows = await sql().query<ListRow>(
+    `SELECT s.id AS story_id, p.id AS publication_id, p.number, p.title, p.summary, p.tags,
+            to_char(p.work_date, 'YYYY-MM-DD') AS work_date, p.cover_moment_id, p.published_at,
+            to_char(p.published_at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.US"Z"') AS cursor_at,
+            jsonb_array_length(COALESCE(p.evidence->'claims', '[]'::jsonb)) AS claim_count,
+            COALESCE((p.evidence->'clearances') @> CAST(:oos AS jsonb), false) AS out_of_spec,
+            b.id AS build_id, b.title AS build_title, u.id AS builder_id, u.login, u.display_name, u.shop
+       FROM stories s
+       JOIN story_publications p ON p.id = s.published_publication_id
+       JOIN builds b ON b.id = s.build_id
+       JOIN users u ON u.id = b.owner_id
+      WHERE ${where.join(' AND ')}
+      ORDER BY p.published_at DESC, p.id DESC
+      LIMIT :limit`,
+    { type: QueryTypes.SELECT, replacements },
+  );
+  const page = rows.slice(0, q.limit);
+  const covers = await coverUrls(page.map((r) => r.cover_moment_id));
+  const items: PublicStoryListItem[] = page.map((r) => ({
+    storyId: r.story_id,
+    revision: r.number,
+    title: r.title,
+    summary: r.summary,
+    coverUrl: r.cover_moment_id === null ? null : (covers.get(r.cover_moment_id) ?? null),
+    tags: r.tags,
+    workDate: r.work_date,
+    publishedAt: new Date(r.published_at).toISOString(),
+    builder: { id: r.builder_id, login: r.login, displayName: r.display_name, shop: r.shop },
+    build: { id: r.build_id, title: r.build_title },
+    claimCount: Number(r.claim_count),
+    outOfSpec: Boolean(r.out_of_spec),
+  }));
+  const last = page[page.length - 1];
+  return { items, nextBefore: rows.length > q.limit && last ? `${last.cursor_at}_${last.publication_id}` : null };
+}
+
+/** Public evidence stills of cover moments, by moment id. */
+export async function coverUrls(momentIds: (number | null)[]): Promise<Map<number, string>> {
+  const ids = [...new Set(momentIds.filter((id): id is number => id !== null))];
+  if (ids.length === 0) return new Map();
+  const moments = await Moment.findAll({ where: { id: ids }, attributes: ['id', 'clipId', 'atMs'] });
+  return new Map(moments.map((m) => [m.id, publicClipUrls(m.clipId, m.atMs).stillUrl]));
+}
+
+// ---------------------------------------------------------------------------------------------
+// One story
+
+/**
+ * The current public publication of a story, or null when it has none or it is withdrawn. One
+ * query: this is all a cached story costs.
+ */
+export async function currentPublicationOf(storyId: number): Promise<number | null> {
+  const [row] = await sql().query<{ id: number }>(`SELECT s.published_publication_id AS id FROM stories s WHERE s.id = :storyId AND ${PUBLIC_STORY_SQL}`, {
+    type: QueryTypes.SELECT,
+    replacements: { storyId },
+  });
+  return row?.id ?? null;
+}
+
+/** The claims of a publication with their evidence, rendered from its own figures. */
+export function claimsWithEvidence(body: string, e: PublishedEvidence, units: UnitSystem | null): { html: string; claims: PublicClaim[] } {
+  const rendered = renderStory(body, { targets: claimTargetsFrom(e.readings, e.clearances) });
+  const readingById = new Map(e.readings.map((r) => [r.id, r]));
+  const readingByKey = new Map(e.readings.map((r) => [r.key, r]));
+  const clearanceByKey = new Map(e.clearances.map((c) => [c.key, c]));
+  const claims = rendered.claims.map((c): PublicClaim => {
+    const clearance = c.kind === 'clearance' ? clearanceByKey.get(c.key) : undefined;
+    const readings =
+      c.kind === 'reading'
+        ? [readingByKey.get(c.key)].filter((r) => r !== undefined)
+        : (clearance?.terms ?? []).map((t) => readingById.get(t.readingId)).filter((r) => r !== undefined);
+    return {
+      kind: c.kind,
+      key: c.key,
+      text: c.text,
+      line: c.line,
+      anchor: `claim-${c.kind}-${c.key}`,
+      state: c.status.state,
+      display: c.target?.display ?? null,
+      verdict: c.target?.verdict ?? null,
+      clearance: clearance ? publicClearance(clearance, units) : null,
+      readings: readings.map((r) => publicReading(r, units)),
+    };
+  });
+  return { html: rendered.html, claims };
+}
+
+/** Builds the public page of one publication (what the cache keeps). */
+export async function buildPublicStory(publicationId: number, units: UnitSystem | null): Promise<PublicStory> {
+  const publication = await StoryPublication.findByPk(publicationId);
+  if (!publication) throw notFound('There is no published story with that id.');
+  const story = (await Story.findByPk(publication.storyId, { attributes: ['id', 'buildId'] }))!;
+  const build = (await Build.findByPk(story.buildId, { include: [{ model: Part, as: 'parts' }] }))!;
+  const [owner, publisher, covers] = await Promise.all([
+    User.findByPk(build.ownerId),
+    User.findByPk(publication.publishedBy),
+    coverUrls([publication.coverMomentId]),
+  ]);
+  const e = evidenceOf(publication);
+  const { html, claims } = claimsWithEvidence(publication.body, e, units);
+  const partsWithReadings = new Set(e.readings.map((r) => r.partId).filter((id) => id !== null));
+  return {
+    storyId: story.id,
+    revision: publication.number,
+    publicationId: publication.id,
+    title: publication.title,
+    summary: publication.summary,
+    tags: publication.tags,
+    workDate: publication.workDate,
+    coverUrl: publication.coverMomentId === null ? null : (covers.get(publication.coverMomentId) ?? null),
+    publishedAt: publication.publishedAt.toISOString(),
+    publisher: { id: publication.publishedBy, displayName: publisher?.displayName ?? '' },
+    html,
+    claims,
+    standingNote: STANDING_NOTE,
+    units,
+    build: { id: build.id, title: build.title, subject: build.subject, parts: publicParts(build.parts ?? [], partsWithReadings) },
+    builder: builderRef(owner!),
+    feedUrl: builderFeedPath(owner!.login),
+  };
+}
+
+function publicParts(parts: Part[], withReadings: Set<number>) {
+  return [...parts]
+    .sort((a, b) => a.position - b.position)
+    .map((p) => ({
+      id: p.id,
+      name: p.name,
+      serial: p.serial,
+      sheetUrl: withReadings.has(p.id) ? `/api/public/parts/${p.id}/sheet` : null,
+      pdfUrl: withReadings.has(p.id) ? `/sheets/parts/${p.id}.pdf` : null,
+    }));
+}
+
+/** Built story pages by publication and units: a published revision never changes. */
+const storyCache = new LruCache<PublicStory>(200);
+
+/** The ETag of a publication's page in a system of units: it changes only with a new publication. */
+export function storyEtag(publicationId: number, units: UnitSystem | null): string {
+  return `"p${publicationId}-${units ?? 'entered'}"`;
+}
+
+/** The page of a publication, from the cache when it has been built before. */
+export async function cachedPublicStory(publicationId: number, units: UnitSystem | null): Promise<PublicStory> {
+  const key = `${publicationId}:${units ?? ''}`;
+  const hit = storyCache.get(key);
+  if (hit) return hit;
+  const built = await buildPublicStory(publicationId, units);
+  storyCache.set(key, built);
+  return built;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Builds and builders
+
+function byWorkDate(a: StoryPublication, b: StoryPublication): number {
+  // Entries without a work date go last; ties by when they were published.
+  if (a.workDate !== b.workDate) {
+    if (a.workDate === null) return 1;
+    if (b.workDate === null) return -1;
+    return a.workDate < b.workDate ? -1 : 1;
+  }
+  return a.publishedAt.getTime() - b.publishedAt.getTime() || a.id - b.id;
+}
+
+/** A build with at least one public entry: its entries in work order and every checked clearance across them. */
+export async function publicBuild(buildId: number): Promise<PublicBuild> {
+  const missing = () => notFound('There is no public build with that id.');
+  const build = await Build.findByPk(buildId, { include: [{ model: Part, as: 'parts' }] });
+  if (!build) throw missing();
+  const publications = (await currentPublications({ buildIds: [build.id] })).sort(byWorkDate);
+  if (publications.length === 0) throw missing();
+  const [owner, covers] = await Promise.all([User.findByPk(build.ownerId), coverUrls(publications.map((p) => p.coverMomentId))]);
+
+  const summaries = new Map<string, PublicClearanceSummary>();
+  const partsWithReadings = new Set<number>();
+  for (const p of publications) {
+    const e = evidenceOf(p);
+    for (const r of e.readings) if (r.partId !== null) partsWithReadings.add(r.partId);
+    for (const c of e.clearances) {
+      if (!c.result || !c.checked) continue;
+      const figure: PublicClearanceFigure = {
+        storyId: p.storyId,
+        revision: p.number,
+        storyTitle: p.title,
+        workDate: p.workDate,
+        valueUm: c.result.valueUm,
+        expandedUncertaintyUm: c.result.expandedUncertaintyUm,
+        display: c.result.display,
+        verdict: c.result.verdict,
+        rule: c.result.rule,
+        spec: c.spec ? { name: c.spec.name, version: c.spec.version, sourceText: c.spec.sourceText } : null,
+      };
+      const known = summaries.get(c.key);
+      if (known) {
+        known.entries.push(figure);
+        known.latest = figure;
+      } else {
+        summaries.set(c.key, { key: c.key, name: c.name, unit: c.result.unit, first: figure, latest: figure, entries: [figure] });
+      }
+    }
+  }
+  return {
+    id: build.id,
+    title: build.title,
+    subject: build.subject,
+    builder: builderRef(owner!),
+    parts: publicParts(build.parts ?? [], partsWithReadings),
+    entries: publications.map((p) => ({
+      storyId: p.storyId,
+      revision: p.number,
+      title: p.title,
+      summary: p.summary,
+      workDate: p.workDate,
+      publishedAt: p.publishedAt.toISOString(),
+      coverUrl: p.coverMomentId === null ? null : (covers.get(p.coverMomentId) ?? null),
+    })),
+    clearances: [...summaries.values()],
+  };
+}
+
+/** An account counts as a builder when its role is builder or it has builds of its own (a moderator who builds). */
+export async function isBuilderAccount(user: Pick<User, 'id' | 'role'>): Promise<boolean> {
+  if (user.role === 'builder') return true;
+  return (await Build.count({ where: { ownerId: user.id } })) > 0;
+}
+
+/** A builder's public profile; 404 for unknown logins and accounts that do not build. */
+export async function publicBuilderProfile(login: string, viewer: User | undefined): Promise<PublicBuilderProfile> {
+  const user = await User.findOne({ where: { login } });
+  if (!user || !(await isBuilderAccount(user))) throw notFound('There is no builder with that login.');
+  const [builds, followerCount, follow] = await Promise.all([
+    sql().query<{ id: number; title: string; subject: string; entry_count: number; latest: Date; cover_moment_id: number | null }>(
+      `SELECT b.id, b.title, b.subject, count(*) AS entry_count, max(p.published_at) AS latest,
+              (array_agg(p.cover_moment_id ORDER BY p.published_at DESC) FILTER (WHERE p.cover_moment_id IS NOT NULL))[1] AS cover_moment_id
+         FROM stories s
+         JOIN story_publications p ON p.id = s.published_publication_id
+         JOIN builds b ON b.id = s.build_id
+        WHERE ${PUBLIC_STORY_SQL} AND b.owner_id = :ownerId
+        GROUP BY b.id
+        ORDER BY latest DESC, b.id DESC`,
+      { type: QueryTypes.SELECT, replacements: { ownerId: user.id } },
+    ),
+    Follow.count({ where: { builderId: user.id } }),
+    viewer && viewer.id !== user.id ? Follow.findOne({ where: { followerId: viewer.id, builderId: user.id } }) : Promise.resolve(undefined),
+  ]);
+  const covers = await coverUrls(builds.map((b) => b.cover_moment_id));
+  return {
+    id: user.id,
+    login: user.login,
+    displayName: user.displayName,
+    shop: user.shop ?? null,
+    bio: user.bio ?? null,
+    avatarUrl: user.avatarUrl,
+    followerCount,
+    builds: builds.map((b) => ({
+      id: b.id,
+      title: b.title,
+      subject: b.subject,
+      entryCount: Number(b.entry_count),
+      latestPublishedAt: new Date(b.latest).toISOString(),
+      coverUrl: b.cover_moment_id === null ? null : (covers.get(b.cover_moment_id) ?? null),
+    })),
+    following: follow === undefined ? null : follow !== null,
+    emailOnPublish: follow ? follow.emailOnPublish : null,
+    feedUrl: builderFeedPath(user.login),
+  };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Media
+
+/**
+ * What of a clip the public may fetch: everything when a current publication cites a reading on
+ * it; only the still at a cover moment when a publication's cover is on it and nothing else is
+ * cited; otherwise 404 (draft media stays private).
+ */
+export async function publicClipScope(clipId: number): Promise<{ clip: Clip; full: boolean; coverTimesMs: Set<number> }> {
+  const missing = () => notFound('There is no public clip with that id.');
+  const rows = await sql().query<{ cover_moment_id: number | null; cites: boolean }>(
+    `SELECT p.cover_moment_id, COALESCE((p.evidence->'readings') @> CAST(:cites AS jsonb), false) AS cites
+       FROM stories s
+       JOIN story_publications p ON p.id = s.published_publication_id
+      WHERE ${PUBLIC_STORY_SQL}
+        AND ((p.evidence->'readings') @> CAST(:cites AS jsonb)
+             OR p.cover_moment_id IN (SELECT m.id FROM moments m WHERE m.clip_id = :clipId))`,
+    { type: QueryTypes.SELECT, replacements: { clipId, cites: JSON.stringify([{ clipId }]) } },
+  );
+  if (rows.length === 0) throw missing();
+  const clip = await Clip.findByPk(clipId);
+  if (!clip || clip.status !== 'ready') throw missing();
+  const full = rows.some((r) => r.cites);
+  const coverIds = rows.map((r) => r.cover_moment_id).filter((id): id is number => id !== null);
+  const covers = full || coverIds.length === 0 ? [] : await Moment.findAll({ where: { id: coverIds, clipId }, attributes: ['atMs'] });
+  return { clip, full, coverTimesMs: new Set(covers.map((m) => m.atMs)) };
+}

@@ -1,0 +1,138 @@
+import type { CalibrationState } from '@shared/instruments/instrument.schema';
+import { decisionRuleText, verdictWords } from '@shared/measure/spec';
+import type { PartSheet, SheetClearance, VerifySheet } from '@shared/public/sheet.schema';
+import { STANDING_NOTE } from '@shared/stories/cautions';
+import { AppError, notFound } from '../../http/errors';
+import { Build, Part } from '../builds/build.model';
+import { builderRef, calibrationFromWarnings, currentPublications, evidenceOf } from '../public/publication';
+import { StoryPublication } from '../review/review.model';
+import { Story } from '../stories/story.model';
+import { User } from '../users/user.model';
+
+/** Printed on every sheet and shown on the verification page. */
+export const SHEET_CAUTION = `These figures are the builder’s own, measured with their instruments and checked by a moderator against the footage; this sheet is a record of their work, not a certificate. ${STANDING_NOTE}`;
+
+const calibrationRank: Record<CalibrationState, number> = { 'in-date': 0, 'no-record': 1, overdue: 2 };
+
+/** The verification page a sheet's QR code opens: one story/rev pair per entry printed. */
+export function verifyUrlFor(publicUrl: string, partId: number, entries: { storyId: number; revision: number }[]): string {
+  const query = entries.map((e) => `story=${e.storyId}&rev=${e.revision}`).join('&');
+  return `${publicUrl}/verify/parts/${partId}?${query}`;
+}
+
+const missing = () => notFound('There is no public inspection sheet for that part.');
+
+/**
+ * The sheet of a part: every checked clearance that a current public entry of its build
+ * published with a reading taken on the part, with the instruments and who checked. `storyIds`
+ * narrows it to those entries. 404 when nothing public involves the part.
+ */
+export async function partSheet(partId: number, publicUrl: string, storyIds?: number[]): Promise<PartSheet> {
+  const part = await Part.findByPk(partId);
+  if (!part) throw missing();
+  const build = (await Build.findByPk(part.buildId))!;
+  const publications = (await currentPublications({ buildIds: [build.id], ...(storyIds && { storyIds }) })).sort(
+    (a, b) => a.publishedAt.getTime() - b.publishedAt.getTime() || a.id - b.id,
+  );
+
+  const clearances: SheetClearance[] = [];
+  const used: StoryPublication[] = [];
+  const instruments = new Map<number, { id: number; name: string; calibration: CalibrationState; warnings: Map<string, { code: string; message: string }> }>();
+  for (const p of publications) {
+    const e = evidenceOf(p);
+    const readingById = new Map(e.readings.map((r) => [r.id, r]));
+    const onPart = new Set(e.readings.filter((r) => r.partId === part.id).map((r) => r.id));
+    let any = false;
+    for (const c of e.clearances) {
+      if (!c.result || !c.checked || !c.terms.some((t) => onPart.has(t.readingId))) continue;
+      any = true;
+      const readings = c.terms.map((t) => readingById.get(t.readingId)).filter((r) => r !== undefined);
+      for (const r of readings) {
+        const known = instruments.get(r.instrumentId) ?? { id: r.instrumentId, name: r.instrumentName, calibration: 'in-date' as CalibrationState, warnings: new Map() };
+        const state = calibrationFromWarnings(r.warnings);
+        if (calibrationRank[state] > calibrationRank[known.calibration]) known.calibration = state;
+        for (const w of r.warnings) if (w.code === 'calibration-overdue' || w.code === 'no-calibration-record') known.warnings.set(w.message, w);
+        instruments.set(r.instrumentId, known);
+      }
+      const result = c.result;
+      clearances.push({
+        key: c.key,
+        name: c.name,
+        unit: result.unit,
+        valueUm: result.valueUm,
+        expandedUncertaintyUm: result.expandedUncertaintyUm,
+        coverageFactor: result.coverageFactor,
+        display: result.display,
+        verdict: result.verdict,
+        verdictWords: result.verdict ? verdictWords[result.verdict] : 'no spec',
+        rule: result.rule,
+        ruleText: result.rule ? decisionRuleText[result.rule] : null,
+        spec: c.spec ? { name: c.spec.name, version: c.spec.version, sourceKind: c.spec.sourceKind, sourceText: c.spec.sourceText } : null,
+        checkedBy: c.checked.byName,
+        checkedAt: c.checked.at,
+        storyId: p.storyId,
+        revision: p.number,
+        readings: readings.map((r) => ({
+          key: r.key,
+          name: r.name,
+          display: r.result.display,
+          instrumentId: r.instrumentId,
+          instrumentName: r.instrumentName,
+          takenOn: r.takenOn,
+          checkedBy: r.checked.byName,
+          checkedAt: r.checked.at,
+        })),
+      });
+    }
+    if (any) used.push(p);
+  }
+  if (used.length === 0) throw missing();
+
+  const people = new Map((await User.findAll({ where: { id: [build.ownerId, ...used.map((p) => p.publishedBy)] } })).map((u) => [u.id, u]));
+  const owner = people.get(build.ownerId)!;
+  const checkedBy = [...new Set(clearances.flatMap((c) => [c.checkedBy, ...c.readings.map((r) => r.checkedBy)]))].filter(Boolean);
+  const entries = used.map((p) => ({ storyId: p.storyId, revision: p.number }));
+  return {
+    part: { id: part.id, name: part.name, serial: part.serial },
+    build: { id: build.id, title: build.title, subject: build.subject },
+    builder: builderRef(owner),
+    publications: used.map((p) => ({
+      storyId: p.storyId,
+      revision: p.number,
+      title: p.title,
+      publishedAt: p.publishedAt.toISOString(),
+      publishedBy: people.get(p.publishedBy)?.displayName ?? '',
+    })),
+    clearances,
+    instruments: [...instruments.values()].map((i) => ({ id: i.id, name: i.name, calibration: i.calibration, warnings: [...i.warnings.values()] as PartSheet['instruments'][number]['warnings'] })),
+    checkedBy,
+    verifyUrl: verifyUrlFor(publicUrl, part.id, entries),
+    pdfUrl: `/sheets/parts/${part.id}.pdf${storyIds?.length === 1 ? `?story=${storyIds[0]}` : ''}`,
+    caution: SHEET_CAUTION,
+  };
+}
+
+/**
+ * A printed sheet checked against the database now: for each entry printed, the revision public
+ * now (null once withdrawn), and the sheet as it stands for those entries still public.
+ */
+export async function verifySheet(partId: number, publicUrl: string, printed: { storyIds: number[]; revisions: number[] }): Promise<VerifySheet> {
+  const part = await Part.findByPk(partId);
+  if (!part) throw missing();
+  const stories = await Story.findAll({ where: { id: printed.storyIds, buildId: part.buildId } });
+  const current = new Map((await currentPublications({ storyIds: stories.map((s) => s.id) })).map((p) => [p.storyId, p]));
+  const entries = printed.storyIds.map((storyId, i) => {
+    const now = current.get(storyId) ?? null;
+    const printedRevision = printed.revisions[i]!;
+    return { storyId, printedRevision, currentRevision: now?.number ?? null, current: now !== null && now.number === printedRevision };
+  });
+  const stillPublic = entries.filter((e) => e.currentRevision !== null).map((e) => e.storyId);
+  // Still public, yet no longer with a checked clearance on this part: nothing to show, and not current.
+  const sheet = stillPublic.length
+    ? await partSheet(part.id, publicUrl, stillPublic).catch((err: unknown) => {
+        if (err instanceof AppError && err.status === 404) return null;
+        throw err;
+      })
+    : null;
+  return { current: sheet !== null && entries.every((e) => e.current), entries, sheet, checkedAt: new Date().toISOString() };
+}

@@ -1,0 +1,248 @@
+/**
+ * The public side of stories: what anyone may read once a moderator has published a story.
+ *
+ * Everything here comes from a publication (the revision as published, with the figures of its
+ * claims as judged then), never from the builder's live readings. A story is public while it has
+ * a publication and has not been withdrawn; a newer revision in review leaves the old one public.
+ */
+import { z } from 'zod';
+import { bandUmSchema } from '../clearances/clearance.schema';
+import { calibrationStates } from '../instruments/instrument.schema';
+import { readingSchema as engineReadingSchema, unitSchema } from '../measure/calc.schema';
+import { unitSystems } from '../measure/format';
+import { decisionRules, verdicts } from '../measure/spec';
+import { readingKinds, readingWarningSchema } from '../readings/reading.schema';
+import { storyTagsSchema } from '../stories/story.schema';
+
+/** A keyset cursor over (publishedAt, publication id): opaque to clients, pass back as `before`. */
+export const publicCursorSchema = z.string().regex(/^\d{4}-\d{2}-\d{2}T[\d:.]+Z_\d{1,12}$/, 'before must be a cursor from a previous page');
+
+/** A reader's measuring system for figures shown beside the builder's own (`?units=`); absent = as entered. */
+export const unitsQuerySchema = z.enum(unitSystems, { error: 'units must be "imperial" or "metric"' });
+
+/** The verdict filter of the public list: stories with at least one clearance out of spec. */
+export const publicVerdictFilters = ['out-of-spec'] as const;
+
+/** Query of `GET /api/public/stories` and `GET /api/public/stories/following`: newest published first. */
+export const publicStoryListQuerySchema = z.object({
+  before: publicCursorSchema.optional(),
+  limit: z.coerce.number().int().min(1, 'limit is at least 1').max(50, 'limit is at most 50').default(20),
+  /** A tag in any group (machine, component or operation), matched exactly. */
+  tag: z.string().trim().min(1).max(40, 'a tag is at most 40 characters').optional(),
+  /** A builder's login. */
+  builder: z.string().trim().min(1).max(64).optional(),
+  verdict: z.enum(publicVerdictFilters, { error: 'verdict must be "out-of-spec"' }).optional(),
+  /** Words in the title or summary (case-insensitive; % and _ are taken literally). */
+  q: z.string().trim().min(1).max(100, 'search for at most 100 characters').optional(),
+});
+export type PublicStoryListQuery = z.infer<typeof publicStoryListQuerySchema>;
+
+/** A builder as the public sees them. */
+export const publicBuilderRefSchema = z.object({
+  id: z.number().int().positive(),
+  login: z.string(),
+  displayName: z.string(),
+  shop: z.string().nullable(),
+});
+export type PublicBuilderRef = z.infer<typeof publicBuilderRefSchema>;
+
+/** One published story in a list. */
+export const publicStoryListItemSchema = z.object({
+  storyId: z.number().int().positive(),
+  /** The publication's number: 1 for the first published revision, 2 for the next… */
+  revision: z.number().int().positive(),
+  title: z.string(),
+  summary: z.string(),
+  /** The public evidence still of the cover moment, or null. */
+  coverUrl: z.string().nullable(),
+  tags: storyTagsSchema,
+  workDate: z.string().nullable(),
+  publishedAt: z.string(),
+  builder: publicBuilderRefSchema,
+  build: z.object({ id: z.number().int().positive(), title: z.string() }),
+  claimCount: z.number().int().nonnegative(),
+  /** Some clearance in its evidence is out of spec (verdict `does-not-conform`). */
+  outOfSpec: z.boolean(),
+});
+export type PublicStoryListItem = z.infer<typeof publicStoryListItemSchema>;
+
+/** Response of the public story lists; `nextBefore` is null on the last page. */
+export const publicStoryListResponseSchema = z.object({
+  items: z.array(publicStoryListItemSchema),
+  nextBefore: z.string().nullable(),
+});
+export type PublicStoryListResponse = z.infer<typeof publicStoryListResponseSchema>;
+
+/** Path parameters naming a story. */
+export const publicStoryParamsSchema = z.object({ storyId: z.coerce.number().int().positive() });
+/** Query of `GET /api/public/stories/:storyId`. */
+export const publicStoryQuerySchema = z.object({ units: unitsQuerySchema.optional() });
+
+/** Who checked a reading or clearance against the footage, and when (as recorded at publication). */
+export const publicCheckSchema = z.object({
+  by: z.number().int().positive(),
+  byName: z.string(),
+  at: z.string(),
+  /** The version of the reading or clearance that was checked. */
+  lockVersion: z.number().int().positive(),
+});
+
+/** Where a reading was taken in its clip, with the public media addresses. */
+export const publicMomentSchema = z.object({
+  momentId: z.number().int().positive(),
+  clipId: z.number().int().positive(),
+  clipTitle: z.string(),
+  atMs: z.number().int().nonnegative(),
+  /** The evidence still at that moment: `/api/public/clips/:clipId/frame?t=…`. */
+  stillUrl: z.string(),
+  /** The clip, playable with Range requests: `/api/public/clips/:clipId/video`. */
+  clipUrl: z.string(),
+  posterUrl: z.string(),
+});
+
+/** A reading as judged: the texts as entered, the instrument, and the engine's working. */
+export const publicReadingSchema = z.object({
+  id: z.number().int().positive(),
+  key: z.string(),
+  name: z.string(),
+  kind: z.enum(readingKinds),
+  unit: unitSchema,
+  /** The texts exactly as the builder typed them. */
+  entered: z.record(z.string(), z.union([z.string(), z.array(z.string())])),
+  value: z.string().nullable(),
+  passes: z.string().nullable(),
+  stops: z.string().nullable(),
+  values: z.array(z.string()).nullable(),
+  /** "0.5642 in ± 0.00012 in (k = 2)". */
+  display: z.string(),
+  /** The same figure in the reader's system when `units` asks for the other one; null otherwise. */
+  converted: z.string().nullable(),
+  valueUm: z.number(),
+  standardUncertaintyUm: z.number().nonnegative(),
+  /** U = 2u, as claims are checked (GUM 6.2.1, 6.3.3). */
+  expandedUncertaintyUm: z.number().nonnegative(),
+  steps: z.array(z.string()),
+  takenOn: z.string(),
+  temperatureC: z.number().nullable(),
+  material: z.string().nullable(),
+  part: z.object({ id: z.number().int().positive(), name: z.string() }).nullable(),
+  instrument: z.object({
+    id: z.number().int().positive(),
+    name: z.string(),
+    /** On the day of the reading, from the warnings recorded when it was judged. */
+    calibration: z.enum(calibrationStates),
+  }),
+  zeroCheck: z.object({ offset: z.string(), unit: unitSchema }).nullable(),
+  warnings: z.array(readingWarningSchema),
+  moment: publicMomentSchema,
+  checked: publicCheckSchema,
+  /**
+   * The engine's input for this reading as judged (instrument resolution, stated uncertainty and
+   * zero offset filled in), so a reader can run it through POST /api/calc again.
+   */
+  engine: engineReadingSchema.optional(),
+});
+export type PublicReading = z.infer<typeof publicReadingSchema>;
+
+/** A clearance as judged: value, U, verdict by its rule against a cited spec version, and the working. */
+export const publicClearanceSchema = z.object({
+  id: z.number().int().positive(),
+  key: z.string(),
+  name: z.string(),
+  unit: unitSchema,
+  valueUm: z.number(),
+  standardUncertaintyUm: z.number().nonnegative(),
+  expandedUncertaintyUm: z.number().nonnegative(),
+  coverageFactor: z.number(),
+  /** "0.0047 in ± 0.00031 in (k = 2)". */
+  display: z.string(),
+  converted: z.string().nullable(),
+  verdict: z.enum(verdicts).nullable(),
+  preferredVerdict: z.enum(verdicts).nullable(),
+  rejectVerdict: z.enum(verdicts).nullable(),
+  rule: z.enum(decisionRules).nullable(),
+  /** The spec's limits in µm, for the band picture. */
+  band: bandUmSchema.nullable(),
+  spec: z
+    .object({ name: z.string(), version: z.number().int().positive(), sourceKind: z.string(), sourceText: z.string() })
+    .nullable(),
+  terms: z.array(z.object({ readingId: z.number().int().positive(), readingKey: z.string(), readingName: z.string(), sign: z.union([z.literal(1), z.literal(-1)]) })),
+  steps: z.array(z.string()),
+  checked: publicCheckSchema,
+});
+export type PublicClearance = z.infer<typeof publicClearanceSchema>;
+
+/** Claim states as the publish gate left them (a published story's claims all agree). */
+export const publicClaimStates = ['ok', 'unknown-target', 'number-disagrees', 'verdict-disagrees'] as const;
+
+/** A claim of a published story with its evidence. `anchor` is the id its link in `html` points at. */
+export const publicClaimSchema = z.object({
+  kind: z.enum(['reading', 'clearance']),
+  key: z.string(),
+  text: z.string(),
+  line: z.number().int().positive(),
+  /** `claim-clearance-end-float`: the link in `html` is `href="#<anchor>"`. */
+  anchor: z.string(),
+  state: z.enum(publicClaimStates),
+  display: z.string().nullable(),
+  verdict: z.enum(verdicts).nullable(),
+  /** The clearance a clearance claim links to; null for a reading claim. */
+  clearance: publicClearanceSchema.nullable(),
+  /** The reading a reading claim links to, or the readings of the clearance's terms. */
+  readings: z.array(publicReadingSchema),
+});
+export type PublicClaim = z.infer<typeof publicClaimSchema>;
+
+/** A part of a build, with the address of its inspection sheet. */
+export const publicPartSchema = z.object({
+  id: z.number().int().positive(),
+  name: z.string(),
+  serial: z.string(),
+  /** `/api/public/parts/:partId/sheet`; null when no public entry has a reading on the part. */
+  sheetUrl: z.string().nullable(),
+  /** `/sheets/parts/:partId.pdf`; null as for sheetUrl. */
+  pdfUrl: z.string().nullable(),
+});
+
+/** Response of `GET /api/public/stories/:storyId`: the current publication, rendered. */
+export const publicStorySchema = z.object({
+  storyId: z.number().int().positive(),
+  revision: z.number().int().positive(),
+  publicationId: z.number().int().positive(),
+  title: z.string(),
+  summary: z.string(),
+  tags: storyTagsSchema,
+  workDate: z.string().nullable(),
+  coverUrl: z.string().nullable(),
+  publishedAt: z.string(),
+  /** The moderator who published it. */
+  publisher: z.object({ id: z.number().int().positive(), displayName: z.string() }),
+  /** Sanitized HTML of the body (renderStory), claims as `<a class="claim" href="#…">`. */
+  html: z.string(),
+  claims: z.array(publicClaimSchema),
+  /** The note shown under every story (STANDING_NOTE). */
+  standingNote: z.string(),
+  /** The system `converted` figures are in, or null when figures are only as entered. */
+  units: unitsQuerySchema.nullable(),
+  build: z.object({
+    id: z.number().int().positive(),
+    title: z.string(),
+    subject: z.string(),
+    parts: z.array(publicPartSchema),
+  }),
+  builder: publicBuilderRefSchema,
+  /** The builder's Atom feed, `/feeds/builders/<login>.atom`. */
+  feedUrl: z.string(),
+});
+export type PublicStory = z.infer<typeof publicStorySchema>;
+
+/** Public media of a clip cited by a published story. */
+export const publicClipParamsSchema = z.object({ clipId: z.coerce.number().int().positive() });
+
+/** The site's Atom feed (RFC 4287) of published stories. */
+export const SITE_FEED_PATH = '/feeds/stories.atom';
+
+/** A builder's Atom feed. */
+export function builderFeedPath(login: string): string {
+  return `/feeds/builders/${encodeURIComponent(login)}.atom`;
+}
