@@ -27,6 +27,18 @@ function isDatabaseUnavailable(err: unknown): boolean {
   return false;
 }
 
+/** A disk that is full or cannot be written: refuse with words a builder can act on, not a 500. */
+function storageFailure(err: unknown): { status: number; code: string; message: string } | null {
+  const code = (err as { code?: string } | undefined)?.code;
+  if (code === 'ENOSPC' || code === 'EDQUOT') {
+    return { status: 507, code: 'storage_full', message: 'The media storage is full, so the file was not kept. Nothing was saved; tell the site admin.' };
+  }
+  if (code === 'EACCES' || code === 'EPERM' || code === 'EROFS') {
+    return { status: 503, code: 'storage_unwritable', message: 'The media storage cannot be written just now, so the file was not kept. Nothing was saved; tell the site admin.' };
+  }
+  return null;
+}
+
 /** 404 in the error contract for any /api or /auth path no router answered. */
 export const apiNotFound: RequestHandler = (_req, _res, next) => next(notFound());
 
@@ -75,6 +87,12 @@ export const errorHandler: ErrorRequestHandler = (err, req, res, _next) => {
           ? 'The request body is too large.'
           : 'The request could not be understood.';
     res.status(status).json(body(err?.type === 'entity.too.large' ? 'too_large' : 'bad_request', message));
+    return;
+  }
+  const storageProblem = storageFailure(err);
+  if (storageProblem) {
+    req.log?.error({ err }, 'media storage failed');
+    res.status(storageProblem.status).json(body(storageProblem.code, storageProblem.message));
     return;
   }
   if (isDatabaseUnavailable(err)) {
