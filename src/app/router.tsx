@@ -49,6 +49,16 @@ export const router = createBrowserRouter([
           { path: 'admin/users', lazy: () => import('@/features/admin/routes/users-page') },
           { path: 'admin/outbox', lazy: () => import('@/features/outbox/routes/outbox-page') },
           { path: 'unsubscribe', lazy: () => import('@/features/unsubscribe/routes/unsubscribe-page') },
+          // A claim's panel is a child address of its story, so opening one keeps the page (and the reader's place).
+          {
+            path: 'stories/:storyId',
+            lazy: () => import('@/features/public/routes/story-page'),
+            children: [{ path: 'claims/:claimKey' }],
+          },
+          { path: 'public/builds/:buildId', lazy: () => import('@/features/public/routes/build-page') },
+          { path: 'builders/:login', lazy: () => import('@/features/public/routes/builder-page') },
+          { path: 'verify/parts/:partId', lazy: () => import('@/features/public/routes/verify-page') },
+          { path: 'account/follows', lazy: () => import('@/features/follows/routes/account-follows-page') },
           // Not lazy: the error boundary shows the same page for loader 404s.
           { path: '*', Component: NotFoundPage },
         ],

@@ -21,7 +21,7 @@ import { clipKeys, playableContentType, playableKey } from '../clips/clips.servi
 import { MediaCommandFailed } from '../clips/media/ffmpeg-run';
 import { extractFrame } from '../clips/media/stills';
 import {
-  cachedPublicStory,
+  cachedPublicStoryJson,
   currentPublicationOf,
   listPublicStories,
   publicBuild,
@@ -61,7 +61,7 @@ export function publicRouter(deps: { storage: Storage }) {
       res.status(304).end();
       return;
     }
-    res.json(await cachedPublicStory(publicationId, units));
+    res.type('application/json').send(await cachedPublicStoryJson(publicationId, units));
   });
 
   router.get('/builds/:buildId', access.public, validate({ params: publicBuildParamsSchema }), async (req, res) => {

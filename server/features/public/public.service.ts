@@ -230,6 +230,8 @@ function publicParts(parts: Part[], withReadings: Set<number>) {
 
 /** Built story pages by publication and units: a published revision never changes. */
 const storyCache = new LruCache<PublicStory>(200);
+// The same pages as JSON text: a published revision never changes, so it is serialised once.
+const storyJsonCache = new LruCache<string>(200);
 
 /** The ETag of a publication's page in a system of units: it changes only with a new publication. */
 export function storyEtag(publicationId: number, units: UnitSystem | null): string {
@@ -237,6 +239,16 @@ export function storyEtag(publicationId: number, units: UnitSystem | null): stri
 }
 
 /** The page of a publication, from the cache when it has been built before. */
+/** The cached page as JSON text, ready to send. */
+export async function cachedPublicStoryJson(publicationId: number, units: UnitSystem | null): Promise<string> {
+  const key = `${publicationId}:${units ?? ''}`;
+  const hit = storyJsonCache.get(key);
+  if (hit !== undefined) return hit;
+  const json = JSON.stringify(await cachedPublicStory(publicationId, units));
+  storyJsonCache.set(key, json);
+  return json;
+}
+
 export async function cachedPublicStory(publicationId: number, units: UnitSystem | null): Promise<PublicStory> {
   const key = `${publicationId}:${units ?? ''}`;
   const hit = storyCache.get(key);

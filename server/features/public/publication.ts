@@ -123,6 +123,8 @@ export function publicReading(r: PublishedEvidence['readings'][number], units: U
     standardUncertaintyUm: r.result.standardUncertaintyUm,
     expandedUncertaintyUm: target.expandedUncertaintyUm,
     steps: r.result.steps,
+    // What the engine was given, so a reader can run it through the public calculator.
+    engine: r.engine,
     takenOn: r.takenOn,
     temperatureC: r.temperatureC,
     material: r.material,

@@ -46,6 +46,14 @@ function AccountMenu({ user }: { user: User }) {
           </span>
         </MenuLabel>
         <MenuSeparator />
+        {user.role === 'builder' && (
+          <MenuItem asChild>
+            <Link to={`/builders/${encodeURIComponent(user.login)}`}>Your public profile</Link>
+          </MenuItem>
+        )}
+        <MenuItem asChild>
+          <Link to="/account/follows">Follows and e-mail</Link>
+        </MenuItem>
         {user.role === 'admin' && (
           <MenuItem asChild>
             <Link to="/admin/users">Users and roles</Link>

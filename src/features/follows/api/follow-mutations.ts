@@ -1,0 +1,68 @@
+import { useMutation, useQueryClient } from '@tanstack/react-query';
+import {
+  followPatchSchema,
+  followResponseSchema,
+  preferencesPatchSchema,
+  preferencesResponseSchema,
+  type Preferences,
+  type PreferencesPatch,
+} from '@shared/public/follows.schema';
+import { publicQueries } from '@/features/public/api/public-queries';
+import { apiFetch } from '@/lib/api';
+import { followQueries } from './follow-queries';
+
+/** Following changes the profile's count and the home page's "from builders you follow". */
+function useInvalidateFollowing() {
+  const queryClient = useQueryClient();
+  return () =>
+    Promise.all([
+      queryClient.invalidateQueries({ queryKey: followQueries.all }),
+      queryClient.invalidateQueries({ queryKey: publicQueries.all }),
+    ]);
+}
+
+/** POST /api/builders/:builderId/follow, or DELETE it to unfollow. */
+export function useSetFollowing() {
+  const invalidate = useInvalidateFollowing();
+  return useMutation({
+    mutationFn: async ({ builderId, follow }: { builderId: number; follow: boolean }) => {
+      if (follow) await apiFetch(`/api/builders/${builderId}/follow`, { method: 'POST', body: {}, schema: followResponseSchema });
+      else await apiFetch(`/api/builders/${builderId}/follow`, { method: 'DELETE' });
+      return follow;
+    },
+    onSettled: invalidate,
+  });
+}
+
+/** PATCH /api/me/follows/:builderId: mail when this builder publishes, on or off. */
+export function useSetFollowEmail() {
+  const invalidate = useInvalidateFollowing();
+  return useMutation({
+    mutationFn: ({ builderId, emailOnPublish }: { builderId: number; emailOnPublish: boolean }) =>
+      apiFetch(`/api/me/follows/${builderId}`, { method: 'PATCH', body: followPatchSchema.parse({ emailOnPublish }), schema: followResponseSchema }),
+    onSettled: invalidate,
+  });
+}
+
+/**
+ * PATCH /api/me/preferences. The cache is updated first so a units switch answers at once; a
+ * refusal puts the previous preferences back.
+ */
+export function useUpdatePreferences() {
+  const queryClient = useQueryClient();
+  const key = followQueries.preferences().queryKey;
+  return useMutation({
+    mutationFn: async (patch: PreferencesPatch) =>
+      (await apiFetch('/api/me/preferences', { method: 'PATCH', body: preferencesPatchSchema.parse(patch), schema: preferencesResponseSchema })).preferences,
+    onMutate: async (patch) => {
+      await queryClient.cancelQueries({ queryKey: key });
+      const previous = queryClient.getQueryData<Preferences>(key);
+      if (previous) queryClient.setQueryData<Preferences>(key, { ...previous, ...patch });
+      return { previous };
+    },
+    onError: (_error, _patch, context) => {
+      if (context?.previous) queryClient.setQueryData(key, context.previous);
+    },
+    onSuccess: (preferences) => queryClient.setQueryData(key, preferences),
+  });
+}

@@ -1,0 +1,180 @@
+import { useId } from 'react';
+import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
+import { Link, type LoaderFunctionArgs, redirect } from 'react-router-dom';
+import type { Follow } from '@shared/public/follows.schema';
+import { Button, ButtonLink } from '@/components/ui/button';
+import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
+import { LoadMore } from '@/components/ui/load-more';
+import { PageHeader } from '@/components/ui/page-header';
+import { useToast } from '@/components/ui/toast';
+import { authQueries } from '@/features/auth/api/auth-queries';
+import { signInPath } from '@/features/auth/lib/return-to';
+import { errorMessage } from '@/lib/api';
+import { queryClient } from '@/lib/query-client';
+import { instantDay } from '@/features/public/lib/dates';
+import { useSetFollowEmail, useSetFollowing, useUpdatePreferences } from '../api/follow-mutations';
+import { followQueries } from '../api/follow-queries';
+
+/** Any signed-in account may follow builders; signed out, sign in first and come back. */
+export async function loader({ request }: LoaderFunctionArgs) {
+  const user = await queryClient.ensureQueryData(authQueries.me());
+  if (!user) {
+    const url = new URL(request.url);
+    throw redirect(signInPath(url.pathname + url.search));
+  }
+  void queryClient.prefetchInfiniteQuery(followQueries.list());
+  void queryClient.prefetchQuery(followQueries.preferences());
+  return null;
+}
+
+/** The builders one follows, mail per builder, the weekly digest, and unfollowing. */
+export function Component() {
+  return (
+    <>
+      <PageHeader
+        title="Follows and e-mail"
+        description="Builders you follow, whether each one’s new entries reach you by e-mail, and the weekly digest."
+      />
+      <div className="flex max-w-3xl flex-col gap-10">
+        <DigestSetting />
+        <FollowList />
+      </div>
+    </>
+  );
+}
+
+function DigestSetting() {
+  const preferences = useQuery(followQueries.preferences());
+  const update = useUpdatePreferences();
+  const { toast } = useToast();
+  const id = useId();
+  return (
+    <section aria-labelledby={`${id}-h`} className="rounded-lg border border-rule p-4">
+      <h2 id={`${id}-h`} className="text-md font-semibold">
+        Weekly digest
+      </h2>
+      {preferences.isPending ? (
+        <LoadingState label="Loading your preferences…" />
+      ) : preferences.isError ? (
+        <ErrorState title="Your preferences could not be loaded" error={preferences.error} onRetry={() => void preferences.refetch()} retrying={preferences.isRefetching} />
+      ) : (
+        <>
+          <label htmlFor={`${id}-digest`} className="mt-2 flex items-start gap-2 text-sm">
+            <input
+              id={`${id}-digest`}
+              type="checkbox"
+              className="mt-0.5 size-4 accent-ink"
+              checked={preferences.data.weeklyDigest}
+              disabled={update.isPending}
+              onChange={(e) =>
+                update.mutate(
+                  { weeklyDigest: e.target.checked },
+                  {
+                    onSuccess: (p) => toast({ tone: 'success', title: p.weeklyDigest ? 'Weekly digest on' : 'Weekly digest off' }),
+                    onError: (error) => toast({ tone: 'error', title: 'Not saved', description: errorMessage(error) }),
+                  },
+                )
+              }
+            />
+            <span>
+              Send me one e-mail a week with what the builders I follow published
+              <span className="block text-xs text-ink-muted">Separate from the per-builder e-mails below; you can have either, both or none.</span>
+            </span>
+          </label>
+          <p className="mt-3 text-xs text-ink-muted">
+            Units for figures:{' '}
+            <span className="font-medium text-ink">
+              {preferences.data.units === 'imperial' ? 'imperial (in, thou)' : preferences.data.units === 'metric' ? 'metric (mm, µm)' : 'as each builder entered them'}
+            </span>
+            . Change it with the units switch on any story.
+          </p>
+        </>
+      )}
+    </section>
+  );
+}
+
+function FollowList() {
+  const follows = useInfiniteQuery(followQueries.list());
+  const items = follows.data?.pages.flatMap((p) => p.items) ?? [];
+  return (
+    <section aria-labelledby="follows-heading" className="flex flex-col gap-3">
+      <h2 id="follows-heading" className="text-md font-semibold">
+        Builders you follow
+      </h2>
+      {follows.isPending ? (
+        <LoadingState label="Loading the builders you follow…" />
+      ) : follows.isError ? (
+        <ErrorState title="Your follows could not be loaded" error={follows.error} onRetry={() => void follows.refetch()} retrying={follows.isRefetching} />
+      ) : items.length === 0 ? (
+        <EmptyState title="You follow no one yet" action={<ButtonLink to="/">Browse stories</ButtonLink>}>
+          Open a story and follow its builder from their name, or from their profile. You will get an e-mail when they publish.
+        </EmptyState>
+      ) : (
+        <>
+          <ul className="flex flex-col divide-y divide-rule rounded-lg border border-rule">
+            {items.map((follow) => (
+              <FollowRow key={follow.builder.id} follow={follow} />
+            ))}
+          </ul>
+          <LoadMore query={follows} shown={items.length} what="follows" />
+        </>
+      )}
+    </section>
+  );
+}
+
+function FollowRow({ follow }: { follow: Follow }) {
+  const email = useSetFollowEmail();
+  const following = useSetFollowing();
+  const { toast } = useToast();
+  const id = useId();
+  const { builder } = follow;
+  return (
+    <li className="flex flex-wrap items-center justify-between gap-3 px-4 py-3" data-follow={builder.login}>
+      <div className="min-w-0">
+        <Link to={`/builders/${encodeURIComponent(builder.login)}`} className="font-semibold">
+          {builder.displayName}
+        </Link>
+        <p className="text-xs text-ink-muted">
+          {builder.shop ? `${builder.shop} · ` : ''}following since {instantDay(follow.since)}
+        </p>
+      </div>
+      <div className="flex flex-wrap items-center gap-4">
+        <label htmlFor={`${id}-mail`} className="flex items-center gap-2 text-sm">
+          <input
+            id={`${id}-mail`}
+            type="checkbox"
+            className="size-4 accent-ink"
+            checked={follow.emailOnPublish}
+            disabled={email.isPending}
+            onChange={(e) =>
+              email.mutate(
+                { builderId: builder.id, emailOnPublish: e.target.checked },
+                { onError: (error) => toast({ tone: 'error', title: 'Not saved', description: errorMessage(error) }) },
+              )
+            }
+          />
+          E-mail when {builder.displayName} publishes
+        </label>
+        <Button
+          size="sm"
+          variant="secondary"
+          loading={following.isPending}
+          loadingText="Unfollowing…"
+          onClick={() =>
+            following.mutate(
+              { builderId: builder.id, follow: false },
+              {
+                onSuccess: () => toast({ tone: 'success', title: `You no longer follow ${builder.displayName}` }),
+                onError: (error) => toast({ tone: 'error', title: 'Not changed', description: errorMessage(error) }),
+              },
+            )
+          }
+        >
+          Unfollow<span className="sr-only"> {builder.displayName}</span>
+        </Button>
+      </div>
+    </li>
+  );
+}

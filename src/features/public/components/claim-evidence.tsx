@@ -1,0 +1,280 @@
+import { useState } from 'react';
+import { systemOf, type UnitSystem } from '@shared/measure/format';
+import { decisionRuleText, type Verdict } from '@shared/measure/spec';
+import type { PublicClaim, PublicClearance, PublicReading } from '@shared/public/public-story.schema';
+import { VerdictBadge } from '@/components/ui/badge';
+import { Button } from '@/components/ui/button';
+import { BandPicture } from '@/features/calc/components/band-picture';
+import { CalcSteps } from '@/features/calc/components/calc-steps';
+import { specSourceWords, VerdictCaution } from '@/features/clearances/components/clearance-result-view';
+import { CalibrationBadge } from '@/features/instruments/components/calibration-badge';
+import { formatTime } from '@/features/clips/lib/clip-format';
+import { dayText, instantDay } from '../lib/dates';
+import { bandText, pictureProps, readingResolutionPm, systemDisplayUnits } from '../lib/figures';
+import { Figure } from './figure';
+import { MomentClip } from './moment-clip';
+import { Recompute } from './recompute';
+
+const preferredWords: Record<Verdict, string> = {
+  conforms: 'Within the preferred band',
+  'does-not-conform': 'Outside the preferred band',
+  undecided: 'Too close to call against the preferred band',
+};
+
+const rejectWords: Record<Verdict, string> = {
+  conforms: 'Clear of the reject limit',
+  'does-not-conform': 'Past the reject limit',
+  undecided: 'Too close to call against the reject limit',
+};
+
+/** A reading's figures as the builder typed them: "0.5642 in", "passes 0.003, stops 0.004 in". */
+export function enteredText(reading: PublicReading): string {
+  const unit = reading.unit === 'um' ? 'µm' : reading.unit === 'tenth' ? 'tenths' : reading.unit;
+  if (reading.kind === 'bracket') return `blade ${reading.passes ?? '?'} enters, ${reading.stops ?? '?'} does not (${unit})`;
+  if (reading.kind === 'repeated') return `${(reading.values ?? []).join(', ')} ${unit}`;
+  return `${reading.value ?? '?'} ${unit}`;
+}
+
+/** The claim's evidence in full: the clearance and its verdict, the band picture, the working, the readings and the clip. */
+export function ClaimEvidence({ claim, system }: { claim: PublicClaim; system: UnitSystem }) {
+  const [playing, setPlaying] = useState<number | null>(claim.readings[0]?.id ?? null);
+  const active = claim.readings.find((r) => r.id === playing) ?? claim.readings[0] ?? null;
+  const clearance = claim.clearance;
+  const lead = clearance ?? claim.readings[0] ?? null;
+
+  return (
+    <div className="flex flex-col gap-6" data-claim-evidence={`${claim.kind}:${claim.key}`}>
+      {clearance ? (
+        <ClearanceFigures clearance={clearance} system={system} />
+      ) : (
+        claim.readings[0] && <ReadingHeadline reading={claim.readings[0]} system={system} />
+      )}
+
+      <section aria-labelledby="evidence-readings" className="flex flex-col gap-3">
+        <h3 id="evidence-readings" className="text-sm font-semibold">
+          {claim.readings.length === 1 ? 'The reading' : `The ${claim.readings.length} readings`}
+        </h3>
+        {active && <MomentClip reading={active} />}
+        <ul className="flex flex-col gap-3">
+          {claim.readings.map((reading) => (
+            <ReadingCard
+              key={reading.id}
+              reading={reading}
+              system={system}
+              sign={clearance?.terms.find((t) => t.readingId === reading.id)?.sign}
+              playing={active?.id === reading.id}
+              onPlay={() => setPlaying(reading.id)}
+            />
+          ))}
+        </ul>
+      </section>
+
+      {lead && (
+        <details className="rounded-md border border-rule px-3 py-2" data-print="hide">
+          <summary className="cursor-pointer text-sm font-medium">Recompute it yourself</summary>
+          <div className="mt-3">
+            <Recompute
+              readings={claim.readings}
+              clearance={clearance}
+              published={{ valueUm: lead.valueUm, expandedUm: lead.expandedUncertaintyUm, verdict: clearance?.verdict ?? null }}
+              system={system}
+            />
+          </div>
+        </details>
+      )}
+
+      <VerdictCaution />
+    </div>
+  );
+}
+
+function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; system: UnitSystem }) {
+  const picture =
+    clearance.band && clearance.verdict && clearance.rule
+      ? pictureProps({
+          valueUm: clearance.valueUm,
+          expandedUm: clearance.expandedUncertaintyUm,
+          coverageFactor: clearance.coverageFactor,
+          band: clearance.band,
+          verdict: clearance.verdict,
+          rule: clearance.rule,
+          system,
+        })
+      : null;
+  const expression = clearance.terms.map((t, i) => `${t.sign === -1 ? '− ' : i === 0 ? '' : '+ '}${t.readingName.toLowerCase()}`).join(' ');
+  const otherSystem = systemOf(clearance.unit) !== system;
+  return (
+    <section aria-labelledby="evidence-clearance" className="flex flex-col gap-3">
+      <div>
+        <h3 id="evidence-clearance" className="text-sm font-semibold">
+          {clearance.name}
+        </h3>
+        <p className="text-xs text-ink-muted">Clearance = {expression}</p>
+      </div>
+      <dl className="flex flex-col gap-1 text-sm [&_dd]:mb-1.5">
+        <dt className="text-ink-muted">Clearance ± U</dt>
+        <dd>
+          <Figure valueUm={clearance.valueUm} expandedUm={clearance.expandedUncertaintyUm} coverageFactor={clearance.coverageFactor} system={system} size="lg" />
+        </dd>
+        <dt className="text-ink-muted">Expanded uncertainty</dt>
+        <dd className="text-sm">
+          U = k·u<sub>c</sub> with k = {clearance.coverageFactor} (about 95 % coverage)
+        </dd>
+        {otherSystem && (
+          <>
+            <dt className="text-ink-muted">As judged</dt>
+            <dd className="figures text-sm">{clearance.display}</dd>
+          </>
+        )}
+      </dl>
+
+      {clearance.verdict && clearance.rule ? (
+        <div className="flex flex-col gap-2">
+          <div className="flex flex-wrap items-center gap-1.5">
+            <VerdictBadge verdict={clearance.verdict} rule={`${clearance.rule} rule, k = ${clearance.coverageFactor}`} />
+            {clearance.preferredVerdict && (
+              <VerdictBadge verdict={clearance.preferredVerdict} size="sm">
+                {preferredWords[clearance.preferredVerdict]}
+              </VerdictBadge>
+            )}
+            {clearance.rejectVerdict && (
+              <VerdictBadge verdict={clearance.rejectVerdict} size="sm">
+                {rejectWords[clearance.rejectVerdict]}
+              </VerdictBadge>
+            )}
+          </div>
+          <p className="text-xs leading-relaxed text-ink-muted">{decisionRuleText[clearance.rule]}</p>
+        </div>
+      ) : (
+        <p className="text-sm text-ink-muted">No spec was attached, so there is no verdict.</p>
+      )}
+
+      {clearance.spec && (
+        <p className="text-sm">
+          <span className="text-ink-muted">Spec: </span>
+          {clearance.spec.name}, version {clearance.spec.version}
+          {clearance.band && (
+            <>
+              {' · '}
+              <span className="figures">{bandText(clearance.band, systemDisplayUnits[system].main)}</span>
+            </>
+          )}
+          <br />
+          <span className="text-ink-muted">Source ({specSourceWords[clearance.spec.sourceKind] ?? clearance.spec.sourceKind}): </span>
+          {clearance.spec.sourceText}
+        </p>
+      )}
+
+      {picture && <BandPicture {...picture} />}
+
+      <details className="rounded-md border border-rule px-3 py-2">
+        <summary className="cursor-pointer text-sm font-medium">How it was worked out ({clearance.steps.length} steps)</summary>
+        <p className="mt-2 text-xs text-ink-muted">The engine’s own working, in the builder’s units, as it was judged.</p>
+        <div className="mt-2">
+          <CalcSteps steps={clearance.steps} />
+        </div>
+      </details>
+
+      <p className="text-xs text-ink-muted">
+        Checked against the footage by {clearance.checked.byName} on {instantDay(clearance.checked.at)}.
+      </p>
+    </section>
+  );
+}
+
+function ReadingHeadline({ reading, system }: { reading: PublicReading; system: UnitSystem }) {
+  return (
+    <section aria-labelledby="evidence-reading" className="flex flex-col gap-2">
+      <h3 id="evidence-reading" className="text-sm font-semibold">
+        {reading.name}
+      </h3>
+      <Figure
+        valueUm={reading.valueUm}
+        expandedUm={reading.expandedUncertaintyUm}
+        coverageFactor={2}
+        resolutionPm={readingResolutionPm(reading)}
+        system={system}
+        size="lg"
+      />
+      <details className="rounded-md border border-rule px-3 py-2">
+        <summary className="cursor-pointer text-sm font-medium">How it was worked out ({reading.steps.length} steps)</summary>
+        <div className="mt-2">
+          <CalcSteps steps={reading.steps} />
+        </div>
+      </details>
+    </section>
+  );
+}
+
+function ReadingCard({
+  reading,
+  system,
+  sign,
+  playing,
+  onPlay,
+}: {
+  reading: PublicReading;
+  system: UnitSystem;
+  sign: 1 | -1 | undefined;
+  playing: boolean;
+  onPlay: () => void;
+}) {
+  return (
+    <li className="grid gap-3 rounded-md border border-rule p-3 sm:grid-cols-[8rem_minmax(0,1fr)]" data-reading={reading.key}>
+      <img
+        src={reading.moment.stillUrl}
+        alt={`Evidence still: ${reading.name}, at ${formatTime(reading.moment.atMs / 1000)} in “${reading.moment.clipTitle}”`}
+        loading="lazy"
+        className="aspect-video w-full rounded-sm border border-rule bg-paper-2 object-cover"
+      />
+      <div className="flex min-w-0 flex-col gap-1 text-sm">
+        <p className="font-medium">
+          {sign !== undefined && (
+            <>
+              <span className="figures mr-1 text-ink-muted" aria-hidden="true">
+                {sign === 1 ? '+' : '−'}
+              </span>
+              <span className="sr-only">{sign === 1 ? 'Added: ' : 'Subtracted: '}</span>
+            </>
+          )}
+          {reading.name}
+        </p>
+        <Figure valueUm={reading.valueUm} expandedUm={reading.expandedUncertaintyUm} resolutionPm={readingResolutionPm(reading)} system={system} size="sm" />
+        <p className="text-xs text-ink-muted">
+          As entered: <span className="figures text-ink">{enteredText(reading)}</span>
+          {reading.zeroCheck && (
+            <>
+              {' · '}zero offset <span className="figures">{reading.zeroCheck.offset} {reading.zeroCheck.unit}</span> taken off
+            </>
+          )}
+          {reading.temperatureC !== null && (
+            <>
+              {' · '}at {reading.temperatureC} °C{reading.material ? `, ${reading.material}` : ''}, corrected to 20 °C
+            </>
+          )}
+        </p>
+        <p className="flex flex-wrap items-center gap-1.5 text-xs text-ink-muted">
+          <span>{reading.instrument.name}</span>
+          <CalibrationBadge state={reading.instrument.calibration} />
+          <span>· taken {dayText(reading.takenOn)}</span>
+        </p>
+        {reading.warnings.length > 0 && (
+          <ul className="text-xs text-ink">
+            {reading.warnings.map((w) => (
+              <li key={w.code}>⚠ {w.message}</li>
+            ))}
+          </ul>
+        )}
+        <p className="text-xs text-ink-muted">
+          Checked against the footage by {reading.checked.byName} on {instantDay(reading.checked.at)}.
+        </p>
+        <div>
+          <Button size="sm" variant={playing ? 'quiet' : 'secondary'} className="mt-1 h-7 px-2 text-xs" onClick={onPlay} aria-pressed={playing} data-print="hide">
+            {playing ? 'In the player above' : 'Watch at the moment'}
+            <span className="sr-only"> ({reading.name})</span>
+          </Button>
+        </div>
+      </div>
+    </li>
+  );
+}

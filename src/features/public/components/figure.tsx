@@ -1,0 +1,43 @@
+import type { UnitSystem } from '@shared/measure/format';
+import { cn } from '@/lib/cn';
+import { systemFigure } from '../lib/figures';
+
+/**
+ * A measured figure in the reader's system: value ± U in the main unit, the fine unit beside it
+ * (in and thou, mm and µm), in the monospace with tabular digits.
+ */
+export function Figure({
+  valueUm,
+  expandedUm,
+  system,
+  coverageFactor,
+  resolutionPm,
+  size = 'md',
+  className,
+}: {
+  valueUm: number;
+  expandedUm: number;
+  system: UnitSystem;
+  coverageFactor?: number;
+  /** A reading's resolution: the value is shown at it rather than at U's place. */
+  resolutionPm?: bigint | null;
+  size?: 'sm' | 'md' | 'lg';
+  className?: string;
+}) {
+  const figure = systemFigure(valueUm, expandedUm, system, resolutionPm);
+  return (
+    <span className={cn('inline-flex flex-wrap items-baseline gap-x-2', className)} data-figure={system}>
+      <span className={cn('figures text-ink', size === 'lg' ? 'text-md font-semibold' : size === 'sm' ? 'text-sm' : 'text-base font-medium')}>
+        {/* Each piece stays whole when a narrow panel wraps the line. */}
+        {figure.main.split(' ± ').map((piece, index) => (
+          <span key={index} className="whitespace-nowrap">
+            {index > 0 && ' ± '}
+            {piece}{' '}
+          </span>
+        ))}
+        {coverageFactor !== undefined && expandedUm > 0 && <span className="font-normal whitespace-nowrap text-ink-muted">(k = {coverageFactor})</span>}
+      </span>
+      <span className="figures text-xs text-ink-muted">{figure.fine}</span>
+    </span>
+  );
+}

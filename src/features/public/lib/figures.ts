@@ -1,0 +1,162 @@
+import { formatLength, formatNumber, formatResult, formatUncertainty, symbolFor, type UnitSystem } from '@shared/measure/format';
+import { guardedLimits, type BandPm, type DecisionRule, type Verdict } from '@shared/measure/spec';
+import { maxExactDecimals, micrometresToPicometres, picometresPerUnit, type LengthUnit } from '@shared/measure/units';
+import type { BandUm } from './band';
+
+/** The coarse and the fine unit of each system: inches and thou, millimetres and micrometres. */
+export const systemDisplayUnits: Readonly<Record<UnitSystem, { main: LengthUnit; fine: LengthUnit }>> = {
+  imperial: { main: 'in', fine: 'thou' },
+  metric: { main: 'mm', fine: 'um' },
+};
+
+/** Fewest places a figure is shown with when it carries no uncertainty to set them (a feeler blade, a limit). */
+const minDecimals: Readonly<Record<LengthUnit, number>> = { in: 4, thou: 1, tenth: 0, mm: 3, um: 0 };
+
+/** A value ± U in one unit, GUM 7.2.6: U to two significant digits, the value to the same place. */
+export function valueWithU(valueUm: number, expandedUm: number, unit: LengthUnit): { value: string; uncertainty: string } {
+  const pm = micrometresToPicometres(valueUm);
+  if (expandedUm === 0) {
+    const text = formatNumber(pm, unit, minDecimals[unit]);
+    return { value: `${text} ${symbolFor(unit, text)}`, uncertainty: '0' };
+  }
+  return formatResult(pm, expandedUm, unit);
+}
+
+/** One figure in the reader's system, in its main unit and its fine one. */
+export interface SystemFigure {
+  /** "0.00470 in ± 0.00031 in". */
+  main: string;
+  /** "4.70 thou ± 0.31 thou". */
+  fine: string;
+  /** The value alone in the main unit, "0.00470 in". */
+  value: string;
+}
+
+/**
+ * `valueUm` ± `expandedUm` in `system` (the engine's µm, formatted by shared/measure/format). A
+ * computed figure follows GUM 7.2.6 (U to two significant digits, the value to its place); a
+ * reading given its `resolutionPm` is shown at its resolution instead, as format.ts sets out.
+ */
+export function systemFigure(valueUm: number, expandedUm: number, system: UnitSystem, resolutionPm?: bigint | null): SystemFigure {
+  const { main, fine } = systemDisplayUnits[system];
+  const at = (unit: LengthUnit) =>
+    resolutionPm
+      ? { value: formatLength(micrometresToPicometres(valueUm), unit, resolutionPm), uncertainty: formatUncertainty(expandedUm, unit) }
+      : valueWithU(valueUm, expandedUm, unit);
+  const a = at(main);
+  const b = at(fine);
+  return {
+    main: expandedUm === 0 ? a.value : `${a.value} ± ${a.uncertainty}`,
+    fine: expandedUm === 0 ? b.value : `${b.value} ± ${b.uncertainty}`,
+    value: a.value,
+  };
+}
+
+/** A limit written exactly, no trailing zeros: 76.2 µm → "0.003" in, "0.0762" mm. */
+export function exactText(pm: bigint, unit: LengthUnit): string {
+  const text = formatNumber(pm, unit, maxExactDecimals[unit]);
+  return text.includes('.') ? text.replace(/0+$/, '').replace(/\.$/, '') : text;
+}
+
+/** Decimal places of `text`'s first number ("0.00470 in" → 5). */
+export function decimalsOf(text: string): number {
+  return /\d+(?:\.(\d+))?/.exec(text)?.[1]?.length ?? 0;
+}
+
+const pmOf = (um: number | null): bigint | undefined => (um === null ? undefined : micrometresToPicometres(um));
+
+/** A band in µm as the engine's picometre band. */
+export function bandPm(min: number | null, max: number | null): BandPm {
+  const minPm = pmOf(min);
+  const maxPm = pmOf(max);
+  return { ...(minPm !== undefined && { minPm }), ...(maxPm !== undefined && { maxPm }) };
+}
+
+/** "0.003 in to 0.005 in", "at least 0.0762 mm", "at most 5 thou", in `unit`. */
+export function bandText(band: { minUm: number | null; maxUm: number | null }, unit: LengthUnit): string {
+  const at = (um: number) => {
+    const text = exactText(micrometresToPicometres(um), unit);
+    return `${text} ${symbolFor(unit, text)}`;
+  };
+  if (band.minUm !== null && band.maxUm !== null) return `${at(band.minUm)} to ${at(band.maxUm)}`;
+  if (band.minUm !== null) return `at least ${at(band.minUm)}`;
+  if (band.maxUm !== null) return `at most ${at(band.maxUm)}`;
+  return 'no limits';
+}
+
+/** Fewest places that write `pm` exactly in `unit`. */
+export function exactDecimals(pm: bigint, unit: LengthUnit): number {
+  const per = picometresPerUnit[unit];
+  for (let d = 0; d <= maxExactDecimals[unit]; d += 1) if ((pm * 10n ** BigInt(d)) % per === 0n) return d;
+  return maxExactDecimals[unit];
+}
+
+/** What the band picture needs, in the reader's main unit. */
+export function pictureProps(input: {
+  valueUm: number;
+  expandedUm: number;
+  coverageFactor: number;
+  band: BandUm;
+  verdict: Verdict;
+  rule: DecisionRule;
+  system: UnitSystem;
+}) {
+  const unit = systemDisplayUnits[input.system].main;
+  const band = bandPm(input.band.minUm, input.band.maxUm);
+  const hasPreferred = input.band.preferredMinUm !== null || input.band.preferredMaxUm !== null;
+  const preferred = hasPreferred ? bandPm(input.band.preferredMinUm ?? input.band.minUm, input.band.preferredMaxUm ?? input.band.maxUm) : null;
+  const rejectPm = pmOf(input.band.rejectUm) ?? null;
+  const expandedPm = micrometresToPicometres(input.expandedUm);
+  const limits = [band.minPm, band.maxPm, preferred?.minPm, preferred?.maxPm, rejectPm].filter((p): p is bigint => p !== undefined && p !== null);
+  // The scale is labelled as the limits were written, with at most one place more for the value
+  // (its U is in the words beside the picture): 0.0030, 0.0047, 0.0050 in.
+  const valueDecimals = decimalsOf(valueWithU(input.valueUm, input.expandedUm, unit).value);
+  const limitDecimals = Math.max(0, ...limits.map((p) => exactDecimals(p, unit)));
+  const decimals = Math.max(limitDecimals, Math.min(valueDecimals, limitDecimals + 1));
+  return {
+    unit,
+    decimals,
+    valuePm: micrometresToPicometres(input.valueUm),
+    expandedPm,
+    coverageFactor: input.coverageFactor,
+    band,
+    preferred,
+    rejectPm,
+    limits: guardedLimits(band, expandedPm, input.rule),
+    verdict: input.verdict,
+    rule: input.rule,
+  };
+}
+
+/**
+ * The resolution a direct or repeated reading was taken at: from the engine's input when the
+ * publication carries it, else one step of the last place typed. Null for a feeler bracket,
+ * whose estimate is a midpoint and is shown by its uncertainty instead.
+ */
+export function readingResolutionPm(reading: {
+  kind: 'direct' | 'bracket' | 'repeated';
+  unit: LengthUnit;
+  value: string | null;
+  values: string[] | null;
+  engine?: { kind: string; unit: LengthUnit; resolution?: number } | undefined;
+}): bigint | null {
+  if (reading.kind === 'bracket') return null;
+  const engine = reading.engine;
+  if (engine && engine.kind !== 'bracket' && engine.resolution !== undefined) {
+    const text = String(engine.resolution);
+    if (/^\d+(\.\d+)?$/.test(text)) return stepOf(text, engine.unit, true);
+  }
+  const typed = reading.kind === 'direct' ? reading.value : (reading.values?.[0] ?? null);
+  return typed ? stepOf(typed, reading.unit, false) : null;
+}
+
+/** `text` itself as a length (`whole`), or one unit of its last decimal place. */
+function stepOf(text: string, unit: LengthUnit, whole: boolean): bigint | null {
+  const match = /^[−-]?(\d+)(?:\.(\d+))?$/.exec(text.trim());
+  if (!match) return null;
+  const decimals = match[2]?.length ?? 0;
+  if (decimals > maxExactDecimals[unit]) return null;
+  const scale = picometresPerUnit[unit] / 10n ** BigInt(decimals);
+  const pm = whole ? BigInt(`${match[1]}${match[2] ?? ''}`) * scale : scale;
+  return pm > 0n ? pm : null;
+}
