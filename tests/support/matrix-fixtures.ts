@@ -4,6 +4,7 @@ import { clipSchema, type Clip as ClipDto } from '@shared/clips/clip.schema';
 import { Follow } from '../../server/features/follows/follow.model';
 import { signUnsubscribe } from '../../server/features/follows/unsubscribe-token';
 import { ffmpegDirect } from './clips';
+import { makeReviewFixture, move, publishThroughReview } from './review-fixtures';
 import { csrfToken, freshAccount, signIn, type TestApp } from './test-app';
 
 /**
@@ -230,6 +231,32 @@ export interface MatrixFixtures {
   checkId: number;
   /** A signed one-click unsubscribe token for `userId`'s mail about the owner (a real follows row). */
   unsubscribeToken: string;
+  /** The public side: a story of the owner's published through review, and two that are not public. */
+  published: PublishedFixtures;
+}
+
+/** What the public routes name: one published story and what it cites. */
+export interface PublishedFixtures {
+  /** The owner's login (`:login` of the builder profile and feed). */
+  ownerLogin: string;
+  /** Its build, which has no other entry (`:buildId` of the public build). */
+  buildId: number;
+  /** The part its readings were taken on (`:partId` of the sheet, PDF and verification). */
+  partId: number;
+  /** The clip its readings cite (`:clipId` of the public media). */
+  clipId: number;
+  storyId: number;
+  title: string;
+  /** Its public revision (the `rev` a printed sheet carries). */
+  revision: number;
+  /** A question a reader asked on it, for the builder to answer (`:questionId`). */
+  questionId: number;
+  /** Per actor, a visible question on it to try to hide. */
+  questionToHide: Record<Actor, number>;
+  /** Per actor, a question on it that a moderator hid, to try to show again. */
+  questionToUnhide: Record<Actor, number>;
+  /** Stories of the owner's that are not public, each in a build of its own with nothing public. */
+  notPublic: Record<'draft' | 'withdrawn', { storyId: number; title: string; revision: number; buildId: number; partId: number; clipId: number }>;
 }
 
 /**
@@ -248,6 +275,8 @@ export async function buildMatrixFixtures(
   const { owner, moderator, admin } = sessions;
   const signedIn = actors.filter((a): a is Exclude<Actor, 'anonymous'> => a !== 'anonymous');
 
+  // Independent of the rest (builds of its own), so it is made alongside.
+  const publishedSide = buildPublishedFixtures(t, sessions, files.clip);
   const [main, spare, instrumentId, micId, instrumentToDelete, spec, actorIdList] = await Promise.all([
     createBuild(owner, 'Authorization matrix build'),
     createBuild(owner, 'Authorization matrix throwaway build'),
@@ -364,5 +393,74 @@ export async function buildMatrixFixtures(
     flaggedStoryId,
     checkId: flag.check.id,
     unsubscribeToken: signUnsubscribe(t.config.sessionSecret, userId, actorIds.owner),
+    published: await publishedSide,
+  };
+}
+
+/** Asks a question on a published story as `s`; resolves to its id. */
+async function ask(s: Session, storyId: number, body: string): Promise<number> {
+  const res = await expectStatus<{ question: { id: number } }>(`question on story ${storyId}`, 201, send(s, 'post', `/api/public/stories/${storyId}/questions`, { body }));
+  return res.question.id;
+}
+
+/**
+ * The public side, made through the API: a story of the owner's published through review (its
+ * own build, clip and part), questions on it asked by fresh readers (an account may ask five
+ * in ten minutes, so five at most each), some of them hidden by the moderator; every signed-in
+ * actor but the owner following the owner; and, in builds of their own, a draft and a story
+ * published and then withdrawn, so nothing of theirs is public.
+ */
+async function buildPublishedFixtures(t: TestApp, sessions: Record<Actor, Session>, clip: string): Promise<PublishedFixtures> {
+  const { owner, moderator } = sessions;
+  const [pub, draft, withdrawn] = await Promise.all([
+    makeReviewFixture(owner, { clipFile: clip, title: 'Matrix published build (invented)' }),
+    makeReviewFixture(owner, { clipFile: clip, title: 'Matrix draft-only build (invented)' }),
+    makeReviewFixture(owner, { clipFile: clip, title: 'Matrix withdrawn build (invented)' }),
+  ]);
+  // One moderator publishes one story at a time (each move takes and gives back the hold).
+  const revision = await publishThroughReview(owner, moderator, pub);
+  const withdrawnRevision = await publishThroughReview(owner, moderator, withdrawn);
+  const pulled = await move(owner, withdrawn.story.id, 'withdraw', { reason: 'A reading needs taking again (matrix fixture).' });
+  if (pulled.status !== 200) throw new Error(`fixture withdraw answered ${pulled.status}: ${JSON.stringify(pulled.body)}`);
+
+  const readers = await Promise.all(
+    [1, 2, 3].map(async (n) => {
+      const agent = await signIn(t, freshAccount(t, `matrix-reader-${n}`).login);
+      return { agent, token: await csrfToken(agent) } satisfies Session;
+    }),
+  );
+  let asked = 0;
+  const askNext = (what: string) => ask(readers[Math.floor(asked++ / 5)]!, pub.story.id, `Matrix question (${what}): which micrometer read the bore depth?`);
+  const questionId = await askNext('to answer');
+  const questionToHide = {} as Record<Actor, number>;
+  const questionToUnhide = {} as Record<Actor, number>;
+  for (const actor of actors) questionToHide[actor] = await askNext(`to hide, ${actor}`);
+  for (const actor of actors) {
+    const id = await askNext(`to show again, ${actor}`);
+    await expectStatus(`hide of question ${id}`, 200, send(moderator, 'post', `/api/questions/${id}/hide`, { reason: 'Hidden for the matrix fixture.' }));
+    questionToUnhide[actor] = id;
+  }
+
+  const ownerId = (await owner.agent.get('/api/me').expect(200)).body.user.id as number;
+  await Promise.all(
+    actors
+      .filter((a) => a !== 'anonymous' && a !== 'owner')
+      .map((a) => expectStatus(`follow of the owner by ${a}`, 201, send(sessions[a], 'post', `/api/builders/${ownerId}/follow`))),
+  );
+
+  const scope = (f: typeof draft, rev: number) => ({ storyId: f.story.id, title: f.story.title, revision: rev, buildId: f.buildId, partId: f.partId, clipId: f.clipId });
+  return {
+    ownerLogin: actorLogins.owner,
+    buildId: pub.buildId,
+    partId: pub.partId,
+    clipId: pub.clipId,
+    storyId: pub.story.id,
+    title: pub.story.title,
+    revision,
+    questionId,
+    questionToHide,
+    questionToUnhide,
+    // A draft has never had a public revision; 1 is what a forged sheet would print.
+    notPublic: { draft: scope(draft, 1), withdrawn: scope(withdrawn, withdrawnRevision) },
   };
 }

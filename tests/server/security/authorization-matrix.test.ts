@@ -4,6 +4,7 @@ import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { listRoutes } from '../../../server/http/routes';
 import { Follow } from '../../../server/features/follows/follow.model';
+import { Question } from '../../../server/features/questions/question.model';
 import { makeTestClip } from '../../support/clips';
 import {
   actors,
@@ -173,6 +174,46 @@ const TABLE: Record<string, Expected> = {
   // no session and no CSRF token (sent here without one), and answers the same to everyone.
   'GET /api/unsubscribe':                    { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
   'POST /api/unsubscribe':                   { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+
+  // The public side: what a current publication shows, the same to everyone, signed in or not
+  // (moderators and admins read it as the public does). The fixture is a story of the owner's
+  // published through review; what is not public answers 404 to all (the block after the table).
+  'GET /api/public/stories':                 { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /api/public/stories/:storyId':        { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /api/public/stories/:storyId/questions': { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /api/public/builds/:buildId':         { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /api/public/builders/:login':         { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  // The media of the clip the publication cites (the video is asked for whole, without Range: 200).
+  'GET /api/public/clips/:clipId/video':     { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /api/public/clips/:clipId/poster':    { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /api/public/clips/:clipId/frame':     { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  // The inspection sheet of a part of the published build, its PDF, and the check of a printed sheet.
+  'GET /api/public/parts/:partId/sheet':     { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /sheets/parts/:partId.pdf':           { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /api/public/verify/parts/:partId':    { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  // Atom feeds of the whole site and of the owner.
+  'GET /feeds/stories.atom':                 { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /feeds/builders/:login.atom':         { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+
+  // A reader's own things: anyone signed in, about themselves only.
+  'GET /api/public/stories/following':       { anonymous: 401, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /api/me/follows':                     { anonymous: 401, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /api/me/preferences':                 { anonymous: 401, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'PATCH /api/me/preferences':               { anonymous: 401, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  // Following the owner: anyone signed in but the owner, who cannot follow themselves (400
+  // cannot_follow_self). Unfollowing is harmless when not following, so it is 204 to all.
+  'POST /api/builders/:builderId/follow':    { anonymous: 401, follower: 201, owner: 400, otherBuilder: 201, moderator: 201, admin: 201 },
+  'DELETE /api/builders/:builderId/follow':  { anonymous: 401, follower: 204, owner: 204, otherBuilder: 204, moderator: 204, admin: 204 },
+  // Mail about a builder one follows; the owner follows nobody here, so there is no follow to change.
+  'PATCH /api/me/follows/:builderId':        { anonymous: 401, follower: 200, owner: 404, otherBuilder: 200, moderator: 200, admin: 200 },
+
+  // Questions on the published story: anyone signed in asks (five per account in ten minutes;
+  // one each here). Only the story's builder answers: others signed in see the question but may
+  // not answer it (403). Hiding and showing again: role moderator (admins pass every role check).
+  'POST /api/public/stories/:storyId/questions': { anonymous: 401, follower: 201, owner: 201, otherBuilder: 201, moderator: 201, admin: 201 },
+  'POST /api/questions/:questionId/answer':  { anonymous: 401, follower: 403, owner: 200, otherBuilder: 403, moderator: 403, admin: 403 },
+  'POST /api/questions/:questionId/hide':    { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 200, admin: 200 },
+  'POST /api/questions/:questionId/unhide':  { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 200, admin: 200 },
 };
 
 /** A request the public calculator answers (end float, from tests/server/calc/calc.api.test.ts). */
@@ -207,8 +248,13 @@ interface Shape {
   form?: Record<string, string>;
   /** A multipart upload in the field `file`. */
   attach?: () => { file: string; name: string };
-  /** Path parameters that differ per actor (throwaway fixtures for destructive routes). */
-  params?: (actor: Actor) => Partial<Record<string, number>>;
+  /** Path parameters that differ per actor (throwaway fixtures for destructive routes) or per route. */
+  params?: (actor: Actor) => Partial<Record<string, number | string>>;
+  /**
+   * Puts the actor's own state where the row starts from (following the owner or not) before
+   * the request, so a cell does not depend on which rows ran before it.
+   */
+  before?: (actor: Actor) => Promise<void>;
   /** Sent from a new session of the actor, because the request ends the session. */
   ownSession?: boolean;
   /** Sent without the CSRF header, because the route is exempt (a signed token is its authority). */
@@ -224,6 +270,36 @@ async function lockVersionAt(url: string, field: string): Promise<number> {
 const clip = () => ({ file: clipFile, name: 'matrix-upload.mp4' });
 const png = () => ({ file: pngFile, name: 'matrix.png' });
 const token = () => `?token=${encodeURIComponent(fx.unsubscribeToken)}`;
+const publishedStory = () => ({ storyId: fx.published.storyId });
+const publishedClip = () => ({ clipId: fx.published.clipId });
+const askedBy = (actor: Actor) => `Matrix question from ${actor}: was the bore depth taken at room temperature?`;
+const answeredBy = (actor: Actor) => `Matrix answer from ${actor}: yes, after an hour on the plate.`;
+
+/** The account id of a signed-in actor; null for the visitor, who has none. */
+const idOf = (actor: Actor): number | null => (actor === 'anonymous' ? null : fx.actorIds[actor]);
+
+/** The actor's follow of the owner, or null. */
+async function followOfOwner(actor: Actor): Promise<Follow | null> {
+  const id = idOf(actor);
+  return id === null ? null : Follow.findOne({ where: { followerId: id, builderId: fx.actorIds.owner } });
+}
+
+/**
+ * Makes the actor follow the owner (mail on) or not, on the row itself: the routes under test
+ * are not used to set up their own precondition. The visitor has no account, and the owner
+ * cannot follow themselves, so both are left as they are.
+ */
+async function setFollowingOwner(actor: Actor, following: boolean): Promise<void> {
+  const id = idOf(actor);
+  if (id === null || actor === 'owner') return;
+  const where = { followerId: id, builderId: fx.actorIds.owner };
+  if (!following) {
+    await Follow.destroy({ where });
+    return;
+  }
+  const [row] = await Follow.findOrCreate({ where, defaults: where });
+  if (!row.emailOnPublish) await row.update({ emailOnPublish: true });
+}
 
 const SHAPES: Record<string, Shape> = {
   'POST /auth/sign-out': { ownSession: true },
@@ -295,6 +371,29 @@ const SHAPES: Record<string, Shape> = {
 
   'GET /api/unsubscribe': { query: token },
   'POST /api/unsubscribe': { query: token, form: { 'List-Unsubscribe': 'One-Click' }, noCsrf: true },
+
+  'GET /api/public/stories/:storyId': { params: publishedStory },
+  'GET /api/public/stories/:storyId/questions': { params: publishedStory },
+  'GET /api/public/builds/:buildId': { params: () => ({ buildId: fx.published.buildId }) },
+  'GET /api/public/clips/:clipId/video': { params: publishedClip },
+  'GET /api/public/clips/:clipId/poster': { params: publishedClip },
+  'GET /api/public/clips/:clipId/frame': { params: publishedClip, query: () => '?t=0.5' },
+  'GET /api/public/verify/parts/:partId': { query: () => `?story=${fx.published.storyId}&rev=${fx.published.revision}` },
+
+  'GET /api/public/stories/following': { before: (actor) => setFollowingOwner(actor, true) },
+  'GET /api/me/follows': { before: (actor) => setFollowingOwner(actor, true) },
+  'PATCH /api/me/preferences': { body: () => ({ weeklyDigest: true }) },
+  'POST /api/builders/:builderId/follow': { before: (actor) => setFollowingOwner(actor, false) },
+  'DELETE /api/builders/:builderId/follow': { before: (actor) => setFollowingOwner(actor, true) },
+  'PATCH /api/me/follows/:builderId': { before: (actor) => setFollowingOwner(actor, true), body: () => ({ emailOnPublish: false }) },
+
+  'POST /api/public/stories/:storyId/questions': { params: publishedStory, body: (actor) => ({ body: askedBy(actor) }) },
+  'POST /api/questions/:questionId/answer': { body: (actor) => ({ body: answeredBy(actor) }) },
+  'POST /api/questions/:questionId/hide': {
+    params: (actor) => ({ questionId: fx.published.questionToHide[actor] }),
+    body: () => ({ reason: 'Off the subject of this entry (matrix check).' }),
+  },
+  'POST /api/questions/:questionId/unhide': { params: (actor) => ({ questionId: fx.published.questionToUnhide[actor] }) },
 };
 
 /** The clip ids of the fixture build as they are now (uploads in the matrix add some), for PUT order. */
@@ -305,7 +404,7 @@ async function currentClipIds(): Promise<number[]> {
 
 /** Fills every `:param` of a route path; an unknown parameter fails loudly, so a new one needs a fixture. */
 function fill(routePath: string, actor: Actor, shape: Shape): string {
-  const params: Record<string, number | undefined> = {
+  const params: Record<string, number | string | undefined> = {
     buildId: fx.buildId,
     clipId: fx.clipId,
     momentId: fx.momentId,
@@ -318,6 +417,11 @@ function fill(routePath: string, actor: Actor, shape: Shape): string {
     number: fx.revisionNumber,
     imageId: fx.imageId,
     checkId: fx.checkId,
+    // The public side: the owner as a builder, and the published build's part and question.
+    builderId: fx.actorIds.owner,
+    login: fx.published.ownerLogin,
+    partId: fx.published.partId,
+    questionId: fx.published.questionId,
     ...shape.params?.(actor),
   };
   return routePath.replace(/:(\w+)/g, (_, name: string) => {
@@ -331,6 +435,7 @@ async function send(routeKey: string, actor: Actor) {
   const [method, routePath] = routeKey.split(' ') as [string, string];
   const shape = SHAPES[routeKey] ?? {};
   const s = shape.ownSession ? await sessionFor(t, actor) : sessions[actor];
+  await shape.before?.(actor);
   const url = fill(routePath, actor, shape) + (shape.query?.() ?? '');
   const verb = method.toLowerCase() as 'get' | 'post' | 'put' | 'patch' | 'delete';
   // Worked out before the request starts, so reading the current lock version is not part of it.
@@ -417,6 +522,70 @@ const EFFECTS: Record<string, (actor: Actor, status: number, s: Session, res: { 
   'POST /auth/sign-out': async (_actor, _status, s) => {
     await s.agent.get('/api/me').expect(401);
   },
+
+  // Following: each signed-in actor's own follow of the owner (the visitor has none to look at).
+  'POST /api/builders/:builderId/follow': async (actor, status, _s, res) => {
+    if (actor === 'anonymous') return;
+    const row = await followOfOwner(actor);
+    if (status === 201) {
+      expect(row?.emailOnPublish).toBe(true);
+    } else {
+      expect((res.body as { error: { code: string } }).error.code).toBe('cannot_follow_self');
+      expect(await Follow.findOne({ where: { followerId: fx.actorIds.owner, builderId: fx.actorIds.owner } })).toBeNull();
+    }
+  },
+  'DELETE /api/builders/:builderId/follow': async (actor) => {
+    if (actor !== 'anonymous') expect(await followOfOwner(actor)).toBeNull();
+  },
+  'PATCH /api/me/follows/:builderId': async (actor, status, _s, res) => {
+    if (actor === 'anonymous') return;
+    const row = await followOfOwner(actor);
+    if (status === 200) {
+      expect(row?.emailOnPublish).toBe(false);
+      expect((res.body as { follow: { emailOnPublish: boolean } }).follow.emailOnPublish).toBe(false);
+    } else {
+      expect(row).toBeNull();
+    }
+  },
+  // The lists are the caller's own: those who follow the owner see the owner and the published story.
+  'GET /api/me/follows': async (actor, status, _s, res) => {
+    if (status !== 200) return;
+    const ids = (res.body as { items: { builder: { id: number } }[] }).items.map((i) => i.builder.id);
+    if (actor === 'owner') expect(ids).not.toContain(fx.actorIds.owner);
+    else expect(ids).toContain(fx.actorIds.owner);
+  },
+  'GET /api/public/stories/following': async (actor, status, _s, res) => {
+    if (status !== 200) return;
+    const ids = (res.body as { items: { storyId: number }[] }).items.map((i) => i.storyId);
+    if (actor === 'owner') expect(ids).not.toContain(fx.published.storyId);
+    else expect(ids).toContain(fx.published.storyId);
+  },
+  'PATCH /api/me/preferences': async (_actor, status, s) => {
+    if (status !== 200) return;
+    expect((await s.agent.get('/api/me/preferences').expect(200)).body.preferences.weeklyDigest).toBe(true);
+  },
+
+  // Questions: a success did the one thing asked; a refusal left the question as it was.
+  'POST /api/public/stories/:storyId/questions': async (actor, status) => {
+    const mine = await Question.findAll({ where: { storyId: fx.published.storyId, body: askedBy(actor) } });
+    if (status === 201) expect(mine.map((q) => q.authorId)).toEqual([idOf(actor)]);
+    else expect(mine).toEqual([]);
+  },
+  'POST /api/questions/:questionId/answer': async (actor, status) => {
+    const q = (await Question.findByPk(fx.published.questionId))!;
+    if (status === 200) expect({ body: q.answerBody, by: q.answeredBy }).toEqual({ body: answeredBy(actor), by: fx.actorIds.owner });
+    else expect(q.answerBody).not.toBe(answeredBy(actor));
+  },
+  'POST /api/questions/:questionId/hide': async (actor, status) => {
+    const q = (await Question.findByPk(fx.published.questionToHide[actor]))!;
+    if (status === 200) expect({ hidden: q.hiddenAt !== null, by: q.hiddenBy }).toEqual({ hidden: true, by: idOf(actor) });
+    else expect(q.hiddenAt).toBeNull();
+  },
+  'POST /api/questions/:questionId/unhide': async (actor, status) => {
+    const q = (await Question.findByPk(fx.published.questionToUnhide[actor]))!;
+    if (status === 200) expect(q.hiddenAt).toBeNull();
+    else expect(q.hiddenAt).not.toBeNull();
+  },
 };
 
 async function oauthStarts(actor: Actor, s: Session, headers: Record<string, string>) {
@@ -469,5 +638,65 @@ describe.each(Object.entries(TABLE))('%s', (routeKey, expected) => {
       expect(res.body?.error?.code).toBe({ 401: 'unauthorized', 403: 'forbidden', 404: 'not_found' }[status]);
     }
     await EFFECTS[routeKey]?.(actor, status, s, res);
+  });
+});
+
+/*
+ * The public reads for stories that are not public: a draft of the owner's, and a story that was
+ * published and then withdrawn, each in a build with nothing else public. Nobody, the owner and
+ * the reviewers included, reads them through the public side (they have the builder's and the
+ * review routes for that): 404, the same answer as for an unknown id (ASVS 5.0.0 V8.2.2).
+ */
+describe.each(['draft', 'withdrawn'] as const)('a %s story on the public side', (which) => {
+  const scope = () => fx.published.notPublic[which];
+  const notFoundReads = () => {
+    const x = scope();
+    return [
+      `/api/public/stories/${x.storyId}`,
+      `/api/public/stories/${x.storyId}/questions`,
+      `/api/public/clips/${x.clipId}/video`,
+      `/api/public/clips/${x.clipId}/poster`,
+      `/api/public/clips/${x.clipId}/frame?t=0.5`,
+      `/api/public/builds/${x.buildId}`,
+      `/api/public/parts/${x.partId}/sheet`,
+      `/sheets/parts/${x.partId}.pdf`,
+      // The published build's part, narrowed to this story: nothing public of it either.
+      `/api/public/parts/${fx.published.partId}/sheet?story=${x.storyId}`,
+    ];
+  };
+
+  it.each(actors)('%s: its story, questions, clip media, build and part sheet are not found', async (actor) => {
+    for (const url of notFoundReads()) {
+      const res = await sessions[actor].agent.get(url);
+      expect(res.status, `GET ${url} as ${actor}: ${JSON.stringify(res.body ?? '').slice(0, 300)}`).toBe(404);
+      expect(res.body?.error?.code, url).toBe('not_found');
+    }
+  });
+
+  // A printed sheet is checked against the database (its QR code), so the answer for an entry
+  // no longer public is "not current", with no figures: 200, never the story's evidence.
+  it.each(actors)('%s: verifying a sheet that names it answers not current and shows nothing of it', async (actor) => {
+    const x = scope();
+    const res = await sessions[actor].agent.get(`/api/public/verify/parts/${x.partId}?story=${x.storyId}&rev=${x.revision}`).expect(200);
+    expect(res.body).toMatchObject({ current: false, sheet: null, entries: [{ storyId: x.storyId, printedRevision: x.revision, currentRevision: null, current: false }] });
+  });
+
+  it.each(actors)('%s: the public lists, the builder profile and the feeds leave it out', async (actor) => {
+    const x = scope();
+    const { agent } = sessions[actor];
+    const list = await agent.get(`/api/public/stories?builder=${fx.published.ownerLogin}&limit=50`).expect(200);
+    const ids = (list.body.items as { storyId: number }[]).map((i) => i.storyId);
+    // The published story is there, so leaving this one out is the rule, not an empty list.
+    expect(ids).toContain(fx.published.storyId);
+    expect(ids).not.toContain(x.storyId);
+    const profile = await agent.get(`/api/public/builders/${fx.published.ownerLogin}`).expect(200);
+    const builds = (profile.body.builds as { id: number }[]).map((b) => b.id);
+    expect(builds).toContain(fx.published.buildId);
+    expect(builds).not.toContain(x.buildId);
+    for (const feed of ['/feeds/stories.atom', `/feeds/builders/${fx.published.ownerLogin}.atom`]) {
+      const res = await agent.get(feed).expect(200);
+      expect(res.text, feed).toContain(fx.published.title);
+      expect(res.text, feed).not.toContain(x.title);
+    }
   });
 });
