@@ -24,6 +24,7 @@ import { feedsRouter } from './features/feeds/feeds.routes';
 import { sheetsApiRouter, sheetsPdfRouter } from './features/sheets/sheets.routes';
 import { questionsRouter, storyQuestionsRouter } from './features/questions/questions.routes';
 import { outboxRouter } from './features/outbox/outbox.routes';
+import { storyShareTags } from './features/public/share-meta';
 import { reviewRouter, storyTransitionsRouter } from './features/review/review.routes';
 import { buildStoriesRouter, storiesRouter } from './features/stories/stories.routes';
 import { storyImageFilesRouter, storyImagesRouter } from './features/stories/story-images';
@@ -145,6 +146,16 @@ function serveClient(app: express.Express, config: Config) {
   const index = path.join(dir, 'index.html');
   app.use('/assets', express.static(path.join(dir, 'assets'), { immutable: true, maxAge: '1y', fallthrough: false }));
   app.use(express.static(dir, { index: false, maxAge: '1h' }));
+  // A public story's page carries its share tags in the HTML itself: link-preview crawlers run no scripts.
+  app.get(['/stories/:storyId', '/stories/:storyId/claims/:claimKey'], async (req, res, next) => {
+    const storyId = Number(req.params.storyId);
+    if (!Number.isInteger(storyId) || storyId <= 0 || !fs.existsSync(index)) return next();
+    const tags = await storyShareTags(storyId, config.publicUrl);
+    if (!tags) return next();
+    const html = (await fs.promises.readFile(index, 'utf8')).replace('</head>', `${tags}</head>`);
+    res.set('Cache-Control', 'no-cache');
+    res.type('html').send(html);
+  });
   app.get('/{*splat}', (_req, res, next) => {
     if (!fs.existsSync(index)) return next();
     res.set('Cache-Control', 'no-cache');

@@ -1,0 +1,31 @@
+import { cachedPublicStory, currentPublicationOf } from './public.service';
+
+function attr(text: string): string {
+  return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
+}
+
+/**
+ * Open Graph and Twitter card tags for a public story, written into the HTML the server sends,
+ * so link previews (whose crawlers run no scripts) show the title, summary and cover still.
+ * Null when the story is not public.
+ */
+export async function storyShareTags(storyId: number, publicUrl: string): Promise<string | null> {
+  const publicationId = await currentPublicationOf(storyId);
+  if (publicationId === null) return null;
+  const story = await cachedPublicStory(publicationId, null);
+  const url = `${publicUrl}/stories/${storyId}`;
+  const description = story.summary || `A build diary entry by ${story.builder.displayName}, every claim linked to its reading and clip.`;
+  const tags = [
+    ['property', 'og:site_name', 'Benchproof'],
+    ['property', 'og:type', 'article'],
+    ['property', 'og:title', story.title],
+    ['property', 'og:description', description],
+    ['property', 'og:url', url],
+    ...(story.coverUrl ? [['property', 'og:image', `${publicUrl}${story.coverUrl}`]] : []),
+    ['name', 'twitter:card', story.coverUrl ? 'summary_large_image' : 'summary'],
+    ['name', 'twitter:title', story.title],
+    ['name', 'twitter:description', description],
+    ...(story.coverUrl ? [['name', 'twitter:image', `${publicUrl}${story.coverUrl}`]] : []),
+  ];
+  return [`<link rel="canonical" href="${attr(url)}" data-share="server">`, ...tags.map(([k, n, v]) => `<meta ${k}="${attr(n!)}" content="${attr(v!)}" data-share="server">`)].join('');
+}
