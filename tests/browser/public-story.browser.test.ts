@@ -14,7 +14,7 @@ import { User } from '../../server/features/users/user.model';
 import { startBrowserApp } from '../support/browser-app';
 import { makeTestClip } from '../support/clips';
 import { sessionFor, type Session } from '../support/matrix-fixtures';
-import { checkSubject, fixtureBody, lockVersionOf, makeReviewFixture, move, type ReviewFixture } from '../support/review-fixtures';
+import { checkSubject, fixtureBody, lockVersionOf, makeReviewFixture, move, publishThroughReview, type ReviewFixture } from '../support/review-fixtures';
 
 /*
  * The invented oil pump of tests/support/review-fixtures.ts, with one more depth reading after the
@@ -29,6 +29,7 @@ let browser: Awaited<ReturnType<typeof launchBrowser>>;
 let work: string;
 let owner: Session;
 let fixture: ReviewFixture;
+let clipFile: string;
 const artifacts = path.join(repoRoot, 'tests/artifacts');
 const TITLE = 'Invented flat-twin oil pump (reader test)';
 const AFTER_KEY = 'end-float-after';
@@ -50,12 +51,12 @@ async function signInAs(page: Page, login: string, returnTo: string) {
 
 beforeAll(async () => {
   work = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-browser-public-'));
-  site = await startBrowserApp({ jobs: true });
+  site = await startBrowserApp({ jobs: true, mail: true });
   browser = await launchBrowser();
   fs.mkdirSync(artifacts, { recursive: true });
   owner = await sessionFor(site, 'owner');
   const moderator = await sessionFor(site, 'moderator');
-  const clipFile = await makeTestClip({ seconds: 5, format: 'mp4-h264', dir: work, name: 'pump-reader' });
+  clipFile = await makeTestClip({ seconds: 5, format: 'mp4-h264', dir: work, name: 'pump-reader' });
 
   fixture = await makeReviewFixture(owner, {
     clipFile,
@@ -336,10 +337,20 @@ describe('a reader on a published story', () => {
       expect(await row.getByLabel('E-mail when Ines Calloway publishes').isChecked()).toBe(true);
       await page.screenshot({ path: path.join(artifacts, 'public-follows-1280.png'), fullPage: true });
       await expectAccessible(page, 'follows and e-mail');
+
+      // Journey 3 ends here: the builder's next story reaches the new follower by e-mail, with its unsubscribe header.
+      const next = await makeReviewFixture(owner, { clipFile, title: 'Invented flat-twin oil pump, next entry (reader test)' });
+      await publishThroughReview(owner, await sessionFor(site, 'moderator'), next);
+      const [mail] = await site.smtp.waitFor((m) => m.to.includes('sam@okafor-garage.example') && m.text.includes(`/stories/${next.story.id}`), 1, 30_000);
+      expect(mail!.subject).toContain(next.story.title);
+      expect(mail!.headers['list-unsubscribe']).toMatch(/\/api\/unsubscribe\?token=/);
+      await page.goto(`${site.url}/stories/${next.story.id}`);
+      await page.getByRole('heading', { level: 1, name: next.story.title }).waitFor();
+      await page.screenshot({ path: path.join(artifacts, 'journey-reader-last.png') });
     } finally {
       await page.close();
     }
-  }, 60_000);
+  }, 120_000);
 
   it('takes a question from a signed-in reader, an answer from the builder, and a moderator hides one with a reason', async () => {
     const page = await browser.newPage();

@@ -1,7 +1,10 @@
+import { useLayoutEffect } from 'react';
+
 /**
  * Open Graph and Twitter card tags for a page, rendered where the page is (React 19 hoists
- * <title>, <meta> and <link> into the document head). Crawlers that do not run scripts will not
- * see them: the server would have to write them into the HTML it sends for these addresses.
+ * <title>, <meta> and <link> into the document head). For a public story the server also writes
+ * them into the HTML it sends (for crawlers that run no scripts); once the page runs, these take
+ * over and the server's copies are removed, so the head never holds two of each.
  */
 export function ShareMeta({
   title,
@@ -19,6 +22,9 @@ export function ShareMeta({
   type?: 'article' | 'website' | 'profile';
   feed?: { title: string; href: string };
 }) {
+  useLayoutEffect(() => {
+    for (const node of document.head.querySelectorAll('[data-share="server"]')) node.remove();
+  }, []);
   const origin = typeof window === 'undefined' ? '' : window.location.origin;
   const url = `${origin}${path}`;
   const image = imagePath ? new URL(imagePath, origin || 'http://localhost').toString() : null;
