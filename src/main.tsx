@@ -16,8 +16,27 @@ import { ToastProvider } from '@/components/ui/toast';
 import { queryClient } from '@/lib/query-client';
 import { router } from './app/router';
 
+preloadShareImage();
+
 const container = document.getElementById('root');
 if (!container) throw new Error('index.html has no #root element.');
+
+/**
+ * A public story's page arrives with its cover still named in its share tags (the server writes
+ * them into the HTML). The still is usually the largest thing the reader sees first, so it is
+ * fetched now, alongside the page's code, instead of after the story's data; the cover <img> then
+ * uses the same request. Same-origin path only, so the URL matches the one the page renders.
+ */
+function preloadShareImage() {
+  const content = document.querySelector<HTMLMetaElement>('meta[property="og:image"]')?.content;
+  if (!content) return;
+  const image = new URL(content, window.location.href);
+  const link = document.createElement('link');
+  link.rel = 'preload';
+  link.as = 'image';
+  link.href = new URL(image.pathname + image.search, window.location.origin).href;
+  document.head.append(link);
+}
 
 createRoot(container).render(
   <StrictMode>

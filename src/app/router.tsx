@@ -1,4 +1,4 @@
-import { createBrowserRouter } from 'react-router-dom';
+import { createBrowserRouter, matchPath, type LoaderFunctionArgs } from 'react-router-dom';
 import { authQueries } from '@/features/auth/api/auth-queries';
 import { queryClient } from '@/lib/query-client';
 import { AppLayout } from './layout/app-layout';
@@ -11,9 +11,22 @@ import { RootError, RouteError } from './routes/route-error';
  * prefetch (not ensure): if /api/me fails, the header shows its own retry
  * rather than the whole app showing an error page.
  */
-async function rootLoader() {
+async function rootLoader({ request }: LoaderFunctionArgs) {
+  warmPublicStory(new URL(request.url).pathname);
   await queryClient.prefetchQuery(authQueries.me());
   return null;
+}
+
+/**
+ * A reader's first load of a story: its data is asked for now, while the page's own code is still
+ * on its way, rather than after it. The page's loader then finds the request in flight (the query
+ * client shares it) and still decides what a missing story shows. Fire and forget: an error here
+ * is the page loader's to report.
+ */
+function warmPublicStory(pathname: string) {
+  const storyId = Number(matchPath('/stories/:storyId/*', pathname)?.params.storyId);
+  if (!Number.isSafeInteger(storyId) || storyId <= 0 || pathname.endsWith('/edit')) return;
+  void import('@/features/public/api/public-queries').then(({ publicQueries }) => queryClient.prefetchQuery(publicQueries.story(storyId)));
 }
 
 /**
