@@ -1,3 +1,5 @@
+import type { EvidenceCheckDto } from '@shared/review/review.schema';
+import { JudgeBar, SubjectChecks, type JudgeProps } from './judge-bar';
 import type { z } from 'zod';
 import type { citingSentenceSchema } from '@shared/review/review-sheet.schema';
 import { WarningIcon } from '@/features/readings/components/reading-badges';
@@ -31,5 +33,41 @@ export function CitingSentences({ sentences }: { sentences: readonly Sentence[] 
         </li>
       ))}
     </ul>
+  );
+}
+
+/**
+ * The foot of a reading's or a clearance's review panel: the sentences that cite it, its checks
+ * with the builder's answers, and (for a moderator) the buttons to judge it.
+ */
+export function CitedChecksAndJudge({
+  headingId,
+  citedIn,
+  checks,
+  judge,
+}: {
+  headingId: string;
+  citedIn: readonly Sentence[];
+  checks: readonly EvidenceCheckDto[];
+  judge?: JudgeProps | null;
+}) {
+  return (
+    <>
+      <section aria-labelledby={`${headingId}-cited`} className="flex flex-col gap-1">
+        <h3 id={`${headingId}-cited`} className="text-sm font-semibold">
+          Where the story cites it
+        </h3>
+        <CitingSentences sentences={citedIn} />
+      </section>
+
+      <section aria-labelledby={`${headingId}-checks`} className="flex flex-col gap-1">
+        <h3 id={`${headingId}-checks`} className="text-sm font-semibold">
+          Checks and answers
+        </h3>
+        <SubjectChecks checks={checks} />
+      </section>
+
+      {judge && <JudgeBar {...judge} />}
+    </>
   );
 }

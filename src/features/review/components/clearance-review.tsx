@@ -3,9 +3,9 @@ import type { ReviewSheet } from '@shared/review/review-sheet.schema';
 import { ClearanceResultView, specSourceWords } from '@/features/clearances/components/clearance-result-view';
 import { expressionOf, specLine } from '@/features/clearances/lib/clearance-view';
 import { WarningIcon } from '@/features/readings/components/reading-badges';
-import { CitingSentences } from './citing-sentences';
+import { CitedChecksAndJudge } from './citing-sentences';
 import { EvidenceStateBadge } from './evidence-state-badge';
-import { JudgeBar, SubjectChecks, type JudgeProps } from './judge-bar';
+import type { JudgeProps } from './judge-bar';
 import { Fact } from './reading-review';
 
 type SheetClearance = ReviewSheet['clearances'][number];
@@ -113,21 +113,7 @@ export function ClearanceReview({
         </div>
       )}
 
-      <section aria-labelledby={`${headingId}-cited`} className="flex flex-col gap-1">
-        <h3 id={`${headingId}-cited`} className="text-sm font-semibold">
-          Where the story cites it
-        </h3>
-        <CitingSentences sentences={citedIn} />
-      </section>
-
-      <section aria-labelledby={`${headingId}-checks`} className="flex flex-col gap-1">
-        <h3 id={`${headingId}-checks`} className="text-sm font-semibold">
-          Checks and answers
-        </h3>
-        <SubjectChecks checks={checks} />
-      </section>
-
-      {judge && <JudgeBar {...judge} />}
+      <CitedChecksAndJudge headingId={headingId} citedIn={citedIn} checks={checks} judge={judge} />
     </div>
   );
 }

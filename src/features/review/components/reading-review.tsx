@@ -7,9 +7,9 @@ import { ReadingWarnings, WarningIcon } from '@/features/readings/components/rea
 import { enteredFigures, estimateText, readingKindWords } from '@/features/readings/lib/reading-text';
 import { formatTime } from '@/features/clips/lib/clip-format';
 import { calibrationFromWarnings } from '../lib/review-format';
-import { CitingSentences } from './citing-sentences';
+import { CitedChecksAndJudge } from './citing-sentences';
 import { EvidenceStateBadge } from './evidence-state-badge';
-import { JudgeBar, SubjectChecks, type JudgeProps } from './judge-bar';
+import type { JudgeProps } from './judge-bar';
 import { MomentVideo } from './moment-video';
 
 type SheetReading = ReviewSheet['readings'][number];
@@ -141,21 +141,7 @@ export function ReadingReview({
         )}
       </section>
 
-      <section aria-labelledby={`${headingId}-cited`} className="flex flex-col gap-1">
-        <h3 id={`${headingId}-cited`} className="text-sm font-semibold">
-          Where the story cites it
-        </h3>
-        <CitingSentences sentences={citedIn} />
-      </section>
-
-      <section aria-labelledby={`${headingId}-checks`} className="flex flex-col gap-1">
-        <h3 id={`${headingId}-checks`} className="text-sm font-semibold">
-          Checks and answers
-        </h3>
-        <SubjectChecks checks={checks} />
-      </section>
-
-      {judge && <JudgeBar {...judge} />}
+      <CitedChecksAndJudge headingId={headingId} citedIn={citedIn} checks={checks} judge={judge} />
     </div>
   );
 }
