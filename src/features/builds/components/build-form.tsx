@@ -48,7 +48,7 @@ export function BuildForm({ defaultValues, submitLabel, pendingLabel, onSubmit, 
 
   return (
     <form noValidate onSubmit={submit} className="flex flex-col gap-4">
-      <Field label="Title" required error={errors.title?.message} hint="What you would call this job, e.g. “Ducati 750 SS bottom end, 2nd rebuild”.">
+      <Field label="Title" required error={errors.title?.message} hint="What you would call this job, e.g. “Vellum 1100 bottom end, second rebuild”.">
         <Input {...register('title')} autoComplete="off" />
       </Field>
       <Field label="What is being built" error={errors.subject?.message} hint="The engine, gearbox or assembly: make, model, year, anything a reader needs.">
