@@ -1,4 +1,4 @@
-import { lazy, Suspense, useCallback, useEffect, useLayoutEffect, useRef, type MouseEvent } from 'react';
+import { lazy, Suspense, useCallback, useEffect, useLayoutEffect, useRef, useState, type MouseEvent, type ReactNode } from 'react';
 import { useQuery, useSuspenseQuery } from '@tanstack/react-query';
 import { data, Link, useMatch, useNavigate, useParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { publicStoryParamsSchema, type PublicStory } from '@shared/public/public-story.schema';
@@ -171,9 +171,11 @@ export function Component() {
 
           <StoryFooter story={story} checked={checked} />
           <PrintEvidence story={story} system={units.system} />
-          <Suspense fallback={null}>
-            <QuestionsSection storyId={story.storyId} builderName={story.builder.displayName} />
-          </Suspense>
+          <AfterFirstPaint>
+            <Suspense fallback={null}>
+              <QuestionsSection storyId={story.storyId} builderName={story.builder.displayName} />
+            </Suspense>
+          </AfterFirstPaint>
         </div>
 
         <div className="min-w-0">
@@ -324,4 +326,29 @@ function StoryFooter({ story, checked }: { story: PublicStory; checked: ReturnTy
       </ButtonLink>
     </footer>
   );
+}
+
+/**
+ * Renders its children once the page has loaded and the browser is idle, so what sits below the
+ * story (the questions and their form code) is not fetched before the story itself is painted.
+ */
+function AfterFirstPaint({ children }: { children: ReactNode }) {
+  const [ready, setReady] = useState(false);
+  useEffect(() => {
+    // Safari has no requestIdleCallback: a short timeout after load stands in for it.
+    const idleApi = typeof window.requestIdleCallback === 'function';
+    let handle: number | undefined;
+    const schedule = () => {
+      handle = idleApi ? window.requestIdleCallback(() => setReady(true), { timeout: 1500 }) : window.setTimeout(() => setReady(true), 200);
+    };
+    if (document.readyState === 'complete') schedule();
+    else window.addEventListener('load', schedule, { once: true });
+    return () => {
+      window.removeEventListener('load', schedule);
+      if (handle === undefined) return;
+      if (idleApi) window.cancelIdleCallback(handle);
+      else window.clearTimeout(handle);
+    };
+  }, []);
+  return ready ? <>{children}</> : null;
 }
