@@ -60,8 +60,13 @@ export interface StoryEvidence {
   citedClearances: ClearanceDto[];
 }
 
-export async function evidenceOf(story: Pick<Story, 'buildId' | 'body'>): Promise<StoryEvidence> {
-  const [readings, clearances] = await Promise.all([readingDtosForBuild(story.buildId), clearanceDtosForBuild(story.buildId)]);
+/** A build's readings and clearances as the API shows them: what a story's claims are checked against. */
+async function buildEvidence(buildId: number): Promise<[ReadingDto[], ClearanceDto[]]> {
+  return Promise.all([readingDtosForBuild(buildId), clearanceDtosForBuild(buildId)]);
+}
+
+export async function evidenceOf(story: Pick<Story, 'buildId' | 'body'>, loaded?: [ReadingDto[], ClearanceDto[]]): Promise<StoryEvidence> {
+  const [readings, clearances] = loaded ?? (await buildEvidence(story.buildId));
   const rendered = renderStory(story.body, { targets: claimTargetsFrom(readings, clearances) });
   const byReadingKey = new Map(readings.map((r) => [r.key, r]));
   const byClearanceKey = new Map(clearances.map((c) => [c.key, c]));
@@ -617,11 +622,14 @@ export async function reviewQueue(q: { after?: string; limit: number }, now: Dat
   const claims = new Map((page.length ? await ReviewClaim.findAll({ where: { storyId: page.map((s) => s.id) } }) : []).map((c) => [c.storyId, c]));
   const people = await personsOf([...[...builds.values()].map((b) => b.ownerId), ...[...claims.values()].map((c) => c.moderatorId)]);
   const items: QueueItem[] = [];
-  // Evidence per story is worked out from its build; a page is at most `limit` stories.
-  for (const s of page) {
+  // Each build's readings and clearances are loaded once for the page, and every check in one query.
+  const perBuild = new Map<number, Promise<[ReadingDto[], ClearanceDto[]]>>();
+  for (const s of page) if (!perBuild.has(s.buildId)) perBuild.set(s.buildId, buildEvidence(s.buildId));
+  const evidence = await Promise.all(page.map(async (s) => evidenceOf(s, await perBuild.get(s.buildId)!)));
+  const checks = await latestChecks(evidence.flatMap(subjectsOf));
+  for (const [i, s] of page.entries()) {
     const build = builds.get(s.buildId)!;
-    const e = await evidenceOf(s);
-    const checks = await latestChecks(subjectsOf(e));
+    const e = evidence[i]!;
     const left = subjectsOf(e).filter((x) => {
       const c = checks.get(`${x.type}:${x.id}`);
       return !c || !c.current || c.state === 'flagged';
@@ -691,7 +699,8 @@ export async function reviewSheet(storyId: number, user: User, deps: ReviewDeps)
     clearances: e.citedClearances.map((c) => ({ clearance: c, citedIn: sentences('clearance', c.key), check: checkOf('clearance', c.id) })),
     claims: e.claims.map((c) => ({ kind: c.kind, key: c.key, text: c.text, line: c.line, status: c.status })),
     broken: e.broken,
-    blockers: isModerator ? await publishBlockers(story, build, user, now) : [],
+    // The gate is judged on the evidence and checks already read for the sheet.
+    blockers: isModerator ? await publishBlockers(story, build, user, now, { evidence: e, checks }) : [],
     checks: await checkDtos({ where: { storyId: story.id } }),
   };
 }
