@@ -3,7 +3,8 @@
 // builds, clips, moments, readings, clearances, stories and publications around it in bulk (each
 // generated row a copy of the real one with its ids, keys and figures changed), and measures the
 // public routes with autocannon at 1,000 stories, 10,000 stories, and 10,000 stories with 200,000
-// readings. Prints figures and the plan of the slowest route's query; asserts nothing.
+// readings. Prints figures, the plan of the slowest route's query and the plans of the two searches
+// (a common word and a rare one); asserts nothing.
 // Uses its own throwaway cluster (.data/postgres-scale), never the demo or test data.
 import crypto from 'node:crypto';
 import fs from 'node:fs';
@@ -77,6 +78,11 @@ const MACHINES = ['vellum-1100', 'kestrel-650', 'marlow-twin', 'ardent-4'];
 const COMPONENTS = ['crankshaft', 'cylinder-head', 'oil-pump', 'gearbox', 'camshaft'];
 const OPERATIONS = ['end-float', 'bore-check', 'valve-lash', 'line-bore', 'run-out', 'plastigauge'];
 const WORDS = ['thrust', 'washer', 'journal', 'shim', 'feeler', 'bearing', 'gallery'];
+// A word almost nothing contains: the template's title (one publication at every size) and the
+// summary of one generated story in every 5,000 (none at 1k, two at 10k). A search for it must
+// find those few among all the rest, which is where a scan in published order costs the most.
+const RARE = 'wyvern';
+const rareInSummary = (i: number) => i % 5000 === 2500;
 
 try {
   // ---------------------------------------------------------------------------------------------
@@ -132,7 +138,7 @@ try {
     'After the second washer: [front again](reading:r3), [rear again](reading:r4), [second gap](clearance:c2).',
   ].join('\n\n');
   const tplStory = await createStory(build, owner, {
-    title: 'Scale template entry (invented)',
+    title: `Scale template entry, the ${RARE} crank (invented)`,
     summary: 'Crank end float, checked twice.',
     workDate: '2026-11-10',
     body: tplBody,
@@ -220,7 +226,7 @@ try {
     for (let i = from; i < to; i += 1) {
       const buildId = ids.build(i);
       const title = `${pick(COMPONENTS, i)} ${pick(OPERATIONS, Math.floor(i / 5))}, ${pick(WORDS, Math.floor(i / 3))} session ${i} (invented)`;
-      const summary = `Generated entry ${i}: ${pick(WORDS, i + 2)} and ${pick(WORDS, i + 4)} on the bench.`;
+      const summary = `Generated entry ${i}: ${pick(WORDS, i + 2)} and ${pick(WORDS, i + 4)} on the bench${rareInSummary(i) ? `, next to the ${RARE} stand` : ''}.`;
       const tags = { machine: [pick(MACHINES, i)], component: [pick(COMPONENTS, Math.floor(i / 4))], operation: [pick(OPERATIONS, Math.floor(i / 7))] };
       for (let k = 0; k < READINGS_PER_STORY; k += 1) {
         momentRows.push({ id: ids.reading(i, k), clip_id: buildId, at_ms: 2000 + k * 4000 });
@@ -351,14 +357,17 @@ try {
     // That the copies read as real publications: a generated out-of-spec page and the filtered list.
     const sample = await getJson<{ claims: { state: string; verdict: string | null }[] }>(`/api/public/stories/${ids.story(3)}`);
     const oos = await getJson<{ items: { outOfSpec: boolean }[] }>('/api/public/stories?verdict=out-of-spec');
+    const rare = await getJson<Page>(`/api/public/stories?q=${RARE}&limit=50`);
     console.log(
       `  (story ${ids.story(3)}: ${sample.claims.map((c) => `${c.state}${c.verdict ? `/${c.verdict}` : ''}`).join(' ')}; ` +
-        `?verdict=out-of-spec page: ${oos.items.filter((i) => i.outOfSpec).length} of ${oos.items.length} out of spec)`,
+        `?verdict=out-of-spec page: ${oos.items.filter((i) => i.outOfSpec).length} of ${oos.items.length} out of spec; ` +
+        `?q=${RARE} finds ${rare.items.length}${rare.nextBefore ? '+' : ''}: stories ${rare.items.map((i) => i.storyId).join(', ')})`,
     );
     const targets: [string, string][] = [
       ['home', '/api/public/stories'],
       [`browse ?tag=${COMPONENTS[1]}`, `/api/public/stories?tag=${COMPONENTS[1]}`],
       [`search ?q=${WORDS[0]}`, `/api/public/stories?q=${WORDS[0]}`],
+      [`search ?q=${RARE} (rare word)`, `/api/public/stories?q=${RARE}`],
       ['?verdict=out-of-spec', '/api/public/stories?verdict=out-of-spec'],
       ['deep page (after page 50)', `/api/public/stories?before=${encodeURIComponent(before ?? '')}`],
       [`story ${middle} (middle)`, `/api/public/stories/${middle}`],
@@ -400,6 +409,20 @@ try {
     console.log(plan.map((p) => p['QUERY PLAN']).join('\n'));
   } else {
     console.log('(no query was logged)');
+  }
+
+  // The two searches' main queries at full size, whichever was slowest: a common word fills its
+  // page early in published order, a rare one must be found among everything.
+  for (const word of [RARE, WORDS[0]!]) {
+    const searched = mainOf(await queriesOf(`/api/public/stories?q=${word}`));
+    console.log(`\nSearch ?q=${word}${word === RARE ? ' (rare word)' : ' (common word)'} at full size. Its main query and EXPLAIN (ANALYZE, BUFFERS):`);
+    if (!searched) {
+      console.log('(no query was logged)');
+      continue;
+    }
+    console.log(searched.replace(/\s+/g, ' '));
+    const plan = await q<{ 'QUERY PLAN': string }>(`EXPLAIN (ANALYZE, BUFFERS) ${searched}`);
+    console.log(plan.map((p) => p['QUERY PLAN']).join('\n'));
   }
 
   await new Promise<void>((r) => server.close(() => r()));
