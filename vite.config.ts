@@ -13,7 +13,8 @@ export default defineConfig({
       '@': fileURLToPath(new URL('./src', import.meta.url)),
     },
   },
-  build: { outDir: 'dist/client', emptyOutDir: true, sourcemap: true },
+  // The manifest lets tests/browser/first-load.browser.test.ts follow each route's static imports.
+  build: { outDir: 'dist/client', emptyOutDir: true, sourcemap: true, manifest: true },
   server: {
     host: '127.0.0.1',
     port: Number(process.env.VITE_PORT ?? 5173),

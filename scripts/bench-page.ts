@@ -32,7 +32,7 @@ const RUNS = Number(process.env.BENCH_RUNS ?? 5);
 // BENCHPROOF_CLIENT_OUT measures a build in its own folder (as the browser tests allow).
 const clientDir = process.env.BENCHPROOF_CLIENT_OUT ? path.resolve(process.env.BENCHPROOF_CLIENT_OUT) : path.join(repoRoot, 'dist/client');
 
-const gzipCache = new Map<string, number>();
+const gzipCache = new Map<string, { raw: number; gzip: number }>();
 
 type Agent = ReturnType<typeof request.agent>;
 interface Session {
@@ -102,7 +102,7 @@ try {
   const compressed = await fetch(`${url}/`, { headers: { 'accept-encoding': 'gzip, br' } });
   const encoding = compressed.headers.get('content-encoding');
   await compressed.arrayBuffer();
-  console.log(`Server compression: ${encoding ? `yes (${encoding})` : 'none (raw bytes on the wire; gzip sizes below are computed from the files on disk, zlib level 6)'}`);
+  console.log(`Server compression: ${encoding ? `yes (${encoding}); "wire" below is what the browser received` : 'none (raw bytes on the wire)'}; gzip sizes are computed from the files on disk, zlib level 6`);
   console.log(`Machine: ${os.cpus().length} cores (${os.cpus()[0]?.model ?? 'unknown'}), Node ${process.version}; ${RUNS} cold loads, each in a fresh browser context`);
 
   const rows: Run[] = [];
@@ -110,7 +110,7 @@ try {
   const kb = (n: number) => `${(n / 1024).toFixed(1)} KB`;
   for (const [i, r] of rows.entries()) {
     console.log(
-      `run ${i + 1}: LCP ${r.lcp.toFixed(0)} ms (${r.lcpElement}); before LCP: JS ${r.js.count} files ${kb(r.js.raw)} raw / ${kb(r.js.gzip)} gzip, CSS ${r.css.count} files ${kb(r.css.raw)} raw / ${kb(r.css.gzip)} gzip; load event ${r.load.toFixed(0)} ms`,
+      `run ${i + 1}: LCP ${r.lcp.toFixed(0)} ms (${r.lcpElement}); before LCP: JS ${r.js.count} files ${kb(r.js.raw)} raw / ${kb(r.js.gzip)} gzip / ${kb(r.js.wire)} wire, CSS ${r.css.count} files ${kb(r.css.raw)} raw / ${kb(r.css.gzip)} gzip / ${kb(r.css.wire)} wire; load event ${r.load.toFixed(0)} ms`,
     );
     console.log(`       ms: ${r.timeline}`);
   }
@@ -119,7 +119,7 @@ try {
   const js = rows[rows.length - 1]!.js;
   console.log(`LCP median ${median.toFixed(0)} ms, worst ${sorted[sorted.length - 1]!.toFixed(0)} ms (goal < 1000 ms); JS before LCP ${kb(js.gzip)} gzip (goal < 150 KB).`);
   console.log('JS files before LCP (last run):');
-  for (const f of js.files) console.log(`  ${f.name.padEnd(48)} ${kb(f.raw).padStart(9)} raw ${kb(f.gzip).padStart(9)} gzip`);
+  for (const f of js.files) console.log(`  ${f.name.padEnd(48)} ${kb(f.raw).padStart(9)} raw ${kb(f.gzip).padStart(9)} gzip ${kb(f.wire).padStart(9)} wire`);
 } finally {
   for (const stop of stops.reverse()) {
     try {
@@ -136,7 +136,9 @@ interface Files {
   count: number;
   raw: number;
   gzip: number;
-  files: { name: string; raw: number; gzip: number }[];
+  /** Body bytes as they came over the wire (compressed when the server compresses). */
+  wire: number;
+  files: { name: string; raw: number; gzip: number; wire: number }[];
 }
 interface Run {
   lcp: number;
@@ -147,10 +149,13 @@ interface Run {
   css: Files;
 }
 
-/** The gzip size of a built asset, from the file on disk (what a compressing server would send). */
-function gzipSizeOf(pathname: string): number {
+/** A built asset's size on disk and gzipped (zlib level 6, as the server's compression sends it). */
+function sizesOf(pathname: string): { raw: number; gzip: number } {
   const file = path.join(clientDir, decodeURIComponent(pathname));
-  if (!gzipCache.has(file)) gzipCache.set(file, fs.existsSync(file) ? zlib.gzipSync(fs.readFileSync(file), { level: 6 }).length : 0);
+  if (!gzipCache.has(file)) {
+    const bytes = fs.existsSync(file) ? fs.readFileSync(file) : Buffer.alloc(0);
+    gzipCache.set(file, { raw: bytes.length, gzip: bytes.length ? zlib.gzipSync(bytes, { level: 6 }).length : 0 });
+  }
   return gzipCache.get(file)!;
 }
 
@@ -192,8 +197,9 @@ async function coldLoad(storyUrl: string): Promise<Run> {
     const pick = (ext: string): Files => {
       const files = measured.resources
         .filter((r) => r.name.endsWith(ext) && r.end <= last.t)
-        .map((r) => ({ name: path.basename(r.name), raw: r.encoded, gzip: gzipSizeOf(r.name) }));
-      return { count: files.length, raw: files.reduce((s, f) => s + f.raw, 0), gzip: files.reduce((s, f) => s + f.gzip, 0), files };
+        .map((r) => ({ name: path.basename(r.name), ...sizesOf(r.name), wire: r.encoded }));
+      const sum = (key: 'raw' | 'gzip' | 'wire') => files.reduce((s, f) => s + f[key], 0);
+      return { count: files.length, raw: sum('raw'), gzip: sum('gzip'), wire: sum('wire'), files };
     };
     // Where the time before LCP goes: the chain is page → entry → route chunk → story data → cover still.
     const at = (test: (name: string) => boolean) => measured.resources.find((r) => test(r.name));

@@ -8,6 +8,7 @@ const inputs = ['src', 'shared', 'public', 'index.html', 'vite.config.ts', 'pack
 
 function hashInputs(): string {
   const h = crypto.createHash('sha256');
+  h.update('production build\n');
   const walk = (p: string) => {
     if (!fs.existsSync(p)) return;
     const st = fs.statSync(p);
@@ -30,7 +31,16 @@ export async function buildClientIfChanged(outDir = path.join(repoRoot, 'dist/cl
     return false;
   }
   console.log('[client] building…');
-  await build({ root: repoRoot, logLevel: 'warn', build: { outDir } });
+  // Always the production build, whoever calls: inside Vitest NODE_ENV is 'test', and Vite would
+  // then bundle React's development build into the folder `npm start` serves.
+  const nodeEnv = process.env.NODE_ENV;
+  process.env.NODE_ENV = 'production';
+  try {
+    await build({ root: repoRoot, mode: 'production', logLevel: 'warn', build: { outDir } });
+  } finally {
+    if (nodeEnv === undefined) delete process.env.NODE_ENV;
+    else process.env.NODE_ENV = nodeEnv;
+  }
   fs.writeFileSync(stamp, want);
   return true;
 }

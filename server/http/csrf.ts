@@ -1,6 +1,6 @@
 import { Router } from 'express';
 import { csrfSync } from 'csrf-sync';
-import { csrfHeaderName } from '@shared/http/error.schema';
+import { csrfHeaderName } from '@shared/http/csrf';
 import { access } from './authorize';
 
 /**

@@ -18,8 +18,5 @@ export const errorBodySchema = z.object({
 export type ErrorDetail = z.infer<typeof errorDetailSchema>;
 export type ErrorBody = z.infer<typeof errorBodySchema>;
 
-/** Header the client sends its CSRF token in on every state-changing request. */
-export const csrfHeaderName = 'x-csrf-token';
-
 /** Response of `GET /api/csrf-token`. */
 export const csrfTokenResponseSchema = z.object({ token: z.string() });

@@ -238,11 +238,3 @@ export type PublicStory = z.infer<typeof publicStorySchema>;
 
 /** Public media of a clip cited by a published story. */
 export const publicClipParamsSchema = z.object({ clipId: z.coerce.number().int().positive() });
-
-/** The site's Atom feed (RFC 4287) of published stories. */
-export const SITE_FEED_PATH = '/feeds/stories.atom';
-
-/** A builder's Atom feed. */
-export function builderFeedPath(login: string): string {
-  return `/feeds/builders/${encodeURIComponent(login)}.atom`;
-}

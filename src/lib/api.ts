@@ -1,10 +1,9 @@
 import type { z } from 'zod';
-import {
-  csrfHeaderName,
-  csrfTokenResponseSchema,
-  errorBodySchema,
-  type ErrorDetail,
-} from '@shared/http/error.schema';
+import { csrfHeaderName } from '@shared/http/csrf';
+import type { ErrorBody, ErrorDetail } from '@shared/http/error.schema';
+
+// This module is in every page's first load, so it imports no schema values: zod (~26 KB gzip)
+// loads with the screens that validate forms or responses, not with the reader's story page.
 
 /** An API call that failed, with the server's error body (or a client-made one). */
 export class ApiError extends Error {
@@ -38,7 +37,10 @@ export interface ApiFetchOptions<T> {
   method?: HttpMethod;
   /** Sent as JSON. */
   body?: unknown;
-  /** Validates the success body; the result is typed from it. */
+  /**
+   * Validates the success body; the result is typed from it. Leave it out only where the type is
+   * `Unparsed<typeof schema>` (the reader's first-load routes), so the bundle need not carry zod.
+   */
   schema?: z.ZodType<T>;
   signal?: AbortSignal;
 }
@@ -50,8 +52,14 @@ let csrfTokenPromise: Promise<string> | null = null;
 
 /** The session's CSRF token (fetched once, cached), for requests that cannot go through `apiFetch` (XHR uploads). */
 export function getCsrfToken(): Promise<string> {
-  csrfTokenPromise ??= apiFetch('/api/csrf-token', { schema: csrfTokenResponseSchema })
-    .then(({ token }) => token)
+  csrfTokenPromise ??= apiFetch<unknown>('/api/csrf-token')
+    .then((body) => {
+      const token = (body as { token?: unknown } | null)?.token;
+      if (typeof token !== 'string' || token === '') {
+        throw new ApiError(200, clientErrorCodes.unexpectedResponse, 'The server sent no security token. Reload the page, then try again.');
+      }
+      return token;
+    })
     .catch((error: unknown) => {
       // Do not cache a failure: the next request asks again.
       csrfTokenPromise = null;
@@ -142,13 +150,42 @@ async function readError(response: Response): Promise<ApiError> {
   } catch {
     // Not JSON (a proxy page, an empty body): fall through to the generic error below.
   }
-  const parsed = errorBodySchema.safeParse(json);
-  if (parsed.success) {
-    const { code, message, details } = parsed.data.error;
-    return new ApiError(response.status, code, message, details);
-  }
+  const body = readErrorBody(json);
+  if (body) return new ApiError(response.status, body.code, body.message, body.details);
   return new ApiError(response.status, `http_${response.status}`, genericMessage(response.status));
 }
+
+/**
+ * The fields of the one error body every failing response carries, or null when `json` is not
+ * one. Reads exactly what `errorBodySchema` accepts and returns what it would (unknown keys
+ * dropped, `details` defaulting to []), without loading zod; a test holds the two together.
+ */
+export function readErrorBody(json: unknown): ErrorBody['error'] | null {
+  const error = isRecord(json) ? json.error : undefined;
+  if (!isRecord(error) || typeof error.code !== 'string' || typeof error.message !== 'string') return null;
+  const rawDetails = error.details === undefined ? [] : error.details;
+  if (!Array.isArray(rawDetails)) return null;
+  const details: ErrorDetail[] = [];
+  for (const item of rawDetails) {
+    if (!isRecord(item) || typeof item.message !== 'string') return null;
+    if (item.path !== undefined && typeof item.path !== 'string') return null;
+    details.push('path' in item ? { path: item.path as string | undefined, message: item.message } : { message: item.message });
+  }
+  return { code: error.code, message: error.message, details };
+}
+
+function isRecord(value: unknown): value is Record<string, unknown> {
+  return typeof value === 'object' && value !== null && !Array.isArray(value);
+}
+
+/**
+ * The type of a response the client reads without parsing it: the shared schema's parsed type,
+ * which is what the server builds the body as. Only for schemas whose parsed form is itself valid
+ * input, so parsing it again would change nothing (defaults and coercions are fine; a transform
+ * that changes a type is not): for any other this is `never` and the call site does not compile.
+ * The server's tests parse these responses with the same schemas.
+ */
+export type Unparsed<S extends z.ZodType> = [z.output<S>] extends [z.input<S>] ? z.output<S> : never;
 
 function genericMessage(status: number): string {
   if (status === 401) return 'You are not signed in.';

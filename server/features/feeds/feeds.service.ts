@@ -1,3 +1,4 @@
+import { builderFeedPath, SITE_FEED_PATH } from '@shared/public/feed-paths';
 import { notFound } from '../../http/errors';
 import { listPublicStories, isBuilderAccount } from '../public/public.service';
 import { User } from '../users/user.model';
@@ -40,7 +41,7 @@ export async function siteFeed(publicUrl: string): Promise<string> {
     title: 'Benchproof: published build diaries',
     subtitle: 'Diary entries whose every claim links to its reading, its moment in the clip and its computation, checked by a moderator.',
     updated: list[0]?.updated ?? SITE_EPOCH,
-    self: `${publicUrl}/feeds/stories.atom`,
+    self: `${publicUrl}${SITE_FEED_PATH}`,
     alternate: `${publicUrl}/`,
     author: { name: 'Benchproof', uri: `${publicUrl}/` },
     entries: list,
@@ -57,7 +58,7 @@ export async function builderFeed(publicUrl: string, login: string): Promise<str
     id: `${tagBase(publicUrl)}builder/${user.id}`,
     title: `${user.displayName}${user.shop ? `, ${user.shop}` : ''}: build diary on Benchproof`,
     updated: list[0]?.updated ?? user.createdAt,
-    self: `${publicUrl}/feeds/builders/${encodeURIComponent(user.login)}.atom`,
+    self: `${publicUrl}${builderFeedPath(user.login)}`,
     alternate: profile,
     author: { name: user.displayName, uri: profile },
     entries: list,

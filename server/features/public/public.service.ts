@@ -1,14 +1,14 @@
 import { QueryTypes } from 'sequelize';
 import type { UnitSystem } from '@shared/measure/format';
 import type { PublicBuild, PublicBuilderProfile, PublicClearanceFigure, PublicClearanceSummary } from '@shared/public/public-build.schema';
-import {
-  builderFeedPath,
-  type PublicClaim,
-  type PublicStory,
-  type PublicStoryListItem,
-  type PublicStoryListQuery,
-  type PublicStoryListResponse,
+import type {
+  PublicClaim,
+  PublicStory,
+  PublicStoryListItem,
+  PublicStoryListQuery,
+  PublicStoryListResponse,
 } from '@shared/public/public-story.schema';
+import { builderFeedPath } from '@shared/public/feed-paths';
 import { STANDING_NOTE } from '@shared/stories/cautions';
 import { claimTargetsFrom } from '@shared/stories/claims';
 import { renderStory } from '@shared/stories/render';

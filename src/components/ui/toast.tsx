@@ -1,6 +1,4 @@
-import { createContext, useCallback, useContext, useMemo, useState, type ReactNode } from 'react';
-import { Toast as RadixToast } from 'radix-ui';
-import { cn } from '@/lib/cn';
+import { createContext, lazy, Suspense, useCallback, useContext, useMemo, useState, type ReactNode } from 'react';
 
 export type ToastTone = 'info' | 'success' | 'error';
 
@@ -12,7 +10,7 @@ export interface ToastOptions {
   duration?: number;
 }
 
-interface ToastItem extends ToastOptions {
+export interface ToastItem extends ToastOptions {
   id: number;
   open: boolean;
 }
@@ -23,14 +21,23 @@ interface ToastContextValue {
 
 const ToastContext = createContext<ToastContextValue | null>(null);
 
-const DEFAULT_DURATION = 5000;
-const toneWord: Record<ToastTone, string> = { info: 'Note', success: 'Done', error: 'Problem' };
+// The viewport (Radix Toast and its layers, ~15 KB gzip) loads with the first toast, not with every
+// page: a reader's first load never needs it. If its code cannot be fetched (offline), a plain
+// live region shows the toasts instead of an error screen.
+const ToastViewport = lazy(() =>
+  import('./toast-viewport')
+    .then((m) => ({ default: m.ToastViewport }))
+    .catch(() => ({ default: PlainToastList })),
+);
 
 /** Holds the toasts and their viewport; wrap the app in it once. */
 export function ToastProvider({ children }: { children: ReactNode }) {
   const [items, setItems] = useState<ToastItem[]>([]);
+  // Once a toast has been asked for, the viewport stays mounted (its region keeps its hotkey).
+  const [wanted, setWanted] = useState(false);
 
   const toast = useCallback((options: ToastOptions) => {
+    setWanted(true);
     setItems((current) => [...current, { ...options, id: Date.now() + Math.random(), open: true }]);
   }, []);
 
@@ -44,79 +51,37 @@ export function ToastProvider({ children }: { children: ReactNode }) {
 
   return (
     <ToastContext.Provider value={value}>
-      <RadixToast.Provider swipeDirection="right" label="Notifications">
-        {children}
-        {items.map((item) => (
-          <ToastCard key={item.id} item={item} onClose={() => close(item.id)} />
-        ))}
-        <RadixToast.Viewport
-          data-print="hide"
-          className="fixed right-0 bottom-0 z-50 m-0 flex w-full max-w-sm list-none flex-col gap-2 p-4 outline-none"
-        />
-      </RadixToast.Provider>
+      {children}
+      {wanted && (
+        <Suspense fallback={null}>
+          <ToastViewport items={items} onClose={close} />
+        </Suspense>
+      )}
     </ToastContext.Provider>
   );
 }
 
-function ToastCard({ item, onClose }: { item: ToastItem; onClose: () => void }) {
-  const tone = item.tone ?? 'info';
-  return (
-    <RadixToast.Root
-      open={item.open}
-      onOpenChange={(open) => !open && onClose()}
-      duration={item.duration ?? (tone === 'error' ? DEFAULT_DURATION * 2 : DEFAULT_DURATION)}
-      // Errors interrupt the screen reader; confirmations wait their turn.
-      type={tone === 'error' ? 'foreground' : 'background'}
-      className={cn(
-        'grid grid-cols-[auto_1fr_auto] items-start gap-x-3 rounded-md border bg-paper p-3 shadow-raised',
-        'data-[state=closed]:opacity-0 data-[swipe=end]:translate-x-full data-[swipe=move]:translate-x-(--radix-toast-swipe-move-x) transition',
-        tone === 'error' ? 'border-danger border-l-4' : 'border-line border-l-4 border-l-ink',
-      )}
-    >
-      <ToneIcon tone={tone} />
-      <div className="min-w-0">
-        <RadixToast.Title className="text-sm font-semibold text-ink">
-          <span className="sr-only">{toneWord[tone]}: </span>
-          {item.title}
-        </RadixToast.Title>
-        {item.description && (
-          <RadixToast.Description className="mt-0.5 text-sm text-ink-muted">{item.description}</RadixToast.Description>
-        )}
-      </div>
-      <RadixToast.Close
-        className="-m-1 rounded-sm p-1 text-ink-muted hover:bg-paper-2 hover:text-ink"
-        aria-label="Dismiss notification"
-      >
-        <svg viewBox="0 0 16 16" className="size-4" aria-hidden="true">
-          <path d="M4 4l8 8M12 4l-8 8" stroke="currentColor" strokeWidth="1.5" strokeLinecap="round" />
-        </svg>
-      </RadixToast.Close>
-    </RadixToast.Root>
-  );
+export interface ToastViewportProps {
+  items: ToastItem[];
+  onClose: (id: number) => void;
 }
 
-function ToneIcon({ tone }: { tone: ToastTone }) {
-  const className = cn('mt-0.5 size-4', tone === 'error' ? 'text-danger' : 'text-ink');
-  if (tone === 'success') {
-    return (
-      <svg viewBox="0 0 16 16" className={className} aria-hidden="true">
-        <path d="M3 8.5l3.2 3L13 4.5" fill="none" stroke="currentColor" strokeWidth="1.8" strokeLinecap="round" strokeLinejoin="round" />
-      </svg>
-    );
-  }
-  if (tone === 'error') {
-    return (
-      <svg viewBox="0 0 16 16" className={className} aria-hidden="true">
-        <path d="M8 1.5 15 14.5H1z" fill="none" stroke="currentColor" strokeWidth="1.5" strokeLinejoin="round" />
-        <path d="M8 6v4M8 11.6v.8" stroke="currentColor" strokeWidth="1.5" strokeLinecap="round" />
-      </svg>
-    );
-  }
+/** Toasts without Radix, for when the viewport's code could not be loaded. */
+function PlainToastList({ items, onClose }: ToastViewportProps) {
   return (
-    <svg viewBox="0 0 16 16" className={className} aria-hidden="true">
-      <circle cx="8" cy="8" r="6.25" fill="none" stroke="currentColor" strokeWidth="1.5" />
-      <path d="M8 7.2v4M8 4.6v.8" stroke="currentColor" strokeWidth="1.5" strokeLinecap="round" />
-    </svg>
+    <ol aria-live="polite" aria-label="Notifications" data-print="hide" className="fixed right-0 bottom-0 z-50 m-0 flex w-full max-w-sm list-none flex-col gap-2 p-4">
+      {items
+        .filter((item) => item.open)
+        .map((item) => (
+          <li key={item.id} className="rounded-md border border-line border-l-4 bg-paper p-3 text-sm shadow-raised">
+            <p className="font-semibold text-ink">{item.title}</p>
+            {item.description && <p className="mt-0.5 text-ink-muted">{item.description}</p>}
+            <button type="button" className="mt-1 text-ink-muted underline" onClick={() => onClose(item.id)}>
+              Dismiss
+            </button>
+          </li>
+        ))}
+    </ol>
   );
 }
 

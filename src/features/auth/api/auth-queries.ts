@@ -1,6 +1,6 @@
 import { queryOptions } from '@tanstack/react-query';
-import { meResponseSchema, type User } from '@shared/users/user.schema';
-import { ApiError, apiFetch } from '@/lib/api';
+import type { meResponseSchema, User } from '@shared/users/user.schema';
+import { ApiError, apiFetch, type Unparsed } from '@/lib/api';
 
 /** Query options for the signed-in account. */
 export const authQueries = {
@@ -11,7 +11,9 @@ export const authQueries = {
       queryKey: [...authQueries.all, 'me'] as const,
       queryFn: async ({ signal }): Promise<User | null> => {
         try {
-          const { user } = await apiFetch('/api/me', { schema: meResponseSchema, signal });
+          // Every page asks this first, so it is read unparsed (no zod in the first load); the
+          // server's tests parse it with meResponseSchema.
+          const { user } = await apiFetch<Unparsed<typeof meResponseSchema>>('/api/me', { signal });
           return user;
         } catch (error) {
           if (error instanceof ApiError && error.status === 401) return null;

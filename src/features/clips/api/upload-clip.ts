@@ -1,6 +1,6 @@
 import { clipResponseSchema, clipUploadField, type Clip } from '@shared/clips/clip.schema';
-import { csrfHeaderName, errorBodySchema } from '@shared/http/error.schema';
-import { ApiError, CSRF_INVALID, clearCsrfToken, clientErrorCodes, getCsrfToken } from '@/lib/api';
+import { csrfHeaderName } from '@shared/http/csrf';
+import { ApiError, readErrorBody, CSRF_INVALID, clearCsrfToken, clientErrorCodes, getCsrfToken } from '@/lib/api';
 
 export interface UploadProgress {
   loaded: number;
@@ -100,11 +100,8 @@ function parseJson(text: string): unknown {
 }
 
 function errorFrom(status: number, json: unknown): ApiError {
-  const parsed = errorBodySchema.safeParse(json);
-  if (parsed.success) {
-    const { code, message, details } = parsed.data.error;
-    return new ApiError(status, code, message, details);
-  }
+  const body = readErrorBody(json);
+  if (body) return new ApiError(status, body.code, body.message, body.details);
   // No error body: a proxy or the server's body limit answered before our code did.
   if (status === 413) return new ApiError(status, 'too_large', 'The file is larger than the server accepts. Trim or re-encode it smaller, then upload again.');
   if (status === 401) return new ApiError(status, 'http_401', 'You are not signed in. Sign in again, then upload the file again.');

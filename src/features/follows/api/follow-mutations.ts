@@ -1,14 +1,16 @@
 import { useMutation, useQueryClient } from '@tanstack/react-query';
-import {
-  followPatchSchema,
+import type {
+  FollowPatch,
   followResponseSchema,
-  preferencesPatchSchema,
+  Preferences,
+  PreferencesPatch,
   preferencesResponseSchema,
-  type Preferences,
-  type PreferencesPatch,
 } from '@shared/public/follows.schema';
 import { publicQueries } from '@/features/public/api/public-queries';
-import { apiFetch } from '@/lib/api';
+import { apiFetch, type Unparsed } from '@/lib/api';
+
+// The follow button and the units switch are on the story page, so these send typed bodies (the
+// server validates them) and read unparsed answers: no zod in the reader's first load.
 import { followQueries } from './follow-queries';
 
 /** Following changes the profile's count and the home page's "from builders you follow". */
@@ -26,7 +28,7 @@ export function useSetFollowing() {
   const invalidate = useInvalidateFollowing();
   return useMutation({
     mutationFn: async ({ builderId, follow }: { builderId: number; follow: boolean }) => {
-      if (follow) await apiFetch(`/api/builders/${builderId}/follow`, { method: 'POST', body: {}, schema: followResponseSchema });
+      if (follow) await apiFetch<Unparsed<typeof followResponseSchema>>(`/api/builders/${builderId}/follow`, { method: 'POST', body: {} });
       else await apiFetch(`/api/builders/${builderId}/follow`, { method: 'DELETE' });
       return follow;
     },
@@ -39,7 +41,7 @@ export function useSetFollowEmail() {
   const invalidate = useInvalidateFollowing();
   return useMutation({
     mutationFn: ({ builderId, emailOnPublish }: { builderId: number; emailOnPublish: boolean }) =>
-      apiFetch(`/api/me/follows/${builderId}`, { method: 'PATCH', body: followPatchSchema.parse({ emailOnPublish }), schema: followResponseSchema }),
+      apiFetch<Unparsed<typeof followResponseSchema>>(`/api/me/follows/${builderId}`, { method: 'PATCH', body: { emailOnPublish } satisfies FollowPatch }),
     onSettled: invalidate,
   });
 }
@@ -53,7 +55,7 @@ export function useUpdatePreferences() {
   const key = followQueries.preferences().queryKey;
   return useMutation({
     mutationFn: async (patch: PreferencesPatch) =>
-      (await apiFetch('/api/me/preferences', { method: 'PATCH', body: preferencesPatchSchema.parse(patch), schema: preferencesResponseSchema })).preferences,
+      (await apiFetch<Unparsed<typeof preferencesResponseSchema>>('/api/me/preferences', { method: 'PATCH', body: patch })).preferences,
     onMutate: async (patch) => {
       await queryClient.cancelQueries({ queryKey: key });
       const previous = queryClient.getQueryData<Preferences>(key);

@@ -1,6 +1,9 @@
 import { infiniteQueryOptions, queryOptions } from '@tanstack/react-query';
-import { followListResponseSchema, preferencesResponseSchema } from '@shared/public/follows.schema';
-import { apiFetch } from '@/lib/api';
+import type { followListResponseSchema, preferencesResponseSchema } from '@shared/public/follows.schema';
+import { apiFetch, type Unparsed } from '@/lib/api';
+
+// Read on the story page (the reader's units), so unparsed like the public queries; the server's
+// tests parse these responses with their schemas.
 
 /** Query options for the signed-in reader's follows and preferences. */
 export const followQueries = {
@@ -12,7 +15,7 @@ export const followQueries = {
       queryFn: ({ pageParam, signal }) => {
         const params = new URLSearchParams({ limit: '100' });
         if (pageParam !== undefined) params.set('after', String(pageParam));
-        return apiFetch(`/api/me/follows?${params}`, { schema: followListResponseSchema, signal });
+        return apiFetch<Unparsed<typeof followListResponseSchema>>(`/api/me/follows?${params}`, { signal });
       },
       initialPageParam: undefined as number | undefined,
       getNextPageParam: (last) => last.nextAfter ?? undefined,
@@ -21,7 +24,7 @@ export const followQueries = {
   preferences: () =>
     queryOptions({
       queryKey: [...followQueries.all, 'preferences'] as const,
-      queryFn: async ({ signal }) => (await apiFetch('/api/me/preferences', { schema: preferencesResponseSchema, signal })).preferences,
+      queryFn: async ({ signal }) => (await apiFetch<Unparsed<typeof preferencesResponseSchema>>('/api/me/preferences', { signal })).preferences,
       staleTime: 5 * 60_000,
     }),
 };

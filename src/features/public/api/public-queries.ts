@@ -1,8 +1,12 @@
 import { infiniteQueryOptions, queryOptions } from '@tanstack/react-query';
-import { publicBuildSchema, publicBuilderProfileSchema } from '@shared/public/public-build.schema';
-import { publicStoryListResponseSchema, publicStorySchema } from '@shared/public/public-story.schema';
-import { partSheetSchema, verifySheetSchema } from '@shared/public/sheet.schema';
-import { apiFetch } from '@/lib/api';
+import type { publicBuildSchema, publicBuilderProfileSchema } from '@shared/public/public-build.schema';
+import type { publicStoryListResponseSchema, publicStorySchema } from '@shared/public/public-story.schema';
+import type { partSheetSchema, verifySheetSchema } from '@shared/public/sheet.schema';
+import { apiFetch, type Unparsed } from '@/lib/api';
+
+// These are a reader's first loads (a story, the home page, a profile, a scanned sheet), so they
+// are typed from the shared schemas but not parsed here: that keeps zod out of the first load.
+// The server's API tests (tests/server/public, sheets) parse each of these responses with its schema.
 
 export const PUBLIC_PAGE_SIZE = 12;
 
@@ -32,7 +36,7 @@ export const publicQueries = {
     infiniteQueryOptions({
       queryKey: [...publicQueries.all, 'stories', filters, limit] as const,
       queryFn: ({ pageParam, signal }) =>
-        apiFetch(`/api/public/stories?${listParams(filters, pageParam, limit)}`, { schema: publicStoryListResponseSchema, signal }),
+        apiFetch<Unparsed<typeof publicStoryListResponseSchema>>(`/api/public/stories?${listParams(filters, pageParam, limit)}`, { signal }),
       initialPageParam: undefined as string | undefined,
       getNextPageParam: (last) => last.nextBefore ?? undefined,
     }),
@@ -41,7 +45,7 @@ export const publicQueries = {
     infiniteQueryOptions({
       queryKey: [...publicQueries.all, 'following', limit] as const,
       queryFn: ({ pageParam, signal }) =>
-        apiFetch(`/api/public/stories/following?${listParams({}, pageParam, limit)}`, { schema: publicStoryListResponseSchema, signal }),
+        apiFetch<Unparsed<typeof publicStoryListResponseSchema>>(`/api/public/stories/following?${listParams({}, pageParam, limit)}`, { signal }),
       initialPageParam: undefined as string | undefined,
       getNextPageParam: (last) => last.nextBefore ?? undefined,
     }),
@@ -52,28 +56,28 @@ export const publicQueries = {
   story: (storyId: number) =>
     queryOptions({
       queryKey: [...publicQueries.all, 'story', storyId] as const,
-      queryFn: ({ signal }) => apiFetch(`/api/public/stories/${storyId}`, { schema: publicStorySchema, signal }),
+      queryFn: ({ signal }) => apiFetch<Unparsed<typeof publicStorySchema>>(`/api/public/stories/${storyId}`, { signal }),
     }),
   build: (buildId: number) =>
     queryOptions({
       queryKey: [...publicQueries.all, 'build', buildId] as const,
-      queryFn: ({ signal }) => apiFetch(`/api/public/builds/${buildId}`, { schema: publicBuildSchema, signal }),
+      queryFn: ({ signal }) => apiFetch<Unparsed<typeof publicBuildSchema>>(`/api/public/builds/${buildId}`, { signal }),
     }),
   builder: (login: string) =>
     queryOptions({
       queryKey: [...publicQueries.all, 'builder', login] as const,
-      queryFn: ({ signal }) => apiFetch(`/api/public/builders/${encodeURIComponent(login)}`, { schema: publicBuilderProfileSchema, signal }),
+      queryFn: ({ signal }) => apiFetch<Unparsed<typeof publicBuilderProfileSchema>>(`/api/public/builders/${encodeURIComponent(login)}`, { signal }),
     }),
   sheet: (partId: number) =>
     queryOptions({
       queryKey: [...publicQueries.all, 'sheet', partId] as const,
-      queryFn: ({ signal }) => apiFetch(`/api/public/parts/${partId}/sheet`, { schema: partSheetSchema, signal }),
+      queryFn: ({ signal }) => apiFetch<Unparsed<typeof partSheetSchema>>(`/api/public/parts/${partId}/sheet`, { signal }),
     }),
   /** The figures of a printed sheet read again now; `search` is the sheet's own `story=…&rev=…`. */
   verify: (partId: number, search: string) =>
     queryOptions({
       queryKey: [...publicQueries.all, 'verify', partId, search] as const,
-      queryFn: ({ signal }) => apiFetch(`/api/public/verify/parts/${partId}?${search}`, { schema: verifySheetSchema, signal }),
+      queryFn: ({ signal }) => apiFetch<Unparsed<typeof verifySheetSchema>>(`/api/public/verify/parts/${partId}?${search}`, { signal }),
       // A verification is about "now": always ask again.
       staleTime: 0,
     }),

@@ -1,13 +1,14 @@
 import { lazy, Suspense } from 'react';
 import { useSuspenseQuery } from '@tanstack/react-query';
-import { data, Link, useParams, type LoaderFunctionArgs } from 'react-router-dom';
-import { publicBuildParamsSchema, type PublicBuild, type PublicClearanceFigure, type PublicClearanceSummary } from '@shared/public/public-build.schema';
+import { data, Link, useParams, type LoaderFunctionArgs, type Params } from 'react-router-dom';
+import type { PublicBuild, PublicClearanceFigure, PublicClearanceSummary } from '@shared/public/public-build.schema';
 import type { UnitSystem } from '@shared/measure/format';
 import { VerdictBadge } from '@/components/ui/badge';
 import { EmptyState } from '@/components/ui/data-states';
 import { Table, TBody, Td, Th, THead, Tr } from '@/components/ui/table';
 import { ApiError } from '@/lib/api';
 import { queryClient } from '@/lib/query-client';
+import { positiveIntParam } from '@/lib/route-params';
 import { publicQueries } from '../api/public-queries';
 import { ShareMeta } from '../components/share-meta';
 import { UnitsSwitch } from '../components/units-switch';
@@ -17,10 +18,11 @@ import { useUnitSystem } from '../lib/units';
 
 const BeforeAfterChart = lazy(() => import('../components/before-after-chart').then((m) => ({ default: m.BeforeAfterChart })));
 
-function buildIdFrom(params: unknown): number {
-  const parsed = publicBuildParamsSchema.safeParse(params);
-  if (!parsed.success) throw data(null, { status: 404 });
-  return parsed.data.buildId;
+/** The address's buildId, read as the server's `publicBuildParamsSchema` reads it; 404 when it is not one. */
+function buildIdFrom(params: Params): number {
+  const buildId = positiveIntParam(params.buildId);
+  if (buildId === null) throw data(null, { status: 404 });
+  return buildId;
 }
 
 export async function loader({ params }: LoaderFunctionArgs) {

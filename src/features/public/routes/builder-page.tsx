@@ -1,21 +1,22 @@
 import { useInfiniteQuery, useSuspenseQuery } from '@tanstack/react-query';
-import { data, Link, useParams, type LoaderFunctionArgs } from 'react-router-dom';
-import { publicBuilderParamsSchema } from '@shared/public/public-build.schema';
+import { data, Link, useParams, type LoaderFunctionArgs, type Params } from 'react-router-dom';
 import { Avatar } from '@/components/ui/avatar';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { LoadMore } from '@/components/ui/load-more';
 import { FollowButton } from '@/features/follows/components/follow-button';
 import { ApiError } from '@/lib/api';
 import { queryClient } from '@/lib/query-client';
+import { textParam } from '@/lib/route-params';
 import { publicQueries } from '../api/public-queries';
 import { ShareMeta } from '../components/share-meta';
 import { StoryGrid } from '../components/story-card';
 import { instantDay } from '../lib/dates';
 
-function loginFrom(params: unknown): string {
-  const parsed = publicBuilderParamsSchema.safeParse(params);
-  if (!parsed.success) throw data(null, { status: 404 });
-  return parsed.data.login;
+/** The address's login, read as the server's `publicBuilderParamsSchema` reads it; 404 when it is not one. */
+function loginFrom(params: Params): string {
+  const login = textParam(params.login, 64);
+  if (login === null) throw data(null, { status: 404 });
+  return login;
 }
 
 export async function loader({ params }: LoaderFunctionArgs) {

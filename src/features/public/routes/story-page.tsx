@@ -1,7 +1,7 @@
 import { lazy, Suspense, useCallback, useEffect, useLayoutEffect, useRef, useState, type MouseEvent, type ReactNode } from 'react';
 import { useQuery, useSuspenseQuery } from '@tanstack/react-query';
-import { data, Link, useMatch, useNavigate, useParams, type LoaderFunctionArgs } from 'react-router-dom';
-import { publicStoryParamsSchema, type PublicStory } from '@shared/public/public-story.schema';
+import { data, Link, useMatch, useNavigate, useParams, type LoaderFunctionArgs, type Params } from 'react-router-dom';
+import type { PublicStory } from '@shared/public/public-story.schema';
 import { ButtonLink, Button } from '@/components/ui/button';
 import { useToast } from '@/components/ui/toast';
 import { FollowButton } from '@/features/follows/components/follow-button';
@@ -9,6 +9,7 @@ import { StoryProse } from '@/features/stories/components/story-prose';
 import { ApiError } from '@/lib/api';
 import { cn } from '@/lib/cn';
 import { queryClient } from '@/lib/query-client';
+import { positiveIntParam } from '@/lib/route-params';
 import { publicQueries } from '../api/public-queries';
 import { ClaimPanel } from '../components/claim-panel';
 import { ClaimsIndex } from '../components/claims-index';
@@ -24,10 +25,11 @@ import '../components/public-story.css';
 const StoryComparisons = lazy(() => import('../components/story-comparisons'));
 const QuestionsSection = lazy(() => import('../components/questions-section'));
 
-function storyIdFrom(params: unknown): number {
-  const parsed = publicStoryParamsSchema.safeParse(params);
-  if (!parsed.success) throw data(null, { status: 404 });
-  return parsed.data.storyId;
+/** The address's storyId, read as the server's `publicStoryParamsSchema` reads it; 404 when it is not one. */
+function storyIdFrom(params: Params): number {
+  const storyId = positiveIntParam(params.storyId);
+  if (storyId === null) throw data(null, { status: 404 });
+  return storyId;
 }
 
 export async function loader({ params }: LoaderFunctionArgs) {

@@ -1,19 +1,21 @@
 import { useQuery } from '@tanstack/react-query';
-import { data, Link, useLocation, useParams } from 'react-router-dom';
-import { partParamsSchema, type PartSheet, type VerifySheet } from '@shared/public/sheet.schema';
+import { data, Link, useLocation, useParams, type Params } from 'react-router-dom';
+import type { PartSheet, VerifySheet } from '@shared/public/sheet.schema';
 import { VerdictBadge } from '@/components/ui/badge';
 import { ErrorState, LoadingState } from '@/components/ui/data-states';
 import { PageHeader } from '@/components/ui/page-header';
 import { Table, TBody, Td, Th, THead, Tr } from '@/components/ui/table';
 import { CalibrationBadge } from '@/features/instruments/components/calibration-badge';
 import { ApiError } from '@/lib/api';
+import { positiveIntParam } from '@/lib/route-params';
 import { publicQueries } from '../api/public-queries';
 import { instantDay } from '../lib/dates';
 
-function partIdFrom(params: unknown): number {
-  const parsed = partParamsSchema.safeParse(params);
-  if (!parsed.success) throw data(null, { status: 404 });
-  return parsed.data.partId;
+/** The address's partId, read as the server's `partParamsSchema` reads it; 404 when it is not one. */
+function partIdFrom(params: Params): number {
+  const partId = positiveIntParam(params.partId);
+  if (partId === null) throw data(null, { status: 404 });
+  return partId;
 }
 
 /** Only the sheet's own `story` and `rev` pairs are passed on. */

@@ -1,6 +1,6 @@
-import { csrfHeaderName, errorBodySchema } from '@shared/http/error.schema';
+import { csrfHeaderName } from '@shared/http/csrf';
 import { storyImageAltField, storyImageResponseSchema, storyImageTypes, storyImageUploadField, type StoryImage } from '@shared/stories/story.schema';
-import { ApiError, CSRF_INVALID, clearCsrfToken, clientErrorCodes, getCsrfToken } from '@/lib/api';
+import { ApiError, readErrorBody, CSRF_INVALID, clearCsrfToken, clientErrorCodes, getCsrfToken } from '@/lib/api';
 
 /**
  * Largest image the editor sends. The server's own limit (STORY_IMAGE_MAX_BYTES, 10 MiB unless
@@ -81,11 +81,8 @@ function parseJson(text: string): unknown {
 }
 
 function errorFrom(status: number, json: unknown): ApiError {
-  const parsed = errorBodySchema.safeParse(json);
-  if (parsed.success) {
-    const { code, message, details } = parsed.data.error;
-    return new ApiError(status, code, message, details);
-  }
+  const body = readErrorBody(json);
+  if (body) return new ApiError(status, body.code, body.message, body.details);
   if (status === 413) return new ApiError(status, 'too_large', 'The image is larger than the server accepts. Export it smaller, then add it again.');
   if (status >= 500) return new ApiError(status, `http_${status}`, 'The server ran into a problem with this image. Try again in a moment.');
   return new ApiError(status, `http_${status}`, `The upload failed (HTTP ${status}).`);

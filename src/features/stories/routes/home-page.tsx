@@ -1,7 +1,7 @@
 import { useEffect, useId, useState, type FormEvent } from 'react';
 import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
 import { useSearchParams } from 'react-router-dom';
-import { SITE_FEED_PATH } from '@shared/public/public-story.schema';
+import { SITE_FEED_PATH } from '@shared/public/feed-paths';
 import { authQueries } from '@/features/auth/api/auth-queries';
 import { publicQueries, type StoryFilters } from '@/features/public/api/public-queries';
 import { ShareMeta } from '@/features/public/components/share-meta';

@@ -1,0 +1,2 @@
+/** Header the client sends its CSRF token in on every state-changing request. */
+export const csrfHeaderName = 'x-csrf-token';
