@@ -112,7 +112,7 @@ try {
   await new Promise<void>((r) => server.listen(0, '127.0.0.1', r));
   const base = `http://127.0.0.1:${(server.address() as AddressInfo).port}`;
   const url = `${base}/api/public/stories/${story.id}`;
-  const first = await fetch(url);
+  const first = await fetch(url, { headers: { 'accept-encoding': 'identity' } });
   if (first.status !== 200) throw new Error(`the published story answered ${first.status}: ${await first.text()}`);
   const text = await first.text();
   const etag = first.headers.get('etag');
@@ -137,9 +137,19 @@ try {
   const bareResult = await run(bareUrl);
   const storyResult = await run(url);
   const notModified = await run(url, etag ? { 'if-none-match': etag } : {});
+  // What a browser gets: the page gzipped once per revision and kept (autocannon does not inflate it).
+  const gzipped = await run(url, { 'accept-encoding': 'gzip' });
+  const gzipBytes = await new Promise<number>((resolve, reject) => {
+    http.get(url, { headers: { 'accept-encoding': 'gzip' } }, (res) => {
+      let n = 0;
+      res.on('data', (c: Buffer) => (n += c.length));
+      res.on('end', () => resolve(n));
+    }).on('error', reject);
+  });
   console.log(row('bare Express, same-sized static JSON', bareResult));
   console.log(row('GET /api/public/stories/:id (200)', storyResult));
   console.log(row('same, If-None-Match (304)', notModified));
+  console.log(row(`same, Accept-Encoding: gzip (${gzipBytes} bytes)`, gzipped));
   console.log(`Story route throughput = ${((storyResult.requests.average / bareResult.requests.average) * 100).toFixed(0)} % of the bare route (goal ≥ 50 %); p99 ${storyResult.latency.p99} ms (goal < 50 ms).`);
 
   await new Promise<void>((r) => server.close(() => r()));

@@ -21,7 +21,7 @@ import { clipKeys, playableContentType, playableKey } from '../clips/clips.servi
 import { MediaCommandFailed } from '../clips/media/ffmpeg-run';
 import { extractFrame } from '../clips/media/stills';
 import {
-  cachedPublicStoryJson,
+  cachedPublicStoryBody,
   currentPublicationOf,
   listPublicStories,
   publicBuild,
@@ -54,14 +54,19 @@ export function publicRouter(deps: { storage: Storage }) {
     const publicationId = await currentPublicationOf(Number(req.params.storyId));
     if (publicationId === null) throw notFound('There is no published story with that id.');
     const units = validQuery<{ units?: UnitSystem }>(res).units ?? null;
-    res.set('ETag', storyEtag(publicationId, units));
+    // A 40-claim page is ~150 KB of JSON and ~8 KB gzipped; the gzip is made once per
+    // revision and kept, so compressing costs no request its CPU.
+    const coding = req.acceptsEncodings('gzip') === 'gzip' ? 'gzip' : 'identity';
+    res.vary('Accept-Encoding');
+    res.set('ETag', storyEtag(publicationId, units, coding));
     res.set('Cache-Control', PUBLIC_PAGE_CACHE);
     // Answered before anything is built: the tag names the publication, which never changes.
     if (req.fresh) {
       res.status(304).end();
       return;
     }
-    res.type('application/json').send(await cachedPublicStoryJson(publicationId, units));
+    if (coding === 'gzip') res.set('Content-Encoding', 'gzip');
+    res.type('application/json').send(await cachedPublicStoryBody(publicationId, units, coding));
   });
 
   router.get('/builds/:buildId', access.public, validate({ params: publicBuildParamsSchema }), async (req, res) => {

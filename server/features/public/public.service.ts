@@ -1,3 +1,4 @@
+import zlib from 'node:zlib';
 import { QueryTypes } from 'sequelize';
 import type { UnitSystem } from '@shared/measure/format';
 import type { PublicBuild, PublicBuilderProfile, PublicClearanceFigure, PublicClearanceSummary } from '@shared/public/public-build.schema';
@@ -230,23 +231,32 @@ function publicParts(parts: Part[], withReadings: Set<number>) {
 
 /** Built story pages by publication and units: a published revision never changes. */
 const storyCache = new LruCache<PublicStory>(200);
-// The same pages as JSON text: a published revision never changes, so it is serialised once.
-const storyJsonCache = new LruCache<string>(200);
+// The same pages as JSON text, and gzipped when a reader first asks for that: a published
+// revision never changes, so each is serialised and compressed once.
+const storyBodyCache = new LruCache<{ json: string; gzip?: Buffer }>(200);
 
-/** The ETag of a publication's page in a system of units: it changes only with a new publication. */
-export function storyEtag(publicationId: number, units: UnitSystem | null): string {
-  return `"p${publicationId}-${units ?? 'entered'}"`;
+/** Content codings the story route sends: as is, or gzip (RFC 9110 §8.4.1.3). */
+export type StoryCoding = 'identity' | 'gzip';
+
+/**
+ * The ETag of a publication's page in a system of units and a coding: it changes only with a new
+ * publication. The gzipped body is another representation, so it has its own strong tag.
+ */
+export function storyEtag(publicationId: number, units: UnitSystem | null, coding: StoryCoding = 'identity'): string {
+  return `"p${publicationId}-${units ?? 'entered'}${coding === 'gzip' ? '-gzip' : ''}"`;
 }
 
-/** The page of a publication, from the cache when it has been built before. */
-/** The cached page as JSON text, ready to send. */
-export async function cachedPublicStoryJson(publicationId: number, units: UnitSystem | null): Promise<string> {
+/** The cached page, ready to send: JSON text, or its gzip bytes. */
+export async function cachedPublicStoryBody(publicationId: number, units: UnitSystem | null, coding: StoryCoding = 'identity'): Promise<string | Buffer> {
   const key = `${publicationId}:${units ?? ''}`;
-  const hit = storyJsonCache.get(key);
-  if (hit !== undefined) return hit;
-  const json = JSON.stringify(await cachedPublicStory(publicationId, units));
-  storyJsonCache.set(key, json);
-  return json;
+  let entry = storyBodyCache.get(key);
+  if (entry === undefined) {
+    entry = { json: JSON.stringify(await cachedPublicStory(publicationId, units)) };
+    storyBodyCache.set(key, entry);
+  }
+  if (coding === 'identity') return entry.json;
+  entry.gzip ??= zlib.gzipSync(entry.json);
+  return entry.gzip;
 }
 
 export async function cachedPublicStory(publicationId: number, units: UnitSystem | null): Promise<PublicStory> {

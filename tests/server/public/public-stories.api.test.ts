@@ -1,6 +1,9 @@
 import fs from 'node:fs';
+import http from 'node:http';
+import type { AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
+import zlib from 'node:zlib';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it, vi } from 'vitest';
 import { evaluateCalc } from '@shared/measure/calc';
@@ -236,17 +239,39 @@ describe('the published story page', () => {
 
 describe('caching of a published story', () => {
   it('answers with an ETag naming the publication, and 304 to a matching If-None-Match', async () => {
-    const first = await anonymous.agent.get(`/api/public/stories/${f.published.story.id}`).expect(200);
+    const first = await anonymous.agent.get(`/api/public/stories/${f.published.story.id}`).set('Accept-Encoding', 'identity').expect(200);
     const etag = first.headers.etag!;
     expect(etag).toBe(`"p${first.body.publicationId}-entered"`);
+    expect(first.headers['content-encoding']).toBeUndefined();
     expect(first.headers['cache-control']).toBe('public, max-age=60, stale-while-revalidate=300');
     expect(first.headers['set-cookie']).toBeUndefined();
-    const again = await request(t.app).get(`/api/public/stories/${f.published.story.id}`).set('If-None-Match', etag);
+    const again = await request(t.app).get(`/api/public/stories/${f.published.story.id}`).set('Accept-Encoding', 'identity').set('If-None-Match', etag);
     expect(again.status).toBe(304);
     expect(again.text ?? '').toBe('');
-    const metric = await request(t.app).get(`/api/public/stories/${f.published.story.id}`).query({ units: 'metric' }).set('If-None-Match', etag);
+    const metric = await request(t.app).get(`/api/public/stories/${f.published.story.id}`).set('Accept-Encoding', 'identity').query({ units: 'metric' }).set('If-None-Match', etag);
     expect(metric.status).toBe(200);
     expect(metric.headers.etag).toBe(`"p${first.body.publicationId}-metric"`);
+  });
+
+  it('sends the page gzipped to a reader that accepts gzip, as its own representation (RFC 9110 §8.4, §8.8.3)', async () => {
+    const url = `/api/public/stories/${f.published.story.id}`;
+    const plain = await request(t.app).get(url).set('Accept-Encoding', 'identity').expect(200);
+    // The bytes as sent: plain node:http, which (unlike superagent) does not decompress.
+    const raw = await rawGet(t.app, url, { 'accept-encoding': 'gzip, deflate, br' });
+    expect(raw.status).toBe(200);
+    expect(raw.headers['content-encoding']).toBe('gzip');
+    expect(raw.headers.vary).toMatch(/Accept-Encoding/i);
+    expect(raw.headers.etag).toBe(`"p${plain.body.publicationId}-entered-gzip"`);
+    expect(raw.body.length).toBeLessThan(Buffer.byteLength(plain.text));
+    expect(zlib.gunzipSync(raw.body).toString('utf8')).toBe(plain.text);
+    // Each representation is revalidated by its own tag only.
+    const same = await request(t.app).get(url).set('Accept-Encoding', 'gzip').set('If-None-Match', String(raw.headers.etag));
+    expect(same.status).toBe(304);
+    const other = await request(t.app).get(url).set('Accept-Encoding', 'identity').set('If-None-Match', String(raw.headers.etag));
+    expect(other.status).toBe(200);
+    // A coding the reader refuses is never sent.
+    const refused = await request(t.app).get(url).set('Accept-Encoding', 'gzip;q=0').expect(200);
+    expect(refused.headers['content-encoding']).toBeUndefined();
   });
 
   it('serves a story it has built before with a single query: the lookup of its current publication', async () => {
@@ -346,3 +371,24 @@ describe('the builder profile', () => {
     expect((await anonymous.agent.get('/api/public/builders/demo-follower')).status).toBe(404);
   });
 });
+
+/** One GET through a real socket, returning the body bytes exactly as the server sent them. */
+async function rawGet(app: http.RequestListener, pathname: string, headers: Record<string, string>) {
+  const server = http.createServer(app);
+  await new Promise<void>((r) => server.listen(0, '127.0.0.1', r));
+  try {
+    const { port } = server.address() as AddressInfo;
+    return await new Promise<{ status: number; headers: http.IncomingHttpHeaders; body: Buffer }>((resolve, reject) => {
+      http
+        .get({ host: '127.0.0.1', port, path: pathname, headers }, (res) => {
+          const chunks: Buffer[] = [];
+          res.on('data', (c: Buffer) => chunks.push(c));
+          res.on('end', () => resolve({ status: res.statusCode ?? 0, headers: res.headers, body: Buffer.concat(chunks) }));
+        })
+        .on('error', reject);
+    });
+  } finally {
+    server.closeAllConnections();
+    await new Promise<void>((r) => server.close(() => r()));
+  }
+}
