@@ -102,6 +102,11 @@ describe('a builder keeps an instruments register and a spec library', () => {
       const check = await ZeroCheck.findOne({ where: { instrumentId: stored!.id } });
       expect([check?.standardSize, check?.shown]).toEqual(['1.0000', '1.0002']);
 
+      // The confirmations arrive as toasts (their viewport loads with the first one), in the
+      // notifications region, announced and dismissable.
+      const region = page.getByRole('region', { name: /Notifications/ });
+      await region.getByText('Instrument added').waitFor();
+      await expect(region.getByRole('button', { name: 'Dismiss notification' }).count()).resolves.toBeGreaterThan(0);
       await dismissToasts(page);
       await page.screenshot({ path: shot('instruments-1280'), fullPage: true });
       await page.setViewportSize({ width: 390, height: 844 });
