@@ -25,6 +25,7 @@ import type { Storage } from '../../storage/storage';
 import { buildForOwner, buildForViewer } from '../builds/builds.service';
 import { readingDisplaysForMoments } from '../readings/readings.service';
 import { enqueueClip } from './clip.job';
+import { evidenceStillKey, evidenceStillLimiter } from './evidence-stills';
 import {
   acceptUpload,
   addMoment,
@@ -44,8 +45,6 @@ import {
   reorderClips,
   toClipDto,
 } from './clips.service';
-import { MediaCommandFailed } from './media/ffmpeg-run';
-import { extractFrame } from './media/stills';
 import { chaptersVtt, cuesFromMoments, momentCueText } from './media/vtt';
 
 export interface ClipRouteDeps {
@@ -173,30 +172,10 @@ export function clipsRouter(deps: ClipRouteDeps) {
     await deps.storage.send(res, clipKeys(clip).thumbnails, { contentType: 'image/jpeg' });
   });
 
-  // Each new millisecond asked for makes and stores a still: cap how fast one address can do that.
-  const frameLimiter = limiter({ windowMs: 60_000, limit: 240, message: 'Too many evidence stills asked for from here. Wait a minute and try again.' });
+  const frameLimiter = evidenceStillLimiter();
   router.get('/:clipId/frame', access.signedIn, frameLimiter, validate({ params: clipIdParamsSchema, query: frameQuerySchema }), async (req, res) => {
     const clip = await readyClip(req);
-    const atMs = Math.round(validQuery<{ t: number }>(res).t * 1000);
-    const durationMs = Math.round(clip.probe!.durationS * 1000);
-    if (atMs > durationMs) {
-      throw badRequest(`The clip is ${(durationMs / 1000).toFixed(3)} s long; ask for a time inside it.`, [{ path: 't', message: 'after the end of the clip' }]);
-    }
-    const key = clipKeys(clip).frame(atMs);
-    if (!(await deps.storage.stat(key))) {
-      // Made once per clip and millisecond, from the file browsers play (so it matches the player).
-      const source = await deps.storage.localCopy(playableKey(clip));
-      const out = path.join(deps.storage.scratchDir(), `frame-${crypto.randomUUID()}.jpg`);
-      try {
-        await extractFrame(source.path, atMs / 1000, out).catch((err: unknown) => {
-          throw err instanceof MediaCommandFailed ? new AppError(422, 'no_frame', err.message) : err;
-        });
-        await deps.storage.putFile(key, out, { contentType: 'image/jpeg' });
-      } finally {
-        await source.release();
-        await fsp.rm(out, { force: true });
-      }
-    }
+    const key = await evidenceStillKey(deps.storage, clip, Math.round(validQuery<{ t: number }>(res).t * 1000));
     res.set('Cache-Control', privateCache(86_400));
     await deps.storage.send(res, key, { contentType: 'image/jpeg' });
   });

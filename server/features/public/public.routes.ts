@@ -1,6 +1,3 @@
-import crypto from 'node:crypto';
-import fsp from 'node:fs/promises';
-import path from 'node:path';
 import { Router } from 'express';
 import { frameQuerySchema } from '@shared/clips/clip.schema';
 import type { UnitSystem } from '@shared/measure/format';
@@ -13,13 +10,11 @@ import {
   type PublicStoryListQuery,
 } from '@shared/public/public-story.schema';
 import { access } from '../../http/authorize';
-import { AppError, badRequest, notFound } from '../../http/errors';
-import { limiter } from '../../http/rate-limit';
+import { notFound } from '../../http/errors';
 import { validQuery, validate } from '../../http/validate';
 import type { Storage } from '../../storage/storage';
 import { clipKeys, playableContentType, playableKey } from '../clips/clips.service';
-import { MediaCommandFailed } from '../clips/media/ffmpeg-run';
-import { extractFrame } from '../clips/media/stills';
+import { evidenceStillKey, evidenceStillLimiter } from '../clips/evidence-stills';
 import {
   cachedPublicStoryBody,
   currentPublicationOf,
@@ -99,33 +94,13 @@ export function publicRouter(deps: { storage: Storage }) {
     await deps.storage.send(res, clipKeys(clip).poster, { contentType: 'image/jpeg' });
   });
 
-  // Each new millisecond makes and stores a still: cap how fast one address can ask.
-  const frameLimiter = limiter({ windowMs: 60_000, limit: 240, message: 'Too many evidence stills asked for from here. Wait a minute and try again.' });
+  const frameLimiter = evidenceStillLimiter();
   router.get('/clips/:clipId/frame', access.public, frameLimiter, validate({ params: publicClipParamsSchema, query: frameQuerySchema }), async (req, res) => {
     const scope = await publicClipScope(clipId(req));
-    const { clip } = scope;
     const atMs = Math.round(validQuery<{ t: number }>(res).t * 1000);
     // A clip that is only a cover shows only the cover still.
     if (!scope.full && !scope.coverTimesMs.has(atMs)) throw notFound('There is no public still at that time.');
-    const durationMs = Math.round((clip.probe?.durationS ?? 0) * 1000);
-    if (atMs > durationMs) {
-      throw badRequest(`The clip is ${(durationMs / 1000).toFixed(3)} s long; ask for a time inside it.`, [{ path: 't', message: 'after the end of the clip' }]);
-    }
-    const key = clipKeys(clip).frame(atMs);
-    if (!(await deps.storage.stat(key))) {
-      // The same still, from the same file, as the builder's and the moderator's view.
-      const source = await deps.storage.localCopy(playableKey(clip));
-      const out = path.join(deps.storage.scratchDir(), `frame-${crypto.randomUUID()}.jpg`);
-      try {
-        await extractFrame(source.path, atMs / 1000, out).catch((err: unknown) => {
-          throw err instanceof MediaCommandFailed ? new AppError(422, 'no_frame', err.message) : err;
-        });
-        await deps.storage.putFile(key, out, { contentType: 'image/jpeg' });
-      } finally {
-        await source.release();
-        await fsp.rm(out, { force: true });
-      }
-    }
+    const key = await evidenceStillKey(deps.storage, scope.clip, atMs);
     res.set('Cache-Control', 'public, max-age=300');
     await deps.storage.send(res, key, { contentType: 'image/jpeg' });
   });
