@@ -19,6 +19,7 @@ import type { Storage } from '../../storage/storage';
 import { MediaCommandFailed, runFfmpeg, runFfprobe } from '../clips/media/ffmpeg-run';
 import { describeNonVideo, readHead } from '../clips/media/sniff';
 import type { User } from '../users/user.model';
+import { MalformedImageError, stripImageMetadata } from './image-metadata';
 import { imagePrefix, storyForOwner, storyForViewer } from './stories.service';
 import { Story, StoryImage } from './story.model';
 
@@ -126,10 +127,33 @@ interface IncomingFile {
 }
 
 /**
- * Checks an uploaded image by its bytes and files it under a generated key. The scratch file is
- * deleted whatever happens (moved into storage on success), so a refusal leaves nothing behind.
+ * Writes a copy of `file` without its metadata (GPS, camera serials, XMP, IPTC, comments) next to
+ * it and checks that the copy still decodes to a picture of the same size. The pixels are not
+ * re-encoded; see image-metadata.ts.
+ */
+async function writeStrippedCopy(file: string, type: ImageType, out: string, size: { width: number; height: number }): Promise<number> {
+  let stripped: Buffer;
+  try {
+    stripped = stripImageMetadata(await fsp.readFile(file), type);
+  } catch (err) {
+    if (err instanceof MalformedImageError) throw damaged(err.message);
+    throw err;
+  }
+  await fsp.writeFile(out, stripped, { flag: 'wx' });
+  const again = await probeImage(out, type);
+  if (again.width !== size.width || again.height !== size.height) {
+    throw damaged('it reads differently once its metadata is removed');
+  }
+  return stripped.length;
+}
+
+/**
+ * Checks an uploaded image by its bytes, removes its metadata and files it under a generated
+ * key. The scratch files are deleted whatever happens (the stripped copy is moved into storage on
+ * success), so a refusal leaves nothing behind.
  */
 export async function acceptStoryImage(storage: Storage, story: Story, user: User, file: IncomingFile, altInput: unknown): Promise<StoryImageDto> {
+  const strippedPath = path.join(path.dirname(file.path), `${crypto.randomUUID()}.stripped`);
   try {
     if (altInput !== undefined && typeof altInput !== 'string') {
       throw badRequest('Send the alt text as plain text.', [{ path: storyImageAltField, message: 'must be text' }]);
@@ -147,6 +171,7 @@ export async function acceptStoryImage(storage: Storage, story: Story, user: Use
       ]);
     }
     const { width, height } = await probeImage(file.path, type);
+    const sizeBytes = await writeStrippedCopy(file.path, type, strippedPath, { width, height });
     const key = `stories/${crypto.randomUUID()}/image.${imageFormats[type].ext}`;
     const image = await Story.sequelize!.transaction(async (transaction) => {
       // The story row is the lock: parallel uploads count one at a time.
@@ -160,7 +185,7 @@ export async function acceptStoryImage(storage: Storage, story: Story, user: Use
           storyId: story.id,
           storageKey: key,
           contentType: type,
-          sizeBytes: file.size,
+          sizeBytes,
           width,
           height,
           // Kept for the builder's own reference only; never part of a key or a path.
@@ -172,7 +197,7 @@ export async function acceptStoryImage(storage: Storage, story: Story, user: Use
       );
     });
     try {
-      await storage.putFile(key, file.path, { contentType: type, readOnly: true });
+      await storage.putFile(key, strippedPath, { contentType: type, readOnly: true });
     } catch (err) {
       await image.destroy();
       await storage.deletePrefix(imagePrefix(key));
@@ -181,6 +206,7 @@ export async function acceptStoryImage(storage: Storage, story: Story, user: Use
     return toDto(image);
   } finally {
     await fsp.rm(file.path, { force: true });
+    await fsp.rm(strippedPath, { force: true });
   }
 }
 

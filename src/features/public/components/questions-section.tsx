@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { useState, type FormEvent, type ReactNode } from 'react';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useInfiniteQuery } from '@tanstack/react-query';
@@ -196,24 +196,11 @@ function AnswerForm({ question, builderName, onDone }: { question: Question; bui
     }
   });
   return (
-    <form noValidate onSubmit={submit} className="mt-3 flex flex-col gap-2">
+    <InlineForm onSubmit={submit} serverError={errors.root?.server?.message} submitLabel="Post the answer" pendingLabel="Saving…" pending={answer.isPending} variant="primary" onCancel={onDone}>
       <Field label={`Answer as ${builderName}`} error={errors.body?.message}>
         <Textarea {...form.register('body')} rows={3} />
       </Field>
-      {errors.root?.server && (
-        <p role="alert" className="text-sm text-danger">
-          {errors.root.server.message}
-        </p>
-      )}
-      <div className="flex gap-2">
-        <Button type="submit" size="sm" variant="primary" loading={answer.isPending} loadingText="Saving…">
-          Post the answer
-        </Button>
-        <Button size="sm" variant="quiet" onClick={onDone}>
-          Cancel
-        </Button>
-      </div>
-    </form>
+    </InlineForm>
   );
 }
 
@@ -237,20 +224,40 @@ function HideForm({ question, onDone }: { question: Question; onDone: () => void
     }
   });
   return (
-    <form noValidate onSubmit={submit} className="mt-3 flex flex-col gap-2">
+    <InlineForm onSubmit={submit} serverError={errors.root?.server?.message} submitLabel="Hide the question" pendingLabel="Hiding…" pending={hide.isPending} variant="danger" onCancel={onDone}>
       <Field label="Why hide it" hint="Shown to the builder and moderators, not to readers." error={errors.reason?.message}>
         <Input {...form.register('reason')} />
       </Field>
-      {errors.root?.server && (
+    </InlineForm>
+  );
+}
+
+interface InlineFormProps {
+  onSubmit: (event?: FormEvent) => void;
+  serverError: string | undefined;
+  submitLabel: string;
+  pendingLabel: string;
+  pending: boolean;
+  variant: 'primary' | 'danger';
+  onCancel: () => void;
+  children: ReactNode;
+}
+
+/** The frame of the answer and hide forms under a question: its field, the server's refusal, submit and cancel. */
+function InlineForm({ onSubmit, serverError, submitLabel, pendingLabel, pending, variant, onCancel, children }: InlineFormProps) {
+  return (
+    <form noValidate onSubmit={onSubmit} className="mt-3 flex flex-col gap-2">
+      {children}
+      {serverError && (
         <p role="alert" className="text-sm text-danger">
-          {errors.root.server.message}
+          {serverError}
         </p>
       )}
       <div className="flex gap-2">
-        <Button type="submit" size="sm" variant="danger" loading={hide.isPending} loadingText="Hiding…">
-          Hide the question
+        <Button type="submit" size="sm" variant={variant} loading={pending} loadingText={pendingLabel}>
+          {submitLabel}
         </Button>
-        <Button size="sm" variant="quiet" onClick={onDone}>
+        <Button size="sm" variant="quiet" onClick={onCancel}>
           Cancel
         </Button>
       </div>
