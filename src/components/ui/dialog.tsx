@@ -84,3 +84,52 @@ export function ConfirmDialog({
     </Dialog>
   );
 }
+
+/** Something named that a list can delete. */
+export interface Deletable {
+  id: number;
+  name: string;
+}
+
+export interface DeleteDialogProps<T extends Deletable> {
+  /** The item asked about; null closes the dialog. */
+  target: T | null;
+  onClose: () => void;
+  /** What it is, for the title and the button: "reading", "clearance". */
+  what: string;
+  description: ReactNode;
+  pending: boolean;
+  /** Deletes by id, with the mutation's callbacks (`mutation.mutate`). */
+  remove: (id: number, callbacks: { onSuccess: () => void; onError: (error: unknown) => void }) => void;
+  onDeleted: (target: T) => void;
+  /** The server refused; the dialog has closed and the list shows why beside the item. */
+  onRefused: (target: T, error: unknown) => void;
+}
+
+/** "Delete the reading “x”?": asks, deletes, and closes whether it worked or was refused. */
+export function DeleteDialog<T extends Deletable>({ target, onClose, what, description, pending, remove, onDeleted, onRefused }: DeleteDialogProps<T>) {
+  return (
+    <ConfirmDialog
+      open={target !== null}
+      onOpenChange={(open) => !open && onClose()}
+      title={`Delete the ${what} “${target?.name ?? ''}”?`}
+      description={description}
+      confirmLabel={`Delete ${what}`}
+      confirmVariant="danger"
+      pending={pending}
+      onConfirm={() => {
+        if (!target) return;
+        remove(target.id, {
+          onSuccess: () => {
+            onClose();
+            onDeleted(target);
+          },
+          onError: (error) => {
+            onClose();
+            onRefused(target, error);
+          },
+        });
+      }}
+    />
+  );
+}

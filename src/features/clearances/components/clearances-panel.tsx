@@ -4,7 +4,7 @@ import type { Build } from '@shared/builds/build.schema';
 import type { Clearance } from '@shared/clearances/clearance.schema';
 import type { Reading } from '@shared/readings/reading.schema';
 import { Button } from '@/components/ui/button';
-import { ConfirmDialog } from '@/components/ui/dialog';
+import { DeleteDialog } from '@/components/ui/dialog';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { LoadMore } from '@/components/ui/load-more';
 import { Panel } from '@/components/ui/panel';
@@ -104,29 +104,18 @@ export function ClearancesPanel({ build }: { build: Build }) {
           </>
         )}
       </div>
-      <ConfirmDialog
-        open={deleting !== null}
-        onOpenChange={(open) => !open && setDeleting(null)}
-        title={`Delete the clearance “${deleting?.name ?? ''}”?`}
+      <DeleteDialog
+        target={deleting}
+        onClose={() => setDeleting(null)}
+        what="clearance"
         description="Only the clearance goes; its readings stay. A clearance a story cites cannot be deleted."
-        confirmLabel="Delete clearance"
-        confirmVariant="danger"
         pending={remove.isPending}
-        onConfirm={() => {
-          const target = deleting;
-          if (!target) return;
-          remove.mutate(target.id, {
-            onSuccess: () => {
-              setDeleting(null);
-              setRefusal(null);
-              toast({ tone: 'success', title: 'Clearance deleted', description: `“${target.name}” is gone; its readings stay.` });
-            },
-            onError: (e) => {
-              setDeleting(null);
-              setRefusal({ id: target.id, text: `“${target.name}” was not deleted: ${errorMessage(e)}` });
-            },
-          });
+        remove={(id, callbacks) => remove.mutate(id, callbacks)}
+        onDeleted={(target) => {
+          setRefusal(null);
+          toast({ tone: 'success', title: 'Clearance deleted', description: `“${target.name}” is gone; its readings stay.` });
         }}
+        onRefused={(target, e) => setRefusal({ id: target.id, text: `“${target.name}” was not deleted: ${errorMessage(e)}` })}
       />
     </Panel>
   );

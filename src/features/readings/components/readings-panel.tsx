@@ -15,7 +15,7 @@ import type { Build } from '@shared/builds/build.schema';
 import { formatUncertainty } from '@shared/measure/format';
 import { reviewStates, type Reading, type ReviewState } from '@shared/readings/reading.schema';
 import { Button } from '@/components/ui/button';
-import { ConfirmDialog } from '@/components/ui/dialog';
+import { DeleteDialog } from '@/components/ui/dialog';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { Field, Select } from '@/components/ui/field';
 import { LoadMore } from '@/components/ui/load-more';
@@ -426,29 +426,18 @@ function ReadingsTable({ build, items, onOpen }: { build: Build; items: Reading[
       )}
 
       <ReadingHistoryDialog reading={historyOf} onClose={() => setHistoryOf(null)} />
-      <ConfirmDialog
-        open={deleting !== null}
-        onOpenChange={(open) => !open && setDeleting(null)}
-        title={`Delete the reading “${deleting?.name ?? ''}”?`}
+      <DeleteDialog
+        target={deleting}
+        onClose={() => setDeleting(null)}
+        what="reading"
         description="The reading and its history go; the moment and its evidence still stay in the clip. A reading a clearance uses or a story cites cannot be deleted."
-        confirmLabel="Delete reading"
-        confirmVariant="danger"
         pending={remove.isPending}
-        onConfirm={() => {
-          const target = deleting;
-          if (!target) return;
-          remove.mutate(target.id, {
-            onSuccess: () => {
-              setDeleting(null);
-              setRefusal(null);
-              toast({ tone: 'success', title: 'Reading deleted', description: `“${target.name}” is gone.` });
-            },
-            onError: (e) => {
-              setDeleting(null);
-              setRefusal({ id: target.id, text: `“${target.name}” was not deleted: ${errorMessage(e)}` });
-            },
-          });
+        remove={(id, callbacks) => remove.mutate(id, callbacks)}
+        onDeleted={(target) => {
+          setRefusal(null);
+          toast({ tone: 'success', title: 'Reading deleted', description: `“${target.name}” is gone.` });
         }}
+        onRefused={(target, e) => setRefusal({ id: target.id, text: `“${target.name}” was not deleted: ${errorMessage(e)}` })}
       />
     </>
   );
