@@ -7,20 +7,14 @@
 // (a common word and a rare one); asserts nothing.
 // Uses its own throwaway cluster (.data/postgres-scale), never the demo or test data.
 import crypto from 'node:crypto';
-import fs from 'node:fs';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import os from 'node:os';
-import path from 'node:path';
 import autocannon from 'autocannon';
 import { QueryTypes } from 'sequelize';
 import { clearanceInputSchema } from '../shared/clearances/clearance.schema';
 import { readingInputSchema } from '../shared/readings/reading.schema';
 import { createApp } from '../server/app';
-import { loadConfig } from '../server/config';
-import { createSequelize } from '../server/db/sequelize';
-import { initModels } from '../server/db/models';
-import { createLogger } from '../server/logger';
 import { Build } from '../server/features/builds/build.model';
 import { createClearance } from '../server/features/clearances/clearances.service';
 import { Clip, Moment } from '../server/features/clips/clip.model';
@@ -33,7 +27,7 @@ import { Story } from '../server/features/stories/story.model';
 import { createStory } from '../server/features/stories/stories.service';
 import { User } from '../server/features/users/user.model';
 import { localStorage } from '../server/storage/local-storage';
-import { prepareDatabase, repoRoot } from './lib/bootstrap';
+import { benchEnvironment } from './lib/bench-env';
 
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 5);
 const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 10);
@@ -45,19 +39,7 @@ const READINGS_PER_STORY = 4;
 const BASE = 1_000_000;
 const EXTRA_READING_BASE = 5_000_000;
 
-const db = await prepareDatabase({
-  dataDir: path.join(repoRoot, '.data/postgres-scale'),
-  port: Number(process.env.BENCH_PG_PORT ?? 54361),
-  database: 'benchproof_scale',
-  seed: true,
-  fresh: true,
-  throwaway: true,
-});
-const mediaDir = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-scale-media-'));
-const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: db.databaseUrl, MEDIA_DIR: mediaDir, LOG_LEVEL: 'silent', SESSION_SECRET: crypto.randomBytes(24).toString('hex') });
-const sequelize = createSequelize(config.databaseUrl);
-initModels(sequelize);
-const logger = createLogger(config);
+const { config, sequelize, logger, mediaDir, close } = await benchEnvironment('postgres-scale', 54361);
 const q = <T extends object>(text: string, replacements: Record<string, unknown> = {}) => sequelize.query<T>(text, { type: QueryTypes.SELECT, replacements });
 
 /**
@@ -428,7 +410,5 @@ try {
   await new Promise<void>((r) => server.close(() => r()));
   await built.close();
 } finally {
-  await sequelize.close();
-  db.postgres?.stop();
-  fs.rmSync(mediaDir, { recursive: true, force: true });
+  await close();
 }

@@ -3,20 +3,14 @@
 // of the same size, on this machine (autocannon, one run each). Prints figures, asserts nothing.
 // Uses its own throwaway cluster (.data/postgres-bench), never the demo or test data.
 import crypto from 'node:crypto';
-import fs from 'node:fs';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import os from 'node:os';
-import path from 'node:path';
 import autocannon from 'autocannon';
 import express from 'express';
 import { clearanceInputSchema } from '../shared/clearances/clearance.schema';
 import { readingInputSchema } from '../shared/readings/reading.schema';
 import { createApp } from '../server/app';
-import { loadConfig } from '../server/config';
-import { createSequelize } from '../server/db/sequelize';
-import { initModels } from '../server/db/models';
-import { createLogger } from '../server/logger';
 import { Build } from '../server/features/builds/build.model';
 import { createClearance } from '../server/features/clearances/clearances.service';
 import { Clip, Moment } from '../server/features/clips/clip.model';
@@ -28,24 +22,12 @@ import { Story } from '../server/features/stories/story.model';
 import { createStory } from '../server/features/stories/stories.service';
 import { User } from '../server/features/users/user.model';
 import { localStorage } from '../server/storage/local-storage';
-import { prepareDatabase, repoRoot } from './lib/bootstrap';
+import { benchEnvironment } from './lib/bench-env';
 
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 10);
 const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 10);
 
-const db = await prepareDatabase({
-  dataDir: path.join(repoRoot, '.data/postgres-bench'),
-  port: Number(process.env.BENCH_PG_PORT ?? 54360),
-  database: 'benchproof_bench',
-  seed: true,
-  fresh: true,
-  throwaway: true,
-});
-const mediaDir = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-bench-media-'));
-const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: db.databaseUrl, MEDIA_DIR: mediaDir, LOG_LEVEL: 'silent', SESSION_SECRET: crypto.randomBytes(24).toString('hex') });
-const sequelize = createSequelize(config.databaseUrl);
-initModels(sequelize);
-const logger = createLogger(config);
+const { config, sequelize, logger, mediaDir, close } = await benchEnvironment('postgres-bench', 54360);
 
 try {
   // A published story with 40 claims: 20 readings cited directly and 20 clearances, over 6 clips (invented figures).
@@ -156,7 +138,5 @@ try {
   await new Promise<void>((r) => bareServer.close(() => r()));
   await built.close();
 } finally {
-  await sequelize.close();
-  db.postgres?.stop();
-  fs.rmSync(mediaDir, { recursive: true, force: true });
+  await close();
 }
