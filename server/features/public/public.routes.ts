@@ -17,7 +17,7 @@ import { clipKeys, playableContentType, playableKey } from '../clips/clips.servi
 import { evidenceStillKey, evidenceStillLimiter } from '../clips/evidence-stills';
 import {
   cachedPublicStoryBody,
-  currentPublicationOf,
+  currentPublicPage,
   listPublicStories,
   publicBuild,
   publicBuilderProfile,
@@ -46,22 +46,22 @@ export function publicRouter(deps: { storage: Storage }) {
   });
 
   router.get('/stories/:storyId', access.public, validate({ params: publicStoryParamsSchema, query: publicStoryQuerySchema }), async (req, res) => {
-    const publicationId = await currentPublicationOf(Number(req.params.storyId));
-    if (publicationId === null) throw notFound('There is no published story with that id.');
+    const page = await currentPublicPage(Number(req.params.storyId));
+    if (page === null) throw notFound('There is no published story with that id.');
     const units = validQuery<{ units?: UnitSystem }>(res).units ?? null;
     // A 40-claim page is ~150 KB of JSON and ~8 KB gzipped; the gzip is made once per
     // revision and kept, so compressing costs no request its CPU.
     const coding = req.acceptsEncodings('gzip') === 'gzip' ? 'gzip' : 'identity';
     res.vary('Accept-Encoding');
-    res.set('ETag', storyEtag(publicationId, units, coding));
+    res.set('ETag', storyEtag(page, units, coding));
     res.set('Cache-Control', PUBLIC_PAGE_CACHE);
-    // Answered before anything is built: the tag names the publication, which never changes.
+    // Answered before anything is built: the tag names the publication and the page's version.
     if (req.fresh) {
       res.status(304).end();
       return;
     }
     if (coding === 'gzip') res.set('Content-Encoding', 'gzip');
-    res.type('application/json').send(await cachedPublicStoryBody(publicationId, units, coding));
+    res.type('application/json').send(await cachedPublicStoryBody(page, units, coding));
   });
 
   router.get('/builds/:buildId', access.public, validate({ params: publicBuildParamsSchema }), async (req, res) => {

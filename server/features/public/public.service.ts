@@ -154,6 +154,33 @@ export async function currentPublicationOf(storyId: number): Promise<number | nu
   return row?.id ?? null;
 }
 
+/**
+ * A public page: the publication it shows, and the version of what it shows besides the
+ * publication's own figures (the build's title and parts, the builder's and the publisher's
+ * names), so a rename reaches readers without a new publication.
+ */
+export interface PublicPageRef {
+  publicationId: number;
+  /** Milliseconds of the latest change to the build, its builder or the publisher. */
+  contextMs: number;
+}
+
+/** The page a story shows now, or null when it is not public. One query, as the cached route needs. */
+export async function currentPublicPage(storyId: number): Promise<PublicPageRef | null> {
+  const [row] = await sql().query<{ id: number; context_ms: string }>(
+    `SELECT s.published_publication_id AS id,
+            FLOOR(EXTRACT(EPOCH FROM GREATEST(b.updated_at, u.updated_at, pu.updated_at)) * 1000)::bigint AS context_ms
+       FROM stories s
+       JOIN story_publications p ON p.id = s.published_publication_id
+       JOIN builds b ON b.id = s.build_id
+       JOIN users u ON u.id = b.owner_id
+       LEFT JOIN users pu ON pu.id = p.published_by
+      WHERE s.id = :storyId AND ${PUBLIC_STORY_SQL}`,
+    { type: QueryTypes.SELECT, replacements: { storyId } },
+  );
+  return row ? { publicationId: row.id, contextMs: Number(row.context_ms) } : null;
+}
+
 /** The claims of a publication with their evidence, rendered from its own figures. */
 export function claimsWithEvidence(body: string, e: PublishedEvidence, units: UnitSystem | null): { html: string; claims: PublicClaim[] } {
   const rendered = renderStory(body, { targets: claimTargetsFrom(e.readings, e.clearances) });
@@ -229,7 +256,7 @@ function publicParts(parts: Part[], withReadings: Set<number>) {
     }));
 }
 
-/** Built story pages by publication and units: a published revision never changes. */
+/** Built story pages by page (publication and context version) and units. */
 const storyCache = new LruCache<PublicStory>(200);
 // The same pages as JSON text, and gzipped when a reader first asks for that: a published
 // revision never changes, so each is serialised and compressed once.
@@ -239,19 +266,22 @@ const storyBodyCache = new LruCache<{ json: string; gzip?: Buffer }>(200);
 export type StoryCoding = 'identity' | 'gzip';
 
 /**
- * The ETag of a publication's page in a system of units and a coding: it changes only with a new
- * publication. The gzipped body is another representation, so it has its own strong tag.
+ * The ETag of a public page in a system of units and a coding: it changes with a new publication
+ * or a change to the build, the builder or the publisher, never otherwise. The gzipped body is
+ * another representation, so it has its own strong tag.
  */
-export function storyEtag(publicationId: number, units: UnitSystem | null, coding: StoryCoding = 'identity'): string {
-  return `"p${publicationId}-${units ?? 'entered'}${coding === 'gzip' ? '-gzip' : ''}"`;
+export function storyEtag(page: PublicPageRef, units: UnitSystem | null, coding: StoryCoding = 'identity'): string {
+  return `"p${page.publicationId}.${page.contextMs.toString(36)}-${units ?? 'entered'}${coding === 'gzip' ? '-gzip' : ''}"`;
 }
 
+const pageKey = (page: PublicPageRef, units: UnitSystem | null) => `${page.publicationId}:${page.contextMs}:${units ?? ''}`;
+
 /** The cached page, ready to send: JSON text, or its gzip bytes. */
-export async function cachedPublicStoryBody(publicationId: number, units: UnitSystem | null, coding: StoryCoding = 'identity'): Promise<string | Buffer> {
-  const key = `${publicationId}:${units ?? ''}`;
+export async function cachedPublicStoryBody(page: PublicPageRef, units: UnitSystem | null, coding: StoryCoding = 'identity'): Promise<string | Buffer> {
+  const key = pageKey(page, units);
   let entry = storyBodyCache.get(key);
   if (entry === undefined) {
-    entry = { json: JSON.stringify(await cachedPublicStory(publicationId, units)) };
+    entry = { json: JSON.stringify(await cachedPublicStory(page, units)) };
     storyBodyCache.set(key, entry);
   }
   if (coding === 'identity') return entry.json;
@@ -259,11 +289,11 @@ export async function cachedPublicStoryBody(publicationId: number, units: UnitSy
   return entry.gzip;
 }
 
-export async function cachedPublicStory(publicationId: number, units: UnitSystem | null): Promise<PublicStory> {
-  const key = `${publicationId}:${units ?? ''}`;
+export async function cachedPublicStory(page: PublicPageRef, units: UnitSystem | null): Promise<PublicStory> {
+  const key = pageKey(page, units);
   const hit = storyCache.get(key);
   if (hit) return hit;
-  const built = await buildPublicStory(publicationId, units);
+  const built = await buildPublicStory(page.publicationId, units);
   storyCache.set(key, built);
   return built;
 }

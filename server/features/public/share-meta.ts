@@ -1,4 +1,4 @@
-import { cachedPublicStory, currentPublicationOf } from './public.service';
+import { cachedPublicStory, currentPublicPage } from './public.service';
 
 function attr(text: string): string {
   return text.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c]!);
@@ -10,9 +10,9 @@ function attr(text: string): string {
  * Null when the story is not public.
  */
 export async function storyShareTags(storyId: number, publicUrl: string): Promise<string | null> {
-  const publicationId = await currentPublicationOf(storyId);
-  if (publicationId === null) return null;
-  const story = await cachedPublicStory(publicationId, null);
+  const page = await currentPublicPage(storyId);
+  if (page === null) return null;
+  const story = await cachedPublicStory(page, null);
   const url = `${publicUrl}/stories/${storyId}`;
   const description = story.summary || `A build diary entry by ${story.builder.displayName}, every claim linked to its reading and clip.`;
   const tags = [
