@@ -15,19 +15,15 @@ import { QueryTypes } from 'sequelize';
 import { clearanceInputSchema } from '../shared/clearances/clearance.schema';
 import { readingInputSchema } from '../shared/readings/reading.schema';
 import { createApp } from '../server/app';
-import { Build } from '../server/features/builds/build.model';
 import { createClearance } from '../server/features/clearances/clearances.service';
-import { Clip, Moment } from '../server/features/clips/clip.model';
-import { Instrument } from '../server/features/instruments/instrument.model';
+import { Moment } from '../server/features/clips/clip.model';
 import type { PublishedEvidence } from '../server/features/public/publication';
 import { createReading, readingDtosForBuild } from '../server/features/readings/readings.service';
 import { claimStory, evidenceOf, recordCheck, transition } from '../server/features/review/review.service';
-import { Spec, SpecVersion } from '../server/features/specs/spec.model';
 import { Story } from '../server/features/stories/story.model';
 import { createStory } from '../server/features/stories/stories.service';
-import { User } from '../server/features/users/user.model';
 import { localStorage } from '../server/storage/local-storage';
-import { benchEnvironment } from './lib/bench-env';
+import { benchEnvironment, benchFixtures, readyClip } from './lib/bench-env';
 
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 5);
 const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 10);
@@ -70,24 +66,8 @@ try {
   // ---------------------------------------------------------------------------------------------
   // The template: one story made and published the way a builder and a moderator would (invented
   // figures). Four readings, two clearances: c1 within the spec, c2 outside it.
-  const owner = (await User.findOne({ where: { login: 'demo-builder' } }))!;
-  const moderator = (await User.findOne({ where: { login: 'demo-moderator' } }))!;
-  const build = await Build.create({ ownerId: owner.id, title: 'Scale template build (invented)', subject: 'the story every generated one copies' });
-  const clip = await Clip.create({
-    buildId: build.id,
-    title: 'Scale template clip',
-    position: 0,
-    status: 'ready',
-    originalName: 'scale-template.mp4',
-    sizeBytes: 1_000_000,
-    container: 'mp4',
-    storagePrefix: crypto.randomUUID(),
-    probe: { container: 'mp4', videoCodec: 'h264', audioCodec: null, durationS: 60, width: 1280, height: 720, frameRate: 30, rotation: 0 },
-    webCopy: 'original',
-  });
-  const mic = (await Instrument.findOne({ where: { ownerId: owner.id, serial: 'MV-OM-01' } }))!;
-  const spec = (await Spec.findOne({ where: { name: 'Vellum 1100 crank end float' } }))!;
-  const version = (await SpecVersion.findOne({ where: { specId: spec.id } }))!;
+  const { owner, moderator, build, mic, version } = await benchFixtures({ title: 'Scale template build (invented)', subject: 'the story every generated one copies' });
+  const clip = await readyClip(build.id, 'Scale template clip', 0, 'scale-template.mp4');
   const values = ['0.5000', '0.5040', '0.5000', '0.5120'];
   const moments: Moment[] = [];
   for (let k = 0; k < READINGS_PER_STORY; k += 1) {

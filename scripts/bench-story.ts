@@ -2,7 +2,6 @@
 // story with 40 claims over 6 clips, beside a bare Express route answering a static JSON body
 // of the same size, on this machine (autocannon, one run each). Prints figures, asserts nothing.
 // Uses its own throwaway cluster (.data/postgres-bench), never the demo or test data.
-import crypto from 'node:crypto';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import os from 'node:os';
@@ -11,18 +10,14 @@ import express from 'express';
 import { clearanceInputSchema } from '../shared/clearances/clearance.schema';
 import { readingInputSchema } from '../shared/readings/reading.schema';
 import { createApp } from '../server/app';
-import { Build } from '../server/features/builds/build.model';
 import { createClearance } from '../server/features/clearances/clearances.service';
-import { Clip, Moment } from '../server/features/clips/clip.model';
-import { Instrument } from '../server/features/instruments/instrument.model';
+import { Moment } from '../server/features/clips/clip.model';
 import { createReading } from '../server/features/readings/readings.service';
 import { claimStory, evidenceOf, recordCheck, transition } from '../server/features/review/review.service';
-import { Spec, SpecVersion } from '../server/features/specs/spec.model';
 import { Story } from '../server/features/stories/story.model';
 import { createStory } from '../server/features/stories/stories.service';
-import { User } from '../server/features/users/user.model';
 import { localStorage } from '../server/storage/local-storage';
-import { benchEnvironment } from './lib/bench-env';
+import { benchEnvironment, benchFixtures, readyClip } from './lib/bench-env';
 
 const SECONDS = Number(process.env.BENCH_SECONDS ?? 10);
 const CONNECTIONS = Number(process.env.BENCH_CONNECTIONS ?? 10);
@@ -31,28 +26,8 @@ const { config, sequelize, logger, mediaDir, close } = await benchEnvironment('p
 
 try {
   // A published story with 40 claims: 20 readings cited directly and 20 clearances, over 6 clips (invented figures).
-  const owner = (await User.findOne({ where: { login: 'demo-builder' } }))!;
-  const moderator = (await User.findOne({ where: { login: 'demo-moderator' } }))!;
-  const build = await Build.create({ ownerId: owner.id, title: 'Benchmark build (invented)', subject: 'forty claims over six clips' });
-  const clips = await Promise.all(
-    Array.from({ length: 6 }, (_, i) =>
-      Clip.create({
-        buildId: build.id,
-        title: `Benchmark clip ${i + 1}`,
-        position: i,
-        status: 'ready',
-        originalName: `bench-${i + 1}.mp4`,
-        sizeBytes: 1_000_000,
-        container: 'mp4',
-        storagePrefix: crypto.randomUUID(),
-        probe: { container: 'mp4', videoCodec: 'h264', audioCodec: null, durationS: 60, width: 1280, height: 720, frameRate: 30, rotation: 0 },
-        webCopy: 'original',
-      }),
-    ),
-  );
-  const mic = (await Instrument.findOne({ where: { ownerId: owner.id, serial: 'MV-OM-01' } }))!;
-  const spec = (await Spec.findOne({ where: { name: 'Vellum 1100 crank end float' } }))!;
-  const version = (await SpecVersion.findOne({ where: { specId: spec.id } }))!;
+  const { owner, moderator, build, mic, version } = await benchFixtures({ title: 'Benchmark build (invented)', subject: 'forty claims over six clips' });
+  const clips = await Promise.all(Array.from({ length: 6 }, (_, i) => readyClip(build.id, `Benchmark clip ${i + 1}`, i, `bench-${i + 1}.mp4`)));
   const claims: string[] = [];
   for (let i = 0; i < 40; i += 1) {
     const moment = await Moment.create({ clipId: clips[i % 6]!.id, atMs: 1000 + i * 1000, label: `station ${i + 1}`, createdBy: owner.id });

@@ -6,6 +6,11 @@ import type { Sequelize } from 'sequelize';
 import { loadConfig, type Config } from '../../server/config';
 import { initModels } from '../../server/db/models';
 import { createSequelize } from '../../server/db/sequelize';
+import { Build } from '../../server/features/builds/build.model';
+import { Clip } from '../../server/features/clips/clip.model';
+import { Instrument } from '../../server/features/instruments/instrument.model';
+import { SpecVersion, Spec } from '../../server/features/specs/spec.model';
+import { User } from '../../server/features/users/user.model';
 import { createLogger } from '../../server/logger';
 import { prepareDatabase, repoRoot } from './bootstrap';
 
@@ -47,4 +52,34 @@ export async function benchEnvironment(name: string, defaultPort: number): Promi
       fs.rmSync(mediaDir, { recursive: true, force: true });
     },
   };
+}
+
+/**
+ * What the story benches build on, from the seeded demo: the builder and the moderator, a new
+ * build (invented), the builder's outside micrometer and the crank end-float spec version.
+ */
+export async function benchFixtures(build: { title: string; subject: string }) {
+  const owner = (await User.findOne({ where: { login: 'demo-builder' } }))!;
+  const moderator = (await User.findOne({ where: { login: 'demo-moderator' } }))!;
+  const row = await Build.create({ ownerId: owner.id, ...build });
+  const mic = (await Instrument.findOne({ where: { ownerId: owner.id, serial: 'MV-OM-01' } }))!;
+  const spec = (await Spec.findOne({ where: { name: 'Vellum 1100 crank end float' } }))!;
+  const version = (await SpecVersion.findOne({ where: { specId: spec.id } }))!;
+  return { owner, moderator, build: row, mic, version };
+}
+
+/** A clip row that is ready to cite (a 60 s 1280×720 H.264 file in name only: no media is made). */
+export function readyClip(buildId: number, title: string, position: number, originalName: string) {
+  return Clip.create({
+    buildId,
+    title,
+    position,
+    status: 'ready',
+    originalName,
+    sizeBytes: 1_000_000,
+    container: 'mp4',
+    storagePrefix: crypto.randomUUID(),
+    probe: { container: 'mp4', videoCodec: 'h264', audioCodec: null, durationS: 60, width: 1280, height: 720, frameRate: 30, rotation: 0 },
+    webCopy: 'original',
+  });
 }
