@@ -39,7 +39,7 @@ export interface Session {
  * a missing token.
  */
 export async function sessionFor(t: TestApp, actor: Actor): Promise<Session> {
-  const agent = actor === 'anonymous' ? request.agent(t.app) : await signIn(t, actorLogins[actor]);
+  const agent = actor === 'anonymous' ? request.agent(t.server) : await signIn(t, actorLogins[actor]);
   return { agent, token: await csrfToken(agent) };
 }
 

@@ -1,4 +1,5 @@
 import fs from 'node:fs';
+import http from 'node:http';
 import os from 'node:os';
 import path from 'node:path';
 import { inject } from 'vitest';
@@ -77,8 +78,14 @@ export async function startTestApp(env: Record<string, string> = {}, opts: TestA
   const worker = queue ? await startClipWorker(config, queue, { storage, logger, faultAt: opts.faultAt }) : null;
   const mailWorker = queue && opts.mail ? await startMailWorker(config, queue, { logger }) : null;
   const built = createApp({ config, sequelize, logger, storage, queue });
+  // Signed-in agents talk to one listening server. Given the bare app, supertest listens and
+  // closes a server per request, and closing it drops a connection the app has already answered
+  // (a refused upload) while the client is still sending the body: EPIPE instead of the status.
+  const server = http.createServer(built.app);
+  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
   return {
     app: built.app,
+    server,
     config,
     fake,
     smtp,
@@ -88,6 +95,8 @@ export async function startTestApp(env: Record<string, string> = {}, opts: TestA
     worker,
     mediaDir: config.mediaDir,
     async close() {
+      server.closeAllConnections();
+      await new Promise<void>((resolve) => server.close(() => resolve()));
       await worker?.stop();
       await mailWorker?.stop();
       await queue?.boss.stop({ graceful: false, wait: true });
@@ -119,7 +128,7 @@ export function freshAccount(t: TestApp, prefix = 'visitor'): FakeAccount {
  * our callback) and returns a supertest agent holding the session cookie.
  */
 export async function signIn(t: TestApp, login: string) {
-  const agent = request.agent(t.app);
+  const agent = request.agent(t.server);
   const start = await agent.get(`/auth/github?login=${encodeURIComponent(login)}`).expect(302);
   const authorize = await fetch(start.headers.location!, { redirect: 'manual' });
   const callback = new URL(authorize.headers.get('location')!);
