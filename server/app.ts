@@ -81,7 +81,15 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
       redact: ['req.headers.cookie', 'req.headers["x-csrf-token"]', 'res.headers["set-cookie"]'],
     }),
   );
-  app.use(express.json({ limit: '256kb' }));
+  app.use(
+    express.json({
+      limit: '256kb',
+      // The calculator checks the numbers as sent, so it keeps the text (see calc.routes.ts, figureDigits).
+      verify: (req, _res, buf) => {
+        if ((req as { originalUrl?: string }).originalUrl?.startsWith('/api/calc')) (req as { rawBody?: Buffer }).rawBody = buf;
+      },
+    }),
+  );
 
   const sessionPool = new pg.Pool({ connectionString: config.databaseUrl, max: 5 });
   // An idle client dropped by a restarting database emits 'error'; unheard, that would end the process.

@@ -2,12 +2,12 @@
  * A clearance worked out from its readings and judged against its spec version: the same code
  * in the browser's live calculator and on the server, so both show the same figures and working.
  */
-import { evaluateCalc } from '../measure/calc';
-import { calcRequestSchema, type CalcRequest, type Reading as EngineReading } from '../measure/calc.schema';
-import { formatLength, formatResult } from '../measure/format';
-import { rejectWords, verdictWords } from '../measure/spec';
-import { judgeSpec, specSchema as engineSpecSchema } from '../measure/spec.schema';
-import { picometresToMicrometres, type LengthUnit } from '../measure/units';
+import { evaluateCalc, resultText } from '../measure/calc';
+import { calcRequestSchema, type Reading as EngineReading } from '../measure/calc.schema';
+import { specSchema as engineSpecSchema } from '../measure/spec.schema';
+import type { LengthUnit } from '../measure/units';
+import { Fraction } from '../measure/exact';
+import { factorNumber, fromBase, toBase } from '../measure/quantities';
 import { toEngineSpec, type SpecVersion } from '../specs/spec-library.schema';
 import type { ClearanceResult } from './clearance.schema';
 
@@ -18,18 +18,18 @@ export interface ClearanceTermInput {
   sign: 1 | -1;
 }
 
-const um = (pm: bigint | undefined | null) => (pm === undefined || pm === null ? null : picometresToMicrometres(pm));
-
 /**
- * The clearance Σ sign·reading with its combined and expanded uncertainty (GUM eq. 10, 6.2.1)
- * by `evaluateCalc`, and, with a spec, the verdict against its band, its preferred band and its
- * reject limit by the spec's rule (`judgeSpec`). Problems (a reading the engine refuses, a spec
- * whose figures do not hold together) come back as sentences instead of a result.
+ * The clearance Σ sign·reading with its budget, coverage interval and, with a spec, the verdict
+ * against its band, its preferred band and its reject limit by the spec's rule, all by
+ * `evaluateCalc`. `coverageFactor` null asks for a 95 % interval worked out by the engine.
+ * Problems (a reading the engine refuses, a spec whose figures do not hold together) come back
+ * as sentences instead of a result.
  */
 export function computeClearance(input: {
   terms: ClearanceTermInput[];
   spec: SpecVersion | null;
-  coverageFactor: number;
+  coverageFactor: number | null;
+  instruments?: Record<string, unknown>;
 }): { ok: true; result: ClearanceResult } | { ok: false; problems: string[] } {
   const problems: string[] = [];
   if (input.terms.length === 0) return { ok: false, problems: ['pick at least one reading'] };
@@ -47,17 +47,25 @@ export function computeClearance(input: {
   }
   const request = calcRequestSchema.safeParse({
     readings,
+    ...(input.instruments && Object.keys(input.instruments).length > 0 && { instruments: input.instruments }),
     terms: input.terms.map((t) => ({ reading: t.key, sign: t.sign })),
     ...(engineSpec && {
       spec: {
         unit: engineSpec.unit,
         ...(engineSpec.min !== undefined && { min: engineSpec.min }),
         ...(engineSpec.max !== undefined && { max: engineSpec.max }),
+        ...(engineSpec.preferred && {
+          preferred: {
+            ...(engineSpec.preferred.min !== undefined && { min: engineSpec.preferred.min }),
+            ...(engineSpec.preferred.max !== undefined && { max: engineSpec.preferred.max }),
+          },
+        }),
+        ...(engineSpec.reject !== undefined && { reject: engineSpec.reject }),
         rule: engineSpec.rule,
       },
     }),
-    coverageFactor: input.coverageFactor,
-  } satisfies CalcRequest);
+    ...(input.coverageFactor !== null && { coverageFactor: input.coverageFactor }),
+  });
   if (!request.success) {
     for (const issue of request.error.issues) {
       const [head, key, ...rest] = issue.path.map(String);
@@ -71,60 +79,52 @@ export function computeClearance(input: {
   try {
     evaluation = evaluateCalc(request.data);
   } catch (err) {
-    return { ok: false, problems: [err instanceof Error ? err.message : 'the readings could not be worked out'] };
+    const message =
+      err && typeof err === 'object' && 'issues' in err && Array.isArray((err as { issues: unknown[] }).issues)
+        ? (err as { issues: { message: string }[] }).issues.map((i) => i.message).join('; ')
+        : err instanceof Error
+          ? err.message
+          : 'the readings could not be worked out';
+    return { ok: false, problems: [message] };
   }
-  const unit: LengthUnit = evaluation.unit;
-  const k = evaluation.coverageFactor;
-  const shown = formatResult(evaluation.valuePm, evaluation.expandedUncertaintyUm, unit);
-  const steps = [...evaluation.steps];
-
-  let verdict: ClearanceResult['verdict'] = null;
-  let preferredVerdict: ClearanceResult['preferredVerdict'] = null;
-  let rejectVerdict: ClearanceResult['rejectVerdict'] = null;
-  let band: ClearanceResult['band'] = null;
-  if (engineSpec) {
-    const judged = judgeSpec(evaluation.valuePm, evaluation.expandedPm, engineSpec);
-    verdict = judged.band.verdict;
-    const limits = judged.limitsPm;
-    band = {
-      minUm: um(limits.band.minPm),
-      maxUm: um(limits.band.maxPm),
-      preferredMinUm: um(limits.preferred?.minPm),
-      preferredMaxUm: um(limits.preferred?.maxPm),
-      rejectUm: um(limits.rejectPm),
-    };
-    const at = (pm: bigint) => formatLength(pm, unit, evaluation.displayStepPm);
-    if (judged.preferred && limits.preferred) {
-      preferredVerdict = judged.preferred.verdict;
-      const p = limits.preferred;
-      const range = [p.minPm !== undefined ? `from ${at(p.minPm)}` : '', p.maxPm !== undefined ? `to ${at(p.maxPm)}` : ''].filter(Boolean).join(' ');
-      steps.push(`Preferred band ${range}, same rule: ${verdictWords[judged.preferred.verdict]} (${judged.preferred.verdict}).`);
-    }
-    if (judged.reject && limits.rejectPm !== null) {
-      rejectVerdict = judged.reject.verdict;
-      steps.push(
-        `Reject limit ${at(limits.rejectPm)} (${judged.reject.side === 'upper' ? 'scrap at or above it' : 'scrap at or below it'}), same rule: ${
-          rejectWords[judged.reject.verdict]
-        } (${judged.reject.verdict}).`,
-      );
-    }
-  }
-
+  if (evaluation.quantity !== 'length' || evaluation.valuePm === null) return { ok: false, problems: ['a clearance is a length'] };
+  const unit = evaluation.unit as LengthUnit;
+  const umPerUnit = factorNumber(unit) / 1e-6;
+  const toUm = fromBase(toBase(new Fraction(1), unit), 'um');
+  // Exact: a limit in inches is a whole number of picometres, so its µm figure is a plain decimal.
+  const um = (x: Fraction | undefined) => (x === undefined ? null : x.mul(toUm).valueOf());
+  const band = evaluation.bandExact;
   return {
     ok: true,
     result: {
       unit,
-      valueUm: picometresToMicrometres(evaluation.valuePm),
-      standardUncertaintyUm: evaluation.standardUncertaintyUm,
-      expandedUncertaintyUm: evaluation.expandedUncertaintyUm,
-      coverageFactor: k,
-      display: `${shown.value} ± ${shown.uncertainty} (k = ${k})`,
-      verdict,
-      preferredVerdict,
-      rejectVerdict,
+      valueUm: Number(evaluation.valuePm) / 1e6,
+      standardUncertaintyUm: evaluation.standardUncertaintyUm ?? 0,
+      expandedUncertaintyUm: evaluation.expandedUncertaintyUm ?? 0,
+      coverageFactor: evaluation.coverageFactor,
+      display: resultText(evaluation),
+      verdict: evaluation.judgement?.verdict ?? null,
+      preferredVerdict: evaluation.preferredJudgement?.verdict ?? null,
+      rejectVerdict: evaluation.rejectJudgement?.verdict ?? null,
       rule: engineSpec ? engineSpec.rule : null,
-      band,
-      steps,
+      band: band
+        ? {
+            minUm: um(band.min),
+            maxUm: um(band.max),
+            preferredMinUm: um(band.preferredMin),
+            preferredMaxUm: um(band.preferredMax),
+            rejectUm: um(band.reject),
+          }
+        : null,
+      steps: [...evaluation.steps],
+      method: evaluation.method,
+      coverageProbability: evaluation.coverageProbability,
+      fixedCoverageFactor: input.coverageFactor !== null,
+      effectiveDegreesOfFreedom: Number.isFinite(evaluation.effectiveDegreesOfFreedom) ? evaluation.effectiveDegreesOfFreedom : null,
+      intervalUm: [evaluation.interval[0] * umPerUnit, evaluation.interval[1] * umPerUnit],
+      probabilityOfConformance: evaluation.probabilityOfConformance,
+      budget: evaluation.budget.map((line) => ({ ...line })),
+      warnings: [...evaluation.warnings],
     },
   };
 }

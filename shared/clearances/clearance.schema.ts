@@ -4,7 +4,7 @@
  * by the same engine on the server and in the browser.
  */
 import { z } from 'zod';
-import { COVERAGE_FACTOR_RANGE, readingKeySchema, unitSchema } from '../measure/calc.schema';
+import { budgetLineSchema, COVERAGE_FACTOR_RANGE, readingKeySchema, unitSchema } from '../measure/calc.schema';
 import { decisionRules, verdicts } from '../measure/spec';
 import { reviewStates } from '../readings/reading.schema';
 
@@ -35,10 +35,12 @@ const clearanceFields = {
       });
     }),
   specVersionId: z.number().int().positive().nullable(),
+  /** A fixed k, or null for a 95 % coverage interval worked out by the engine (t-factor or Monte Carlo). */
   coverageFactor: z
     .number({ error: 'coverageFactor must be a number' })
     .min(COVERAGE_FACTOR_RANGE.min, `coverageFactor must be at least ${COVERAGE_FACTOR_RANGE.min}`)
-    .max(COVERAGE_FACTOR_RANGE.max, `coverageFactor must be at most ${COVERAGE_FACTOR_RANGE.max}`),
+    .max(COVERAGE_FACTOR_RANGE.max, `coverageFactor must be at most ${COVERAGE_FACTOR_RANGE.max}`)
+    .nullable(),
   note: z.string().trim().max(2000, 'at most 2000 characters'),
 };
 
@@ -48,7 +50,7 @@ export const clearanceInputSchema = z.strictObject({
   key: clearanceFields.key.optional(),
   template: clearanceFields.template.default(null),
   specVersionId: clearanceFields.specVersionId.default(null),
-  coverageFactor: clearanceFields.coverageFactor.default(2),
+  coverageFactor: clearanceFields.coverageFactor.default(null),
   note: clearanceFields.note.default(''),
 });
 export type ClearanceInput = z.input<typeof clearanceInputSchema>;
@@ -76,6 +78,7 @@ export const clearanceResultSchema = z.object({
   valueUm: z.number(),
   standardUncertaintyUm: z.number().nonnegative(),
   expandedUncertaintyUm: z.number().nonnegative(),
+  /** U/u_c: the k chosen, or the one the coverage interval implies. */
   coverageFactor: z.number(),
   /** "0.0047 in ± 0.00031 in (k = 2)". */
   display: z.string(),
@@ -86,6 +89,16 @@ export const clearanceResultSchema = z.object({
   rule: z.enum(decisionRules).nullable(),
   band: bandUmSchema.nullable(),
   steps: z.array(z.string()),
+  /** Added with the second engine; absent from results judged before it. */
+  method: z.enum(['gum', 'monte-carlo']).optional(),
+  coverageProbability: z.number().optional(),
+  /** True when k was chosen rather than worked out from the coverage probability. */
+  fixedCoverageFactor: z.boolean().optional(),
+  effectiveDegreesOfFreedom: z.number().nullable().optional(),
+  intervalUm: z.tuple([z.number(), z.number()]).optional(),
+  probabilityOfConformance: z.number().nullable().optional(),
+  budget: z.array(budgetLineSchema).optional(),
+  warnings: z.array(z.string()).optional(),
 });
 export type ClearanceResult = z.infer<typeof clearanceResultSchema>;
 
@@ -109,7 +122,7 @@ export const clearanceSchema = z.object({
       newerVersion: z.number().int().positive().nullable(),
     })
     .nullable(),
-  coverageFactor: z.number(),
+  coverageFactor: z.number().nullable(),
   note: z.string(),
   reviewState: z.enum(reviewStates),
   result: clearanceResultSchema.nullable(),

@@ -54,6 +54,11 @@ export const isoDateSchema = z
   .regex(/^\d{4}-\d{2}-\d{2}$/, 'dates are written YYYY-MM-DD')
   .refine((d) => !Number.isNaN(Date.parse(`${d}T00:00:00Z`)) && new Date(`${d}T00:00:00Z`).toISOString().startsWith(d), 'that is not a calendar date');
 
+const coverageFactorSchema = z
+  .number({ error: 'k must be a number' })
+  .min(1, 'k is at least 1')
+  .max(10, 'k is at most 10');
+
 const instrumentFields = {
   name: z.string().trim().min(1, 'name the instrument').max(120, 'at most 120 characters'),
   kind: z.enum(instrumentKinds, { error: `kind must be one of ${instrumentKinds.join(', ')}` }),
@@ -63,6 +68,14 @@ const instrumentFields = {
   resolution: lengthTextSchema,
   /** Stated standard uncertainty in `unit` (certificate or maker); null = from the resolution only. */
   statedUncertainty: lengthTextSchema.nullable(),
+  /** A calibration certificate's expanded uncertainty U in `unit`, with its coverage factor k (u = U/k, GUM 4.3.3). */
+  calibrationUncertainty: lengthTextSchema.nullable(),
+  calibrationCoverageFactor: coverageFactorSchema.nullable(),
+  /** The maker's maximum permissible error ±MPE in `unit` (rectangular, u = MPE/√3, GUM 4.3.7). */
+  maxPermissibleError: lengthTextSchema.nullable(),
+  /** The setting standard's expanded uncertainty U in `unit`, with its k. */
+  settingStandardUncertainty: lengthTextSchema.nullable(),
+  settingStandardCoverageFactor: coverageFactorSchema.nullable(),
   calibrationIntervalDays: z.number().int('whole days').min(1, 'at least 1 day').max(3650, 'at most 10 years').nullable(),
   lastCalibratedOn: isoDateSchema.nullable(),
   calibratedBy: z.string().trim().max(160, 'at most 160 characters'),
@@ -70,9 +83,41 @@ const instrumentFields = {
   retired: z.boolean(),
 };
 
-function refineLengths(v: { unit?: string; resolution?: string; statedUncertainty?: string | null }, ctx: z.RefinementCtx) {
+/** Lengths in the register that must not be negative, checked alike. */
+const nonNegativeLengths = ['calibrationUncertainty', 'maxPermissibleError', 'settingStandardUncertainty'] as const;
+
+function refineLengths(
+  v: {
+    unit?: string;
+    resolution?: string;
+    statedUncertainty?: string | null;
+    calibrationUncertainty?: string | null;
+    calibrationCoverageFactor?: number | null;
+    maxPermissibleError?: string | null;
+    settingStandardUncertainty?: string | null;
+    settingStandardCoverageFactor?: number | null;
+  },
+  ctx: z.RefinementCtx,
+) {
+  const pairs = [
+    ['calibrationUncertainty', 'calibrationCoverageFactor', 'a calibration'],
+    ['settingStandardUncertainty', 'settingStandardCoverageFactor', 'a setting standard'],
+  ] as const;
+  for (const [u, k, what] of pairs) {
+    if (v[u] === undefined && v[k] === undefined) continue;
+    const hasU = v[u] != null;
+    const hasK = v[k] != null;
+    if (hasU !== hasK) ctx.addIssue({ code: 'custom', path: [hasU ? k : u], message: `${what} needs both its expanded uncertainty U and its k` });
+  }
   const unit = unitSchema.safeParse(v.unit);
   if (!unit.success) return;
+  for (const field of nonNegativeLengths) {
+    const text = v[field];
+    if (text == null) continue;
+    const parsed = lengthTextIn(text, unit.data);
+    if (!parsed.ok) ctx.addIssue({ code: 'custom', path: [field], message: parsed.message });
+    else if (parsed.length.pm < 0n) ctx.addIssue({ code: 'custom', path: [field], message: 'it cannot be negative' });
+  }
   if (v.resolution !== undefined) {
     const r = lengthTextIn(v.resolution, unit.data);
     if (!r.ok) ctx.addIssue({ code: 'custom', path: ['resolution'], message: r.message });
@@ -91,6 +136,11 @@ export const instrumentInputSchema = z
     ...instrumentFields,
     serial: instrumentFields.serial.default(''),
     statedUncertainty: instrumentFields.statedUncertainty.default(null),
+    calibrationUncertainty: instrumentFields.calibrationUncertainty.default(null),
+    calibrationCoverageFactor: instrumentFields.calibrationCoverageFactor.default(null),
+    maxPermissibleError: instrumentFields.maxPermissibleError.default(null),
+    settingStandardUncertainty: instrumentFields.settingStandardUncertainty.default(null),
+    settingStandardCoverageFactor: instrumentFields.settingStandardCoverageFactor.default(null),
     calibrationIntervalDays: instrumentFields.calibrationIntervalDays.default(null),
     lastCalibratedOn: instrumentFields.lastCalibratedOn.default(null),
     calibratedBy: instrumentFields.calibratedBy.default(''),
@@ -157,6 +207,12 @@ export const instrumentSchema = z.object({
   unit: unitSchema,
   resolution: z.string(),
   statedUncertainty: z.string().nullable(),
+  /** Added with the register's accuracy fields; absent from older answers. */
+  calibrationUncertainty: z.string().nullable().default(null),
+  calibrationCoverageFactor: z.number().nullable().default(null),
+  maxPermissibleError: z.string().nullable().default(null),
+  settingStandardUncertainty: z.string().nullable().default(null),
+  settingStandardCoverageFactor: z.number().nullable().default(null),
   calibrationIntervalDays: z.number().int().nullable(),
   lastCalibratedOn: z.string().nullable(),
   /** lastCalibratedOn + interval; null when either is missing. */

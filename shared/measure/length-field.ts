@@ -3,6 +3,7 @@
  * be finite, within ±2 m, and exactly a whole number of picometres (so it is held as entered).
  */
 import { decimalFromNumber, type ExactDecimal } from './decimal';
+import { figureToDecimal, type Figure } from './figures';
 import { decimalToPicometres, MAX_LENGTH_PM, maxExactDecimals, type LengthUnit, unitNames } from './units';
 
 /** A problem found by `lengthFieldProblem`, with the message to show. */
@@ -21,8 +22,8 @@ export interface LengthFieldBounds {
 }
 
 /** The exact value of a length number, or null if it is not finite or too finely divided. */
-export function lengthNumberToPicometres(value: number, unit: LengthUnit): bigint | null {
-  const decimal: ExactDecimal | null = decimalFromNumber(value);
+export function lengthNumberToPicometres(value: Figure, unit: LengthUnit): bigint | null {
+  const decimal: ExactDecimal | null = typeof value === 'number' ? decimalFromNumber(value) : figureToDecimal(value);
   return decimal ? decimalToPicometres(decimal, unit) : null;
 }
 
@@ -32,11 +33,12 @@ export function lengthNumberToPicometres(value: number, unit: LengthUnit): bigin
  */
 export function lengthFieldProblem(
   field: string,
-  value: number,
+  value: Figure,
   unit: LengthUnit,
   bounds: LengthFieldBounds = {},
 ): LengthFieldProblem | null {
-  if (!Number.isFinite(value)) return { message: `${field} must be a finite number` };
+  if (typeof value === 'number' && !Number.isFinite(value)) return { message: `${field} must be a finite number` };
+  if (typeof value === 'string' && figureToDecimal(value) === null) return { message: `${field} must be a decimal number like "0.5640"` };
   const pm = lengthNumberToPicometres(value, unit);
   if (pm === null) {
     return {

@@ -38,7 +38,7 @@ export const DEFAULT_DECISION_RULE: DecisionRule = 'guarded';
 /** The rule in words, to show beside every verdict. */
 export const decisionRuleText: Readonly<Record<DecisionRule, string>> = {
   guarded:
-    'Guarded rule (ISO 14253-1, guard band = U per ILAC-G8:09/2019): within spec only when the value is at least U inside every limit; out of spec only when it is at least U outside a limit; too close to call in between.',
+    'Guarded rule (ISO 14253-1): within spec only when the whole coverage interval lies inside every limit; out of spec only when it lies wholly outside a limit; too close to call otherwise.',
   simple:
     'Simple rule (ILAC-G8:09/2019 simple acceptance): the measured value alone is compared with the limits; the uncertainty is reported but not used, so a value near a limit may be judged either way by another measurement.',
 };

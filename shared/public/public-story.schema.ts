@@ -8,7 +8,7 @@
 import { z } from 'zod';
 import { bandUmSchema } from '../clearances/clearance.schema';
 import { calibrationStates } from '../instruments/instrument.schema';
-import { readingSchema as engineReadingSchema, unitSchema } from '../measure/calc.schema';
+import { budgetLineSchema, calcInstrumentSchema, readingSchema as engineReadingSchema, unitSchema } from '../measure/calc.schema';
 import { unitSystems } from '../measure/format';
 import { decisionRules, verdicts } from '../measure/spec';
 import { readingKinds, readingWarningSchema } from '../readings/reading.schema';
@@ -141,6 +141,8 @@ export const publicReadingSchema = z.object({
    * zero offset filled in), so a reader can run it through POST /api/calc again.
    */
   engine: engineReadingSchema.optional(),
+  /** The instrument entry `engine.instrument` names (calibration, MPE, setting standard), when there is one. */
+  engineInstrument: z.object({ name: z.string(), entry: calcInstrumentSchema }).optional(),
 });
 export type PublicReading = z.infer<typeof publicReadingSchema>;
 
@@ -169,6 +171,15 @@ export const publicClearanceSchema = z.object({
   terms: z.array(z.object({ readingId: z.number().int().positive(), readingKey: z.string(), readingName: z.string(), sign: z.union([z.literal(1), z.literal(-1)]) })),
   steps: z.array(z.string()),
   checked: publicCheckSchema,
+  /** The second engine's figures; absent from clearances judged before it. */
+  method: z.enum(['gum', 'monte-carlo']).optional(),
+  coverageProbability: z.number().optional(),
+  fixedCoverageFactor: z.boolean().optional(),
+  effectiveDegreesOfFreedom: z.number().nullable().optional(),
+  intervalUm: z.tuple([z.number(), z.number()]).optional(),
+  probabilityOfConformance: z.number().nullable().optional(),
+  budget: z.array(budgetLineSchema).optional(),
+  warnings: z.array(z.string()).optional(),
 });
 export type PublicClearance = z.infer<typeof publicClearanceSchema>;
 

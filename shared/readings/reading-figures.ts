@@ -4,7 +4,8 @@
  * same in both places and names the same field.
  */
 import type { InstrumentKind } from '../instruments/instrument.schema';
-import { readingSchema as engineReadingSchema, type Reading as EngineReading } from '../measure/calc.schema';
+import { readingSchema as engineReadingSchema, type CalcInstrument, type Reading as EngineReading } from '../measure/calc.schema';
+import type { EngineInstrument } from '../measure/instrument-map';
 import { formatNumber } from '../measure/format';
 import { picometresToExactText } from '../measure/length-text';
 import { parseLength, type EnteredLength } from '../measure/parse';
@@ -169,11 +170,11 @@ function fieldPathOf(path: readonly PropertyKey[]): string {
 function bareEngineReading(kind: ReadingKind, f: Pick<ReadingFigures, 'unit' | 'value' | 'passes' | 'stops' | 'values'>): EngineReading {
   switch (kind) {
     case 'direct':
-      return { kind, value: Number(f.value), unit: f.unit };
+      return { kind, value: f.value ?? '', unit: f.unit };
     case 'bracket':
-      return { kind, passes: Number(f.passes), stops: Number(f.stops), unit: f.unit };
+      return { kind, passes: f.passes ?? '', stops: f.stops ?? '', unit: f.unit };
     case 'repeated':
-      return { kind, values: (f.values ?? []).map(Number), unit: f.unit };
+      return { kind, values: f.values ?? [], unit: f.unit };
   }
 }
 
@@ -192,14 +193,50 @@ function convertInto(
   from: LengthUnit,
   to: LengthUnit,
   opts: { positive?: boolean } = {},
-): { number: number; exact: boolean; shownFrom: string; shownTo: string } | null {
+): { text: string; exact: boolean; shownFrom: string; shownTo: string } | null {
   const pm = pmOfText(text, from);
   if (pm === null) return null;
   const exactText = picometresToExactText(pm, to);
   const places = maxExactDecimals[to];
   let out = exactText ?? formatNumber(pm, to, places).replace('−', '-');
   if (opts.positive && pmOfText(out, to) === 0n) out = formatNumber(picometresPerUnit[to] / 10n ** BigInt(places), to, places);
-  return { number: Number(out), exact: exactText !== null, shownFrom: `${text.trim()} ${unitSymbols[from]}`, shownTo: `${out} ${unitSymbols[to]}` };
+  return { text: out, exact: exactText !== null, shownFrom: `${text.trim()} ${unitSymbols[from]}`, shownTo: `${out} ${unitSymbols[to]}` };
+}
+
+/** What the register holds of an instrument that the engine needs. */
+export interface RegisterInstrument {
+  id?: number;
+  unit: LengthUnit;
+  kind: InstrumentKind;
+  resolution: string;
+  statedUncertainty: string | null;
+  calibrationUncertainty?: string | null;
+  calibrationCoverageFactor?: number | null;
+  maxPermissibleError?: string | null;
+  settingStandardUncertainty?: string | null;
+  settingStandardCoverageFactor?: number | null;
+}
+
+/**
+ * The engine's entry for a register instrument with a calibration, a maximum permissible error
+ * or a setting standard, named `i<id>`; null when it has none of them (or no id). Every reading
+ * taken with it names it, so its components are one input shared by those readings.
+ */
+export function engineInstrumentOf(instrument: RegisterInstrument): EngineInstrument | null {
+  if (instrument.id === undefined) return null;
+  const { unit } = instrument;
+  const entry: CalcInstrument = {
+    ...(instrument.calibrationUncertainty != null &&
+      instrument.calibrationCoverageFactor != null && {
+        calibration: { expandedUncertainty: instrument.calibrationUncertainty, coverageFactor: instrument.calibrationCoverageFactor, unit },
+      }),
+    ...(instrument.maxPermissibleError != null && { maxPermissibleError: { value: instrument.maxPermissibleError, unit } }),
+    ...(instrument.settingStandardUncertainty != null &&
+      instrument.settingStandardCoverageFactor != null && {
+        settingStandard: { expandedUncertainty: instrument.settingStandardUncertainty, coverageFactor: instrument.settingStandardCoverageFactor, unit },
+      }),
+  };
+  return Object.keys(entry).length ? { name: `i${instrument.id}`, entry } : null;
 }
 
 /**
@@ -220,12 +257,14 @@ export function engineReadingProblems(engine: EngineReading): { path: string; me
  */
 export function toEngineReading(
   stored: ReadingFigures & { kind: ReadingKind; temperatureC: number | null; material: string | null },
-  instrument: { unit: LengthUnit; kind: InstrumentKind; resolution: string; statedUncertainty: string | null },
+  instrument: RegisterInstrument,
   zero: { offset: string; unit: LengthUnit } | null,
-): { engine: EngineReading; warnings: ReadingWarning[] } {
+): { engine: EngineReading; warnings: ReadingWarning[]; instrument: EngineInstrument | null } {
+  const shared = engineInstrumentOf(instrument);
+  const withInstrument = (engine: EngineReading): EngineReading => (shared ? { ...engine, instrument: shared.name } : engine);
   const warnings: ReadingWarning[] = [];
   const unit = stored.unit;
-  const take = (what: string, text: string, from: LengthUnit, positive = false): number | undefined => {
+  const take = (what: string, text: string, from: LengthUnit, positive = false): string | undefined => {
     const c = convertInto(text, from, unit, { positive });
     if (!c) return undefined;
     if (!c.exact) {
@@ -234,11 +273,11 @@ export function toEngineReading(
         message: `The ${what} ${c.shownFrom} has no exact value in ${unitSymbols[unit]} (this reading's unit); it was rounded to ${c.shownTo}.`,
       });
     }
-    return c.number;
+    return c.text;
   };
 
   if (stored.kind === 'bracket') {
-    return { engine: { kind: 'bracket', passes: Number(stored.passes), stops: Number(stored.stops), unit }, warnings };
+    return { engine: withInstrument({ kind: 'bracket', passes: stored.passes ?? '', stops: stored.stops ?? '', unit }), warnings, instrument: shared };
   }
   const resolution = take("instrument's resolution", instrument.resolution, instrument.unit, true);
   const uncertainty =
@@ -249,18 +288,13 @@ export function toEngineReading(
     ...(uncertainty !== undefined && { uncertainty }),
     ...(zeroOffset !== undefined && { zeroOffset }),
   };
+  // The temperature goes with every kind that can be corrected, repeated readings included.
+  const thermal = {
+    ...(stored.temperatureC !== null && stored.material !== null && { temperatureC: stored.temperatureC }),
+    ...(stored.material !== null && { material: stored.material }),
+  };
   if (stored.kind === 'direct') {
-    return {
-      engine: {
-        kind: 'direct',
-        value: Number(stored.value),
-        unit,
-        ...extras,
-        ...(stored.temperatureC !== null && { temperatureC: stored.temperatureC }),
-        ...(stored.material !== null && { material: stored.material }),
-      },
-      warnings,
-    };
+    return { engine: withInstrument({ kind: 'direct', value: stored.value ?? '', unit, ...extras, ...thermal }), warnings, instrument: shared };
   }
-  return { engine: { kind: 'repeated', values: (stored.values ?? []).map(Number), unit, ...extras }, warnings };
+  return { engine: withInstrument({ kind: 'repeated', values: stored.values ?? [], unit, ...extras, ...thermal }), warnings, instrument: shared };
 }

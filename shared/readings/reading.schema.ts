@@ -3,7 +3,7 @@
  * unit), with who logged it, its history, and what the engine makes of it.
  */
 import { z } from 'zod';
-import { readingKeySchema, readingSchema as engineReadingSchema, TEMPERATURE_RANGE_C, unitSchema } from '../measure/calc.schema';
+import { calcInstrumentSchema, readingKeySchema, readingSchema as engineReadingSchema, TEMPERATURE_RANGE_C, unitSchema } from '../measure/calc.schema';
 import { lengthTextSchema } from '../measure/length-text';
 import { materialNames } from '../measure/thermal';
 import { isoDateSchema } from '../instruments/instrument.schema';
@@ -166,6 +166,8 @@ export const readingSchema = z.object({
   zeroCheck: z.object({ id: z.number().int().positive(), offset: z.string(), unit: unitSchema }).nullable(),
   /** The engine's input for this reading (instrument resolution, stated uncertainty, zero offset filled in). */
   engine: engineReadingSchema,
+  /** The instrument entry `engine.instrument` names, when the register gives it a calibration, MPE or setting standard. */
+  engineInstrument: z.object({ name: z.string(), entry: calcInstrumentSchema }).nullable().default(null),
   result: readingResultSchema,
   warnings: z.array(readingWarningSchema),
   createdBy: z.number().int().positive(),

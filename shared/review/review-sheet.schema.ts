@@ -5,6 +5,7 @@
  */
 import { z } from 'zod';
 import { clearanceSchema } from '../clearances/clearance.schema';
+import { verdicts } from '../measure/spec';
 import { readingSchema } from '../readings/reading.schema';
 import { storyStates } from '../stories/story.schema';
 import { evidenceCheckSchema, publishBlockerSchema } from './review.schema';
@@ -36,6 +37,21 @@ export const reviewClaimSchema = z.object({
   expiresAt: z.string(),
 });
 
+/**
+ * A cited clearance as the story's current publication judged it (its evidence keeps the figures
+ * as judged), for a story going round again: the engine, the readings or the spec may have moved
+ * since. `method` is null when the publication predates the field (the first engine, always k = 2).
+ */
+export const asPublishedSchema = z.object({
+  revision: z.number().int().positive(),
+  verdict: z.enum(verdicts).nullable(),
+  display: z.string(),
+  valueUm: z.number(),
+  expandedUncertaintyUm: z.number().nonnegative(),
+  method: z.enum(['gum', 'monte-carlo']).nullable(),
+});
+export type AsPublished = z.infer<typeof asPublishedSchema>;
+
 /** Response of `GET /api/review/stories/:storyId`: everything needed to check one story. */
 export const reviewSheetSchema = z.object({
   story: z.object({
@@ -60,7 +76,24 @@ export const reviewSheetSchema = z.object({
       check: sheetCheckSchema.nullable(),
     }),
   ),
-  clearances: z.array(z.object({ clearance: clearanceSchema, citedIn: z.array(citingSentenceSchema), check: sheetCheckSchema.nullable() })),
+  clearances: z.array(
+    z.object({
+      clearance: clearanceSchema,
+      citedIn: z.array(citingSentenceSchema),
+      check: sheetCheckSchema.nullable(),
+      /**
+       * The same clearance (by id) in the story's current publication; null when the story has
+       * none or that revision did not cite it. Optional: servers before it did not send it.
+       */
+      asPublished: asPublishedSchema.nullable().optional(),
+      /**
+       * What differs from `asPublished`, for the moderator, in words ("too close to call now;
+       * within spec when published (revision 2)"); null when the verdict and the figures as
+       * shown are the same, or there is nothing published to compare with.
+       */
+      change: z.string().nullable().optional(),
+    }),
+  ),
   claims: z.array(z.object({ kind: z.enum(['reading', 'clearance']), key: z.string(), text: z.string(), line: z.number().int(), status: claimStatusSchema })),
   broken: z.array(z.object({ target: z.string(), text: z.string(), start: z.number().int(), end: z.number().int(), line: z.number().int(), message: z.string() })),
   /** Empty for the story's builder (blockers are worked out for moderators). */

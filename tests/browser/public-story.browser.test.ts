@@ -148,14 +148,15 @@ describe('a reader on a published story', () => {
       expect(await claim.getAttribute('aria-expanded')).toBe('true');
       const panelText = await panel.innerText();
       // Two readings at 0.0001 in resolution, no stated instrument uncertainty: u = 0.0001 in / √12 each
-      // (rectangular, GUM 4.3.7), u_c = √2 · u = 0.0000408 in (GUM eq. 10), U = 2 u_c = 0.0000816 in
-      // (GUM 6.2.1), written to two significant digits with the value to the same place (GUM 7.2.6).
-      expect(panelText).toContain('0.004700 in ± 0.000082 in (k = 2)');
-      expect(panelText).toContain('4.700 thou ± 0.082 thou');
+      // (rectangular, GUM 4.3.7), u_c = √2 · u = 0.0000408 in (GUM eq. 10). Their sum is triangular, so
+      // the 95 % interval is ±0.0001(1 − √0.05) in ≈ ±0.0000776 in (JCGM 101 6.4.2), k = U/u_c ≈ 1.90,
+      // written to two significant digits with the value to the same place (GUM 7.2.6).
+      expect(panelText).toMatch(/0\.004700 in ± 0\.00007[78] in \(k = 1\.9[01]\)/);
+      expect(panelText).toMatch(/4\.700 thou ± 0\.07[78] thou/);
       // A reading is shown at its resolution (shared/measure/format.ts), U = 2u = 0.000058 in.
       expect(panelText).toContain('0.5642 in ± 0.000058 in');
       expect(panelText).toContain('Within spec');
-      expect(panelText).toContain('guarded rule, k = 2');
+      expect(panelText).toMatch(/guarded rule, k = 1\.9[01]/);
       expect(panelText).toContain('Invented workshop manual, section 3 (test figures)');
       expect(panelText).toContain('Checked against the footage by Dagny Orlov');
       await panel.locator('[data-band-picture]').waitFor();
@@ -194,7 +195,7 @@ describe('a reader on a published story', () => {
       await page.locator(`a.claim[data-claim="clearance:${AFTER_KEY}"]`).focus();
       await page.keyboard.press('Enter');
       await page.waitForURL(`**/claims/clearance:${AFTER_KEY}`);
-      expect(await panel.innerText()).toContain('0.003800 in ± 0.000082 in (k = 2)');
+      expect(await panel.innerText()).toMatch(/0\.003800 in ± 0\.00007[78] in \(k = 1\.9[01]\)/);
 
       // The before-and-after chart: both clearances, shapes and words.
       const chart = page.locator('[data-before-after]');
@@ -208,8 +209,8 @@ describe('a reader on a published story', () => {
       await page.getByText('Metric', { exact: true }).click();
       // 0.0038 in = 0.09652 mm and U = 0.0000816 in = 0.00207 mm (1 in = 25.4 mm exactly, NIST SP 811
       // appendix B): U to two significant digits, the value to the same place (GUM 7.2.6).
-      await expect.poll(() => panel.innerText()).toContain('0.0965 mm ± 0.0021 mm (k = 2)');
-      expect(await panel.innerText()).toContain('96.5 µm ± 2.1 µm');
+      await expect.poll(() => panel.innerText()).toMatch(/0\.0965 mm ± 0\.0020 mm \(k = 1\.9[01]\)/);
+      expect(await panel.innerText()).toMatch(/96\.5 µm ± (2\.0|1\.9) µm/);
       expect(await chart.innerText()).toMatch(/mm/);
       expect(await chart.innerText()).not.toMatch(/\d in\b/);
       expect(await page.evaluate(() => window.localStorage.getItem('benchproof.units'))).toBe('metric');
@@ -217,10 +218,10 @@ describe('a reader on a published story', () => {
       await page.waitForURL(`**/stories/${fixture.story.id}`);
       const index = await page.getByRole('navigation', { name: 'Claims in this entry' }).innerText();
       // 0.0047 in = 0.11938 mm, at U's place (four decimals in mm).
-      expect(index).toContain('0.1194 mm ± 0.0021 mm');
+      expect(index).toContain('0.1194 mm ± 0.0020 mm');
       await page.reload();
       await page.getByRole('heading', { level: 1, name: `${TITLE}: end float` }).waitFor();
-      expect(await page.getByRole('navigation', { name: 'Claims in this entry' }).innerText()).toContain('0.1194 mm ± 0.0021 mm');
+      expect(await page.getByRole('navigation', { name: 'Claims in this entry' }).innerText()).toContain('0.1194 mm ± 0.0020 mm');
 
       await page.evaluate(() => window.scrollTo(0, 0));
       await page.screenshot({ path: path.join(artifacts, 'public-story-1280.png'), fullPage: true });
@@ -232,7 +233,7 @@ describe('a reader on a published story', () => {
       const notes = page.getByRole('region', { name: 'Evidence for the claims (printed)' });
       expect(await notes.isVisible()).toBe(true);
       expect(await notes.locator('li').count()).toBe(3);
-      expect(await notes.innerText()).toContain('0.1194 mm ± 0.0021 mm, within spec (guarded rule, k = 2)');
+      expect(await notes.innerText()).toMatch(/0\.1194 mm ± 0\.0020 mm, within spec \(guarded rule, k = 1\.9[01]\)/);
       await page.screenshot({ path: path.join(artifacts, 'public-story-print.png'), fullPage: true });
       await page.emulateMedia({ media: 'screen' });
     } finally {
@@ -302,7 +303,7 @@ describe('a reader on a published story', () => {
       await status.waitFor();
       expect(await status.getAttribute('data-verify')).toBe('current');
       expect(await status.innerText()).toContain('This sheet is the current revision.');
-      expect(await page.getByRole('table').innerText()).toContain('0.004700 in ± 0.000082 in (k = 2)');
+      expect(await page.getByRole('table').innerText()).toMatch(/0\.004700 in ± 0\.00007[78] in \(95 %, k = 1\.9[01]\)/);
       await page.goto(`${site.url}/verify/parts/${fixture.partId}?story=${fixture.story.id}&rev=1`);
       await page.getByText('This sheet is the current revision.').waitFor();
       await expectAccessible(page, 'verification page');

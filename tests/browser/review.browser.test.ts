@@ -6,7 +6,11 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readingResponseSchema } from '@shared/readings/reading.schema';
 import { launchBrowser } from '../../scripts/lib/chromium';
 import { repoRoot } from '../../scripts/lib/bootstrap';
+import type { ClearanceResult } from '@shared/clearances/clearance.schema';
 import { Follow } from '../../server/features/follows/follow.model';
+import type { PublishedEvidence } from '../../server/features/public/publication';
+import { StoryPublication } from '../../server/features/review/review.model';
+import { Story } from '../../server/features/stories/story.model';
 import { User } from '../../server/features/users/user.model';
 import { startBrowserApp } from '../support/browser-app';
 import { makeTestClip } from '../support/clips';
@@ -19,6 +23,8 @@ let work: string;
 let owner: Session;
 let fixture: ReviewFixture;
 let feelerReadingId: number;
+/** A second story, published through review (revision 1), for the follower's mail and the republication below. */
+let second: ReviewFixture;
 const artifacts = path.join(repoRoot, 'tests/artifacts');
 const TITLE = 'Invented flat-twin oil pump (review screen test)';
 const FLAG_COMMENT = 'the blade shown is not the one logged';
@@ -76,7 +82,7 @@ beforeAll(async () => {
   // A second story, published through review, so a follower of the builder gets a mail with an unsubscribe link.
   const [follower, builder] = await Promise.all([User.findOne({ where: { login: 'demo-follower' } }), User.findOne({ where: { login: 'demo-builder' } })]);
   await Follow.upsert({ followerId: follower!.id, builderId: builder!.id, emailOnPublish: true });
-  const second = await makeReviewFixture(owner, { clipFile, title: 'Invented flat-twin crank (published for the outbox test)' });
+  second = await makeReviewFixture(owner, { clipFile, title: 'Invented flat-twin crank (published for the outbox test)' });
   await publishThroughReview(owner, await sessionFor(site, 'moderator'), second);
 }, 300_000);
 
@@ -335,4 +341,73 @@ describe('the builder resubmits and the moderator publishes', () => {
       await page.close();
     }
   }, 120_000);
+});
+
+/**
+ * Rewrites a clearance's result in a story's current publication as the first engine judged it
+ * (always k = 2, no method): a stand-in for a publication made before the engine changed. The
+ * append-only trigger is off only inside the transaction (DDL is transactional in PostgreSQL).
+ */
+async function judgeAsTheFirstEngine(storyId: number, clearanceId: number, older: (r: ClearanceResult) => ClearanceResult): Promise<void> {
+  const story = (await Story.findByPk(storyId))!;
+  const sequelize = StoryPublication.sequelize!;
+  await sequelize.transaction(async (transaction) => {
+    const publication = (await StoryPublication.findByPk(story.publishedPublicationId!, { transaction }))!;
+    const evidence = structuredClone(publication.evidence) as unknown as PublishedEvidence;
+    evidence.clearances = evidence.clearances.map((c) => (c.id === clearanceId ? { ...c, result: older(c.result!) } : c));
+    await sequelize.query('ALTER TABLE story_publications DISABLE TRIGGER story_publications_append_only', { transaction });
+    await publication.update({ evidence: evidence as unknown as Record<string, unknown> }, { transaction });
+    await sequelize.query('ALTER TABLE story_publications ENABLE TRIGGER story_publications_append_only', { transaction });
+  });
+}
+
+describe('a published story sent for review again after the engine changed', () => {
+  it('shows the moderator, beside the clearance and in the list, what differs from the published judgement, with the budget and how the interval was found', async () => {
+    // Revision 1 was judged too close to call at k = 2 (invented: U = 8 µm); the engine now finds it within spec.
+    await judgeAsTheFirstEngine(second.story.id, second.clearance.id, (r) => {
+      const { method: _m, coverageProbability: _p, fixedCoverageFactor: _f, effectiveDegreesOfFreedom: _n, intervalUm: _i, probabilityOfConformance: _c, budget: _b, warnings: _w, ...first } = r;
+      return { ...first, coverageFactor: 2, standardUncertaintyUm: 4, expandedUncertaintyUm: 8, display: '0.0047 in ± 0.00031 in (k = 2)', verdict: 'undecided' };
+    });
+    expect((await move(owner, second.story.id, 'submit')).status).toBe(200);
+
+    const page = await browser.newPage();
+    page.setDefaultTimeout(15_000);
+    try {
+      await signInAs(page, 'demo-moderator', `/review/stories/${second.story.id}`);
+      await page.getByRole('heading', { name: `${second.story.title}`, level: 1 }).waitFor();
+      const row = page.locator(`[role="option"][data-evidence-id="clearance:${second.clearance.id}"]`);
+      // The list says so in words beside the mark, not by colour alone.
+      expect(await row.locator('[data-differs-from-revision="1"]').innerText()).toBe('differs from published revision 1');
+      await row.click();
+
+      const current = page.locator('[data-current]');
+      const note = current.getByRole('region', { name: 'Differs from the published revision 1' });
+      await note.waitFor();
+      expect(await note.getAttribute('data-published-change')).toBe('changed');
+      expect(await note.locator('[data-change-text]').innerText()).toMatch(
+        /^Within spec now; too close to call when published \(revision 1\)\. U is 0\.\d+ in now, 0\.00031 in when published: the engine now works out a 95 % interval instead of k = 2\.$/,
+      );
+      const published = note.locator('[data-as-published]');
+      expect(await published.innerText()).toContain('0.0047 in ± 0.00031 in (k = 2)');
+      expect(await published.innerText()).toContain('judged by the earlier engine');
+      expect(await published.locator('[data-verdict="undecided"]').count()).toBe(1);
+
+      // How the interval was found now, the probability within spec, and the budget laid open.
+      const coverage = current.locator('[data-coverage]');
+      expect(await coverage.locator('[data-interval]').innerText()).toMatch(/^95 % interval 0\.\d+ in to 0\.\d+ in \((Monte Carlo, JCGM 101|GUM, t with ν_eff = [\d.∞]+)\)$/);
+      expect(await coverage.locator('[data-probability-within]').innerText()).toMatch(/^Probability within spec: [<>\d.\s]+ %$/);
+      const budget = current.getByRole('region', { name: 'Uncertainty budget' });
+      // textContent: innerText would carry the headers' CSS capitals.
+      const headers = (await budget.locator('thead th').allTextContents()).map((x) => x.replace(/\s+/g, ' ').trim().toLowerCase());
+      for (const h of ['source', 'distribution', 'std. uncertainty u', 'sensitivity c', 'contribution', 'share of variance']) {
+        expect(headers, h).toEqual(expect.arrayContaining([expect.stringMatching(new RegExp(`^${h.replace('.', '\\.')}`))]));
+      }
+      expect(await budget.locator('tbody tr').count()).toBeGreaterThanOrEqual(2);
+
+      await note.scrollIntoViewIfNeeded();
+      await page.screenshot({ path: path.join(artifacts, 'review-republish-change-1280.png'), fullPage: true });
+    } finally {
+      await page.close();
+    }
+  }, 90_000);
 });

@@ -24,7 +24,7 @@ export class Clearance extends Model<InferAttributes<Clearance>, InferCreationAt
   declare template: ClearanceTemplateId | null;
   declare specVersionId: ForeignKey<SpecVersion['id']> | null;
   /** NUMERIC, so a string from pg. */
-  declare coverageFactor: CreationOptional<string | number>;
+  declare coverageFactor: CreationOptional<string | number | null>;
   declare note: CreationOptional<string>;
   declare reviewState: CreationOptional<ReviewState>;
   declare createdBy: ForeignKey<User['id']>;
@@ -51,7 +51,7 @@ export function initClearanceModels(sequelize: Sequelize) {
       name: { type: DataTypes.STRING(120), allowNull: false },
       template: { type: DataTypes.STRING(32), allowNull: true },
       specVersionId: { type: DataTypes.INTEGER, allowNull: true },
-      coverageFactor: { type: DataTypes.DECIMAL, allowNull: false, defaultValue: 2 },
+      coverageFactor: { type: DataTypes.DECIMAL, allowNull: true },
       note: { type: DataTypes.TEXT, allowNull: false, defaultValue: '' },
       reviewState: { type: DataTypes.STRING(16), allowNull: false, defaultValue: 'unchecked' },
       lockVersion: { type: DataTypes.INTEGER, allowNull: false, defaultValue: 1 },

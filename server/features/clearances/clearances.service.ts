@@ -1,3 +1,4 @@
+import { engineInstrumentsMap } from '@shared/measure/instrument-map';
 import { Op, type Transaction } from 'sequelize';
 import type { z } from 'zod';
 import { computeClearance } from '@shared/clearances/clearance-calc';
@@ -43,12 +44,14 @@ async function toDtos(rows: Clearance[], transaction?: Transaction): Promise<Cle
   return rows.map((c) => {
     const own = termsOf.get(c.id) ?? [];
     const version = c.specVersionId === null ? null : (versionById.get(c.specVersionId) ?? null);
-    const coverageFactor = Number(c.coverageFactor);
+    const coverageFactor = c.coverageFactor === null ? null : Number(c.coverageFactor);
     const termReadings = own.map((t) => ({ term: t, reading: readingById.get(t.readingId)! }));
     const computed = computeClearance({
       terms: termReadings.map(({ term, reading }) => ({ key: reading.key, engine: reading.engine, sign: term.sign })),
       spec: version ? toSpecVersionDto(version) : null,
       coverageFactor,
+      // Readings taken with one instrument share its calibration: a difference cancels it.
+      instruments: engineInstrumentsMap(termReadings.map(({ reading }) => reading.engineInstrument)),
     });
     const newest = version ? latest.get(version.specId) : undefined;
     return {
@@ -144,7 +147,7 @@ export async function createClearance(build: Build, user: User, input: Clearance
         name: input.name,
         template: input.template,
         specVersionId: input.specVersionId,
-        coverageFactor: String(input.coverageFactor),
+        coverageFactor: input.coverageFactor === null ? null : String(input.coverageFactor),
         note: input.note,
         createdBy: user.id,
       },
@@ -169,7 +172,8 @@ export async function patchClearance(clearance: Clearance, build: Build, user: U
     if (patch.specVersionId !== null) await specVersionUsableBy(patch.specVersionId, user);
     changes.specVersionId = patch.specVersionId;
   }
-  if (patch.coverageFactor !== undefined && patch.coverageFactor !== Number(clearance.coverageFactor)) changes.coverageFactor = String(patch.coverageFactor);
+  const storedK = clearance.coverageFactor === null ? null : Number(clearance.coverageFactor);
+  if (patch.coverageFactor !== undefined && patch.coverageFactor !== storedK) changes.coverageFactor = patch.coverageFactor === null ? null : String(patch.coverageFactor);
   for (const field of ['name', 'note', 'template'] as const) {
     if (patch[field] !== undefined && patch[field] !== clearance[field]) changes[field] = patch[field];
   }

@@ -22,6 +22,11 @@ export class Instrument extends Model<InferAttributes<Instrument>, InferCreation
   declare unit: LengthUnit;
   declare resolution: string;
   declare statedUncertainty: CreationOptional<string | null>;
+  declare calibrationUncertainty: CreationOptional<string | null>;
+  declare calibrationCoverageFactor: CreationOptional<string | number | null>;
+  declare maxPermissibleError: CreationOptional<string | null>;
+  declare settingStandardUncertainty: CreationOptional<string | null>;
+  declare settingStandardCoverageFactor: CreationOptional<string | number | null>;
   declare calibrationIntervalDays: CreationOptional<number | null>;
   declare lastCalibratedOn: CreationOptional<string | null>;
   declare calibratedBy: CreationOptional<string>;
@@ -57,6 +62,11 @@ export function initInstrumentModels(sequelize: Sequelize) {
       unit: { type: DataTypes.STRING(8), allowNull: false },
       resolution: { type: DataTypes.DECIMAL, allowNull: false },
       statedUncertainty: { type: DataTypes.DECIMAL, allowNull: true },
+      calibrationUncertainty: { type: DataTypes.DECIMAL, allowNull: true },
+      calibrationCoverageFactor: { type: DataTypes.DECIMAL, allowNull: true },
+      maxPermissibleError: { type: DataTypes.DECIMAL, allowNull: true },
+      settingStandardUncertainty: { type: DataTypes.DECIMAL, allowNull: true },
+      settingStandardCoverageFactor: { type: DataTypes.DECIMAL, allowNull: true },
       calibrationIntervalDays: { type: DataTypes.INTEGER, allowNull: true },
       lastCalibratedOn: { type: DataTypes.DATEONLY, allowNull: true },
       calibratedBy: { type: DataTypes.STRING(160), allowNull: false, defaultValue: '' },

@@ -97,6 +97,11 @@ export function toInstrumentDto(instrument: Instrument, latestZeroCheck?: ZeroCh
     unit: instrument.unit,
     resolution: instrument.resolution,
     statedUncertainty: instrument.statedUncertainty ?? null,
+    calibrationUncertainty: instrument.calibrationUncertainty ?? null,
+    calibrationCoverageFactor: instrument.calibrationCoverageFactor == null ? null : Number(instrument.calibrationCoverageFactor),
+    maxPermissibleError: instrument.maxPermissibleError ?? null,
+    settingStandardUncertainty: instrument.settingStandardUncertainty ?? null,
+    settingStandardCoverageFactor: instrument.settingStandardCoverageFactor == null ? null : Number(instrument.settingStandardCoverageFactor),
     calibrationIntervalDays: calibration.calibrationIntervalDays,
     lastCalibratedOn: calibration.lastCalibratedOn,
     calibrationDueOn: calibrationDueOn(calibration.lastCalibratedOn, calibration.calibrationIntervalDays),
@@ -180,6 +185,7 @@ export async function createInstrument(owner: User, input: InstrumentInput): Pro
     unit: input.unit,
     resolution: storedLength('resolution', input.resolution, input.unit, 'positive'),
     statedUncertainty: input.statedUncertainty === null ? null : storedLength('statedUncertainty', input.statedUncertainty, input.unit, 'not-negative'),
+    ...accuracyFields(input, input.unit),
     calibrationIntervalDays: input.calibrationIntervalDays,
     lastCalibratedOn: input.lastCalibratedOn,
     calibratedBy: input.calibratedBy,
@@ -209,9 +215,40 @@ export async function updateInstrument(instrument: Instrument, patch: Instrument
       { path: 'statedUncertainty', message: 'send it in the new unit' },
     ]);
   }
+  Object.assign(changes, accuracyFields(fields, unit));
+  for (const field of ['calibrationUncertainty', 'maxPermissibleError', 'settingStandardUncertainty'] as const) {
+    if (fields[field] === undefined && unit !== instrument.unit && instrument[field] != null) {
+      throw badRequest('Send the calibration, maximum permissible error and setting standard in the new unit (or null) when you change the unit.', [
+        { path: field, message: 'send it in the new unit' },
+      ]);
+    }
+  }
   await updateWithLock(Instrument, instrument, lockVersion, changes, { what: 'instrument' });
   await instrument.reload();
   return oneDto(instrument);
+}
+
+/** The register's accuracy fields that were sent, as stored (lengths exact in the instrument's unit). */
+function accuracyFields(
+  fields: {
+    calibrationUncertainty?: string | null;
+    calibrationCoverageFactor?: number | null;
+    maxPermissibleError?: string | null;
+    settingStandardUncertainty?: string | null;
+    settingStandardCoverageFactor?: number | null;
+  },
+  unit: LengthUnit,
+): Record<string, string | null> {
+  const out: Record<string, string | null> = {};
+  for (const field of ['calibrationUncertainty', 'maxPermissibleError', 'settingStandardUncertainty'] as const) {
+    const text = fields[field];
+    if (text !== undefined) out[field] = text === null ? null : storedLength(field, text, unit, 'not-negative');
+  }
+  for (const field of ['calibrationCoverageFactor', 'settingStandardCoverageFactor'] as const) {
+    const k = fields[field];
+    if (k !== undefined) out[field] = k === null ? null : String(k);
+  }
+  return out;
 }
 
 function inUse() {

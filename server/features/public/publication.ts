@@ -1,3 +1,4 @@
+import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Clearance as ClearanceDto } from '@shared/clearances/clearance.schema';
 import type { CalibrationState } from '@shared/instruments/instrument.schema';
@@ -92,7 +93,7 @@ export function builderRef(u: Pick<User, 'id' | 'login' | 'displayName' | 'shop'
 export function convertedDisplay(valueUm: number, expandedUm: number, k: number, unit: LengthUnit, units: UnitSystem | null): string | null {
   if (!units || systemOf(unit) === units) return null;
   const shown = formatResult(micrometresToPicometres(valueUm), expandedUm, defaultUnitFor(units));
-  return `${shown.value} ± ${shown.uncertainty} (k = ${k})`;
+  return `${shown.value} ± ${shown.uncertainty} (k = ${formatCoverageFactor(k)})`;
 }
 
 /** The calibration state on the day of a reading, from the warnings it was judged with. */
@@ -125,6 +126,7 @@ export function publicReading(r: PublishedEvidence['readings'][number], units: U
     steps: r.result.steps,
     // What the engine was given, so a reader can run it through the public calculator.
     engine: r.engine,
+    ...(r.engineInstrument && { engineInstrument: r.engineInstrument }),
     takenOn: r.takenOn,
     temperatureC: r.temperatureC,
     material: r.material,
@@ -165,5 +167,15 @@ export function publicClearance(c: PublishedEvidence['clearances'][number], unit
     terms: c.terms,
     steps: r.steps,
     checked: publicCheck(c.checked),
+    ...(r.method !== undefined && {
+      method: r.method,
+      coverageProbability: r.coverageProbability,
+      fixedCoverageFactor: r.fixedCoverageFactor ?? false,
+      effectiveDegreesOfFreedom: r.effectiveDegreesOfFreedom ?? null,
+      intervalUm: r.intervalUm,
+      probabilityOfConformance: r.probabilityOfConformance ?? null,
+      budget: r.budget,
+      warnings: r.warnings,
+    }),
   };
 }

@@ -1,5 +1,6 @@
 import Papa from 'papaparse';
-import { formatNumber, displayDecimals } from '@shared/measure/format';
+import { fractionToFixed } from '@shared/measure/exact';
+import { decimalsForStep } from '@shared/measure/format-quantity';
 import { evaluateReading } from '@shared/measure/readings';
 import { readingCsvColumns, type Reading as ReadingDto } from '@shared/readings/reading.schema';
 
@@ -16,7 +17,7 @@ export const VALUES_SEPARATOR = ' ';
 /** The estimate as plain decimal text in the reading's unit, at its display step. */
 function estimateText(r: ReadingDto): string {
   const evaluated = evaluateReading(r.key, r.engine);
-  return formatNumber(evaluated.valuePm, evaluated.unit, displayDecimals(evaluated.displayStepPm, evaluated.unit)).replace('−', '-');
+  return fractionToFixed(evaluated.estimate, decimalsForStep(evaluated.displayStep), { minus: '-' });
 }
 
 /** One row per reading, columns in `readingCsvColumns` order; figures exactly as stored. */

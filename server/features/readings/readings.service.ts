@@ -2,10 +2,11 @@ import { ForeignKeyConstraintError, Op, type ModelStatic, type Transaction } fro
 import type { z } from 'zod';
 import { calibrationDueOn, calibrationStateOn, zeroCheckedKinds } from '@shared/instruments/instrument.schema';
 import type { Reading as EngineReading } from '@shared/measure/calc.schema';
-import { formatLength } from '@shared/measure/format';
+import { decimalsForStep, formatValue } from '@shared/measure/format-quantity';
 import { evaluateReading } from '@shared/measure/readings';
 import { picometresToMicrometres } from '@shared/measure/units';
-import { engineReadingProblems, normaliseReadingFigures, toEngineReading, type ReadingFigures } from '@shared/readings/reading-figures';
+import { engineInstrumentsMap } from '@shared/measure/instrument-map';
+import { engineReadingProblems, normaliseReadingFigures, toEngineReading, type ReadingFigures, type RegisterInstrument } from '@shared/readings/reading-figures';
 import {
   keyFromName,
   type Reading as ReadingDto,
@@ -158,7 +159,7 @@ export function evaluateStored(
   const zeroOffset = applied ? { id: applied.id, offset: zeroCheckOffset(applied), unit: applied.unit } : null;
   const built = toEngineReading(
     { ...storedFigures(r), kind: r.kind, temperatureC: r.temperatureC === null ? null : Number(r.temperatureC), material: r.material },
-    { unit: instrument.unit, kind: instrument.kind, resolution: instrument.resolution, statedUncertainty: instrument.statedUncertainty ?? null },
+    registerOf(instrument),
     zeroOffset,
   );
   const warnings: ReadingWarning[] = [];
@@ -173,30 +174,58 @@ export function evaluateStored(
   warnings.push(...built.warnings);
 
   let engine: EngineReading = built.engine;
+  let engineInstrument = built.instrument;
   const problems = engineReadingProblems(engine);
   const preface: string[] = [];
   if (problems.length) {
     engine = bareEngine(r);
+    engineInstrument = null;
     preface.push(`${r.key}: the instrument's figures could not be used (${problems.map((p) => p.message).join('; ')}); worked out from the reading's own figures.`);
   }
-  const evaluated = evaluateReading(r.key, engine);
+  let evaluated;
+  try {
+    evaluated = evaluateReading(r.key, engine, engineInstrumentsMap([engineInstrument]));
+  } catch {
+    // An instrument entry the engine cannot use (a unit of another quantity): the reading's own figures.
+    engine = bareEngine(r);
+    engineInstrument = null;
+    preface.push(`${r.key}: the instrument's accuracy figures could not be used; worked out from the reading's own figures.`);
+    evaluated = evaluateReading(r.key, engine);
+  }
   return {
     engine,
+    engineInstrument,
     warnings,
     zeroCheck: zeroOffset,
     result: {
-      valueUm: picometresToMicrometres(evaluated.valuePm),
-      standardUncertaintyUm: evaluated.standardUncertaintyUm,
-      display: formatLength(evaluated.valuePm, evaluated.unit, evaluated.displayStepPm),
+      valueUm: picometresToMicrometres(evaluated.valuePm ?? 0n),
+      standardUncertaintyUm: evaluated.standardUncertaintyUm ?? 0,
+      display: formatValue(evaluated.estimate, evaluated.unit, decimalsForStep(evaluated.displayStep)),
       steps: [...preface, ...evaluated.steps],
     },
   };
 }
 
+/** What the register holds of an instrument, for the engine. */
+function registerOf(instrument: Instrument): RegisterInstrument {
+  return {
+    id: instrument.id,
+    unit: instrument.unit,
+    kind: instrument.kind,
+    resolution: instrument.resolution,
+    statedUncertainty: instrument.statedUncertainty ?? null,
+    calibrationUncertainty: instrument.calibrationUncertainty ?? null,
+    calibrationCoverageFactor: instrument.calibrationCoverageFactor == null ? null : Number(instrument.calibrationCoverageFactor),
+    maxPermissibleError: instrument.maxPermissibleError ?? null,
+    settingStandardUncertainty: instrument.settingStandardUncertainty ?? null,
+    settingStandardCoverageFactor: instrument.settingStandardCoverageFactor == null ? null : Number(instrument.settingStandardCoverageFactor),
+  };
+}
+
 function bareEngine(r: Pick<Reading, 'kind' | 'unit' | 'value' | 'passes' | 'stops' | 'repeatedValues'>): EngineReading {
-  if (r.kind === 'direct') return { kind: 'direct', value: Number(r.value), unit: r.unit };
-  if (r.kind === 'bracket') return { kind: 'bracket', passes: Number(r.passes), stops: Number(r.stops), unit: r.unit };
-  return { kind: 'repeated', values: (r.repeatedValues ?? []).map(Number), unit: r.unit };
+  if (r.kind === 'direct') return { kind: 'direct', value: String(r.value), unit: r.unit };
+  if (r.kind === 'bracket') return { kind: 'bracket', passes: String(r.passes), stops: String(r.stops), unit: r.unit };
+  return { kind: 'repeated', values: (r.repeatedValues ?? []).map(String), unit: r.unit };
 }
 
 /** Everything a page of readings needs, in a fixed number of queries whatever its length. */
@@ -263,6 +292,7 @@ function toDto(r: Reading, ctx: Context): ReadingDto {
     reviewState: r.reviewState,
     zeroCheck: evaluated.zeroCheck,
     engine: evaluated.engine,
+    engineInstrument: evaluated.engineInstrument,
     result: evaluated.result,
     warnings: evaluated.warnings,
     createdBy: r.createdBy,
@@ -367,7 +397,7 @@ async function figuresFor(
   const zero = await ZeroCheck.findOne({ where: { instrumentId: instrument.id, checkedOn: more.takenOn }, order: [['id', 'DESC']], transaction });
   const built = toEngineReading(
     { ...normal.figures, kind: texts.kind, temperatureC: more.temperatureC, material: more.material },
-    { unit: instrument.unit, kind: instrument.kind, resolution: instrument.resolution, statedUncertainty: instrument.statedUncertainty ?? null },
+    registerOf(instrument),
     zero && texts.kind !== 'bracket' ? { offset: zeroCheckOffset(zero), unit: zero.unit } : null,
   );
   const problems = engineReadingProblems(built.engine);

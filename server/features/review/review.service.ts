@@ -25,12 +25,14 @@ import { buildForViewer } from '../builds/builds.service';
 import { Clearance } from '../clearances/clearance.model';
 import { clearanceDtosForBuild } from '../clearances/clearances.service';
 import { Follow } from '../follows/follow.model';
+import { evidenceOf as publishedEvidenceOf } from '../public/publication';
 import { signUnsubscribe } from '../follows/unsubscribe-token';
 import { Reading } from '../readings/reading.model';
 import { readingDtosForBuild } from '../readings/readings.service';
 import { Story } from '../stories/story.model';
 import { User } from '../users/user.model';
 import { changesRequestedMail, followerMails, publishedMail, submittedMails, withdrawnMail, type Person } from './review.emails';
+import { asPublished, changeSincePublished, publishedResult } from './published-change';
 import { CheckAnswer, EvidenceCheck, ReviewClaim, StoryPublication } from './review.model';
 
 /** How long a moderator's claim on a story lasts without being renewed. */
@@ -675,6 +677,7 @@ export async function reviewSheet(storyId: number, user: User, deps: ReviewDeps)
   const claim = await ReviewClaim.findByPk(story.id);
   const holder = claim ? await User.findByPk(claim.moderatorId) : null;
   const isModerator = reviewers.has(user.role) && build.ownerId !== user.id;
+  const compare = await comparePublished(story, e);
   return {
     story: {
       id: story.id,
@@ -696,11 +699,42 @@ export async function reviewSheet(storyId: number, user: User, deps: ReviewDeps)
       citedIn: sentences('reading', r.key),
       check: checkOf('reading', r.id),
     })),
-    clearances: e.citedClearances.map((c) => ({ clearance: c, citedIn: sentences('clearance', c.key), check: checkOf('clearance', c.id) })),
+    clearances: e.citedClearances.map((c) => ({
+      clearance: c,
+      citedIn: sentences('clearance', c.key),
+      check: checkOf('clearance', c.id),
+      ...(compare ? compare(c) : { asPublished: null, change: null }),
+    })),
     claims: e.claims.map((c) => ({ kind: c.kind, key: c.key, text: c.text, line: c.line, status: c.status })),
     broken: e.broken,
     // The gate is judged on the evidence and checks already read for the sheet.
     blockers: isModerator ? await publishBlockers(story, build, user, now, { evidence: e, checks }) : [],
     checks: await checkDtos({ where: { storyId: story.id } }),
+  };
+}
+
+/**
+ * For a story with a current publication (a republication in review, or a published one), a
+ * function that sets each cited clearance beside the same clearance (by id) as that publication
+ * judged it: `asPublished` and, when the verdict or the figures differ, `change` in words. Null
+ * when the story has never been published.
+ */
+async function comparePublished(story: Story, e: StoryEvidence) {
+  if (story.publishedPublicationId === null) return null;
+  const publication = await StoryPublication.findByPk(story.publishedPublicationId);
+  if (!publication) return null;
+  const published = publishedEvidenceOf(publication);
+  const clearancesThen = new Map(published.clearances.map((c) => [c.id, c]));
+  const readingLockThen = new Map(published.readings.map((r) => [r.id, r.lockVersion]));
+  const readingLockNow = new Map(e.readings.map((r) => [r.id, r.lockVersion]));
+  return (c: ClearanceDto) => {
+    const then = clearancesThen.get(c.id);
+    const result = publishedResult(then);
+    if (!then || !result) return { asPublished: null, change: null };
+    const edited = then.lockVersion !== c.lockVersion || c.terms.some((t) => readingLockThen.get(t.readingId) !== readingLockNow.get(t.readingId));
+    return {
+      asPublished: asPublished(result, publication.number),
+      change: changeSincePublished(c, result, publication.number, { edited, specVersionThen: then.spec?.version ?? null }),
+    };
   };
 }

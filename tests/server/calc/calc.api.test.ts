@@ -35,12 +35,38 @@ describe('POST /api/calc, the public calculator', () => {
     // 0.5642 in − 0.5595 in = 0.0047 in = 119.38 µm exactly (1 in = 25.4 mm, NIST SP 811);
     // ≈ 0.0047 in end float is common practice (no published source).
     expect(body.value_um).toBe(119.38);
-    // u = √2 × 2.54 µm/(2√3) (GUM F.2.2.1 and eq. 10), U = 2u.
+    // u = √2 × 2.54 µm/(2√3) (GUM F.2.2.1 and eq. 10).
     expect(body.standardUncertainty_um).toBeCloseTo((Math.SQRT2 * 2.54) / (2 * Math.sqrt(3)), 12);
-    expect(body.expandedUncertainty_um).toBeCloseTo(2 * body.standardUncertainty_um, 12);
+    // Two equal rectangular resolutions (half-width a = 1.27 µm) add to a triangular distribution of
+    // half-width 2a, whose 95 % interval is ±2a(1 − √0.05) = ±1.972 µm (JCGM 101:2008 6.4.2, the
+    // trapezoidal family with equal widths); the Monte Carlo run finds it within its tolerance.
+    expect(body.method).toBe('monte-carlo');
+    expect(body.expandedUncertainty_um!).toBeCloseTo(2.54 * (1 - Math.sqrt(0.05)), 1);
+    expect(body.coverageProbability).toBe(0.95);
+    expect(body.budget).toHaveLength(2);
     expect(body.verdict).toBe('conforms');
     expect(body.steps.at(-1)).toMatch(/within spec.*ISO 14253-1/);
     expect(res.headers['set-cookie']).toBeUndefined();
+  });
+
+  it('still expands by a chosen k exactly: U = k·u_c (GUM 6.2.1)', async () => {
+    const body = calcResponseSchema.parse((await post({ ...endFloat, coverageFactor: 2 }).expect(200)).body);
+    expect(body.method).toBe('gum');
+    expect(body.expandedUncertainty_um!).toBeCloseTo(2 * body.standardUncertainty_um!, 12);
+    expect(body.coverageFactor).toBeCloseTo(2, 12);
+  });
+
+  it('keeps the trailing zeros of a figure sent as text and refuses a number JSON would round', async () => {
+    const asText = calcResponseSchema.parse(
+      (await post({ readings: { d: { kind: 'direct', value: '0.5640', unit: 'in' } }, terms: [{ reading: 'd', sign: 1 }] }).expect(200)).body,
+    );
+    // "0.5640" says 0.0001 in resolution: u = 2.54 µm/(2√3) (GUM F.2.2.1), not 25.4 µm/(2√3).
+    expect(asText.standardUncertainty_um).toBeCloseTo(2.54 / (2 * Math.sqrt(3)), 12);
+    const raw = '{"readings":{"d":{"kind":"direct","value":0.123456789012345678901234567890,"unit":"mm"}},"terms":[{"reading":"d","sign":1}]}';
+    const refused = await request(t.app).post('/api/calc').set('Content-Type', 'application/json').send(raw).expect(400);
+    const error = errorBodySchema.parse(refused.body).error;
+    expect(error.details?.[0]?.path).toBe('readings.d.value');
+    expect(error.details?.[0]?.message).toMatch(/more digits than a JSON number can hold.*decimal string/);
   });
 
   it('answers a feeler-blade bracket with no spec and a null verdict', async () => {

@@ -171,7 +171,6 @@ describe('the published story page', () => {
         { reading: 'rotor-height', sign: -1 },
       ],
       spec: { unit: 'in', min: 0.003, max: 0.005, rule: 'guarded' },
-      coverageFactor: 2,
     });
 
     const claim = page.claims.find((c) => c.kind === 'clearance')!;
@@ -179,9 +178,14 @@ describe('the published story page', () => {
     // 0.5642 in − 0.5595 in = 0.0047 in = 119.38 µm exactly (1 in = 25.4 mm, exact by definition).
     expect(c.valueUm).toBe(119.38);
     expect(c.valueUm).toBe(Number(engine.valuePm) / 1e6);
-    // u = 2.54 µm/(2√3) per reading (GUM F.2.2.1), combined in quadrature (GUM eq. 10), U = 2u (GUM 6.2.1).
-    expect(c.expandedUncertaintyUm).toBeCloseTo((2 * Math.SQRT2 * 2.54) / (2 * Math.sqrt(3)), 9);
-    expect(c.expandedUncertaintyUm).toBe(engine.expandedUncertaintyUm);
+    // u = 2.54 µm/(2√3) per reading (GUM F.2.2.1), combined in quadrature (GUM eq. 10).
+    expect(c.standardUncertaintyUm).toBeCloseTo((Math.SQRT2 * 2.54) / (2 * Math.sqrt(3)), 9);
+    // Two equal rectangulars: triangular, 95 % half-width 2.54(1 − √0.05) µm ≈ 1.972 µm (JCGM 101:2008 6.4.2), by Monte Carlo.
+    expect(c.expandedUncertaintyUm).toBeCloseTo(2.54 * (1 - Math.sqrt(0.05)), 1);
+    expect(c.method).toBe('monte-carlo');
+    expect(c.budget?.length).toBe(2);
+    // Both are Monte Carlo intervals of the same model (seeded by their own requests): equal within the tolerance.
+    expect(c.expandedUncertaintyUm).toBeCloseTo(engine.expandedUncertaintyUm!, 1);
     expect(c.standardUncertaintyUm).toBe(engine.standardUncertaintyUm);
     // 0.0047 lies at least U inside 0.003–0.005 in (ISO 14253-1 guarded acceptance, ILAC-G8:09/2019).
     expect(c.verdict).toBe('conforms');
@@ -228,8 +232,9 @@ describe('the published story page', () => {
   it('gives the figures in the reader’s other system when asked', async () => {
     const metric = publicStorySchema.parse((await anonymous.agent.get(`/api/public/stories/${f.published.story.id}`).query({ units: 'metric' }).expect(200)).body);
     const c = metric.claims.find((x) => x.kind === 'clearance')!.clearance!;
-    // 119.38 µm = 0.11938 mm, given at the place of U = 2.07 µm to two significant digits (GUM 7.2.6).
-    expect(c.converted).toBe('0.1194 mm ± 0.0021 mm (k = 2)');
+    // 119.38 µm = 0.11938 mm, given at the place of U ≈ 1.97 µm to two significant digits (GUM 7.2.6);
+    // k = U/u_c = 1.972/1.037 ≈ 1.90 for the triangular distribution of two equal resolutions.
+    expect(c.converted).toBe('0.1194 mm ± 0.0020 mm (k = 1.90)');
     expect(metric.units).toBe('metric');
     expect(page.claims.find((x) => x.kind === 'clearance')!.clearance!.converted).toBeNull();
     const imperial = publicStorySchema.parse((await anonymous.agent.get(`/api/public/stories/${f.published.story.id}`).query({ units: 'imperial' }).expect(200)).body);

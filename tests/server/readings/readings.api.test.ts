@@ -149,7 +149,8 @@ describe('logging a reading at a moment', () => {
       frameUrl: `/api/clips/${clipId}/frame?t=0.400`,
       reviewState: 'unchecked',
       zeroCheck: { offset: '0.0001', unit: 'in' },
-      engine: { kind: 'direct', value: 0.5643, unit: 'in', resolution: 0.0001, zeroOffset: 0.0001 },
+      // Figures go to the engine as stored text, so their trailing zeros are kept.
+      engine: { kind: 'direct', value: '0.5643', unit: 'in', resolution: '0.0001', zeroOffset: '0.0001' },
       warnings: [],
       lockVersion: 1,
     });
@@ -157,8 +158,9 @@ describe('logging a reading at a moment', () => {
     // (JCGM 100:2008, 3.2.4); 0.5642 × 25.4 = 14 330.68 µm exactly (NIST SP 811, B.8).
     expect(reading.result.valueUm).toBe(14_330.68);
     expect(reading.result.display).toBe('0.5642 in');
-    // Resolution 0.0001 in = 2.54 µm: u = 2.54/(2√3) µm (JCGM 100:2008, F.2.2.1).
-    expect(reading.result.standardUncertaintyUm).toBeCloseTo(2.54 / (2 * SQRT3), 12);
+    // Resolution 0.0001 in = 2.54 µm: u = 2.54/(2√3) µm (JCGM 100:2008, F.2.2.1), once for the
+    // reading and once for the zero check's own reading, which is subtracted (3.2.4, eq. 10).
+    expect(reading.result.standardUncertaintyUm).toBeCloseTo(Math.SQRT2 * (2.54 / (2 * SQRT3)), 12);
     const row = (await Reading.findByPk(reading.id))!;
     expect(row.value).toBe('0.5643');
   });
@@ -199,7 +201,7 @@ describe('logging a reading at a moment', () => {
     expect(reading.values).toEqual(['0.5641', '0.5643', '0.5642']);
     // Mean 0.5642 in − 0.0001 in = 0.5641 in = 14 328.14 µm (JCGM 100:2008, 3.2.4; 1 in = 25.4 mm).
     expect(reading.result.valueUm).toBe(14_328.14);
-    expect(reading.result.steps.join('\n')).toMatch(/zero check read 0\.0001 in; subtracted from the mean/);
+    expect(reading.result.steps.join('\n')).toMatch(/zero check read 0\.0001 in; subtracted: 0\.56420 in − 0\.0001 in = 0\.56410 in/);
   });
 
   it('reads a dial indicator below zero and converts a typed inch value exactly where it can', async () => {

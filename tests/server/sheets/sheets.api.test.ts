@@ -104,8 +104,9 @@ describe('the inspection sheet of a part', () => {
     const c = sheet.clearances[0]!;
     // 0.5642 in − 0.5595 in = 0.0047 in = 119.38 µm (1 in = 25.4 mm exactly).
     expect(c.valueUm).toBe(119.38);
-    // U = 2 × √2 × 2.54 µm/(2√3): two 0.0001 in resolutions (GUM F.2.2.1, eq. 10, 6.2.1).
-    expect(c.expandedUncertaintyUm).toBeCloseTo((2 * Math.SQRT2 * 2.54) / (2 * Math.sqrt(3)), 9);
+    // Two 0.0001 in resolutions (GUM F.2.2.1), rectangular and equal, add to a triangular distribution
+    // of half-width 2.54 µm: 95 % interval ±2.54(1 − √0.05) µm ≈ ±1.972 µm (JCGM 101:2008 6.4.2), by Monte Carlo.
+    expect(c.expandedUncertaintyUm).toBeCloseTo(2.54 * (1 - Math.sqrt(0.05)), 1);
     expect(c).toMatchObject({ verdict: 'conforms', verdictWords: 'within spec', rule: 'guarded', checkedBy: 'Dagny Orlov', storyId: published.story.id, revision: 1 });
     expect(c.display).toBe(published.clearance.result!.display);
     expect(c.spec).toMatchObject({ name: 'Pump end float (invented, test)', version: 1, sourceText: 'Invented workshop manual, section 3 (test figures)' });

@@ -47,9 +47,29 @@ describe('computeClearance: end float from a depth and a height', () => {
     expect(result.expandedUncertaintyUm).toBeCloseTo(2 * Math.SQRT2 * uEach, 12);
     expect(result.verdict).toBeNull();
     expect(result.band).toBeNull();
-    // U = 2.074 µm = 0.0000817 in → two significant digits, value to the same place (GUM 7.2.6).
-    expect(result.display).toBe('0.004700 in ± 0.000082 in (k = 2)');
+    // U = 2.074 µm = 0.0000817 in → two significant digits, value to the same place (GUM 7.2.6),
+    // with the k chosen (GUM 7.2.3).
+    expect(result.display).toMatch(/^0\.004700 in ± 0\.000082 in \(.*k = 2(\.00)?\)$/);
+    expect(result.method).toBe('gum');
+    expect(result.fixedCoverageFactor).toBe(true);
     expect(result.steps.join('\n')).toMatch(/Clearance = bore-depth − rotor-height = 0\.5642 in − 0\.5595 in = 0\.0047 in/);
+  });
+
+  it('gives the 95 % interval of the triangular sum when no k is chosen', () => {
+    const result = ok(computeClearance({ terms: endFloat, spec: null, coverageFactor: null }));
+    // Two rectangulars of half-width a = 1.27 µm add to a triangular of half-width 2a = 2.54 µm
+    // (GUM 4.3.9; JCGM 101:2008 6.4.5): 95 % interval ±2a(1 − √0.05) = ±1.972 µm, found by Monte
+    // Carlo (JCGM 101:2008 7.9, 8.2), to the numerical tolerance δ = 0.05 µm (u_c = 1.0 µm, 7.9.2).
+    const half = 2.54 * (1 - Math.sqrt(0.05));
+    const delta = 0.05;
+    expect(result.valueUm).toBe(119.38);
+    expect(result.coverageProbability).toBe(0.95);
+    expect(result.fixedCoverageFactor).toBe(false);
+    expect(result.method).toBe('monte-carlo');
+    expect(Math.abs(result.expandedUncertaintyUm - half)).toBeLessThanOrEqual(delta);
+    const [low, high] = result.intervalUm ?? [Number.NaN, Number.NaN];
+    expect(Math.abs(low - (119.38 - half))).toBeLessThanOrEqual(delta);
+    expect(Math.abs(high - (119.38 + half))).toBeLessThanOrEqual(delta);
   });
 
   it('is within spec against 0.003–0.005 in by the guarded rule, with the band in µm', () => {
@@ -86,7 +106,7 @@ describe('computeClearance: end float from a depth and a height', () => {
     const result = ok(computeClearance({ terms: endFloat, spec: spec({ unit: 'mm', min: '0.08', max: '0.13' }), coverageFactor: 2 }));
     expect(result.unit).toBe('mm');
     expect(result.verdict).toBe('conforms');
-    expect(result.display).toMatch(/ mm \(k = 2\)$/);
+    expect(result.display).toMatch(/ mm \(.*k = 2(\.00)?\)$/);
   });
 });
 
@@ -95,11 +115,21 @@ describe('computeClearance: a feeler gap', () => {
     const result = ok(
       computeClearance({ terms: [{ key: 'tip-gap', engine: { kind: 'bracket', passes: 0.003, stops: 0.004, unit: 'in' }, sign: 1 }], spec: null, coverageFactor: 3 }),
     );
-    // Midpoint 0.0035 in = 88.9 µm; a = 0.0005 in = 12.7 µm; u = a/√3 (JCGM 100:2008, 4.3.7); U = 3u (GUM 6.2.1).
+    // Midpoint 0.0035 in = 88.9 µm; a = 0.0005 in = 12.7 µm; u = a/√3 (JCGM 100:2008, 4.3.7); U = 3u
+    // with k reported as chosen (GUM 6.2.1).
     expect(result.valueUm).toBe(88.9);
     expect(result.standardUncertaintyUm).toBeCloseTo(12.7 / SQRT3, 12);
     expect(result.expandedUncertaintyUm).toBeCloseTo((3 * 12.7) / SQRT3, 12);
     expect(result.coverageFactor).toBe(3);
+  });
+
+  it('has a 95 % interval of ±0.95a when no k is chosen', () => {
+    const result = ok(computeClearance({ terms: [{ key: 'tip-gap', engine: { kind: 'bracket', passes: '0.003', stops: '0.004', unit: 'in' }, sign: 1 }], spec: null, coverageFactor: null }));
+    // Rectangular on ±a: the 95 % interval is ±0.95a = ±12.065 µm (GUM G.1.3; JCGM 101:2008 6.4.2),
+    // to δ = 0.05 µm (u = 7.3 µm, JCGM 101:2008 7.9.2).
+    expect(result.valueUm).toBe(88.9);
+    expect(Math.abs(result.expandedUncertaintyUm - 0.95 * 12.7)).toBeLessThanOrEqual(0.05);
+    expect(result.method).toBe('monte-carlo');
   });
 });
 

@@ -40,9 +40,11 @@ describe('bad calculator input is refused with the field named', () => {
     ['a zero resolution', (r) => void (r.readings.bore!.resolution = 0), 'readings.bore.resolution', /resolution must be greater than 0/],
     ['an absurd resolution', (r) => void (r.readings.bore!.resolution = 1), 'readings.bore.resolution', /resolution must be no coarser than 10 mm/],
     ['a negative uncertainty', (r) => void (r.readings.bore!.uncertainty = -0.0001), 'readings.bore.uncertainty', /uncertainty must be at least 0/],
-    ['NaN', (r) => void (r.readings.bore!.value = Number.NaN), 'readings.bore.value', /value must be a finite number/],
-    ['Infinity', (r) => void (r.readings.bore!.value = Number.POSITIVE_INFINITY), 'readings.bore.value', /value must be a finite number/],
-    ['a value as text', (r) => void (r.readings.bore!.value = '0.5642'), 'readings.bore.value', /value must be a finite number/],
+    ['NaN', (r) => void (r.readings.bore!.value = Number.NaN), 'readings.bore.value', /value must be a number or a decimal string/],
+    ['Infinity', (r) => void (r.readings.bore!.value = Number.POSITIVE_INFINITY), 'readings.bore.value', /value must be a number or a decimal string/],
+    ['a value as text that is not a decimal', (r) => void (r.readings.bore!.value = '0.5642 in'), 'readings.bore.value', /value must be a decimal number like "0\.5640"/],
+    ['a value as text with an exponent', (r) => void (r.readings.bore!.value = '5.642e-1'), 'readings.bore.value', /no exponent/],
+    ['an empty text value', (r) => void (r.readings.bore!.value = ''), 'readings.bore.value', /value must be a decimal number/],
     ['a missing value', (r) => void delete r.readings.bore!.value, 'readings.bore.value', /value is required/],
     ['a length over 2 m', (r) => void (r.readings.bore!.value = 100), 'readings.bore.value', /value must be no more than 2 m/],
     ['a length of −3 m', (r) => void (r.readings.bore!.value = -3000), 'readings.bore.value', /no more than 2 m/],
@@ -50,7 +52,7 @@ describe('bad calculator input is refused with the field named', () => {
     ['a float artefact', (r) => void ((r.readings.rep!.values as number[])[0] = 0.1 + 0.2), 'readings.rep.values.0', /decimal places/],
     ['too many values', (r) => void (r.readings.rep!.values = Array.from({ length: 1001 }, () => 1)), 'readings.rep.values', /at most 1000/],
     ['a repeated reading of one value', (r) => void (r.readings.rep!.values = [1]), 'readings.rep.values', /at least 2/],
-    ['an unknown kind', (r) => void (r.readings.bore!.kind = 'guess'), 'readings.bore.kind', /kind must be "direct", "bracket" or "repeated"/],
+    ['an unknown kind', (r) => void (r.readings.bore!.kind = 'guess'), 'readings.bore.kind', /kind must be "direct", "bracket", "blade" or "repeated"/],
     ['a misspelt field', (r) => void (r.readings.bore!.resoluton = 0.0001), 'readings.bore', /resoluton/],
     ['a temperature with no material or coefficient', (r) => void (r.readings.bore!.temperatureC = 30), 'readings.bore.temperatureC', /needs a material or an expansionPerK/],
     ['an unknown material', (r) => void Object.assign(r.readings.bore!, { temperatureC: 30, material: 'unobtainium' }), 'readings.bore.material', /material must be one of/],
@@ -94,6 +96,14 @@ describe('bad calculator input is refused with the field named', () => {
 
   it('accepts the good request the cases start from', () => {
     expect(calcResponseSchema.safeParse(computeCalc(good())).success).toBe(true);
+  });
+
+  it('accepts a value as decimal text, exactly as the number', () => {
+    const asText = good();
+    asText.readings.bore!.value = '0.5642';
+    // 0.5642 in = 14 330.68 µm exactly (1 in = 25.4 mm, NIST SP 811 B.8), whichever way it is sent.
+    expect(computeCalc(asText).value_um).toBe(14_330.68);
+    expect(computeCalc(asText).value_um).toBe(computeCalc(good()).value_um);
   });
 });
 
@@ -153,24 +163,48 @@ describe('no input makes the calculator throw anything but a validation error', 
     fc.assert(fc.property(request, neverThrowsOtherwise), { numRuns: 3000 });
   });
 
-  it('computes something for valid random requests, and it is finite', () => {
-    const unit = fc.constantFrom('in', 'thou', 'tenth', 'mm', 'um');
-    const small = fc.integer({ min: 0, max: 100_000 }).map((n) => n / 10_000);
-    const reading = fc.oneof(
-      fc.record({ kind: fc.constant('direct'), value: small, unit, resolution: fc.constantFrom(0.01, 0.001, 0.0001) }),
-      fc.tuple(small, fc.integer({ min: 1, max: 50 }), unit).map(([p, d, u]) => ({ kind: 'bracket', passes: p, stops: Number((p + d / 1000).toFixed(4)), unit: u })),
-    );
+  const unit = fc.constantFrom('in', 'thou', 'tenth', 'mm', 'um');
+  const small = fc.integer({ min: 0, max: 100_000 }).map((n) => n / 10_000);
+  const validReading = fc.oneof(
+    fc.record({ kind: fc.constant('direct'), value: small, unit, resolution: fc.constantFrom(0.01, 0.001, 0.0001) }),
+    fc.tuple(small, fc.integer({ min: 1, max: 50 }), unit).map(([p, d, u]) => ({ kind: 'bracket', passes: p, stops: Number((p + d / 1000).toFixed(4)), unit: u })),
+  );
+  const validRequest = (readings: Record<string, unknown>[], signs: number[]) => ({
+    readings: Object.fromEntries(readings.map((r, i) => [`r${i}`, r])),
+    terms: readings.map((_, i) => ({ reading: `r${i}`, sign: signs[i] })),
+  });
+  const signs = fc.array(fc.constantFrom(1, -1), { minLength: 6, maxLength: 6 });
+
+  it('computes something for valid random requests, and it is finite, with U = 2u when k = 2 is asked for', () => {
     fc.assert(
-      fc.property(fc.array(reading, { minLength: 1, maxLength: 6 }), fc.array(fc.constantFrom(1, -1), { minLength: 6, maxLength: 6 }), (readings, signs) => {
-        const request = {
-          readings: Object.fromEntries(readings.map((r, i) => [`r${i}`, r])),
-          terms: readings.map((_, i) => ({ reading: `r${i}`, sign: signs[i] })),
-        };
-        const result = computeCalc(request);
-        expect(result.standardUncertainty_um).toBeGreaterThan(0);
-        expect(result.expandedUncertainty_um).toBeCloseTo(2 * result.standardUncertainty_um, 9);
+      fc.property(fc.array(validReading, { minLength: 1, maxLength: 6 }), signs, (readings, s) => {
+        const result = computeCalc({ ...validRequest(readings, s), coverageFactor: 2 });
+        const u = result.standardUncertainty_um!;
+        expect(u).toBeGreaterThan(0);
+        // U = k·u_c with the chosen k (GUM 6.2.1).
+        expect(result.expandedUncertainty_um).toBeCloseTo(2 * u, 9);
+        expect(result.method).toBe('gum');
       }),
       { numRuns: 500 },
+    );
+  });
+
+  it('gives a 95 % interval between the rectangular\'s and the normal\'s by default', () => {
+    // Every input here is rectangular (resolutions, feeler brackets), so the output is a
+    // convolution of rectangulars: its 95 % coverage factor lies between a lone rectangular's
+    // 0.95√3 ≈ 1.645 and the normal's 1.960 (GUM G.1.3, G.2.2), to within the Monte Carlo
+    // numerical tolerance δ (JCGM 101:2008 7.9.2: ½ unit in the second significant digit of u,
+    // at most 5 % of u).
+    fc.assert(
+      fc.property(fc.array(validReading, { minLength: 1, maxLength: 6 }), signs, (readings, s) => {
+        const result = computeCalc(validRequest(readings, s));
+        const u = result.standardUncertainty_um!;
+        const U = result.expandedUncertainty_um!;
+        expect(result.coverageProbability).toBe(0.95);
+        expect(U).toBeGreaterThanOrEqual((0.95 * Math.sqrt(3) - 0.05) * u);
+        expect(U).toBeLessThanOrEqual((1.96 + 0.05) * u);
+      }),
+      { numRuns: 60 },
     );
   });
 });

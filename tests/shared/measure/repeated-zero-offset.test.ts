@@ -21,15 +21,31 @@ describe('a zero offset on a repeated reading', () => {
     expect(plain.value_um).toBeCloseTo(Number(mean(valuesUm)), 9);
     expect(zeroed.value_um).toBe(25_011);
     // Subtracting one constant from every value does not change s (GUM 4.2.2) or u_A = s/√n
-    // (GUM 4.2.3); resolution 1 µm → 1/(2√3) µm (GUM F.2.2.1).
+    // (GUM 4.2.3); resolution 1 µm → 1/(2√3) µm (GUM F.2.2.1). The zero check is itself a reading
+    // at the same 1 µm resolution, so the correction brings its own 1/(2√3) µm (GUM 3.2.3,
+    // F.2.2.1), combined in quadrature (GUM eq. 10).
     const uA = Number(std(valuesUm)) / Math.sqrt(values.length);
-    expect(zeroed.standardUncertainty_um).toBeCloseTo(Math.hypot(uA, 1 / (2 * SQRT3)), 12);
-    expect(zeroed.standardUncertainty_um).toBe(plain.standardUncertainty_um);
+    const uRes = 1 / (2 * SQRT3);
+    const typeA = (result: typeof plain) => result.budget.find((line) => line.distribution === 'student-t');
+    expect(typeA(zeroed)?.standardUncertainty).toBe(typeA(plain)?.standardUncertainty);
+    expect(typeA(zeroed)?.standardUncertainty).toBeCloseTo(uA / 1000, 12); // in mm
+    expect(typeA(zeroed)?.degreesOfFreedom).toBe(values.length - 1); // ν = n − 1 (GUM G.3.3)
+    expect(plain.standardUncertainty_um).toBeCloseTo(Math.hypot(uA, uRes), 12);
+    expect(zeroed.standardUncertainty_um).toBeCloseTo(Math.hypot(uA, uRes, uRes), 12);
+  });
+
+  it('takes the zero check\'s own resolution when it is given', () => {
+    const zeroed = single({ kind: 'repeated', values, unit: 'mm', resolution: 0.001, zeroOffset: '0.0020', zeroResolution: 0.0001 });
+    const uA = Number(std(values.map((v) => v * 1000))) / Math.sqrt(values.length);
+    // Zero check at 0.1 µm resolution → 0.1/(2√3) µm (GUM F.2.2.1), with u_A and the reading's 1/(2√3) µm.
+    expect(zeroed.value_um).toBe(25_011);
+    expect(zeroed.standardUncertainty_um).toBeCloseTo(Math.hypot(uA, 1 / (2 * SQRT3), 0.1 / (2 * SQRT3)), 12);
   });
 
   it('shows the subtraction as its own line of working', () => {
     const steps = single({ kind: 'repeated', values, unit: 'mm', resolution: 0.001, zeroOffset: 0.002 }).steps;
-    expect(steps.join('\n')).toMatch(/r: zero check read 0\.002 mm; subtracted from the mean: 25\.0130 mm − 0\.002 mm = 25\.0110 mm/);
+    expect(steps.join('\n')).toMatch(/r: zero check read 0\.002 mm; subtracted: 25\.0130 mm − 0\.002 mm = 25\.0110 mm\./);
+    expect(steps.join('\n')).toMatch(/r: zero check resolution 0\.001 mm, a rectangular distribution .*u = 0\.001 mm\/\(2√3\) = 0\.00029 mm \(0\.29 µm\) \(GUM F\.2\.2\.1/);
   });
 
   it('reads a negative offset (the instrument read under the standard) as adding to the mean', () => {

@@ -1,6 +1,7 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { computeCalc } from '@shared/measure/calc';
+import Fraction from 'fraction.js';
+import { computeCalc, evaluateCalc, judgeInterval, parseCalcRequest } from '@shared/measure/calc';
 import { decisionRuleText, guardedLimits, judge, verdictWords } from '@shared/measure/spec';
 import { judgeSpec, specSchema } from '@shared/measure/spec.schema';
 import { picometresPerUnit } from '@shared/measure/units';
@@ -123,18 +124,72 @@ describe('words and rule text', () => {
   });
 });
 
+describe('judging a coverage interval (the calculator\'s guarded rule)', () => {
+  // ISO 14253-1 guarded rule on the coverage interval itself: within spec when the whole
+  // interval lies inside every limit, out of spec when it lies wholly outside one; touching a
+  // limit counts as inside (low = min, high = max) or as outside (high = min, low = max).
+  const F = (x: string) => new Fraction(x);
+  const band35 = { min: F('3'), max: F('5') };
+  const verdictOf = (value: string, low: string, high: string, rule: 'guarded' | 'simple' = 'guarded') =>
+    judgeInterval(F(value), F(low), F(high), band35, rule).verdict;
+
+  it.each([
+    ['well inside', '4', '3.8', '4.2', 'conforms'],
+    ['touching min from inside', '3.2', '3', '3.5', 'conforms'],
+    ['touching max from inside', '4.8', '4.5', '5', 'conforms'],
+    ['straddling min', '3.1', '2.9', '3.3', 'undecided'],
+    ['straddling max', '4.9', '4.7', '5.1', 'undecided'],
+    ['touching min from outside', '2.8', '2.5', '3', 'does-not-conform'],
+    ['touching max from outside', '5.2', '5', '5.4', 'does-not-conform'],
+    ['wider than the band', '4', '2.5', '5.5', 'undecided'],
+  ] as const)('an interval %s is %s', (_, value, low, high, expected) => {
+    expect(verdictOf(value, low, high)).toBe(expected);
+  });
+
+  it('uses each end of an asymmetric interval, not a symmetric ± U', () => {
+    // value 4, interval [3.9, 4.3] against max 4.25: value + (value − low) = 4.1 ≤ 4.25, but the
+    // interval's high end 4.3 is past the limit, so it cannot be shown within spec.
+    const judged = judgeInterval(F('4'), F('3.9'), F('4.3'), { max: F('4.25') }, 'guarded');
+    expect(judged.verdict).toBe('undecided');
+    // Where the decision changes for this interval: acceptMax = max − (high − value) = 3.95,
+    // rejectAbove = max + (value − low) = 4.35.
+    expect(judged.limits.acceptMax).toBeCloseTo(3.95, 12);
+    expect(judged.limits.rejectAbove).toBeCloseTo(4.35, 12);
+    expect(judged.words).toBe('too close to call');
+  });
+
+  it('compares the value alone under the simple rule (ILAC-G8 simple acceptance)', () => {
+    expect(verdictOf('3', '2.5', '3.5', 'simple')).toBe('conforms');
+    expect(verdictOf('5.1', '4.9', '5.3', 'simple')).toBe('does-not-conform');
+  });
+});
+
 describe('the whole calculator at an exact boundary', () => {
-  it('is within spec at exactly min + U and too close to call a picometre lower', () => {
-    const readings = { gap: { kind: 'direct', value: 0.0047, unit: 'in', resolution: 0.0001 } } as const;
-    const terms = [{ reading: 'gap', sign: 1 }] as const;
-    const bare = computeCalc({ readings, terms });
-    const valuePm = Math.round(bare.value_um * 1e6);
-    const expandedPm = Math.round(bare.expandedUncertainty_um * 1e6); // U is held to the picometre
-    const minAt = (pm: number) => pm / 1e6; // µm with 6 places = whole picometres, exact
-    const atBoundary = computeCalc({ readings, terms, spec: { min: minAt(valuePm - expandedPm), unit: 'um' } });
-    const justInside = computeCalc({ readings, terms, spec: { min: minAt(valuePm - expandedPm + 1), unit: 'um' } });
-    expect(atBoundary.verdict).toBe('conforms');
-    expect(justInside.verdict).toBe('undecided');
+  // k = 2 chosen, so the interval is y ± 2u_c (GUM 6.2.1) with no Monte Carlo run and does not move
+  // with the spec; the result in µm so that a spec limit to the picometre (6 places) is exact.
+  const readings = { gap: { kind: 'direct', value: 0.0047, unit: 'in', resolution: 0.0001 } } as const;
+  const terms = [{ reading: 'gap', sign: 1 }] as const;
+  const base = { readings, terms, coverageFactor: 2, resultUnit: 'um' } as const;
+  const [low, high] = computeCalc(base).coverageInterval;
+  /** The interval end as an exact fraction of its shortest decimal, rounded to a picometre (µm, 6 places). */
+  const pmBelow = (x: number) => new Fraction(String(x)).floor(6);
+  const pmAbove = (x: number) => new Fraction(String(x)).ceil(6);
+  const onePm = new Fraction(1, 1_000_000);
+  const text = (f: Fraction) => f.toString(6);
+
+  it('is within spec with min at or below the interval\'s low end and too close to call a picometre higher', () => {
+    expect(computeCalc({ ...base, spec: { min: text(pmBelow(low)), unit: 'um' } }).verdict).toBe('conforms');
+    expect(computeCalc({ ...base, spec: { min: text(pmBelow(low).add(onePm)), unit: 'um' } }).verdict).toBe('undecided');
+  });
+
+  it('is within spec with max at or above the interval\'s high end and too close to call a picometre lower', () => {
+    expect(computeCalc({ ...base, spec: { max: text(pmAbove(high)), unit: 'um' } }).verdict).toBe('conforms');
+    expect(computeCalc({ ...base, spec: { max: text(pmAbove(high).sub(onePm)), unit: 'um' } }).verdict).toBe('undecided');
+  });
+
+  it('is out of spec with min at or above the interval\'s high end and too close to call a picometre lower', () => {
+    expect(computeCalc({ ...base, spec: { min: text(pmAbove(high)), unit: 'um' } }).verdict).toBe('does-not-conform');
+    expect(computeCalc({ ...base, spec: { min: text(pmAbove(high).sub(onePm)), unit: 'um' } }).verdict).toBe('undecided');
   });
 });
 
@@ -151,36 +206,55 @@ describe('a full spec with a preferred band and a reject limit', () => {
     source: { kind: 'common-practice', text: 'Rotor-type oil pump outer rotor to body clearance (no published source)' },
     version: 1,
   });
-  const bracketU = (passes: number, stops: number) =>
-    computeCalc({ readings: { g: { kind: 'bracket', passes, stops, unit: 'in' } }, terms: [{ reading: 'g', sign: 1 }] });
+  const calcSpec = { unit: 'in', min: 0.003, max: 0.008, preferred: { min: 0.003, max: 0.004 }, reject: 0.008 } as const;
 
-  const judgedBracket = (passes: number, stops: number) => {
-    const result = bracketU(passes, stops);
-    return judgeSpec(BigInt(Math.round(result.value_um * 1e6)), BigInt(Math.round(result.expandedUncertainty_um * 1e6)), pumpSpec);
+  /** The calculator's verdicts on a bracket, and the library judge's with the same value and U. */
+  const judgedBracket = (passes: number | string, stops: number | string) => {
+    const readings = { g: { kind: 'bracket', passes, stops, unit: 'in' } } as const;
+    const terms = [{ reading: 'g', sign: 1 }] as const;
+    const evaluation = evaluateCalc(parseCalcRequest({ readings, terms, spec: calcSpec }));
+    const result = computeCalc({ readings, terms });
+    const library = judgeSpec(BigInt(Math.round(result.value_um! * 1e6)), BigInt(Math.round(result.expandedUncertainty_um! * 1e6)), pumpSpec);
+    return { evaluation, library };
   };
 
-  it('finds feeler blades in 0.001 in steps too coarse to prove a gap of 0.003–0.004 in', () => {
-    // 0.0035 in ± 0.00058 in (U = 2 × 0.0005 in/√3, GUM 4.3.7): within U of the 0.003 in limit,
-    // so neither the band nor the preferred band can be proved either way.
-    const judged = judgedBracket(0.003, 0.004);
-    expect(judged.band.verdict).toBe('undecided');
-    expect(judged.preferred?.verdict).toBe('undecided');
-    expect(judged.reject).toMatchObject({ verdict: 'conforms', side: 'upper', words: 'clear of the reject limit' });
+  it('proves a 0.003–0.004 in bracket within the preferred 0.003–0.004 in band: the gap lies between the blades', () => {
+    // 95 % interval 0.0035 in ± 0.95 × 0.0005 in = [0.003025, 0.003975] in (rectangular between
+    // the blades, GUM 4.3.7, G.1.3; JCGM 101:2008 6.4.2): inside the band and the preferred band.
+    const { evaluation, library } = judgedBracket(0.003, 0.004);
+    expect(evaluation.judgement?.verdict).toBe('conforms');
+    expect(evaluation.preferredJudgement?.verdict).toBe('conforms');
+    expect(evaluation.rejectJudgement).toMatchObject({ verdict: 'conforms', side: 'upper', words: 'clear of the reject limit' });
+    // The library judge, with U the larger side of the same interval, agrees.
+    expect([library.band.verdict, library.preferred?.verdict, library.reject?.verdict]).toEqual(['conforms', 'conforms', 'conforms']);
   });
 
-  it('proves a 0.004–0.005 in bracket within the band but cannot place it against the preferred band', () => {
-    // 0.0045 in ± 0.00058 in: at least U inside 0.003–0.008; less than U past the preferred 0.004 in.
-    const judged = judgedBracket(0.004, 0.005);
-    expect(judged.band.verdict).toBe('conforms');
-    expect(judged.preferred?.verdict).toBe('undecided');
-    expect(judged.reject?.verdict).toBe('conforms');
+  it('proves a 0.004–0.005 in bracket within the band and outside the preferred band', () => {
+    // [0.004025, 0.004975] in: inside 0.003–0.008; wholly above the preferred 0.004 in (the 0.004 in
+    // blade entered), so outside it by the guarded rule (ISO 14253-1).
+    const { evaluation, library } = judgedBracket(0.004, 0.005);
+    expect(evaluation.judgement?.verdict).toBe('conforms');
+    expect(evaluation.preferredJudgement?.verdict).toBe('does-not-conform');
+    expect(evaluation.rejectJudgement?.verdict).toBe('conforms');
+    expect([library.band.verdict, library.preferred?.verdict, library.reject?.verdict]).toEqual(['conforms', 'does-not-conform', 'conforms']);
+  });
+
+  it('cannot place a bracket whose blades straddle the preferred limit', () => {
+    // 0.0035 / 0.0045 in blades: 0.004 in ± 0.000475 in = [0.003525, 0.004475] in straddles the
+    // preferred 0.004 in, so too close to call against it; inside the band.
+    const { evaluation } = judgedBracket('0.0035', '0.0045');
+    expect(evaluation.judgement?.verdict).toBe('conforms');
+    expect(evaluation.preferredJudgement?.verdict).toBe('undecided');
   });
 
   it('finds a worn pump past its reject limit', () => {
-    const judged = judgedBracket(0.009, 0.01);
-    expect(judged.band.verdict).toBe('does-not-conform');
-    expect(judged.reject?.verdict).toBe('does-not-conform');
-    expect(judged.reject?.words).toBe('past the reject limit');
+    // [0.009025, 0.009975] in lies wholly above 0.008 in.
+    const { evaluation, library } = judgedBracket(0.009, 0.01);
+    expect(evaluation.judgement?.verdict).toBe('does-not-conform');
+    expect(evaluation.rejectJudgement?.verdict).toBe('does-not-conform');
+    expect(evaluation.rejectJudgement?.words).toBe('past the reject limit');
+    expect(library.band.verdict).toBe('does-not-conform');
+    expect(library.reject?.verdict).toBe('does-not-conform');
   });
 
   it('refuses a spec whose preferred band leaves the limits, whose reject lies inside, or with no source', () => {

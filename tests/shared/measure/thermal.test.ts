@@ -86,6 +86,52 @@ describe('correction to the 20 °C reference temperature', () => {
     // 100 mm / 1.000117 and 100 mm / 1.000236 (exact form), computed by the BigNumber referee above.
     expect(byMaterial.value_um).toBeCloseTo(Number(referee(100n * picometresPerUnit.mm, '11.7e-6', '30')) / 1e6, 6);
     expect(explicit.value_um).toBeCloseTo(Number(referee(100n * picometresPerUnit.mm, '23.6e-6', '30')) / 1e6, 6);
-    expect(byMaterial.steps.join('\n')).toMatch(/corrected to 20 °C.*Callister/);
+    expect(byMaterial.steps.join('\n')).toMatch(/α = 11\.7×10⁻⁶\/K \(Carbon steel, typical handbook figure \(Callister, Table B\.6\)\)/);
+    expect(byMaterial.steps.join('\n')).toMatch(/the instrument taken to be at 20 °C .*corrected to 20 °C \(ISO 1, GUM H\.1\)/);
+  });
+});
+
+/** L20 = L·(1 + α_s(t_s − 20))/(1 + α(t − 20)) (GUM H.1) in exact decimal arithmetic, µm. */
+function refereeWithInstrument(lengthMm: string, alpha: string, t: string, alphaS: string, tS: string): number {
+  const num = big.add(1, big.multiply(big.bignumber(alphaS), big.subtract(big.bignumber(tS), 20))) as never;
+  const den = big.add(1, big.multiply(big.bignumber(alpha), big.subtract(big.bignumber(t), 20))) as never;
+  const l20 = big.divide(big.multiply(big.bignumber(lengthMm), num) as never, den) as unknown as { toString(): string };
+  return Number(l20.toString()) * 1000;
+}
+
+describe('correction with the instrument\'s temperature and expansion (GUM H.1)', () => {
+  const reading = (over: Record<string, unknown>) => ({ kind: 'direct', value: 100, unit: 'mm', resolution: 0.001, instrument: 'mic', ...over });
+  const calc = (r: Record<string, unknown>, mic: Record<string, unknown>) =>
+    computeCalc({ readings: { d: r }, instruments: { mic }, terms: [{ reading: 'd', sign: 1 }] });
+
+  it('needs no correction when a steel part and a steel instrument share a temperature', () => {
+    // α_s(t_s − 20) = α(t − 20), so L20 = L (GUM H.1: only the difference in expansion matters).
+    // The instrument's α_s is carbon steel's 11.7×10⁻⁶/K when not given (Callister Table B.6).
+    const result = calc(reading({ temperatureC: 25, material: 'steel' }), { temperatureC: 25 });
+    expect(result.value_um).toBeCloseTo(100_000, 6);
+  });
+
+  it('corrects an aluminium part at 30 °C read with a steel instrument at 25 °C', () => {
+    // L20 = 100 mm × (1 + 11.7e-6 × 5)/(1 + 23.6e-6 × 10) (GUM H.1; α from Callister Table B.6).
+    const result = calc(reading({ temperatureC: 30, material: 'aluminium-alloy' }), { temperatureC: 25 });
+    expect(result.value_um).toBeCloseTo(refereeWithInstrument('100', '23.6e-6', '30', '11.7e-6', '25'), 6);
+    // An explicit instrument coefficient takes the place of carbon steel's.
+    const invarish = calc(reading({ temperatureC: 30, material: 'aluminium-alloy' }), { temperatureC: 25, expansionPerK: 1.5e-6 });
+    expect(invarish.value_um).toBeCloseTo(refereeWithInstrument('100', '23.6e-6', '30', '1.5e-6', '25'), 6);
+  });
+
+  it('adds the part temperature\'s uncertainty through ∂L20/∂t', () => {
+    // ∂L20/∂t = −L20·α/(1 + α(t − 20)) (GUM H.1, eq. 10 with c_t = ∂f/∂t); u(t) = 0.5 K. The
+    // resolution's 1/(2√3) µm is scaled by ∂L20/∂L = 1/(1 + α(t − 20)) (instrument at 20 °C).
+    const alpha = 11.7e-6;
+    const result = computeCalc({
+      readings: { d: { kind: 'direct', value: 100, unit: 'mm', resolution: 0.001, temperatureC: 30, temperatureUncertaintyC: 0.5, material: 'steel' } },
+      terms: [{ reading: 'd', sign: 1 }],
+    });
+    const factor = 1 / (1 + alpha * 10);
+    const l20Um = 100_000 * factor;
+    const uT = (l20Um * alpha * 0.5) / (1 + alpha * 10);
+    const uRes = factor / (2 * Math.sqrt(3));
+    expect(result.standardUncertainty_um).toBeCloseTo(Math.hypot(uT, uRes), 9);
   });
 });

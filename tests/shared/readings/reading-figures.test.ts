@@ -85,7 +85,7 @@ describe('normaliseReadingFigures: texts as typed become decimal text in one uni
 });
 
 describe('toEngineReading: the instrument and the day fill in the engine reading', () => {
-  const stored = (over: Partial<ReadingFigures> & { kind: 'direct' | 'bracket' | 'repeated' }) => ({
+  const stored = (over: Partial<ReadingFigures> & { kind: 'direct' | 'bracket' | 'repeated'; temperatureC?: number | null; material?: string | null }) => ({
     unit: 'in' as const,
     value: null,
     passes: null,
@@ -103,8 +103,9 @@ describe('toEngineReading: the instrument and the day fill in the engine reading
       { unit: 'in', kind: 'outside-micrometer', resolution: '0.0001', statedUncertainty: '0.00005' },
       null,
     );
-    // 0.0001 in = 0.1 thou, 0.00005 in = 0.05 thou, exactly.
-    expect(engine).toEqual({ kind: 'direct', value: 564.2, unit: 'thou', resolution: 0.1, uncertainty: 0.05 });
+    // 0.0001 in = 0.1 thou, 0.00005 in = 0.05 thou, exactly; figures go to the engine as decimal
+    // text, so the digits as stored are the digits the engine reads (GUM 3.2.3–3.2.4).
+    expect(engine).toEqual({ kind: 'direct', value: '564.2', unit: 'thou', resolution: '0.1', uncertainty: '0.05' });
     expect(warnings).toEqual([]);
   });
 
@@ -115,7 +116,7 @@ describe('toEngineReading: the instrument and the day fill in the engine reading
       null,
     );
     // 0.001 mm / 25.4 mm per in = 0.0000393700787… in, rounded to 8 places (NIST SP 811, B.8).
-    expect(engine).toMatchObject({ resolution: 0.00003937 });
+    expect(engine).toMatchObject({ resolution: '0.00003937' });
     expect(warnings).toEqual([{ code: 'resolution-converted', message: expect.stringMatching(/0\.001 mm .* rounded to 0\.00003937 in/) }]);
   });
 
@@ -136,7 +137,7 @@ describe('toEngineReading: the instrument and the day fill in the engine reading
       { unit: 'in', kind: 'outside-micrometer', resolution: '0.0001', statedUncertainty: null },
       { offset: '0.0002', unit: 'in' },
     );
-    expect(engine).toEqual({ kind: 'repeated', unit: 'in', values: [0.5641, 0.5643, 0.5642], resolution: 0.0001, zeroOffset: 0.0002 });
+    expect(engine).toEqual({ kind: 'repeated', unit: 'in', values: ['0.5641', '0.5643', '0.5642'], resolution: '0.0001', zeroOffset: '0.0002' });
     // Mean 0.5642 in − 0.0002 in = 0.5640 in = 14 325.6 µm (JCGM 100:2008, 3.2.4; 1 in = 25.4 mm).
     expect(evaluateReading('r', engine).valuePm).toBe(14_325_600_000n);
   });
@@ -147,12 +148,34 @@ describe('toEngineReading: the instrument and the day fill in the engine reading
       { unit: 'in', kind: 'feeler-blades', resolution: '0.001', statedUncertainty: null },
       { offset: '0.001', unit: 'in' },
     );
-    expect(engine).toEqual({ kind: 'bracket', passes: 0.003, stops: 0.004, unit: 'in' });
+    expect(engine).toEqual({ kind: 'bracket', passes: '0.003', stops: '0.004', unit: 'in' });
     const evaluated = evaluateReading('gap', engine);
     // Midpoint (0.003 + 0.004)/2 = 0.0035 in = 88.9 µm; rectangular of half-width a = 0.0005 in
     // = 12.7 µm: u = a/√3 (JCGM 100:2008, 4.3.7).
     expect(evaluated.valuePm).toBe(88_900_000n);
     expect(evaluated.standardUncertaintyUm).toBeCloseTo(12.7 / SQRT3, 12);
+  });
+
+  it('keeps trailing zeros as stored, so a figure keeps the places it was read to', () => {
+    const { engine } = toEngineReading(
+      stored({ kind: 'direct', unit: 'mm', value: '25.010' }),
+      { unit: 'mm', kind: 'outside-micrometer', resolution: '0.001', statedUncertainty: null },
+      null,
+    );
+    expect(engine).toEqual({ kind: 'direct', value: '25.010', unit: 'mm', resolution: '0.001' });
+    expect(evaluateReading('bore', engine).valuePm).toBe(25_010_000_000n);
+  });
+
+  it('keeps the temperature and material of a repeated reading, and corrects its mean to 20 °C', () => {
+    const { engine } = toEngineReading(
+      stored({ kind: 'repeated', unit: 'in', values: ['4.0000', '4.0002'], temperatureC: 30, material: 'cast-iron' }),
+      { unit: 'in', kind: 'outside-micrometer', resolution: '0.0001', statedUncertainty: null },
+      null,
+    );
+    expect(engine).toEqual({ kind: 'repeated', unit: 'in', values: ['4.0000', '4.0002'], resolution: '0.0001', temperatureC: 30, material: 'cast-iron' });
+    // Mean 4.0001 in = 101 602.54 µm; grey iron α = 11.4×10⁻⁶/K (Callister Table B.6), instrument
+    // taken at 20 °C: L20 = L/(1 + α × 10 K) (ISO 1, GUM H.1).
+    expect(Number(evaluateReading('bore', engine).valuePm) / 1e6).toBeCloseTo(101_602.54 / (1 + 11.4e-6 * 10), 6);
   });
 
   it('names the instrument when its figures fail the engine schema', () => {

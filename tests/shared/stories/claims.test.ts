@@ -228,6 +228,7 @@ describe('claim targets from a build’s readings and clearances', () => {
     reviewState: 'unchecked',
     zeroCheck: null,
     engine: { kind: 'direct', value: 0.5642, unit: 'in', resolution: 0.0001 },
+    engineInstrument: null,
     result: { valueUm: umFromIn(0.5642), standardUncertaintyUm: 1.5, display: '0.5642 in', steps: [] },
     warnings: [],
     createdBy: 1,

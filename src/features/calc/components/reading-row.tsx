@@ -1,21 +1,25 @@
 import { useFormContext, useWatch, type FieldError } from 'react-hook-form';
+import { isAnyUnit, quantityOf, unitTable } from '@shared/measure/quantities';
 import { materialExpansion, materialNames } from '@shared/measure/thermal';
-import { lengthUnits, unitNames } from '@shared/measure/units';
 import { Button } from '@/components/ui/button';
 import { Field, Input, Select, Textarea } from '@/components/ui/field';
-import type { CalcFormValues } from '../lib/calc-form';
+import type { CalcFormValues, ReadingKind } from '../lib/calc-form';
+import { readingQuantities } from '../lib/units-ui';
+import { UnitSelect } from './unit-select';
 
-const kindLabels = {
+const kindLabels: Record<ReadingKind, string> = {
   direct: 'Direct reading',
-  bracket: 'Feeler blades',
   repeated: 'Repeated (mean)',
-} as const;
+  bracket: 'Feeler blades',
+  blade: 'One dragging blade',
+};
 
-const kindHints = {
-  direct: 'Micrometer, depth micrometer, bore gauge: one value.',
+const kindHints: Record<ReadingKind, string> = {
+  direct: 'Micrometer, depth gauge, torque wrench, gauge: one value.',
+  repeated: 'The same size measured several times; the mean is used.',
   bracket: 'Thickest blade that enters, thinnest that does not.',
-  repeated: 'The same size measured several times.',
-} as const;
+  blade: 'One blade that goes in with a light drag.',
+};
 
 function errorAt(errors: unknown, ...path: (string | number)[]): string | undefined {
   let node = errors as Record<string, unknown> | undefined;
@@ -23,105 +27,173 @@ function errorAt(errors: unknown, ...path: (string | number)[]): string | undefi
   return (node as FieldError | undefined)?.message;
 }
 
-/** One reading: its name, kind, unit and sign in the clearance, and the boxes its kind needs. */
-export function ReadingRow({ index, onRemove, canRemove }: { index: number; onRemove: () => void; canRemove: boolean }) {
-  const { register, control, formState } = useFormContext<CalcFormValues>();
+export interface ReadingRowProps {
+  index: number;
+  /** The key the engine (and a formula) knows this reading by. */
+  readingKey: string;
+  model: CalcFormValues['model'];
+  /** Instruments named on the page: key and name as typed. */
+  instruments: readonly { key: string; name: string }[];
+  onRemove: () => void;
+  canRemove: boolean;
+}
+
+/** One reading: its name, kind, unit, its part in the model, its instrument and the boxes its kind needs. */
+export function ReadingRow({ index, readingKey, model, instruments, onRemove, canRemove }: ReadingRowProps) {
+  const { register, control, formState, setValue } = useFormContext<CalcFormValues>();
   const row = useWatch({ control, name: `readings.${index}` });
   const err = (name: string) => errorAt(formState.errors, 'readings', index, name);
-  const unitHint = `In ${unitNames[row.unit]} unless you type a unit, e.g. 0.0001 in.`;
+  const isLength = isAnyUnit(row.unit) && quantityOf(row.unit) === 'length';
+  const unitName = isAnyUnit(row.unit) ? unitTable[row.unit].name : row.unit;
+  const feeler = row.kind === 'bracket' || row.kind === 'blade';
+  const figureProps = { inputMode: 'decimal' as const, autoComplete: 'off', className: 'figures', spellCheck: false };
+  const missingInstrument = row.instrument !== '' && !instruments.some((i) => i.key === row.instrument);
 
   return (
-    <fieldset className="rounded-md border border-rule p-3">
-      <legend className="px-1 text-sm font-medium">Reading {index + 1}</legend>
+    <fieldset className="rounded-md border border-rule p-3" data-reading-row={readingKey}>
+      <legend className="px-1 text-sm font-medium">
+        Reading {index + 1}
+        <span className="ml-2 font-normal text-ink-muted">
+          key <code className="figures text-ink">{readingKey}</code>
+        </span>
+      </legend>
+      <p className="mb-2 text-xs text-ink-muted">{row.hint || kindHints[row.kind]}</p>
       <div className="grid gap-3 sm:grid-cols-2">
         <Field label="Name" error={err('name')}>
           <Input {...register(`readings.${index}.name`)} autoComplete="off" />
         </Field>
-        <Field label="Kind" hint={kindHints[row.kind]}>
-          <Select {...register(`readings.${index}.kind`)}>
-            {Object.entries(kindLabels).map(([value, label]) => (
-              <option key={value} value={value}>
-                {label}
+        <Field label="Kind">
+          <Select
+            {...register(`readings.${index}.kind`, {
+              onChange: (event: { target: { value: string } }) => {
+                const kind = event.target.value;
+                if ((kind === 'bracket' || kind === 'blade') && !isLength) setValue(`readings.${index}.unit`, 'in');
+              },
+            })}
+          >
+            {(Object.keys(kindLabels) as ReadingKind[]).map((kind) => (
+              <option key={kind} value={kind}>
+                {kindLabels[kind]}
               </option>
             ))}
           </Select>
         </Field>
         <Field label="Unit" error={err('unit')}>
-          <Select {...register(`readings.${index}.unit`)}>
-            {lengthUnits.map((unit) => (
-              <option key={unit} value={unit}>
-                {unit === 'um' ? 'µm' : unit === 'tenth' ? 'tenths' : unit}
-              </option>
-            ))}
-          </Select>
+          <UnitSelect quantities={feeler ? ['length'] : readingQuantities} {...register(`readings.${index}.unit`)} />
         </Field>
-        <Field label="In the clearance">
-          <Select {...register(`readings.${index}.sign`)}>
-            <option value="plus">+ add</option>
-            <option value="minus">− subtract</option>
-            <option value="none">not used</option>
-          </Select>
+        {model === 'sum' && (
+          <Field label="In the sum">
+            <Select {...register(`readings.${index}.sign`)}>
+              <option value="plus">+ add</option>
+              <option value="minus">− subtract</option>
+              <option value="none">not used</option>
+            </Select>
+          </Field>
+        )}
+        <Field label="Instrument" error={err('instrument')}>
+          <InstrumentSelect index={index} instruments={instruments} missing={missingInstrument ? row.instrument : null} />
         </Field>
       </div>
 
       {row.kind === 'direct' && (
         <div className="mt-3 grid gap-3 sm:grid-cols-2">
-          <Field label="Value" hint="Type it as the instrument shows it: 0.5640 keeps its four places." error={err('value')}>
-            <Input {...register(`readings.${index}.value`)} inputMode="decimal" autoComplete="off" className="figures" />
+          <Field label="Value" hint="As shown: 0.5640 keeps its four places." error={err('value')}>
+            <Input {...register(`readings.${index}.value`)} {...figureProps} />
           </Field>
-          <Field label="Resolution" hint="Blank: one step of the last digit you typed." error={err('resolution')}>
-            <Input {...register(`readings.${index}.resolution`)} inputMode="decimal" autoComplete="off" className="figures" />
+          <Field label="Resolution" hint="Blank: one step of the last digit typed." error={err('resolution')}>
+            <Input {...register(`readings.${index}.resolution`)} {...figureProps} />
           </Field>
         </div>
       )}
       {row.kind === 'bracket' && (
         <div className="mt-3 grid gap-3 sm:grid-cols-2">
           <Field label="Passes" hint="Thickest blade that enters." error={err('passes')}>
-            <Input {...register(`readings.${index}.passes`)} inputMode="decimal" autoComplete="off" className="figures" />
+            <Input {...register(`readings.${index}.passes`)} {...figureProps} />
           </Field>
-          <Field label="Stops" hint="Thinnest blade that does not." error={err('stops')}>
-            <Input {...register(`readings.${index}.stops`)} inputMode="decimal" autoComplete="off" className="figures" />
+          <Field label="How it went in">
+            <Select {...register(`readings.${index}.passesFeel`)}>
+              <option value="">not noted</option>
+              <option value="slides">slides in</option>
+              <option value="drags">enters with a drag</option>
+            </Select>
           </Field>
+          <Field label="Stops" hint="Thinnest blade that does not enter." error={err('stops')}>
+            <Input {...register(`readings.${index}.stops`)} {...figureProps} />
+          </Field>
+          <Field label="How it stopped">
+            <Select {...register(`readings.${index}.stopsFeel`)}>
+              <option value="">not noted</option>
+              <option value="does-not-enter">does not enter</option>
+              <option value="forced">goes in only when forced</option>
+            </Select>
+          </Field>
+        </div>
+      )}
+      {row.kind === 'blade' && (
+        <div className="mt-3 grid gap-3 sm:grid-cols-2">
+          <Field label="Blade thickness" hint="The blade that drags." error={err('thickness')}>
+            <Input {...register(`readings.${index}.thickness`)} {...figureProps} />
+          </Field>
+          <Field
+            label="Spread ±"
+            hint="How far the gap may be from the blade. Blank: ±0.0005 in, half the usual step between blades (common practice, no published source)."
+            error={err('spread')}
+          >
+            <Input {...register(`readings.${index}.spread`)} {...figureProps} />
+          </Field>
+          <p className="text-xs text-ink-muted sm:col-span-2">
+            Feel: <strong className="font-medium text-ink">drags</strong>. One blade is a reading only when it drags; a blade that slides
+            freely or will not go in tells you only which side of it the gap lies. Use passes / stops for that.
+          </p>
         </div>
       )}
       {row.kind === 'repeated' && (
         <div className="mt-3 grid gap-3 sm:grid-cols-[minmax(0,2fr)_minmax(0,1fr)]">
           <Field label="Values" hint="Separated by spaces or new lines." error={err('values')}>
-            <Textarea {...register(`readings.${index}.values`)} rows={3} className="figures" />
+            <Textarea {...register(`readings.${index}.values`)} rows={3} className="figures" spellCheck={false} />
           </Field>
           <Field label="Resolution" hint="Blank: the finest last digit typed." error={err('resolution')}>
-            <Input {...register(`readings.${index}.resolution`)} inputMode="decimal" autoComplete="off" className="figures" />
+            <Input {...register(`readings.${index}.resolution`)} {...figureProps} />
           </Field>
         </div>
       )}
 
-      {row.kind === 'direct' && (
-        <details className="mt-3 text-sm">
+      {(row.kind === 'direct' || row.kind === 'repeated') && (
+        <details className="mt-3 text-sm" open={Boolean(row.zeroOffset || row.uncertainty || row.temperatureC) || undefined}>
           <summary className="cursor-pointer text-ink-muted">Zero check, stated uncertainty, temperature</summary>
           <div className="mt-3 grid gap-3 sm:grid-cols-2">
-            <Field label="Zero check reading" hint={`Subtracted from the value. ${unitHint}`} error={err('zeroOffset')}>
-              <Input {...register(`readings.${index}.zeroOffset`)} inputMode="decimal" autoComplete="off" className="figures" />
+            <Field label="Zero check reading" hint={`What it showed on its setting standard, minus the standard; subtracted. In ${unitName}.`} error={err('zeroOffset')}>
+              <Input {...register(`readings.${index}.zeroOffset`)} {...figureProps} />
             </Field>
-            <Field label="Stated standard uncertainty" hint="From a calibration certificate; combined with the resolution." error={err('uncertainty')}>
-              <Input {...register(`readings.${index}.uncertainty`)} inputMode="decimal" autoComplete="off" className="figures" />
+            <Field label="Stated standard uncertainty" hint={`From a certificate, in ${unitName}; combined with the rest.`} error={err('uncertainty')}>
+              <Input {...register(`readings.${index}.uncertainty`)} {...figureProps} />
             </Field>
-            <Field label="Part temperature, °C" hint="Corrects the reading to 20 °C (ISO 1)." error={err('temperatureC')}>
-              <Input {...register(`readings.${index}.temperatureC`)} inputMode="decimal" autoComplete="off" className="figures" />
+            <Field
+              label="Temperature when read, °C"
+              hint={isLength ? 'Corrects the length to 20 °C (ISO 1).' : 'Kept with the reading; no correction applies to this quantity.'}
+              error={err('temperatureC')}
+            >
+              <Input {...register(`readings.${index}.temperatureC`)} {...figureProps} />
             </Field>
-            <Field label="Material" hint="Typical handbook figures; choose your own if you know it." error={err('material')}>
-              <Select {...register(`readings.${index}.material`)}>
-                <option value="">—</option>
-                {materialNames.map((name) => (
-                  <option key={name} value={name}>
-                    {materialExpansion[name].label} ({materialExpansion[name].representative}, {(materialExpansion[name].expansionPerK * 1e6).toFixed(1)}×10⁻⁶/K)
-                  </option>
-                ))}
-                <option value="custom">Other: give the coefficient</option>
-              </Select>
+            <Field label="Its standard uncertainty u(t), K" hint="Blank: none counted." error={err('temperatureUncertaintyC')}>
+              <Input {...register(`readings.${index}.temperatureUncertaintyC`)} {...figureProps} />
             </Field>
-            {row.material === 'custom' && (
+            {isLength && (
+              <Field label="Part material" hint="Typical handbook figures (Callister, Table B.6); give your own if you know it." error={err('material')}>
+                <Select {...register(`readings.${index}.material`)}>
+                  <option value="">—</option>
+                  {materialNames.map((name) => (
+                    <option key={name} value={name}>
+                      {materialExpansion[name].label} ({materialExpansion[name].representative}, {(materialExpansion[name].expansionPerK * 1e6).toFixed(1)}×10⁻⁶/K)
+                    </option>
+                  ))}
+                  <option value="custom">Other: give the coefficient</option>
+                </Select>
+              </Field>
+            )}
+            {isLength && row.material === 'custom' && (
               <Field label="Expansion coefficient, per K" hint="e.g. 11.7e-6" error={err('expansionPerK')}>
-                <Input {...register(`readings.${index}.expansionPerK`)} autoComplete="off" className="figures" />
+                <Input {...register(`readings.${index}.expansionPerK`)} autoComplete="off" className="figures" spellCheck={false} />
               </Field>
             )}
           </div>
@@ -136,5 +208,20 @@ export function ReadingRow({ index, onRemove, canRemove }: { index: number; onRe
         </div>
       )}
     </fieldset>
+  );
+}
+
+function InstrumentSelect({ index, instruments, missing }: { index: number; instruments: ReadingRowProps['instruments']; missing: string | null }) {
+  const { register } = useFormContext<CalcFormValues>();
+  return (
+    <Select {...register(`readings.${index}.instrument`)}>
+      <option value="">none named</option>
+      {instruments.map((instrument) => (
+        <option key={instrument.key} value={instrument.key}>
+          {instrument.name.trim() || instrument.key}
+        </option>
+      ))}
+      {missing && <option value={missing}>{missing} (not in the list)</option>}
+    </Select>
   );
 }

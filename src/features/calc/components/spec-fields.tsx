@@ -1,13 +1,15 @@
 import { useFormContext, useWatch } from 'react-hook-form';
-import { lengthUnits } from '@shared/measure/units';
-import { Field, Input, Select } from '@/components/ui/field';
+import { quantityKinds, type QuantityKind } from '@shared/measure/quantities';
+import { Field, Input } from '@/components/ui/field';
 import type { CalcFormValues } from '../lib/calc-form';
+import { UnitSelect } from './unit-select';
 
-/** The spec to judge against: limits, rule, and the page-only preferred band, reject limit and source. */
-export function SpecFields() {
+/** The spec to judge against: limits in any unit of the result's quantity, the rule, a preferred band, a reject limit. */
+export function SpecFields({ quantity }: { quantity: QuantityKind | null }) {
   const { register, control, formState } = useFormContext<CalcFormValues>();
   const enabled = useWatch({ control, name: 'spec.enabled' });
   const errors = formState.errors.spec;
+  const figureProps = { inputMode: 'decimal' as const, autoComplete: 'off', className: 'figures', spellCheck: false };
 
   return (
     <div className="space-y-3">
@@ -17,21 +19,15 @@ export function SpecFields() {
       </label>
       {enabled && (
         <>
-          <div className="grid gap-3 sm:grid-cols-3">
+          <div className="grid grid-cols-2 items-end gap-3 sm:grid-cols-3">
             <Field label="Min" hint="Blank for no lower limit." error={errors?.min?.message}>
-              <Input {...register('spec.min')} inputMode="decimal" autoComplete="off" className="figures" />
+              <Input {...register('spec.min')} {...figureProps} />
             </Field>
             <Field label="Max" hint="Blank for no upper limit." error={errors?.max?.message}>
-              <Input {...register('spec.max')} inputMode="decimal" autoComplete="off" className="figures" />
+              <Input {...register('spec.max')} {...figureProps} />
             </Field>
-            <Field label="Unit" error={errors?.unit?.message}>
-              <Select {...register('spec.unit')}>
-                {lengthUnits.map((unit) => (
-                  <option key={unit} value={unit}>
-                    {unit === 'um' ? 'µm' : unit === 'tenth' ? 'tenths' : unit}
-                  </option>
-                ))}
-              </Select>
+            <Field label="Unit" hint={quantity === 'ratio' ? 'A ratio has no unit.' : undefined} error={errors?.unit?.message} className="col-span-2 sm:col-span-1">
+              <UnitSelect quantities={quantity ? [quantity] : quantityKinds} {...register('spec.unit')} />
             </Field>
           </div>
           <fieldset>
@@ -40,7 +36,8 @@ export function SpecFields() {
               <label className="flex items-start gap-2">
                 <input type="radio" value="guarded" {...register('spec.rule')} className="mt-1 accent-[var(--color-accent)]" />
                 <span>
-                  <strong className="font-medium">Guarded</strong> (ISO 14253-1): within spec only when the value is at least U inside the limits.
+                  <strong className="font-medium">Guarded</strong> (ISO 14253-1): within spec only when the whole coverage interval lies
+                  inside the limits; out of spec only when it lies wholly outside.
                 </span>
               </label>
               <label className="flex items-start gap-2">
@@ -51,21 +48,20 @@ export function SpecFields() {
               </label>
             </div>
           </fieldset>
-          <details className="text-sm">
+          <details className="text-sm" open={Boolean(errors?.preferredMin || errors?.preferredMax || errors?.reject) || undefined}>
             <summary className="cursor-pointer text-ink-muted">Preferred band, reject limit, source</summary>
-            <p className="mt-2 text-xs text-ink-muted">Drawn and judged on this page; the calculator API takes min, max and rule only.</p>
-            <div className="mt-2 grid gap-3 sm:grid-cols-3">
+            <div className="mt-2 grid grid-cols-2 items-end gap-3 sm:grid-cols-3">
               <Field label="Preferred min" error={errors?.preferredMin?.message}>
-                <Input {...register('spec.preferredMin')} inputMode="decimal" autoComplete="off" className="figures" />
+                <Input {...register('spec.preferredMin')} {...figureProps} />
               </Field>
               <Field label="Preferred max" error={errors?.preferredMax?.message}>
-                <Input {...register('spec.preferredMax')} inputMode="decimal" autoComplete="off" className="figures" />
+                <Input {...register('spec.preferredMax')} {...figureProps} />
               </Field>
-              <Field label="Reject limit" hint="Scrap at or past this." error={errors?.reject?.message}>
-                <Input {...register('spec.reject')} inputMode="decimal" autoComplete="off" className="figures" />
+              <Field label="Reject limit" hint="Scrap at or past this." error={errors?.reject?.message} className="col-span-2 sm:col-span-1">
+                <Input {...register('spec.reject')} {...figureProps} />
               </Field>
             </div>
-            <Field label="Source" hint="Where the figures come from: manual and section, standard, or common practice." className="mt-3">
+            <Field label="Source" hint="Where the figures come from: manual and section, standard, or common practice. Shown here only." className="mt-3">
               <Input {...register('spec.source')} autoComplete="off" />
             </Field>
           </details>

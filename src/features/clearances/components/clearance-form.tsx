@@ -4,6 +4,7 @@ import { useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Build } from '@shared/builds/build.schema';
 import type { Clearance } from '@shared/clearances/clearance.schema';
 import { computeClearance } from '@shared/clearances/clearance-calc';
+import { engineInstrumentsMap } from '@shared/measure/instrument-map';
 import { clearanceTemplate, clearanceTemplates } from '@shared/clearances/templates';
 import { keyFromName, type Reading } from '@shared/readings/reading.schema';
 import { Button } from '@/components/ui/button';
@@ -74,8 +75,10 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
       return r ? [{ key: r.key, engine: r.engine, sign: t.sign === '1' ? (1 as const) : (-1 as const) }] : [];
     });
     if (chosen.length === 0) return null;
-    const k = Number(values.coverageFactor.replace(',', '.'));
-    return computeClearance({ terms: chosen, spec: version, coverageFactor: Number.isFinite(k) && k >= 1 && k <= 4 ? k : 2 });
+    const typed = values.coverageFactor.trim().replace(',', '.');
+    const k = Number(typed);
+    const instruments = engineInstrumentsMap(values.terms.map((t) => byId.get(t.readingId)?.engineInstrument));
+    return computeClearance({ terms: chosen, spec: version, coverageFactor: typed !== '' && Number.isFinite(k) && k >= 1 && k <= 4 ? k : null, instruments });
   }, [values.terms, values.coverageFactor, byId, version]);
 
   function chooseTemplate(id: ClearanceFormValues['template']) {
@@ -99,7 +102,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
               template: input.template ?? null,
               terms: input.terms,
               specVersionId: input.specVersionId ?? null,
-              coverageFactor: input.coverageFactor ?? 2,
+              coverageFactor: input.coverageFactor ?? null,
               note: input.note ?? '',
             },
           })
@@ -247,7 +250,11 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
         <SpecPicker form={form} error={errors.specId?.message} />
 
         <div className="grid gap-3 sm:grid-cols-[minmax(0,10rem)_minmax(0,1fr)]">
-          <Field label="Coverage factor k" error={errors.coverageFactor?.message} hint="2 gives about 95 % coverage (GUM 6.3.3).">
+          <Field
+            label="Coverage factor k (optional)"
+            error={errors.coverageFactor?.message}
+            hint="Leave empty for a 95 % interval worked out from the readings (Student's t for few readings, Monte Carlo for feeler brackets); type a k only to fix it."
+          >
             <Input {...register('coverageFactor')} inputMode="decimal" className="figures h-8! text-sm" />
           </Field>
           <Field label="Note" error={errors.note?.message}>

@@ -1,3 +1,4 @@
+import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import type { ClearanceResult } from '@shared/clearances/clearance.schema';
 import type { Reading } from '@shared/readings/reading.schema';
 import { formatUncertainty } from '@shared/measure/format';
@@ -7,6 +8,7 @@ import { BandPicture } from '@/features/calc/components/band-picture';
 import { CalcSteps } from '@/features/calc/components/calc-steps';
 import { cn } from '@/lib/cn';
 import { bandPictureProps } from '../lib/clearance-view';
+import { BudgetDisclosure, CoverageLine } from './coverage-facts';
 
 const preferredWords: Record<Verdict, string> = {
   conforms: 'Within the preferred band',
@@ -32,7 +34,7 @@ export function ClearanceVerdicts({ result, size = 'md' }: { result: ClearanceRe
   if (!result.verdict || !result.rule) return <span className="text-sm text-ink-muted">no spec, no verdict</span>;
   return (
     <span className="inline-flex flex-wrap items-center gap-1.5">
-      <VerdictBadge verdict={result.verdict} rule={`${result.rule} rule, k = ${result.coverageFactor}`} size={size} />
+      <VerdictBadge verdict={result.verdict} rule={`${result.rule} rule, k = ${formatCoverageFactor(result.coverageFactor)}`} size={size} />
       {result.preferredVerdict && (
         <VerdictBadge verdict={result.preferredVerdict} size="sm">
           {preferredWords[result.preferredVerdict]}
@@ -58,8 +60,9 @@ export function VerdictCaution({ className }: { className?: string }) {
 }
 
 /**
- * A worked-out clearance in full: value, u_c and U, the verdict with its rule in words, the band
- * picture, and the engine's working in a disclosure.
+ * A worked-out clearance in full: value, u_c and U, the interval with its method and the probability
+ * within spec, the verdict with its rule in words, the band picture, and the budget and the engine's
+ * working in disclosures.
  */
 export function ClearanceResultView({
   result,
@@ -79,9 +82,10 @@ export function ClearanceResultView({
         <dd className="figures text-base font-semibold">{result.display}</dd>
         <dt className="text-ink-muted">Standard uncertainty u_c</dt>
         <dd className="figures">{formatUncertainty(result.standardUncertaintyUm, result.unit)}</dd>
-        <dt className="text-ink-muted">Expanded U (k = {result.coverageFactor})</dt>
+        <dt className="text-ink-muted">Expanded U (k = {formatCoverageFactor(result.coverageFactor)})</dt>
         <dd className="figures">± {formatUncertainty(result.expandedUncertaintyUm, result.unit)}</dd>
       </dl>
+      <CoverageLine facts={result} />
       {result.verdict && result.rule ? (
         <>
           <ClearanceVerdicts result={result} />
@@ -96,6 +100,7 @@ export function ClearanceResultView({
         </div>
       )}
       {result.verdict && <VerdictCaution />}
+      <BudgetDisclosure facts={result} />
       <details open={stepsOpen} className="rounded-md border border-rule px-3 py-2">
         <summary className="cursor-pointer text-sm font-medium">How it was worked out ({result.steps.length} steps)</summary>
         <div className="mt-2">

@@ -20,6 +20,7 @@ export interface ClearanceFormValues {
   /** The spec picked in the library ('' = none) and which of its versions. */
   specId: string;
   specVersionId: string;
+  /** '' = a 95 % interval worked out by the engine; a number = a chosen k. */
   coverageFactor: string;
   note: string;
 }
@@ -33,7 +34,7 @@ export function termsForTemplate(id: ClearanceTemplateId, current: readonly Term
   return template.slots.map((slot, i) => ({ readingId: current[i]?.readingId ?? '', sign: slot.sign === 1 ? '1' : '-1' }));
 }
 
-/** A new clearance from the end-float template, k = 2. */
+/** A new clearance from the end-float template, its 95 % interval worked out by the engine. */
 export function blankClearanceForm(): ClearanceFormValues {
   const template = clearanceTemplate('end-float');
   return {
@@ -43,7 +44,7 @@ export function blankClearanceForm(): ClearanceFormValues {
     key: template.suggestedKey,
     specId: '',
     specVersionId: '',
-    coverageFactor: '2',
+    coverageFactor: '',
     note: '',
   };
 }
@@ -61,7 +62,7 @@ export function clearanceFormOf(clearance: Clearance): ClearanceFormValues {
     key: clearance.key,
     specId: clearance.spec ? String(clearance.spec.specId) : '',
     specVersionId: clearance.specVersionId === null ? '' : String(clearance.specVersionId),
-    coverageFactor: String(clearance.coverageFactor),
+    coverageFactor: clearance.coverageFactor === null ? '' : String(clearance.coverageFactor),
     note: clearance.note,
   };
 }
@@ -75,8 +76,8 @@ export function toClearanceInput(values: ClearanceFormValues): ClearanceInput {
     template: values.template,
     terms: values.terms.map((t) => ({ readingId: Number(t.readingId), sign: t.sign === '1' ? 1 : -1 })),
     specVersionId: values.specVersionId ? Number(values.specVersionId) : null,
-    // Not a number: sent as typed so the schema refuses it by name.
-    coverageFactor: (k === '' || !Number.isFinite(Number(k)) ? k : Number(k)) as number,
+    // Empty: the engine works out a 95 % interval. Not a number: sent as typed so the schema refuses it by name.
+    coverageFactor: (k === '' ? null : !Number.isFinite(Number(k)) ? k : Number(k)) as number | null,
     note: values.note,
   };
 }

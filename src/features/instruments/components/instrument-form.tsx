@@ -29,6 +29,11 @@ const formFields: ReadonlySet<string> = new Set([
   'unit',
   'resolution',
   'statedUncertainty',
+  'calibrationUncertainty',
+  'calibrationCoverageFactor',
+  'maxPermissibleError',
+  'settingStandardUncertainty',
+  'settingStandardCoverageFactor',
   'calibrationIntervalDays',
   'lastCalibratedOn',
   'calibratedBy',
@@ -104,7 +109,7 @@ export function InstrumentForm({ mode, defaultValues, submitLabel, pendingLabel,
       <fieldset className="grid gap-3 rounded-md border border-rule p-3 sm:grid-cols-2">
         <legend className="px-1 text-sm font-medium">Scale and uncertainty</legend>
         <Field label="Unit" error={errors.unit?.message} className="sm:col-span-2" hint="The unit the instrument reads in. Its resolution, uncertainty and zero checks are in this unit.">
-          <Select {...register('unit', { deps: ['resolution', 'statedUncertainty'] })}>
+          <Select {...register('unit', { deps: ['resolution', 'statedUncertainty', 'calibrationUncertainty', 'maxPermissibleError', 'settingStandardUncertainty'] })}>
             {lengthUnits.map((u) => (
               <option key={u} value={u}>
                 {unitNames[u]}
@@ -125,8 +130,32 @@ export function InstrumentForm({ mode, defaultValues, submitLabel, pendingLabel,
         <p className="text-xs text-ink-muted sm:col-span-2" data-testid="default-uncertainty">
           Without a stated figure the engine uses the resolution alone: u = resolution / (2√3)
           {defaultU ? <span className="figures"> = {defaultU}</span> : null} (GUM F.2.2.1, a reading anywhere within half a step either side).
-          {stated.trim() !== '' && ' You have stated one, so that is used instead.'}
+          {stated.trim() !== '' && ' You have stated one, so it is combined with the resolution (GUM eq. 10).'}
         </p>
+      </fieldset>
+
+      <fieldset className="grid gap-3 rounded-md border border-rule p-3 sm:grid-cols-2">
+        <legend className="px-1 text-sm font-medium">What it brings to every reading</legend>
+        <p className="text-xs text-ink-muted sm:col-span-2">
+          Optional. Each is one error shared by every reading taken with this instrument, so it cancels when two of its readings are
+          subtracted and adds up when they are summed (GUM 5.2.2). A certificate supersedes the maker&rsquo;s limit.
+        </p>
+        <Field label={`Calibration U (${symbol})`} error={errors.calibrationUncertainty?.message} hint="Expanded uncertainty from the certificate.">
+          <LengthInput unit={unit} {...register('calibrationUncertainty')} />
+        </Field>
+        <Field label="Certificate's k" error={errors.calibrationCoverageFactor?.message} hint="Usually 2.">
+          <Input {...register('calibrationCoverageFactor')} inputMode="decimal" className="figures" />
+        </Field>
+        <Field label={`Maximum permissible error ± (${symbol})`} error={errors.maxPermissibleError?.message} hint="The maker's limit of error; taken as rectangular (÷ √3).">
+          <LengthInput unit={unit} {...register('maxPermissibleError')} />
+        </Field>
+        <span aria-hidden="true" />
+        <Field label={`Setting standard U (${symbol})`} error={errors.settingStandardUncertainty?.message} hint="The gauge block or setting rod it is zeroed on.">
+          <LengthInput unit={unit} {...register('settingStandardUncertainty')} />
+        </Field>
+        <Field label="Standard's k" error={errors.settingStandardCoverageFactor?.message}>
+          <Input {...register('settingStandardCoverageFactor')} inputMode="decimal" className="figures" />
+        </Field>
       </fieldset>
 
       <fieldset className="grid gap-3 rounded-md border border-rule p-3 sm:grid-cols-2">

@@ -19,6 +19,12 @@ export interface InstrumentFormValues {
   unit: LengthUnit;
   resolution: string;
   statedUncertainty: string;
+  /** A calibration certificate's U and its k; the maker's MPE; the setting standard's U and its k. */
+  calibrationUncertainty: string;
+  calibrationCoverageFactor: string;
+  maxPermissibleError: string;
+  settingStandardUncertainty: string;
+  settingStandardCoverageFactor: string;
   calibrationIntervalDays: string;
   lastCalibratedOn: string;
   calibratedBy: string;
@@ -35,6 +41,11 @@ export const blankInstrument: InstrumentFormValues = {
   unit: 'in',
   resolution: '',
   statedUncertainty: '',
+  calibrationUncertainty: '',
+  calibrationCoverageFactor: '',
+  maxPermissibleError: '',
+  settingStandardUncertainty: '',
+  settingStandardCoverageFactor: '',
   calibrationIntervalDays: '',
   lastCalibratedOn: '',
   calibratedBy: '',
@@ -52,6 +63,11 @@ export function formValuesFrom(instrument: Instrument): InstrumentFormValues {
     unit: instrument.unit,
     resolution: instrument.resolution,
     statedUncertainty: instrument.statedUncertainty ?? '',
+    calibrationUncertainty: instrument.calibrationUncertainty ?? '',
+    calibrationCoverageFactor: instrument.calibrationCoverageFactor === null ? '' : String(instrument.calibrationCoverageFactor),
+    maxPermissibleError: instrument.maxPermissibleError ?? '',
+    settingStandardUncertainty: instrument.settingStandardUncertainty ?? '',
+    settingStandardCoverageFactor: instrument.settingStandardCoverageFactor === null ? '' : String(instrument.settingStandardCoverageFactor),
     calibrationIntervalDays: instrument.calibrationIntervalDays === null ? '' : String(instrument.calibrationIntervalDays),
     lastCalibratedOn: instrument.lastCalibratedOn ?? '',
     calibratedBy: instrument.calibratedBy,
@@ -62,6 +78,15 @@ export function formValuesFrom(instrument: Instrument): InstrumentFormValues {
 }
 
 const WHOLE_DAYS = /^\d+$/;
+
+const textOrNull = (text: string) => (text.trim() === '' ? null : text.trim());
+
+/** A k as typed: blank is none; anything else goes as a number (or as typed, so the schema names it). */
+function factorOrNull(text: string): number | null {
+  const t = text.trim().replace(',', '.');
+  if (t === '') return null;
+  return (Number.isFinite(Number(t)) ? Number(t) : t) as number;
+}
 
 /**
  * Text → the body the API takes. A malformed interval is reported here and left out of the
@@ -79,6 +104,11 @@ function toBody(values: InstrumentFormValues): { body: InstrumentInput; interval
       unit: values.unit,
       resolution: values.resolution,
       statedUncertainty: values.statedUncertainty.trim() === '' ? null : values.statedUncertainty,
+      calibrationUncertainty: textOrNull(values.calibrationUncertainty),
+      calibrationCoverageFactor: factorOrNull(values.calibrationCoverageFactor),
+      maxPermissibleError: textOrNull(values.maxPermissibleError),
+      settingStandardUncertainty: textOrNull(values.settingStandardUncertainty),
+      settingStandardCoverageFactor: factorOrNull(values.settingStandardCoverageFactor),
       calibrationIntervalDays: interval === '' || !intervalOk ? null : Number(interval),
       lastCalibratedOn: values.lastCalibratedOn.trim() === '' ? null : values.lastCalibratedOn.trim(),
       calibratedBy: values.calibratedBy,

@@ -1,3 +1,4 @@
+import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import { useState } from 'react';
 import { systemOf, type UnitSystem } from '@shared/measure/format';
 import { decisionRuleText, type Verdict } from '@shared/measure/spec';
@@ -7,13 +8,15 @@ import { Button } from '@/components/ui/button';
 import { BandPicture } from '@/features/calc/components/band-picture';
 import { CalcSteps } from '@/features/calc/components/calc-steps';
 import { specSourceWords, VerdictCaution } from '@/features/clearances/components/clearance-result-view';
+import { conformanceOf, intervalOf } from '@/features/clearances/components/coverage-facts';
 import { CalibrationBadge } from '@/features/instruments/components/calibration-badge';
 import { formatTime } from '@/features/clips/lib/clip-format';
 import { dayText, instantDay } from '../lib/dates';
-import { bandText, pictureProps, readingResolutionPm, systemDisplayUnits } from '../lib/figures';
+import { bandText, pictureProps, readingResolutionPm, systemDisplayUnits, valueWithU } from '../lib/figures';
 import { Figure } from './figure';
 import { MomentClip } from './moment-clip';
 import { Recompute } from './recompute';
+import { CoverageRows, ReaderBudget, ReaderWarnings } from './uncertainty-evidence';
 
 const preferredWords: Record<Verdict, string> = {
   conforms: 'Within the preferred band',
@@ -116,10 +119,20 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
         <dd>
           <Figure valueUm={clearance.valueUm} expandedUm={clearance.expandedUncertaintyUm} coverageFactor={clearance.coverageFactor} system={system} size="lg" />
         </dd>
-        <dt className="text-ink-muted">Expanded uncertainty</dt>
-        <dd className="text-sm">
-          U = k·u<sub>c</sub> with k = {clearance.coverageFactor} (about 95 % coverage)
-        </dd>
+        {!intervalOf(clearance) && (
+          <>
+            <dt className="text-ink-muted">Expanded uncertainty</dt>
+            <dd className="text-sm">
+              {clearance.method === undefined
+                ? `U = k·u_c with k = ${formatCoverageFactor(clearance.coverageFactor)} (about 95 % coverage)`
+                : clearance.fixedCoverageFactor
+                  ? `U = k·u_c with k = ${formatCoverageFactor(clearance.coverageFactor)}, chosen by the builder`
+                  : `U is the half-width of the ${Math.round((clearance.coverageProbability ?? 0.95) * 1000) / 10} % coverage interval, from ${
+                      clearance.method === 'monte-carlo' ? 'a Monte Carlo run (JCGM 101)' : 'the GUM with Student’s t'
+                    }: k = ${formatCoverageFactor(clearance.coverageFactor)}`}
+            </dd>
+          </>
+        )}
         {otherSystem && (
           <>
             <dt className="text-ink-muted">As judged</dt>
@@ -131,7 +144,7 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
       {clearance.verdict && clearance.rule ? (
         <div className="flex flex-col gap-2">
           <div className="flex flex-wrap items-center gap-1.5">
-            <VerdictBadge verdict={clearance.verdict} rule={`${clearance.rule} rule, k = ${clearance.coverageFactor}`} />
+            <VerdictBadge verdict={clearance.verdict} rule={`${clearance.rule} rule, k = ${formatCoverageFactor(clearance.coverageFactor)}`} />
             {clearance.preferredVerdict && (
               <VerdictBadge verdict={clearance.preferredVerdict} size="sm">
                 {preferredWords[clearance.preferredVerdict]}
@@ -148,6 +161,15 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
       ) : (
         <p className="text-sm text-ink-muted">No spec was attached, so there is no verdict.</p>
       )}
+
+      {(intervalOf(clearance) || conformanceOf(clearance) !== null) && (
+        <dl className="flex flex-col gap-1 text-sm [&_dd]:mb-1.5" data-coverage="">
+          {/* The interval's ends in the reader's main unit, at U's place like the figure above. */}
+          <CoverageRows facts={clearance} end={(um) => valueWithU(um, clearance.expandedUncertaintyUm, systemDisplayUnits[system].main).value} />
+        </dl>
+      )}
+
+      <ReaderWarnings facts={clearance} />
 
       {clearance.spec && (
         <p className="text-sm">
@@ -166,6 +188,8 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
       )}
 
       {picture && <BandPicture {...picture} />}
+
+      <ReaderBudget facts={clearance} />
 
       <details className="rounded-md border border-rule px-3 py-2">
         <summary className="cursor-pointer text-sm font-medium">How it was worked out ({clearance.steps.length} steps)</summary>

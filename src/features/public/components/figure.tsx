@@ -1,3 +1,5 @@
+import { Fragment } from 'react';
+import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import type { UnitSystem } from '@shared/measure/format';
 import { cn } from '@/lib/cn';
 import { systemFigure } from '../lib/figures';
@@ -29,13 +31,17 @@ export function Figure({
     <span className={cn('inline-flex flex-wrap items-baseline gap-x-2', className)} data-figure={system}>
       <span className={cn('figures text-ink', size === 'lg' ? 'text-md font-semibold' : size === 'sm' ? 'text-sm' : 'text-base font-medium')}>
         {/* Each piece stays whole when a narrow panel wraps the line. */}
+        {/* The spaces between pieces sit outside them, so the line may break there. */}
         {figure.main.split(' ± ').map((piece, index) => (
-          <span key={index} className="whitespace-nowrap">
-            {index > 0 && ' ± '}
-            {piece}{' '}
-          </span>
-        ))}
-        {coverageFactor !== undefined && expandedUm > 0 && <span className="font-normal whitespace-nowrap text-ink-muted">(k = {coverageFactor})</span>}
+          <Fragment key={index}>
+            {index > 0 && ' '}
+            <span className="whitespace-nowrap">
+              {index > 0 && '± '}
+              {piece}
+            </span>
+          </Fragment>
+        ))}{' '}
+        {coverageFactor !== undefined && expandedUm > 0 && <span className="font-normal whitespace-nowrap text-ink-muted">(k = {formatCoverageFactor(coverageFactor)})</span>}
       </span>
       <span className="figures text-xs text-ink-muted">{figure.fine}</span>
     </span>

@@ -1,3 +1,4 @@
+import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import type { UnitSystem } from '@shared/measure/format';
 import { verdictWords } from '@shared/measure/spec';
 import type { PublicStory } from '@shared/public/public-story.schema';
@@ -28,7 +29,7 @@ export function PrintEvidence({ story, system }: { story: PublicStory; system: U
                   <strong className="figures font-semibold">{systemFigure(lead.valueUm, lead.expandedUncertaintyUm, system, resolution).main}</strong>
                   {c?.verdict && c.rule && (
                     <>
-                      , {verdictWords[c.verdict]} ({c.rule} rule, k = {c.coverageFactor})
+                      , {verdictWords[c.verdict]} ({c.rule} rule, k = {formatCoverageFactor(c.coverageFactor)})
                     </>
                   )}
                 </>

@@ -1,3 +1,4 @@
+import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import { verdictWords } from '@shared/measure/spec';
 import type { UnitSystem } from '@shared/measure/format';
 import type { PublicClearance, PublicReading } from '@shared/public/public-story.schema';
@@ -43,6 +44,8 @@ export function Recompute({
   const result = calc.data;
   const agrees =
     result &&
+    result.value_um !== null &&
+    result.expandedUncertainty_um !== null &&
     same(result.value_um, published.valueUm) &&
     same(result.expandedUncertainty_um, published.expandedUm) &&
     result.verdict === published.verdict;
@@ -74,10 +77,12 @@ export function Recompute({
           <p className="text-sm font-medium">
             {agrees ? 'Same result as published:' : 'A different result from the published one — tell the site admin:'}
           </p>
-          <Figure valueUm={result.value_um} expandedUm={result.expandedUncertainty_um} coverageFactor={result.coverageFactor} system={system} />
+          {result.value_um !== null && result.expandedUncertainty_um !== null && (
+            <Figure valueUm={result.value_um} expandedUm={result.expandedUncertainty_um} coverageFactor={result.coverageFactor} system={system} />
+          )}
           {result.verdict && (
             <div>
-              <VerdictBadge verdict={result.verdict} size="sm" rule={clearance?.rule ? `${clearance.rule} rule, k = ${result.coverageFactor}` : undefined} />
+              <VerdictBadge verdict={result.verdict} size="sm" rule={clearance?.rule ? `${clearance.rule} rule, k = ${formatCoverageFactor(result.coverageFactor)}` : undefined} />
             </div>
           )}
           {!agrees && published.verdict && result.verdict !== published.verdict && (

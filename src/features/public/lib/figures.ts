@@ -138,13 +138,13 @@ export function readingResolutionPm(reading: {
   unit: LengthUnit;
   value: string | null;
   values: string[] | null;
-  engine?: { kind: string; unit: LengthUnit; resolution?: number } | undefined;
+  engine?: { kind: string; unit: string; resolution?: number | string } | undefined;
 }): bigint | null {
   if (reading.kind === 'bracket') return null;
   const engine = reading.engine;
-  if (engine && engine.kind !== 'bracket' && engine.resolution !== undefined) {
+  if (engine && engine.kind !== 'bracket' && engine.resolution !== undefined && engine.unit === reading.unit) {
     const text = String(engine.resolution);
-    if (/^\d+(\.\d+)?$/.test(text)) return stepOf(text, engine.unit, true);
+    if (/^\d+(\.\d+)?$/.test(text)) return stepOf(text, reading.unit, true);
   }
   const typed = reading.kind === 'direct' ? reading.value : (reading.values?.[0] ?? null);
   return typed ? stepOf(typed, reading.unit, false) : null;

@@ -2,6 +2,7 @@ import type { CalcRequest, Reading as EngineReading } from '@shared/measure/calc
 import { micrometresToPicometres } from '@shared/measure/units';
 import type { PublicClearance, PublicReading } from '@shared/public/public-story.schema';
 import { exactText } from './figures';
+import { engineInstrumentsMap } from '@shared/measure/instrument-map';
 
 /**
  * The calculator request that reproduces a published figure: the readings as the engine takes
@@ -15,9 +16,11 @@ export function recomputeRequest(readings: readonly PublicReading[], clearance: 
     // Keys are validated reading keys (never "__proto__"); defineProperty keeps that true regardless.
     Object.defineProperty(engine, reading.key, { value: reading.engine, enumerable: true, writable: true, configurable: true });
   }
+  const instruments = engineInstrumentsMap(readings.map((r) => r.engineInstrument));
+  const withInstruments = Object.keys(instruments).length ? { instruments } : {};
   if (!clearance) {
     const only = readings[0];
-    return only ? { readings: engine, terms: [{ reading: only.key, sign: 1 }] } : null;
+    return only ? { readings: engine, ...withInstruments, terms: [{ reading: only.key, sign: 1 }] } : null;
   }
   if (clearance.terms.some((t) => !Object.hasOwn(engine, t.readingKey))) return null;
   const band = clearance.band;
@@ -32,8 +35,12 @@ export function recomputeRequest(readings: readonly PublicReading[], clearance: 
       : undefined;
   return {
     readings: engine,
+    ...withInstruments,
     terms: clearance.terms.map((t) => ({ reading: t.readingKey, sign: t.sign })),
     ...(spec && { spec }),
-    coverageFactor: clearance.coverageFactor,
+    // A result judged before the second engine, or with a chosen k, is rerun with that k; otherwise at its coverage probability.
+    ...(clearance.method === undefined || clearance.fixedCoverageFactor
+      ? { coverageFactor: clearance.coverageFactor }
+      : { coverageProbability: clearance.coverageProbability }),
   };
 }

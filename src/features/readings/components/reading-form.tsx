@@ -6,7 +6,7 @@ import type { Build } from '@shared/builds/build.schema';
 import type { Clip } from '@shared/clips/clip.schema';
 import { calibrationDueOn, calibrationStateOn, zeroCheckedKinds, type Instrument } from '@shared/instruments/instrument.schema';
 import { readingSchema as engineReadingSchema } from '@shared/measure/calc.schema';
-import { formatLength, formatUncertainty } from '@shared/measure/format';
+import { decimalsForStep, formatUncertaintyIn, formatValue } from '@shared/measure/format-quantity';
 import { evaluateReading } from '@shared/measure/readings';
 import { materialExpansion, materialNames } from '@shared/measure/thermal';
 import { unitSymbols } from '@shared/measure/units';
@@ -599,6 +599,6 @@ function readBackOf(values: ReadingFormValues, instrument: Instrument | undefine
   const checked = engineReadingSchema.safeParse(engine);
   if (!checked.success) return { ok: true, text: shown };
   const evaluated = evaluateReading(keyFromName(values.name || 'reading'), checked.data);
-  const estimate = formatLength(evaluated.valuePm, evaluated.unit, evaluated.displayStepPm);
-  return { ok: true, text: `${shown}; estimate ${estimate}, u = ${formatUncertainty(evaluated.standardUncertaintyUm, evaluated.unit)}` };
+  const estimate = formatValue(evaluated.estimate, evaluated.unit, decimalsForStep(evaluated.displayStep));
+  return { ok: true, text: `${shown}; estimate ${estimate}, u = ${formatUncertaintyIn(evaluated.standardUncertainty, evaluated.unit)}` };
 }

@@ -3,6 +3,7 @@ import type { SheetCheck } from '@shared/review/review-sheet.schema';
 import { cn } from '@/lib/cn';
 import { evidenceState, evidenceStateWords } from '../lib/review-format';
 import { EvidenceStateGlyph } from './evidence-state-badge';
+import { PublishedChangeGlyph } from './published-change';
 
 /** One reading or clearance in the list to check. */
 export interface EvidenceItem {
@@ -16,6 +17,8 @@ export interface EvidenceItem {
   /** A second line: instrument, or spec. */
   detail: string;
   check: SheetCheck | null;
+  /** A clearance whose verdict or figures differ from the story's current publication: its revision. */
+  differsFromRevision?: number | null;
 }
 
 const stateTone = {
@@ -107,6 +110,12 @@ export function EvidenceList({
                   <span className="min-w-0">
                     <span className="font-medium">{item.name}</span> <span className="figures text-2xs text-ink-muted">{item.key}</span>
                     <span className="block truncate text-xs text-ink-muted">{item.detail}</span>
+                    {item.differsFromRevision != null && (
+                      <span className="mt-0.5 flex items-center gap-1 text-xs font-medium text-verdict-undecided" data-differs-from-revision={item.differsFromRevision}>
+                        <PublishedChangeGlyph changed />
+                        differs from published revision {item.differsFromRevision}
+                      </span>
+                    )}
                   </span>
                   <span className="figures col-start-2 text-xs sm:col-start-3 sm:text-right sm:text-sm">{item.figure}</span>
                 </div>

@@ -81,7 +81,7 @@ function itemsOf(sheet: ReviewSheet): EvidenceItem[] {
       detail: reading.instrumentName,
       check,
     })),
-    ...sheet.clearances.map(({ clearance, check }) => ({
+    ...sheet.clearances.map(({ clearance, check, asPublished, change }) => ({
       id: `clearance:${clearance.id}`,
       kind: 'clearance' as const,
       name: clearance.name,
@@ -89,6 +89,7 @@ function itemsOf(sheet: ReviewSheet): EvidenceItem[] {
       figure: clearance.result?.display ?? 'cannot be worked out',
       detail: clearance.spec ? specLine(clearance.spec) : 'no spec attached',
       check,
+      differsFromRevision: change && asPublished ? asPublished.revision : null,
     })),
   ];
 }

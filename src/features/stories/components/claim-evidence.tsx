@@ -1,9 +1,12 @@
+import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import { Link } from 'react-router-dom';
 import type { Clearance } from '@shared/clearances/clearance.schema';
 import type { Reading } from '@shared/readings/reading.schema';
 import type { ClaimKind, ClaimStatus, ClaimTarget } from '@shared/stories/claims';
 import { VerdictBadge } from '@/components/ui/badge';
+import { conformanceOf, endInUnit, intervalOf } from '@/features/clearances/components/coverage-facts';
 import { formatTime } from '@/features/clips/lib/clip-format';
+import { CoverageRows, ReaderBudget, ReaderWarnings } from '@/features/public/components/uncertainty-evidence';
 
 export interface EvidenceLookup {
   buildId: number;
@@ -88,7 +91,7 @@ export function ClaimEvidence({
 
       {clearance?.result?.verdict && clearance.result.rule && (
         <div className="flex flex-col gap-1">
-          <VerdictBadge verdict={clearance.result.verdict} rule={`${clearance.result.rule} rule, k = ${clearance.result.coverageFactor}`} size="sm" />
+          <VerdictBadge verdict={clearance.result.verdict} rule={`${clearance.result.rule} rule, k = ${formatCoverageFactor(clearance.result.coverageFactor)}`} size="sm" />
           {clearance.spec && (
             <p className="text-xs text-ink-muted">
               Spec: {clearance.spec.name}, version {clearance.spec.version} · {clearance.spec.sourceText}
@@ -98,6 +101,14 @@ export function ClaimEvidence({
         </div>
       )}
       {clearance && clearance.result && !clearance.result.verdict && <p className="text-xs text-ink-muted">No spec attached, so no verdict.</p>}
+      {clearance?.result && (intervalOf(clearance.result) || conformanceOf(clearance.result) !== null) && (
+        // What readers will see under the verdict, in the builder's own units.
+        <dl className="flex flex-col gap-0.5 [&_dd]:mb-1.5" data-coverage="">
+          <CoverageRows facts={clearance.result} end={endInUnit(clearance.result)} />
+        </dl>
+      )}
+      {clearance?.result && <ReaderWarnings facts={clearance.result} />}
+      {clearance?.result && <ReaderBudget facts={clearance.result} />}
       {reading && <p className="text-xs text-ink-muted">A reading on its own has no verdict; clearances worked out from it do.</p>}
 
       {termReadings.length > 0 && (

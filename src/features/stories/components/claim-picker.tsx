@@ -1,3 +1,4 @@
+import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import { useId, useMemo, useState, type KeyboardEvent } from 'react';
 import { Dialog as RadixDialog } from 'radix-ui';
 import type { Clearance } from '@shared/clearances/clearance.schema';
@@ -28,7 +29,7 @@ export function pickableTargets(readings: readonly Reading[], clearances: readon
       name: c.name,
       value: c.result?.display ?? `cannot be worked out: ${c.problems.join(' ')}`,
       verdict: c.result?.verdict ?? null,
-      rule: c.result?.rule ? `${c.result.rule} rule, k = ${c.result.coverageFactor}` : null,
+      rule: c.result?.rule ? `${c.result.rule} rule, k = ${formatCoverageFactor(c.result.coverageFactor)}` : null,
     })),
     ...readings.map((r) => ({ kind: 'reading' as const, key: r.key, name: r.name, value: r.result.display, verdict: null, rule: null })),
   ];
