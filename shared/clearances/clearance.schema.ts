@@ -71,6 +71,22 @@ export const bandUmSchema = z.object({
   rejectUm: z.number().nullable(),
 });
 
+/**
+ * What the second engine adds to a result: how the interval was found, the interval, the
+ * probability of conformance and the budget. Optional: results judged before it lack them.
+ */
+export const coverageResultFields = {
+  method: z.enum(['gum', 'monte-carlo']).optional(),
+  coverageProbability: z.number().optional(),
+  /** True when k was chosen rather than worked out from the coverage probability. */
+  fixedCoverageFactor: z.boolean().optional(),
+  effectiveDegreesOfFreedom: z.number().nullable().optional(),
+  intervalUm: z.tuple([z.number(), z.number()]).optional(),
+  probabilityOfConformance: z.number().nullable().optional(),
+  budget: z.array(budgetLineSchema).optional(),
+  warnings: z.array(z.string()).optional(),
+};
+
 /** What the engine makes of a clearance. */
 export const clearanceResultSchema = z.object({
   /** The unit the working is written in (the spec's, else the first reading's). */
@@ -89,16 +105,7 @@ export const clearanceResultSchema = z.object({
   rule: z.enum(decisionRules).nullable(),
   band: bandUmSchema.nullable(),
   steps: z.array(z.string()),
-  /** Added with the second engine; absent from results judged before it. */
-  method: z.enum(['gum', 'monte-carlo']).optional(),
-  coverageProbability: z.number().optional(),
-  /** True when k was chosen rather than worked out from the coverage probability. */
-  fixedCoverageFactor: z.boolean().optional(),
-  effectiveDegreesOfFreedom: z.number().nullable().optional(),
-  intervalUm: z.tuple([z.number(), z.number()]).optional(),
-  probabilityOfConformance: z.number().nullable().optional(),
-  budget: z.array(budgetLineSchema).optional(),
-  warnings: z.array(z.string()).optional(),
+  ...coverageResultFields,
 });
 export type ClearanceResult = z.infer<typeof clearanceResultSchema>;
 

@@ -342,19 +342,18 @@ export function evaluateCalc(request: CalcRequest, options: EvaluateOptions = {}
   const key = options.trials || options.forceMonteCarlo ? `${requestText}|${options.trials ?? ''}|${options.forceMonteCarlo ?? ''}` : requestText;
   const cached = memo.get(key);
   if (cached) return cached;
-  const evaluation = evaluateUncached(request, requestText, options);
+  const evaluation = evaluateUncached(request, options);
   if (memo.size >= MEMO_SIZE) memo.delete(memo.keys().next().value as string);
   memo.set(key, evaluation);
   return evaluation;
 }
 
-function evaluateUncached(request: CalcRequest, requestText: string, options: EvaluateOptions): CalcEvaluation {
+function evaluateUncached(request: CalcRequest, options: EvaluateOptions): CalcEvaluation {
   const instruments = request.instruments ?? {};
   // The seed is the model alone (readings, instruments, terms or formula, constants): the same result
   // judged against another spec, shown in another unit or at another probability draws the same trials.
-  const model_ = { readings: request.readings, instruments: request.instruments, terms: request.terms, formula: request.formula, constants: request.constants };
-  const modelText = JSON.stringify(model_);
-  void requestText;
+  const modelOnly = { readings: request.readings, instruments: request.instruments, terms: request.terms, formula: request.formula, constants: request.constants };
+  const modelText = JSON.stringify(modelOnly);
   const readings = new Map<string, EvaluatedReading>();
   for (const [key, reading] of Object.entries(request.readings)) readings.set(key, evaluateReading(key, reading, instruments));
   const model = buildModel(request, readings);
@@ -466,46 +465,47 @@ function evaluateUncached(request: CalcRequest, requestText: string, options: Ev
   let mcWithin: number | null = null;
   const y = value.valueOf();
   const specBand = request.spec ? bandOf(request.spec, unit, conv) : null;
+  // A linear model is y = y₀ + Σ c_j δ_j exactly, so its trials need only each component's draw
+  // times its sensitivity; other models are evaluated at every trial's inputs.
   const mcIndex = new Map(model.names.map((n, i) => [n, i]));
-  const mcComponents = components.map((c) => ({
+  const mcEstimates = model.linear ? [yBase] : Array.from(model.x);
+  const mcModel = model.linear ? (v: Float64Array) => v[0]! : model.evaluate;
+  const mcComponents = components.map((c, j) => ({
     distribution: c.distribution,
     standardUncertainty: c.standardUncertainty,
     ...(c.halfWidth !== undefined && { halfWidth: c.halfWidth }),
     degreesOfFreedom: c.degreesOfFreedom,
-    effects: c.effects.map((e) => ({ index: mcIndex.get(e.reading)!, effect: e.effect })),
+    effects: model.linear
+      ? [{ index: 0, effect: lines[j]!.sensitivity * perUnit }]
+      : c.effects.map((e) => ({ index: mcIndex.get(e.reading)!, effect: e.effect })),
   }));
   const baseOf = (v: number) => toBase(fractionOfDouble(v), unit, conv).valueOf();
+  const bandInBase = (band: { min?: Fraction; max?: Fraction }) => ({
+    ...(band.min !== undefined && { min: toBase(band.min, unit, conv).valueOf() }),
+    ...(band.max !== undefined && { max: toBase(band.max, unit, conv).valueOf() }),
+  });
   const nonNormal = lines.some((l) => l.c.distribution !== 'normal' && u > 0 && (l.contribution * l.contribution) / (u * u) >= MONTE_CARLO_SHARE);
   if (request.coverageFactor !== undefined) {
     k = request.coverageFactor;
     low = y - k * u;
     high = y + k * u;
     if (u > 0 && (nonNormal || !model.linear)) {
-      // The interval y ± k·u_c as chosen; how much it covers comes from the result's own distribution.
-      const mc = monteCarlo({
-        estimates: Array.from(model.x),
-        components: mcComponents,
-        model: model.evaluate,
-        probability: 0.95,
-        seed: seedOf(modelText),
-        tolerance: numericalTolerance(u * perUnit),
-        band: { min: baseOf(low), max: baseOf(high) },
-      });
-      trials = mc.trials;
-      p = Math.min(COVERAGE_PROBABILITY_CAP, mc.probabilityWithin ?? impliedCoverageProbability(k, nuEff));
-      if (specBand) {
-        // The same trials (same seed) counted against the spec: the probability of conformance from the result's own distribution.
-        const againstSpec = monteCarlo({
-          estimates: Array.from(model.x),
+      // The interval y ± k·u_c as chosen; how much it covers, and how much lies within the spec,
+      // are counted over the same trials (same seed) of the result's own distribution.
+      const count = (band: { min?: number; max?: number }) =>
+        monteCarlo({
+          estimates: mcEstimates,
           components: mcComponents,
-          model: model.evaluate,
+          model: mcModel,
           probability: 0.95,
           seed: seedOf(modelText),
           tolerance: numericalTolerance(u * perUnit),
-          band: { ...(specBand.min !== undefined && { min: toBase(specBand.min, unit, conv).valueOf() }), ...(specBand.max !== undefined && { max: toBase(specBand.max, unit, conv).valueOf() }) },
+          band,
         });
-        mcWithin = againstSpec.probabilityWithin;
-      }
+      const mc = count({ min: baseOf(low), max: baseOf(high) });
+      trials = mc.trials;
+      p = Math.min(COVERAGE_PROBABILITY_CAP, mc.probabilityWithin ?? impliedCoverageProbability(k, nuEff));
+      if (specBand) mcWithin = count(bandInBase(specBand)).probabilityWithin;
       steps.push(
         `Expanded uncertainty U = k·u_c with k = ${plainNumber(k)} as chosen (GUM 6.2.1): U = ${showU(k * u)}. The result is not near-normal, so what that interval covers was counted by Monte Carlo (JCGM 101:2008, ${mc.trials.toLocaleString('en-US')} trials): ${plainNumber(p * 100, 4)} %.`,
       );
@@ -526,11 +526,11 @@ function evaluateUncached(request: CalcRequest, requestText: string, options: Ev
     );
     if (u > 0 && (nonNormal || !model.linear || options.forceMonteCarlo)) {
       const deltaBase = numericalTolerance(u * perUnit);
-      const bandBase = specBand ? { ...(specBand.min !== undefined && { min: toBase(specBand.min, unit, conv).valueOf() }), ...(specBand.max !== undefined && { max: toBase(specBand.max, unit, conv).valueOf() }) } : undefined;
+      const bandBase = specBand ? bandInBase(specBand) : undefined;
       const mc = monteCarlo({
-        estimates: Array.from(model.x),
+        estimates: mcEstimates,
         components: mcComponents,
-        model: model.evaluate,
+        model: mcModel,
         probability: p,
         seed: seedOf(modelText),
         tolerance: options.trials ? 0 : deltaBase,

@@ -379,7 +379,10 @@ export const unitSystemsForDefaults = ['imperial', 'metric'] as const;
 export type DefaultUnitSystem = (typeof unitSystemsForDefaults)[number];
 
 /** The temperature scales a user can pick, independent of the unit system. */
-export type TemperatureScale = 'degC' | 'degF';
+export const temperatureScales = ['degC', 'degF'] as const;
+
+/** A temperature scale a user can pick. */
+export type TemperatureScale = (typeof temperatureScales)[number];
 
 /**
  * The unit a new reading of `quantity` starts in. Volume is cc in both systems because builders

@@ -3,6 +3,7 @@
  */
 import { z } from 'zod';
 import { unitSystems } from '../measure/format';
+import { defaultUnitSystemSchema, temperatureScaleSchema } from '../users/user.schema';
 import { publicBuilderRefSchema } from './public-story.schema';
 
 /** Path parameters of the follow routes. */
@@ -35,11 +36,17 @@ export const followListResponseSchema = z.object({ items: z.array(followSchema),
 export const followPatchSchema = z.strictObject({ emailOnPublish: z.boolean({ error: 'emailOnPublish must be true or false' }) });
 export type FollowPatch = z.infer<typeof followPatchSchema>;
 
-/** A reader's preferences. `units` null = figures as the builder entered them. */
+/**
+ * A reader's preferences. `units` is the pick made with a story's units switch (null = none yet);
+ * `unitSystem` and `temperatureScale` are the account's default units for new figures.
+ */
 export const preferencesSchema = z.object({
   units: z.enum(unitSystems).nullable(),
   /** A weekly mail of what the builders one follows published. */
   weeklyDigest: z.boolean(),
+  /** The account's default units (also on `GET /api/me`); null = not chosen. */
+  unitSystem: defaultUnitSystemSchema.nullable(),
+  temperatureScale: temperatureScaleSchema.nullable(),
 });
 export type Preferences = z.infer<typeof preferencesSchema>;
 
@@ -51,6 +58,8 @@ export const preferencesPatchSchema = z
   .strictObject({
     units: z.enum(unitSystems, { error: 'units must be "imperial", "metric" or null' }).nullable(),
     weeklyDigest: z.boolean({ error: 'weeklyDigest must be true or false' }),
+    unitSystem: defaultUnitSystemSchema.nullable(),
+    temperatureScale: temperatureScaleSchema.nullable(),
   })
   .partial();
 export type PreferencesPatch = z.infer<typeof preferencesPatchSchema>;

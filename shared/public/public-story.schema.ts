@@ -6,9 +6,9 @@
  * a publication and has not been withdrawn; a newer revision in review leaves the old one public.
  */
 import { z } from 'zod';
-import { bandUmSchema } from '../clearances/clearance.schema';
+import { bandUmSchema, coverageResultFields } from '../clearances/clearance.schema';
 import { calibrationStates } from '../instruments/instrument.schema';
-import { budgetLineSchema, calcInstrumentSchema, readingSchema as engineReadingSchema, unitSchema } from '../measure/calc.schema';
+import { calcInstrumentSchema, readingSchema as engineReadingSchema, unitSchema } from '../measure/calc.schema';
 import { unitSystems } from '../measure/format';
 import { decisionRules, verdicts } from '../measure/spec';
 import { readingKinds, readingWarningSchema } from '../readings/reading.schema';
@@ -172,14 +172,7 @@ export const publicClearanceSchema = z.object({
   steps: z.array(z.string()),
   checked: publicCheckSchema,
   /** The second engine's figures; absent from clearances judged before it. */
-  method: z.enum(['gum', 'monte-carlo']).optional(),
-  coverageProbability: z.number().optional(),
-  fixedCoverageFactor: z.boolean().optional(),
-  effectiveDegreesOfFreedom: z.number().nullable().optional(),
-  intervalUm: z.tuple([z.number(), z.number()]).optional(),
-  probabilityOfConformance: z.number().nullable().optional(),
-  budget: z.array(budgetLineSchema).optional(),
-  warnings: z.array(z.string()).optional(),
+  ...coverageResultFields,
 });
 export type PublicClearance = z.infer<typeof publicClearanceSchema>;
 

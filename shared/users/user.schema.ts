@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { temperatureScales, unitSystemsForDefaults } from '../measure/quantities';
 
 /** Every role a Benchproof account can hold, lowest privilege first. New accounts are followers. */
 export const roles = ['follower', 'builder', 'moderator', 'admin'] as const;
@@ -9,6 +10,12 @@ export const roleSchema = z.enum(roles);
 /** A role name. */
 export type Role = z.infer<typeof roleSchema>;
 
+/** Schema of a default unit system: new figures start in inches and thou, or millimetres and micrometres. */
+export const defaultUnitSystemSchema = z.enum(unitSystemsForDefaults, { error: 'unitSystem must be "imperial", "metric" or null' });
+
+/** Schema of a default temperature scale. */
+export const temperatureScaleSchema = z.enum(temperatureScales, { error: 'temperatureScale must be "degC", "degF" or null' });
+
 /** A user as the API shows it to the user themselves and to admins. */
 export const userSchema = z.object({
   id: z.number().int().positive(),
@@ -18,6 +25,10 @@ export const userSchema = z.object({
   avatarUrl: z.string().nullable(),
   shop: z.string().nullable(),
   role: roleSchema,
+  /** Default unit system for new figures; null = not chosen (the product's own default applies). */
+  unitSystem: defaultUnitSystemSchema.nullable(),
+  /** Default temperature scale; null = the unit system's (°F imperial, °C metric). */
+  temperatureScale: temperatureScaleSchema.nullable(),
   createdAt: z.string(),
 });
 

@@ -67,21 +67,40 @@ export async function setEmailOnPublish(follower: User, builderId: number, email
   });
 }
 
-function preferencesDto(p: ReaderPreferences): Preferences {
-  return { units: p.unitsPreference ?? null, weeklyDigest: p.weeklyDigest };
+function preferencesDto(p: ReaderPreferences, user: User): Preferences {
+  return {
+    units: p.unitsPreference ?? null,
+    weeklyDigest: p.weeklyDigest,
+    unitSystem: user.unitSystem ?? null,
+    temperatureScale: user.temperatureScale ?? null,
+  };
 }
 
 /** A reader's preferences. */
 export async function preferencesOf(user: User): Promise<Preferences> {
-  return preferencesDto((await ReaderPreferences.findByPk(user.id))!);
+  return preferencesDto((await ReaderPreferences.findByPk(user.id))!, user);
 }
 
 /** Changes what is sent of a reader's preferences. */
 export async function updatePreferences(user: User, patch: PreferencesPatch): Promise<Preferences> {
-  const row = (await ReaderPreferences.findByPk(user.id))!;
-  await row.update({
-    ...(patch.units !== undefined && { unitsPreference: patch.units }),
-    ...(patch.weeklyDigest !== undefined && { weeklyDigest: patch.weeklyDigest }),
+  return User.sequelize!.transaction(async (transaction) => {
+    const row = (await ReaderPreferences.findByPk(user.id, { transaction, lock: transaction.LOCK.UPDATE }))!;
+    await row.update(
+      {
+        ...(patch.units !== undefined && { unitsPreference: patch.units }),
+        ...(patch.weeklyDigest !== undefined && { weeklyDigest: patch.weeklyDigest }),
+      },
+      { transaction },
+    );
+    // The default units live on the account (GET /api/me answers them). `silent`: users.updated_at
+    // keys the builder's cached public pages, which a units default does not change.
+    await user.update(
+      {
+        ...(patch.unitSystem !== undefined && { unitSystem: patch.unitSystem }),
+        ...(patch.temperatureScale !== undefined && { temperatureScale: patch.temperatureScale }),
+      },
+      { transaction, silent: true },
+    );
+    return preferencesDto(row, user);
   });
-  return preferencesDto(row);
 }

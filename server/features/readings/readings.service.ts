@@ -24,7 +24,7 @@ import { buildForOwner, buildForViewer, type OwnerAction } from '../builds/build
 import { ClearanceTerm, Clearance } from '../clearances/clearance.model';
 import { Clip, Moment } from '../clips/clip.model';
 import { Instrument, ZeroCheck } from '../instruments/instrument.model';
-import { zeroCheckOffset } from '../instruments/instruments.service';
+import { toInstrumentDto, zeroCheckOffset } from '../instruments/instruments.service';
 import { Story } from '../stories/story.model';
 import { User } from '../users/user.model';
 import { Reading, ReadingRevision } from './reading.model';
@@ -206,20 +206,9 @@ export function evaluateStored(
   };
 }
 
-/** What the register holds of an instrument, for the engine. */
+/** What the register holds of an instrument, for the engine: its API shape carries every figure. */
 function registerOf(instrument: Instrument): RegisterInstrument {
-  return {
-    id: instrument.id,
-    unit: instrument.unit,
-    kind: instrument.kind,
-    resolution: instrument.resolution,
-    statedUncertainty: instrument.statedUncertainty ?? null,
-    calibrationUncertainty: instrument.calibrationUncertainty ?? null,
-    calibrationCoverageFactor: instrument.calibrationCoverageFactor == null ? null : Number(instrument.calibrationCoverageFactor),
-    maxPermissibleError: instrument.maxPermissibleError ?? null,
-    settingStandardUncertainty: instrument.settingStandardUncertainty ?? null,
-    settingStandardCoverageFactor: instrument.settingStandardCoverageFactor == null ? null : Number(instrument.settingStandardCoverageFactor),
-  };
+  return toInstrumentDto(instrument);
 }
 
 function bareEngine(r: Pick<Reading, 'kind' | 'unit' | 'value' | 'passes' | 'stops' | 'repeatedValues'>): EngineReading {

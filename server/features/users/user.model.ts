@@ -6,6 +6,7 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import type { DefaultUnitSystem, TemperatureScale } from '@shared/measure/quantities';
 import type { Role, User as UserDto } from '@shared/users/user.schema';
 
 /** An account, created on first GitHub sign-in. */
@@ -20,6 +21,9 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
   declare bio: CreationOptional<string | null>;
   declare role: CreationOptional<Role>;
   declare isDemo: CreationOptional<boolean>;
+  /** Default units for new figures; null = not chosen. */
+  declare unitSystem: CreationOptional<DefaultUnitSystem | null>;
+  declare temperatureScale: CreationOptional<TemperatureScale | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 
@@ -33,6 +37,8 @@ export class User extends Model<InferAttributes<User>, InferCreationAttributes<U
       avatarUrl: this.avatarUrl,
       shop: this.shop ?? null,
       role: this.role,
+      unitSystem: this.unitSystem ?? null,
+      temperatureScale: this.temperatureScale ?? null,
       createdAt: this.createdAt.toISOString(),
     };
   }
@@ -51,6 +57,8 @@ export function initUserModel(sequelize: Sequelize) {
       bio: { type: DataTypes.TEXT, allowNull: true },
       role: { type: DataTypes.STRING(16), allowNull: false, defaultValue: 'follower' },
       isDemo: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      unitSystem: { type: DataTypes.STRING(8), allowNull: true },
+      temperatureScale: { type: DataTypes.STRING(4), allowNull: true },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

@@ -40,7 +40,7 @@ export default function AccountMenu({ user }: { user: User }) {
           </MenuItem>
         )}
         <MenuItem asChild>
-          <Link to="/account/follows">Follows and e-mail</Link>
+          <Link to="/account/follows">Follows, e-mail and units</Link>
         </MenuItem>
         {user.role === 'admin' && (
           <MenuItem asChild>

@@ -97,10 +97,10 @@ describe('following a builder', () => {
 describe('a reader’s preferences', () => {
   it('starts as figures as entered and no digest, and keeps what is changed', async () => {
     const reader = await sessionWithRole(t, 'follower', 'prefs');
-    expect(preferencesResponseSchema.parse((await reader.agent.get('/api/me/preferences').expect(200)).body).preferences).toEqual({ units: null, weeklyDigest: false });
-    expect((await send(reader, 'patch', '/api/me/preferences', { units: 'metric' }).expect(200)).body.preferences).toEqual({ units: 'metric', weeklyDigest: false });
-    expect((await send(reader, 'patch', '/api/me/preferences', { weeklyDigest: true }).expect(200)).body.preferences).toEqual({ units: 'metric', weeklyDigest: true });
-    expect((await send(reader, 'patch', '/api/me/preferences', { units: null }).expect(200)).body.preferences).toEqual({ units: null, weeklyDigest: true });
+    expect(preferencesResponseSchema.parse((await reader.agent.get('/api/me/preferences').expect(200)).body).preferences).toEqual({ units: null, weeklyDigest: false, unitSystem: null, temperatureScale: null });
+    expect((await send(reader, 'patch', '/api/me/preferences', { units: 'metric' }).expect(200)).body.preferences).toEqual({ units: 'metric', weeklyDigest: false, unitSystem: null, temperatureScale: null });
+    expect((await send(reader, 'patch', '/api/me/preferences', { weeklyDigest: true }).expect(200)).body.preferences).toEqual({ units: 'metric', weeklyDigest: true, unitSystem: null, temperatureScale: null });
+    expect((await send(reader, 'patch', '/api/me/preferences', { units: null }).expect(200)).body.preferences).toEqual({ units: null, weeklyDigest: true, unitSystem: null, temperatureScale: null });
     const bad = await send(reader, 'patch', '/api/me/preferences', { units: 'furlongs' });
     expect(bad.status).toBe(400);
     expect(bad.body.error.details[0].path).toBe('units');

@@ -1,8 +1,9 @@
 import { useFieldArray, useFormContext, useWatch, type FieldError } from 'react-hook-form';
 import { Button } from '@/components/ui/button';
 import { Field, Input, Select } from '@/components/ui/field';
+import { useDefaultUnits } from '@/features/auth/lib/use-default-units';
 import { blankInstrument, keyFromName, type CalcFormValues } from '../lib/calc-form';
-import { readingQuantities } from '../lib/units-ui';
+import { nextReadingUnit, readingQuantities } from '../lib/units-ui';
 import { UnitSelect } from './unit-select';
 
 const MAX_INSTRUMENTS = 10;
@@ -48,6 +49,7 @@ export function InstrumentFields({ notes }: { notes: readonly string[] }) {
   const { fields, append, remove } = useFieldArray({ control, name: 'instruments' });
   const rows = useWatch({ control, name: 'instruments' });
   const firstUnit = useWatch({ control, name: 'readings.0.unit' });
+  const defaults = useDefaultUnits();
   const figureProps = { inputMode: 'decimal' as const, autoComplete: 'off', className: 'figures', spellCheck: false };
 
   return (
@@ -117,7 +119,7 @@ export function InstrumentFields({ notes }: { notes: readonly string[] }) {
         </ul>
       )}
       <div data-print="hide">
-        <Button onClick={() => append(blankInstrument(fields.length + 1, firstUnit ?? 'in'))} disabled={fields.length >= MAX_INSTRUMENTS}>
+        <Button onClick={() => append(blankInstrument(fields.length + 1, nextReadingUnit(firstUnit, defaults)))} disabled={fields.length >= MAX_INSTRUMENTS}>
           Add an instrument
         </Button>
       </div>

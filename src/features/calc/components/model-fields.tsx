@@ -4,8 +4,9 @@ import { formulaTemplates } from '@shared/measure/formula-templates';
 import { quantityKinds, type QuantityKind } from '@shared/measure/quantities';
 import { Button } from '@/components/ui/button';
 import { Field, Input, Select, Textarea } from '@/components/ui/field';
+import { useDefaultUnits } from '@/features/auth/lib/use-default-units';
 import { blankConstant, type CalcFormValues } from '../lib/calc-form';
-import { quantityLabels } from '../lib/units-ui';
+import { nextReadingUnit, quantityLabels } from '../lib/units-ui';
 import { UnitSelect } from './unit-select';
 
 const MAX_CONSTANTS = 10;
@@ -33,6 +34,7 @@ export function ModelFields({ readingKeys, quantity, onApplyTemplate }: ModelFie
   const [picked, setPicked] = useState(template || formulaTemplates[0]!.id);
   const pickedTemplate = formulaTemplates.find((t) => t.id === picked);
   const firstUnit = useWatch({ control, name: 'readings.0.unit' });
+  const defaults = useDefaultUnits();
   const constantRows = useWatch({ control, name: 'constants' });
   const figureProps = { inputMode: 'decimal' as const, autoComplete: 'off', className: 'figures', spellCheck: false };
 
@@ -120,7 +122,7 @@ export function ModelFields({ readingKeys, quantity, onApplyTemplate }: ModelFie
               );
             })}
             <div data-print="hide">
-              <Button size="sm" onClick={() => append(blankConstant(fields.length + 1, firstUnit ?? 'in'))} disabled={fields.length >= MAX_CONSTANTS}>
+              <Button size="sm" onClick={() => append(blankConstant(fields.length + 1, nextReadingUnit(firstUnit, defaults)))} disabled={fields.length >= MAX_CONSTANTS}>
                 Add a constant
               </Button>
             </div>

@@ -4,6 +4,7 @@ import { formulaTemplates, type FormulaTemplate } from '@shared/measure/formula-
 import { isAnyUnit, quantityOf, type AnyUnit, type QuantityKind } from '@shared/measure/quantities';
 import type { DecisionRule } from '@shared/measure/spec';
 import { lookupMaterial } from '@shared/measure/thermal';
+import type { DefaultUnits } from '@/features/auth/lib/default-units';
 import { startingUnit } from './units-ui';
 
 /** How a reading takes part in a signed sum. */
@@ -156,23 +157,24 @@ const base: CalcFormValues = {
 };
 
 /**
- * Rows, constants, formula and result unit for a template, in the unit system of `near`. Fixed
- * constants come filled in; the builder types the readings and the other constants.
+ * Rows, constants, formula and result unit for a template, in the builder's default units when
+ * given, else in the unit system of the first reading on the page. Fixed constants come filled
+ * in; the builder types the readings and the other constants.
  */
-export function applyTemplate(values: CalcFormValues, template: FormulaTemplate): CalcFormValues {
+export function applyTemplate(values: CalcFormValues, template: FormulaTemplate, defaults?: DefaultUnits): CalcFormValues {
   const near = values.readings[0]?.unit;
   const readings = template.slots.map((slot, i) => ({
-    ...blankReading(i + 1, slot.unit ?? startingUnit(slot.quantity, near)),
+    ...blankReading(i + 1, slot.unit ?? startingUnit(slot.quantity, near, defaults)),
     name: slot.key,
     hint: `${slot.label}: ${slot.hint}`,
   }));
   const constants = template.constants.map((c, i) => ({
-    ...blankConstant(i + 1, c.fixed?.unit ?? startingUnit(c.quantity, near)),
+    ...blankConstant(i + 1, c.fixed?.unit ?? startingUnit(c.quantity, near, defaults)),
     name: c.key,
     value: c.fixed?.value ?? '',
     hint: `${c.label}: ${c.hint}`,
   }));
-  const resultUnit = startingUnit(template.result, near);
+  const resultUnit = startingUnit(template.result, near, defaults);
   return {
     ...values,
     readings,

@@ -9,6 +9,7 @@ import {
   type DefaultUnitSystem,
   type QuantityKind,
 } from '@shared/measure/quantities';
+import { noDefaultUnits, type DefaultUnits } from '@/features/auth/lib/default-units';
 
 /** Group headings of the unit pickers. */
 export const quantityLabels: Readonly<Record<QuantityKind, string>> = {
@@ -48,9 +49,28 @@ export function isUnitOf(unit: string, quantity: QuantityKind): unit is AnyUnit 
   return isAnyUnit(unit) && quantityOf(unit) === quantity;
 }
 
-/** The unit a new figure of `quantity` starts in, following a unit already on the page. */
-export function startingUnit(quantity: QuantityKind, near: AnyUnit | undefined): AnyUnit {
-  return defaultUnitFor(quantity, near ? systemOfUnit(near) : 'imperial');
+/**
+ * The unit a new figure of `quantity` starts in: the builder's default units when they chose
+ * them, else the system of a unit already on the page (`near`), else imperial.
+ */
+export function startingUnit(quantity: QuantityKind, near: AnyUnit | undefined, defaults: DefaultUnits = noDefaultUnits): AnyUnit {
+  const system = defaults.system ?? (near ? systemOfUnit(near) : 'imperial');
+  return defaultUnitFor(quantity, system, defaults.temperatureScale ?? undefined);
+}
+
+/**
+ * The unit of a reading row added after one in `last`. Without defaults it copies the row above.
+ * With them it keeps the quantity of the row above and its unit when that is already in the
+ * builder's units (thou stays thou for an imperial builder), otherwise it proposes their default.
+ */
+export function nextReadingUnit(last: AnyUnit | undefined, defaults: DefaultUnits = noDefaultUnits): AnyUnit {
+  if (!last) return startingUnit('length', undefined, defaults);
+  if (!defaults.system && !defaults.temperatureScale) return last;
+  const quantity = quantityOf(last);
+  const proposed = startingUnit(quantity, last, defaults);
+  if (quantity === 'temperature' && defaults.temperatureScale) return defaults.temperatureScale;
+  if (unitTable[last].system === 'any') return last;
+  return systemOfUnit(last) === systemOfUnit(proposed) ? last : proposed;
 }
 
 export { unitsOf };

@@ -10,6 +10,7 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-state
 import { Field, Select } from '@/components/ui/field';
 import { PageHeader } from '@/components/ui/page-header';
 import { Panel } from '@/components/ui/panel';
+import { useDefaultUnits } from '@/features/auth/lib/use-default-units';
 import { CalcCaution } from '../components/calc-caution';
 import { CalcResult, CalcWorkings } from '../components/calc-result';
 import { CoverageFields } from '../components/coverage-fields';
@@ -34,7 +35,7 @@ import {
 } from '../lib/calc-form';
 import type { CalcOutcome } from '../lib/calc-view';
 import { useLiveCalc, type LiveCalc } from '../lib/use-live-calc';
-import { startingUnit } from '../lib/units-ui';
+import { nextReadingUnit, startingUnit } from '../lib/units-ui';
 
 const MAX_ROWS = 20;
 
@@ -70,6 +71,8 @@ export function Component() {
   const checked = useMemo(() => checkForm(values), [values]);
   const { state: live, retry } = useLiveCalc(checked.ok ? checked.request : null);
   const [lastQuantity, setLastQuantity] = useState<string | null>(null);
+  // The signed-in builder's default units, for the units the page proposes (examples keep theirs).
+  const defaults = useDefaultUnits();
 
   useEffect(() => {
     if (live.status === 'done') setLastQuantity(live.outcome.response.quantity);
@@ -86,9 +89,9 @@ export function Component() {
     if (resultUnit && quantityOf(resultUnit) !== quantity) form.setValue('resultUnit', '');
     const specUnit = form.getValues('spec.unit');
     if (!isAnyUnit(specUnit) || quantityOf(specUnit) !== quantity) {
-      form.setValue('spec.unit', resultUnit && quantityOf(resultUnit) === quantity ? resultUnit : startingUnit(quantity, firstUnit));
+      form.setValue('spec.unit', resultUnit && quantityOf(resultUnit) === quantity ? resultUnit : startingUnit(quantity, firstUnit, defaults));
     }
-  }, [quantity, firstUnit, form]);
+  }, [quantity, firstUnit, form, defaults]);
 
   const keyOfRow = checked.read.keyOfRow;
   const instruments = (values.instruments ?? []).map((row, i) => ({ key: checked.read.keyOfInstrument[i] ?? keyFromName(row.name, i, 'i'), name: row.name }));
@@ -137,7 +140,7 @@ export function Component() {
                   />
                 ))}
                 <div className="flex flex-wrap gap-2" data-print="hide">
-                  <Button onClick={() => append(blankReading(fields.length + 1, values.readings?.at(-1)?.unit ?? 'in'))} disabled={fields.length >= MAX_ROWS}>
+                  <Button onClick={() => append(blankReading(fields.length + 1, nextReadingUnit(values.readings?.at(-1)?.unit, defaults)))} disabled={fields.length >= MAX_ROWS}>
                     Add a reading
                   </Button>
                   <Button type="submit" variant="quiet">
@@ -157,7 +160,7 @@ export function Component() {
                 quantity={quantity}
                 onApplyTemplate={(id) => {
                   const template = formulaTemplates.find((t) => t.id === id);
-                  if (template) form.reset(applyTemplate(form.getValues(), template));
+                  if (template) form.reset(applyTemplate(form.getValues(), template, defaults));
                 }}
               />
             </Panel>

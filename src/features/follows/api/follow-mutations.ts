@@ -6,6 +6,7 @@ import type {
   PreferencesPatch,
   preferencesResponseSchema,
 } from '@shared/public/follows.schema';
+import { authQueries } from '@/features/auth/api/auth-queries';
 import { publicQueries } from '@/features/public/api/public-queries';
 import { apiFetch, type Unparsed } from '@/lib/api';
 
@@ -48,7 +49,7 @@ export function useSetFollowEmail() {
 
 /**
  * PATCH /api/me/preferences. The cache is updated first so a units switch answers at once; a
- * refusal puts the previous preferences back.
+ * refusal puts the previous preferences back. The saved default units go into `/api/me`'s cache.
  */
 export function useUpdatePreferences() {
   const queryClient = useQueryClient();
@@ -65,6 +66,12 @@ export function useUpdatePreferences() {
     onError: (_error, _patch, context) => {
       if (context?.previous) queryClient.setQueryData(key, context.previous);
     },
-    onSuccess: (preferences) => queryClient.setQueryData(key, preferences),
+    onSuccess: (preferences) => {
+      queryClient.setQueryData(key, preferences);
+      // `/api/me` answers the default units too; the calculator and the instrument form read them there.
+      queryClient.setQueryData(authQueries.me().queryKey, (user) =>
+        user ? { ...user, unitSystem: preferences.unitSystem, temperatureScale: preferences.temperatureScale } : user,
+      );
+    },
   });
 }

@@ -1,7 +1,7 @@
 import { useId } from 'react';
 import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
 import { Link, type LoaderFunctionArgs, redirect } from 'react-router-dom';
-import type { Follow } from '@shared/public/follows.schema';
+import type { Follow, Preferences, PreferencesPatch } from '@shared/public/follows.schema';
 import { Button, ButtonLink } from '@/components/ui/button';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { LoadMore } from '@/components/ui/load-more';
@@ -32,11 +32,12 @@ export function Component() {
   return (
     <>
       <PageHeader
-        title="Follows and e-mail"
-        description="Builders you follow, whether each one’s new entries reach you by e-mail, and the weekly digest."
+        title="Follows, e-mail and units"
+        description="Builders you follow, whether each one’s new entries reach you by e-mail, the weekly digest, and the units new figures start in."
       />
       <div className="flex max-w-3xl flex-col gap-10">
         <DigestSetting />
+        <UnitsSetting />
         <FollowList />
       </div>
     </>
@@ -82,13 +83,102 @@ function DigestSetting() {
             </span>
           </label>
           <p className="mt-3 text-xs text-ink-muted">
-            Units for figures:{' '}
+            Units picked with a story’s switch:{' '}
             <span className="font-medium text-ink">
               {preferences.data.units === 'imperial' ? 'imperial (in, thou)' : preferences.data.units === 'metric' ? 'metric (mm, µm)' : 'as each builder entered them'}
             </span>
             . Change it with the units switch on any story.
           </p>
         </>
+      )}
+    </section>
+  );
+}
+
+type UnitChoiceField = 'unitSystem' | 'temperatureScale';
+
+const unitGroups: {
+  field: UnitChoiceField;
+  legend: string;
+  options: { value: NonNullable<Preferences[UnitChoiceField]>; label: string }[];
+  unset: string;
+}[] = [
+  {
+    field: 'unitSystem',
+    legend: 'Lengths, torques and pressures',
+    options: [
+      { value: 'imperial', label: 'Inches and thou' },
+      { value: 'metric', label: 'Millimetres and micrometres' },
+    ],
+    unset: 'Not chosen yet: new figures start in inches.',
+  },
+  {
+    field: 'temperatureScale',
+    legend: 'Temperatures',
+    options: [
+      { value: 'degC', label: '°C' },
+      { value: 'degF', label: '°F' },
+    ],
+    unset: 'Not chosen yet: °F with inches, °C with millimetres.',
+  },
+];
+
+/** Default units: where the calculator, a new instrument and the stories you read start. */
+function UnitsSetting() {
+  const preferences = useQuery(followQueries.preferences());
+  const update = useUpdatePreferences();
+  const { toast } = useToast();
+  const id = useId();
+  const save = (patch: PreferencesPatch) =>
+    update.mutate(patch, {
+      onSuccess: () => toast({ tone: 'success', title: 'Units saved' }),
+      onError: (error) => toast({ tone: 'error', title: 'Not saved', description: errorMessage(error) }),
+    });
+  return (
+    <section aria-labelledby={`${id}-h`} className="rounded-lg border border-rule p-4">
+      <h2 id={`${id}-h`} className="text-md font-semibold">
+        Units
+      </h2>
+      <p className="mt-1 text-sm text-ink-muted">
+        New readings in the calculator, a new instrument, and the stories you read (until you pick with a story’s units switch) start in
+        these. Any figure can still be entered or shown in another unit.
+      </p>
+      {preferences.isPending ? (
+        <LoadingState label="Loading your preferences…" />
+      ) : preferences.isError ? (
+        <ErrorState title="Your preferences could not be loaded" error={preferences.error} onRetry={() => void preferences.refetch()} retrying={preferences.isRefetching} />
+      ) : (
+        <div className="mt-3 grid gap-4 sm:grid-cols-2">
+          {unitGroups.map((group) => {
+            const current = preferences.data[group.field];
+            return (
+              <fieldset key={group.field} data-units-setting={group.field} aria-describedby={current === null ? `${id}-${group.field}-unset` : undefined}>
+                <legend className="text-sm font-medium">{group.legend}</legend>
+                <div className="mt-1 flex flex-col gap-1">
+                  {group.options.map((option) => (
+                    <label key={option.value} className="flex items-center gap-2 text-sm">
+                      <input
+                        type="radio"
+                        name={`${id}-${group.field}`}
+                        value={option.value}
+                        className="size-4 accent-ink"
+                        checked={current === option.value}
+                        disabled={update.isPending}
+                        onChange={() => save({ [group.field]: option.value })}
+                      />
+                      {option.label}
+                    </label>
+                  ))}
+                </div>
+                {current === null && (
+                  <p id={`${id}-${group.field}-unset`} className="mt-1 text-xs text-ink-muted">
+                    {group.unset}
+                  </p>
+                )}
+              </fieldset>
+            );
+          })}
+        </div>
       )}
     </section>
   );

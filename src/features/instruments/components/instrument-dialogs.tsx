@@ -5,10 +5,11 @@ import { Button } from '@/components/ui/button';
 import { ConfirmDialog, Dialog, DialogClose, DialogContent } from '@/components/ui/dialog';
 import { ErrorState, LoadingState } from '@/components/ui/data-states';
 import { useToast } from '@/components/ui/toast';
+import { useDefaultUnits } from '@/features/auth/lib/use-default-units';
 import { ApiError, errorMessage } from '@/lib/api';
 import { useCreateInstrument, useDeleteInstrument, useLogZeroCheck, useUpdateInstrument } from '../api/instrument-mutations';
 import { instrumentQueries } from '../api/instrument-queries';
-import { blankInstrument, formValuesFrom } from '../lib/instrument-form';
+import { blankInstrumentFor, formValuesFrom } from '../lib/instrument-form';
 import { signedWithUnit, withUnit } from '../lib/instrument-format';
 import { InstrumentForm } from './instrument-form';
 import { ZeroCheckForm } from './zero-check-form';
@@ -23,12 +24,13 @@ const cancel = (
 export function CreateInstrumentDialog({ open, onOpenChange }: { open: boolean; onOpenChange: (open: boolean) => void }) {
   const create = useCreateInstrument();
   const { toast } = useToast();
+  const defaults = useDefaultUnits();
   return (
     <Dialog open={open} onOpenChange={onOpenChange}>
       <DialogContent title="Add an instrument" description="Its resolution and stated uncertainty go into every reading taken with it.">
         <InstrumentForm
           mode="create"
-          defaultValues={blankInstrument}
+          defaultValues={blankInstrumentFor(defaults)}
           submitLabel="Add instrument"
           pendingLabel="Adding…"
           secondaryAction={cancel}

@@ -9,7 +9,9 @@ import {
   type InstrumentKind,
   type InstrumentPatch,
 } from '@shared/instruments/instrument.schema';
+import { defaultUnitFor } from '@shared/measure/format';
 import type { LengthUnit } from '@shared/measure/units';
+import type { DefaultUnits } from '@/features/auth/lib/default-units';
 
 /** The instrument form as typed: every box is text until the shared schema reads it. */
 export interface InstrumentFormValues {
@@ -34,6 +36,7 @@ export interface InstrumentFormValues {
   lockVersion: number | null;
 }
 
+/** A new instrument's form; `blankInstrumentFor` starts it in the builder's units. */
 export const blankInstrument: InstrumentFormValues = {
   name: '',
   kind: 'outside-micrometer',
@@ -53,6 +56,16 @@ export const blankInstrument: InstrumentFormValues = {
   retired: false,
   lockVersion: null,
 };
+
+/** A new instrument reads in the builder's default length unit (in or mm), else inches. */
+export function newInstrumentUnit(defaults: DefaultUnits): LengthUnit {
+  return defaults.system ? defaultUnitFor(defaults.system) : blankInstrument.unit;
+}
+
+/** The empty form for a new instrument, in the builder's default units. */
+export function blankInstrumentFor(defaults: DefaultUnits): InstrumentFormValues {
+  return { ...blankInstrument, unit: newInstrumentUnit(defaults) };
+}
 
 /** The form's starting values for an instrument as stored. */
 export function formValuesFrom(instrument: Instrument): InstrumentFormValues {

@@ -9,9 +9,17 @@ const options: { system: UnitSystem; label: string; units: string }[] = [
   { system: 'metric', label: 'Metric', units: 'mm · µm' },
 ];
 
+const hints: Record<UnitChoice['source'], string> = {
+  browser: 'Remembered in this browser.',
+  account: 'Remembered for your account.',
+  'account-default': 'Your account’s default units, until you pick here.',
+  builder: 'Shown in the builder’s units until you pick.',
+};
+
 /**
  * Imperial or metric for every figure on the page: two radio buttons (arrow keys move between
- * them), remembered in this browser or in the account.
+ * them), remembered in this browser and the account; until a pick, the account's default units
+ * or else the builder's.
  */
 export function UnitsSwitch({ choice, className }: { choice: UnitChoice; className?: string }) {
   const name = useId();
@@ -48,11 +56,7 @@ export function UnitsSwitch({ choice, className }: { choice: UnitChoice; classNa
         })}
       </span>
       <span id={hintId} className="text-xs text-ink-muted">
-        {choice.chosen === null
-          ? 'Shown in the builder’s units until you pick.'
-          : choice.remembered === 'account'
-            ? 'Remembered for your account.'
-            : 'Remembered in this browser.'}
+        {hints[choice.source]}
       </span>
       {choice.saveError != null && (
         <span role="alert" className="text-xs text-danger">

@@ -1,10 +1,12 @@
 import { useQuery } from '@tanstack/react-query';
 import { useSyncExternalStore } from 'react';
-import { systemOf, unitSystems, type UnitSystem } from '@shared/measure/format';
+import { unitSystems, type UnitSystem } from '@shared/measure/format';
 import type { LengthUnit } from '@shared/measure/units';
 import { authQueries } from '@/features/auth/api/auth-queries';
+import { defaultUnitsOf } from '@/features/auth/lib/default-units';
 import { followQueries } from '@/features/follows/api/follow-queries';
 import { useUpdatePreferences } from '@/features/follows/api/follow-mutations';
+import { chooseUnitSystem, type UnitSource } from './unit-choice';
 
 const STORAGE_KEY = 'benchproof.units';
 const listeners = new Set<() => void>();
@@ -44,18 +46,19 @@ function subscribe(listener: () => void) {
 export interface UnitChoice {
   /** The system figures are shown in now. */
   system: UnitSystem;
-  /** The reader's own choice, or null while figures follow the builder's units. */
+  /** The reader's own choice (or their account's), or null while figures follow the builder's units. */
   chosen: UnitSystem | null;
   setSystem: (system: UnitSystem) => void;
-  /** Where the choice is kept, for the switch's hint. */
-  remembered: 'account' | 'browser';
+  /** Where the system shown came from, for the switch's hint. */
+  source: UnitSource;
   saveError: unknown;
 }
 
 /**
- * The reader's measuring system: kept in this browser when signed out, in the account's
- * preferences when signed in. Until the reader picks one, figures follow the builder's unit
- * (`entryUnit`), so an inch builder's story reads in inches.
+ * The reader's measuring system. A pick with the switch is kept in this browser, and in the
+ * account's preferences when signed in so other devices follow. This device's pick comes first,
+ * then the account's pick, then the account's default units; until there is any, figures follow
+ * the builder's unit (`entryUnit`), so an inch builder's story reads in inches.
  */
 export function useUnitSystem(entryUnit: LengthUnit | null): UnitChoice {
   const me = useQuery(authQueries.me());
@@ -63,16 +66,21 @@ export function useUnitSystem(entryUnit: LengthUnit | null): UnitChoice {
   const preferences = useQuery({ ...followQueries.preferences(), enabled: signedIn });
   const update = useUpdatePreferences();
   const local = useSyncExternalStore(subscribe, readLocal, () => null);
-  const chosen = signedIn ? (preferences.data?.units ?? local) : local;
+  const { system, chosen, source } = chooseUnitSystem({
+    device: local,
+    account: signedIn ? (preferences.data?.units ?? null) : null,
+    accountDefault: defaultUnitsOf(me.data).system,
+    entryUnit,
+  });
   return {
-    system: chosen ?? (entryUnit ? systemOf(entryUnit) : 'imperial'),
+    system,
     chosen,
-    remembered: signedIn ? 'account' : 'browser',
+    source,
     saveError: update.error,
-    setSystem: (system) => {
+    setSystem: (picked) => {
       // The browser copy also answers at once while the account copy is saved.
-      writeLocal(system);
-      if (signedIn) update.mutate({ units: system });
+      writeLocal(picked);
+      if (signedIn) update.mutate({ units: picked });
     },
   };
 }
