@@ -628,7 +628,7 @@ function evaluateUncached(request: CalcRequest, options: EvaluateOptions): CalcE
       }
       if (width !== null && expanded > width / 4) {
         warnings.push(
-          `The instrument is coarse for this band: U (${formatUncertaintyIn(expanded, unit)}) is more than a quarter of the tolerance (${withUnit(plainNumber(width, 6), unit)}); a finer instrument or more readings would decide more parts (a 4:1 ratio is common practice, no published source).`,
+          `This way of measuring is coarse for this band: U (${formatUncertaintyIn(expanded, unit)}) is more than a quarter of the tolerance (${withUnit(plainNumber(width, 6), unit)}); finer instruments or more readings would decide more parts (a 4:1 ratio is common practice, no published source).`,
         );
       }
     } else {

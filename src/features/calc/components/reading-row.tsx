@@ -1,4 +1,4 @@
-import { useFormContext, useWatch, type FieldError } from 'react-hook-form';
+import { Controller, useFormContext, useWatch, type FieldError } from 'react-hook-form';
 import { isAnyUnit, quantityOf, unitTable } from '@shared/measure/quantities';
 import { materialExpansion, materialNames } from '@shared/measure/thermal';
 import { Button } from '@/components/ui/button';
@@ -212,16 +212,23 @@ export function ReadingRow({ index, readingKey, model, instruments, onRemove, ca
 }
 
 function InstrumentSelect({ index, instruments, missing }: { index: number; instruments: ReadingRowProps['instruments']; missing: string | null }) {
-  const { register } = useFormContext<CalcFormValues>();
+  const { control } = useFormContext<CalcFormValues>();
+  // Controlled, so a value set before its option exists (an example loading its instruments) still shows.
   return (
-    <Select {...register(`readings.${index}.instrument`)}>
-      <option value="">none named</option>
-      {instruments.map((instrument) => (
-        <option key={instrument.key} value={instrument.key}>
-          {instrument.name.trim() || instrument.key}
-        </option>
-      ))}
-      {missing && <option value={missing}>{missing} (not in the list)</option>}
-    </Select>
+    <Controller
+      control={control}
+      name={`readings.${index}.instrument`}
+      render={({ field }) => (
+        <Select {...field} value={field.value ?? ''}>
+          <option value="">none named</option>
+          {instruments.map((instrument) => (
+            <option key={instrument.key} value={instrument.key}>
+              {instrument.name.trim() || instrument.key}
+            </option>
+          ))}
+          {missing && <option value={missing}>{missing} (not in the list)</option>}
+        </Select>
+      )}
+    />
   );
 }

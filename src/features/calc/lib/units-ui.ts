@@ -30,7 +30,7 @@ export const readingQuantities: readonly QuantityKind[] = quantityKinds.filter((
 /** What a picker shows for a unit: its symbol, or "1 (no unit)" for a ratio. */
 export function unitOptionLabel(unit: AnyUnit): string {
   const { symbol, name } = unitTable[unit];
-  if (unit === '1') return 'no unit (ratio)';
+  if (unit === '1') return 'ratio';
   return symbol === name ? symbol : `${symbol} · ${name}`;
 }
 

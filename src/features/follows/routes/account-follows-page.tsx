@@ -85,7 +85,13 @@ function DigestSetting() {
           <p className="mt-3 text-xs text-ink-muted">
             Units picked with a story’s switch:{' '}
             <span className="font-medium text-ink">
-              {preferences.data.units === 'imperial' ? 'imperial (in, thou)' : preferences.data.units === 'metric' ? 'metric (mm, µm)' : 'as each builder entered them'}
+              {preferences.data.units === 'imperial'
+                ? 'imperial (in, thou)'
+                : preferences.data.units === 'metric'
+                  ? 'metric (mm, µm)'
+                  : preferences.data.unitSystem
+                    ? 'none yet, so your default units below'
+                    : 'as each builder entered them'}
             </span>
             . Change it with the units switch on any story.
           </p>
