@@ -100,7 +100,10 @@ describe('mail about a story’s review', () => {
 
     // Give the queue a moment more, then: the follower who turned mail off got nothing.
     await new Promise((r) => setTimeout(r, 1500));
-    expect(t.smtp.messages.filter((x) => x.subject === subject).flatMap((x) => x.to)).toEqual([follower.email]);
+    // (Other files share the seeded people and may make them followers too, so only this file's two are judged.)
+    const recipients = t.smtp.messages.filter((x) => x.subject === subject).flatMap((x) => x.to);
+    expect(recipients.filter((address) => address === follower.email)).toHaveLength(1);
+    expect(recipients).not.toContain(quiet.email);
 
     // What a mail client's one-click button does: POST to the header's address, no session.
     const url = new URL(header.slice(1, -1));
