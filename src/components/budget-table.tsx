@@ -215,6 +215,7 @@ export function BudgetTable({
           })}
         </TBody>
       </Table>
+      <p className="text-xs text-ink-muted sm:hidden">The table scrolls sideways: each line&rsquo;s contribution and share of the variance are on the right.</p>
       {anyShared && <SharedNote />}
     </div>
   );

@@ -23,10 +23,12 @@ export interface ModelFieldsProps {
   /** The result's quantity when the page can tell; null to offer every unit. */
   quantity: QuantityKind | null;
   onApplyTemplate: (id: string) => void;
+  /** What the engine said about the formula, shown beside it. */
+  formulaProblem?: string | undefined;
 }
 
 /** The measurement model: a signed sum of readings, or a formula over them, and the result's unit. */
-export function ModelFields({ readingKeys, quantity, onApplyTemplate }: ModelFieldsProps) {
+export function ModelFields({ readingKeys, quantity, onApplyTemplate, formulaProblem }: ModelFieldsProps) {
   const { register, control, formState } = useFormContext<CalcFormValues>();
   const model = useWatch({ control, name: 'model' });
   const template = useWatch({ control, name: 'template' });
@@ -91,7 +93,7 @@ export function ModelFields({ readingKeys, quantity, onApplyTemplate }: ModelFie
                 between names.
               </>
             }
-            error={errorAt(formState.errors, 'formula')}
+            error={errorAt(formState.errors, 'formula') ?? formulaProblem}
           >
             <Textarea {...register('formula')} rows={2} className="figures" spellCheck={false} autoComplete="off" />
           </Field>

@@ -156,6 +156,7 @@ export function Component() {
 
             <Panel title="Model" description="How the readings make the result.">
               <ModelFields
+                formulaProblem={live.status === 'refused' ? live.issues.find((issue) => issue.path[0] === 'formula')?.message : undefined}
                 readingKeys={keyOfRow}
                 quantity={quantity}
                 onApplyTemplate={(id) => {

@@ -7,6 +7,7 @@ import type { Clip } from '@shared/clips/clip.schema';
 import { calibrationDueOn, calibrationStateOn, zeroCheckedKinds, type Instrument } from '@shared/instruments/instrument.schema';
 import { readingSchema as engineReadingSchema } from '@shared/measure/calc.schema';
 import { decimalsForStep, formatUncertaintyIn, formatValue } from '@shared/measure/format-quantity';
+import { engineInstrumentsMap } from '@shared/measure/instrument-map';
 import { evaluateReading } from '@shared/measure/readings';
 import { materialExpansion, materialNames } from '@shared/measure/thermal';
 import { unitSymbols } from '@shared/measure/units';
@@ -591,14 +592,23 @@ function readBackOf(values: ReadingFormValues, instrument: Instrument | undefine
         : `reads as ${f.values?.length ?? 0} values in ${symbol}: ${(f.values ?? []).join(', ')}`;
   const zero = instrument.latestZeroCheck && instrument.latestZeroCheck.checkedOn === values.takenOn ? instrument.latestZeroCheck : null;
   const temperature = values.temperatureC.trim() ? Number(values.temperatureC) : null;
-  const { engine } = toEngineReading(
+  const built = toEngineReading(
     { ...f, kind: values.kind, temperatureC: Number.isFinite(temperature) ? temperature : null, material: values.material || null },
     instrument,
     zero,
   );
-  const checked = engineReadingSchema.safeParse(engine);
+  const checked = engineReadingSchema.safeParse(built.engine);
   if (!checked.success) return { ok: true, text: shown };
-  const evaluated = evaluateReading(keyFromName(values.name || 'reading'), checked.data);
+  const key = keyFromName(values.name || 'reading');
+  const evaluated = evaluateReading(key, checked.data, engineInstrumentsMap([built.instrument]));
   const estimate = formatValue(evaluated.estimate, evaluated.unit, decimalsForStep(evaluated.displayStep));
-  return { ok: true, text: `${shown}; estimate ${estimate}, u = ${formatUncertaintyIn(evaluated.standardUncertainty, evaluated.unit)}` };
+  // What u is made of, largest first: the same components the clearance's budget will list.
+  const parts = evaluated.components
+    .map((c) => ({ source: c.source.replace(`${key}: `, ''), size: c.standardUncertainty * Math.abs(c.effects[0]?.effect ?? 0) }))
+    .sort((a, b) => b.size - a.size)
+    .map((c) => c.source);
+  return {
+    ok: true,
+    text: `${shown}; estimate ${estimate}, u = ${formatUncertaintyIn(evaluated.standardUncertainty, evaluated.unit)}${parts.length ? ` (from ${parts.join('; ')})` : ''}`,
+  };
 }
