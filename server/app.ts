@@ -164,7 +164,8 @@ function serveClient(app: express.Express, config: Config) {
     if (!Number.isInteger(storyId) || storyId <= 0 || !fs.existsSync(index)) return next();
     const tags = await storyShareTags(storyId, config.publicUrl);
     if (!tags) return next();
-    const html = (await fs.promises.readFile(index, 'utf8')).replace('</head>', `${tags}</head>`);
+    // A function replacement: a title holding $` or $' must not paste parts of the page into itself.
+    const html = (await fs.promises.readFile(index, 'utf8')).replace('</head>', () => `${tags}</head>`);
     res.set('Cache-Control', 'no-cache');
     res.type('html').send(html);
   });

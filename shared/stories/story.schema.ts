@@ -147,12 +147,85 @@ export const storyImageAltField = 'alt';
 /** Image types a story accepts (checked by magic bytes, not by name). */
 export const storyImageTypes = ['image/jpeg', 'image/png', 'image/webp'] as const;
 
-/** Words in a body for the editor's count: runs of letters or digits, Markdown marks and link targets ignored. */
+/**
+ * The first index of `needle` at or after a position, for positions that only grow: each search
+ * starts where the last one ended, so a whole scan of a text costs one pass per needle.
+ */
+function forwardFinder(text: string, needle: string): (from: number) => number {
+  let found = -2; // -2: not searched yet; -1: none after the last search's start
+  let searchedFrom = 0;
+  return (from) => {
+    if (found === -1 && from >= searchedFrom) return -1;
+    if (found >= from) return found;
+    searchedFrom = Math.max(from, found + 1);
+    found = text.indexOf(needle, searchedFrom);
+    return found;
+  };
+}
+
+/**
+ * Words in a body for the editor's count: runs of letters or digits; code fences, image and link
+ * targets and HTML tags left out, a link's or image's text counted. Linear in the body's length
+ * (no regular expression that backtracks over unclosed `[`, `<` or fences), so a hostile body of
+ * 99,000 `[` costs what any body of that length costs. The editor runs the same function.
+ */
 export function countWords(markdown: string): number {
-  const text = markdown
-    .replace(/```[\s\S]*?```/g, ' ')
-    .replace(/!\[([^\]]*)\]\([^)]*\)/g, '$1')
-    .replace(/\[([^\]]*)\]\([^)]*\)/g, '$1')
-    .replace(/<[^>]+>/g, ' ');
+  // The same four steps, in the same order, as fences → images → links → tags by regular
+  // expressions, each done in one forward pass.
+  const text = dropTags(keepLinkTexts(keepLinkTexts(dropFences(markdown), true), false));
   return (text.match(/[\p{L}\p{N}]+(?:[.'’-][\p{L}\p{N}]+)*/gu) ?? []).length;
+}
+
+/** ```…``` (closed fences) → a space. */
+function dropFences(s: string): string {
+  const next = forwardFinder(s, '```');
+  const kept: string[] = [];
+  let last = 0;
+  for (let i = s.indexOf('`'); i >= 0 && i < s.length; ) {
+    const end = s.startsWith('```', i) ? next(i + 3) : -1;
+    if (end >= 0) {
+      kept.push(s.slice(last, i), ' ');
+      last = end + 3;
+      i = s.indexOf('`', last);
+    } else i = s.indexOf('`', i + 1);
+  }
+  kept.push(s.slice(last));
+  return kept.join('');
+}
+
+/** `![text](target)` (images) or `[text](target)` (links) → text. */
+function keepLinkTexts(s: string, images: boolean): string {
+  const nextClose = forwardFinder(s, ']');
+  const nextParen = forwardFinder(s, ')');
+  const kept: string[] = [];
+  let last = 0;
+  for (let i = s.indexOf(images ? '![' : '['); i >= 0; ) {
+    const open = images ? i + 1 : i;
+    const close = nextClose(open + 1);
+    const paren = close >= 0 && s[close + 1] === '(' ? nextParen(close + 2) : -1;
+    if (paren >= 0) {
+      kept.push(s.slice(last, i), s.slice(open + 1, close));
+      last = paren + 1;
+    }
+    i = s.indexOf(images ? '![' : '[', paren >= 0 ? last : i + 1);
+  }
+  kept.push(s.slice(last));
+  return kept.join('');
+}
+
+/** `<…>` with at least one character inside (HTML tags) → a space. */
+function dropTags(s: string): string {
+  const nextGt = forwardFinder(s, '>');
+  const kept: string[] = [];
+  let last = 0;
+  for (let i = s.indexOf('<'); i >= 0; ) {
+    const gt = nextGt(i + 1);
+    if (gt > i + 1) {
+      kept.push(s.slice(last, i), ' ');
+      last = gt + 1;
+      i = s.indexOf('<', last);
+    } else i = s.indexOf('<', i + 1);
+  }
+  kept.push(s.slice(last));
+  return kept.join('');
 }

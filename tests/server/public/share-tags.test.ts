@@ -23,6 +23,9 @@ let work: string;
 let owner: Session;
 let published: ReviewFixture;
 let draft: ReviewFixture;
+let dollars: ReviewFixture;
+/** Every special pattern of a string replacement (ECMAScript GetSubstitution): $$ $& $` $' $1 $<name>. */
+const DOLLAR_TITLE = "Pump $$ $& $` $' $1 $<x> (invented, test)";
 
 beforeAll(async () => {
   work = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-share-'));
@@ -36,6 +39,8 @@ beforeAll(async () => {
   published = await makeReviewFixture(owner, { clipFile, title: 'Invented pump, shared (test)' });
   await publishThroughReview(owner, await sessionFor(t, 'moderator'), published);
   draft = await makeReviewFixture(owner, { clipFile, title: 'Invented pump, still a draft (test)' });
+  dollars = await makeReviewFixture(owner, { clipFile, title: DOLLAR_TITLE });
+  await publishThroughReview(owner, await sessionFor(t, 'moderator'), dollars);
 }, 240_000);
 afterAll(async () => {
   await t?.close();
@@ -53,6 +58,15 @@ describe('share tags in the served HTML', () => {
     expect(meta(res.text, 'og:url')).toBe(`${t.config.publicUrl}/stories/${published.story.id}`);
     expect(meta(res.text, 'twitter:card')).toMatch(/^summary/);
     expect(res.text).toContain('<div id="root"></div>');
+  });
+
+  // OWASP ASVS 5.0 V1.2 (output encoding for the context): the title lands in the page as written.
+  it('a title holding every $ pattern of a string replacement lands in the page as written, and the page stays whole', async () => {
+    const res = await request(t.app).get(`/stories/${dollars.story.id}`).expect(200);
+    expect(meta(res.text, 'og:title')).toBe(dollars.story.title);
+    expect(res.text.match(/<head>/g)).toHaveLength(1);
+    expect(res.text.match(/<div id="root"><\/div>/g)).toHaveLength(1);
+    expect(res.text.endsWith('</html>')).toBe(true);
   });
 
   it('a draft gets the plain page with nothing of the story in it', async () => {
