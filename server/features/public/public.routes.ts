@@ -98,8 +98,8 @@ export function publicRouter(deps: { storage: Storage }) {
   router.get('/clips/:clipId/frame', access.public, frameLimiter, validate({ params: publicClipParamsSchema, query: frameQuerySchema }), async (req, res) => {
     const scope = await publicClipScope(clipId(req));
     const atMs = Math.round(validQuery<{ t: number }>(res).t * 1000);
-    // A clip that is only a cover shows only the cover still.
-    if (!scope.full && !scope.coverTimesMs.has(atMs)) throw notFound('There is no public still at that time.');
+    // Only the moments a current publication cites (its readings' and its cover); nothing is cut for any other time.
+    if (!scope.stillTimesMs.has(atMs)) throw notFound('There is no public still at that time: stills are shown at the moments a published story cites.');
     const key = await evidenceStillKey(deps.storage, scope.clip, atMs);
     res.set('Cache-Control', 'public, max-age=300');
     await deps.storage.send(res, key, { contentType: 'image/jpeg' });

@@ -421,11 +421,12 @@ export async function publicBuilderProfile(login: string, viewer: User | undefin
 // Media
 
 /**
- * What of a clip the public may fetch: everything when a current publication cites a reading on
- * it; only the still at a cover moment when a publication's cover is on it and nothing else is
- * cited; otherwise 404 (draft media stays private).
+ * What of a clip the public may fetch: its video and poster when a current publication cites a
+ * reading on it, and stills only at the moments a current publication cites (its readings' moments
+ * and its cover); otherwise 404 (draft media stays private). Stills at any other time are refused
+ * before anything is cut, so anonymous requests cannot fill the media store (OWASP ASVS V2.4).
  */
-export async function publicClipScope(clipId: number): Promise<{ clip: Clip; full: boolean; coverTimesMs: Set<number> }> {
+export async function publicClipScope(clipId: number): Promise<{ clip: Clip; full: boolean; coverTimesMs: Set<number>; stillTimesMs: Set<number> }> {
   const missing = () => notFound('There is no public clip with that id.');
   const rows = await sql().query<{ cover_moment_id: number | null; cites: boolean }>(
     `SELECT p.cover_moment_id, COALESCE((p.evidence->'readings') @> CAST(:cites AS jsonb), false) AS cites
@@ -441,6 +442,17 @@ export async function publicClipScope(clipId: number): Promise<{ clip: Clip; ful
   if (!clip || clip.status !== 'ready') throw missing();
   const full = rows.some((r) => r.cites);
   const coverIds = rows.map((r) => r.cover_moment_id).filter((id): id is number => id !== null);
-  const covers = full || coverIds.length === 0 ? [] : await Moment.findAll({ where: { id: coverIds, clipId }, attributes: ['atMs'] });
-  return { clip, full, coverTimesMs: new Set(covers.map((m) => m.atMs)) };
+  const covers = coverIds.length === 0 ? [] : await Moment.findAll({ where: { id: coverIds, clipId }, attributes: ['atMs'] });
+  const cited = full
+    ? await sql().query<{ at_ms: number }>(
+        `SELECT DISTINCT (r->>'atMs')::int AS at_ms
+           FROM stories s
+           JOIN story_publications p ON p.id = s.published_publication_id
+           CROSS JOIN LATERAL jsonb_array_elements(p.evidence->'readings') r
+          WHERE ${PUBLIC_STORY_SQL} AND (p.evidence->'readings') @> CAST(:cites AS jsonb) AND (r->>'clipId')::int = :clipId`,
+        { type: QueryTypes.SELECT, replacements: { clipId, cites: JSON.stringify([{ clipId }]) } },
+      )
+    : [];
+  const coverTimesMs = new Set(covers.map((m) => m.atMs));
+  return { clip, full, coverTimesMs, stillTimesMs: new Set([...coverTimesMs, ...cited.map((c) => Number(c.at_ms))]) };
 }

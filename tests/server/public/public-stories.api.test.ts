@@ -10,6 +10,8 @@ import { evaluateCalc } from '@shared/measure/calc';
 import { publicBuildSchema } from '@shared/public/public-build.schema';
 import { publicStoryListResponseSchema, publicStorySchema, type PublicStory } from '@shared/public/public-story.schema';
 import { STANDING_NOTE } from '@shared/stories/cautions';
+import { Clip } from '../../../server/features/clips/clip.model';
+import { clipKeys } from '../../../server/features/clips/clips.service';
 import { Instrument } from '../../../server/features/instruments/instrument.model';
 import { Reading } from '../../../server/features/readings/reading.model';
 import { makeTestClip } from '../../support/clips';
@@ -90,6 +92,22 @@ describe('public pages never show drafts, unchecked readings or private media', 
       }
     }
   }, 60_000);
+
+  // OWASP ASVS 5.0 V2.4 (anti-automation) and V15.2: anonymous requests cannot make the server cut
+  // and keep a still for every millisecond of a public clip.
+  it('a public clip gives stills only at the moments its publication cites, and cuts nothing for any other time', async () => {
+    const clip = (await Clip.findByPk(f.published.clipId))!;
+    const framesDir = path.join(t.config.mediaDir, clipKeys(clip).base, 'frames');
+    const before = fs.existsSync(framesDir) ? fs.readdirSync(framesDir).length : 0;
+    for (const t_ of ['0.250', '0.501', '1.000', '0.001']) {
+      const res = await anonymous.agent.get(`/api/public/clips/${f.published.clipId}/frame?t=${t_}`);
+      expect(res.status, `t=${t_}`).toBe(404);
+      expect(res.body.error.code).toBe('not_found');
+    }
+    expect(fs.existsSync(framesDir) ? fs.readdirSync(framesDir).length : 0).toBe(before);
+    // The cited moment (0.5 s) is there.
+    expect((await anonymous.agent.get(`/api/public/clips/${f.published.clipId}/frame?t=0.500`)).status).toBe(200);
+  });
 
   it('a published story is shown, with its clip playable in ranges and its evidence stills', async () => {
     for (const [who, s] of viewers()) {
