@@ -1,16 +1,17 @@
 import { z } from 'zod';
+import { dbIdText, textWithoutNul } from '../http/db-values.schema';
 
 /** A part of a build, with its serial number as stamped or tagged. */
 export const partInputSchema = z.object({
   /** Present for a part that already exists: it keeps its id (readings will point at it). */
   id: z.number().int().positive().optional(),
-  name: z.string().trim().min(1, 'Name the part').max(120),
-  serial: z.string().trim().max(80).default(''),
+  name: textWithoutNul.trim().min(1, 'Name the part').max(120),
+  serial: textWithoutNul.trim().max(80).default(''),
 });
 
 const buildFields = {
-  title: z.string().trim().min(3, 'Give the build a title of at least 3 characters').max(160),
-  subject: z.string().trim().max(300),
+  title: textWithoutNul.trim().min(3, 'Give the build a title of at least 3 characters').max(160),
+  subject: textWithoutNul.trim().max(300),
   parts: z.array(partInputSchema).max(100),
 };
 
@@ -45,11 +46,11 @@ export const buildResponseSchema = z.object({ build: buildSchema });
 
 /** Query of `GET /api/builds`: the signed-in builder's own builds, newest first, by keyset. */
 export const listBuildsQuerySchema = z.object({
-  before: z.coerce.number().int().positive().optional(),
+  before: dbIdText.optional(),
   limit: z.coerce.number().int().min(1).max(100).default(20),
 });
 export const listBuildsResponseSchema = z.object({ items: z.array(buildSchema), nextBefore: z.number().int().nullable() });
 export type ListBuildsResponse = z.infer<typeof listBuildsResponseSchema>;
 
 /** Path parameters naming one build. */
-export const buildIdParamsSchema = z.object({ buildId: z.coerce.number().int().positive() });
+export const buildIdParamsSchema = z.object({ buildId: dbIdText });

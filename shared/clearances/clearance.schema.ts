@@ -4,6 +4,7 @@
  * by the same engine on the server and in the browser.
  */
 import { z } from 'zod';
+import { dbIdText, dbPositiveInteger, textWithoutNul } from '../http/db-values.schema';
 import { budgetLineSchema, COVERAGE_FACTOR_RANGE, readingKeySchema, unitSchema } from '../measure/calc.schema';
 import { decisionRules, verdicts } from '../measure/spec';
 import { reviewStates } from '../readings/reading.schema';
@@ -20,7 +21,7 @@ export const clearanceTermInputSchema = z.strictObject({
 
 const clearanceFields = {
   key: readingKeySchema,
-  name: z.string().trim().min(1, 'name the clearance').max(120, 'at most 120 characters'),
+  name: textWithoutNul.trim().min(1, 'name the clearance').max(120, 'at most 120 characters'),
   template: z.enum(clearanceTemplateIds).nullable(),
   terms: z
     .array(clearanceTermInputSchema)
@@ -41,7 +42,7 @@ const clearanceFields = {
     .min(COVERAGE_FACTOR_RANGE.min, `coverageFactor must be at least ${COVERAGE_FACTOR_RANGE.min}`)
     .max(COVERAGE_FACTOR_RANGE.max, `coverageFactor must be at most ${COVERAGE_FACTOR_RANGE.max}`)
     .nullable(),
-  note: z.string().trim().max(2000, 'at most 2000 characters'),
+  note: textWithoutNul.trim().max(2000, 'at most 2000 characters'),
 };
 
 /** Body of `POST /api/builds/:buildId/clearances`. `key` is derived from `name` when not sent. */
@@ -57,7 +58,7 @@ export type ClearanceInput = z.input<typeof clearanceInputSchema>;
 
 /** Body of `PATCH /api/clearances/:clearanceId`: only what is sent changes; `lockVersion` as for readings. */
 export const clearancePatchSchema = z
-  .strictObject({ ...clearanceFields, lockVersion: z.number().int().positive() })
+  .strictObject({ ...clearanceFields, lockVersion: dbPositiveInteger })
   .partial()
   .required({ lockVersion: true });
 export type ClearancePatch = z.infer<typeof clearancePatchSchema>;
@@ -142,8 +143,8 @@ export type Clearance = z.infer<typeof clearanceSchema>;
 
 export const clearanceResponseSchema = z.object({ clearance: clearanceSchema });
 export const clearanceListQuerySchema = z.object({
-  after: z.coerce.number().int().positive().optional(),
+  after: dbIdText.optional(),
   limit: z.coerce.number().int().min(1).max(500).default(200),
 });
 export const clearanceListResponseSchema = z.object({ items: z.array(clearanceSchema), nextAfter: z.number().int().nullable() });
-export const clearanceIdParamsSchema = z.object({ clearanceId: z.coerce.number().int().positive() });
+export const clearanceIdParamsSchema = z.object({ clearanceId: dbIdText });

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { dbIdText, textWithoutNul } from '../http/db-values.schema';
 
 /** Where a clip is in its life. `failed` always comes with a reason a person can act on. */
 export const clipStatuses = ['uploaded', 'processing', 'ready', 'failed'] as const;
@@ -62,12 +63,12 @@ export const clipResponseSchema = z.object({ clip: clipSchema });
 export const clipListResponseSchema = z.object({ items: z.array(clipSchema) });
 
 /** Path parameters naming one clip. */
-export const clipIdParamsSchema = z.object({ clipId: z.coerce.number().int().positive() });
+export const clipIdParamsSchema = z.object({ clipId: dbIdText });
 
 /** Body of `PATCH /api/clips/:clipId`: rename and trim (seconds; null clears a point). */
 export const clipPatchSchema = z
   .object({
-    title: z.string().trim().min(1).max(160).optional(),
+    title: textWithoutNul.trim().min(1).max(160).optional(),
     trimInS: z.number().nonnegative().max(86_400).nullable().optional(),
     trimOutS: z.number().positive().max(86_400).nullable().optional(),
   })
@@ -99,12 +100,12 @@ export type Moment = z.infer<typeof momentSchema>;
 /** Body of `POST /api/clips/:clipId/moments` and `PATCH /api/moments/:momentId`. */
 const momentFields = {
   atMs: z.number().int().nonnegative().max(86_400_000),
-  label: z.string().trim().max(160),
+  label: textWithoutNul.trim().max(160),
 };
 export const momentInputSchema = z.object({ atMs: momentFields.atMs, label: momentFields.label.default('') });
 /** Only the fields sent change (no defaults filled in, so a nudge keeps the label). */
 export const momentPatchSchema = z.object(momentFields).partial().strict();
-export const momentIdParamsSchema = z.object({ momentId: z.coerce.number().int().positive() });
+export const momentIdParamsSchema = z.object({ momentId: dbIdText });
 export const momentListResponseSchema = z.object({ items: z.array(momentSchema) });
 export const momentResponseSchema = z.object({ moment: momentSchema });
 

@@ -3,6 +3,7 @@
  * standard; the difference is subtracted from that day's readings with it).
  */
 import { z } from 'zod';
+import { dbIdText, dbPositiveInteger, textWithoutNul } from '../http/db-values.schema';
 import { unitSchema } from '../measure/calc.schema';
 import { lengthTextIn, lengthTextSchema } from '../measure/length-text';
 
@@ -60,9 +61,9 @@ const coverageFactorSchema = z
   .max(10, 'k is at most 10');
 
 const instrumentFields = {
-  name: z.string().trim().min(1, 'name the instrument').max(120, 'at most 120 characters'),
+  name: textWithoutNul.trim().min(1, 'name the instrument').max(120, 'at most 120 characters'),
   kind: z.enum(instrumentKinds, { error: `kind must be one of ${instrumentKinds.join(', ')}` }),
-  serial: z.string().trim().max(80, 'at most 80 characters'),
+  serial: textWithoutNul.trim().max(80, 'at most 80 characters'),
   unit: unitSchema,
   /** One step of the scale or display, as text in `unit` ("0.0001"). */
   resolution: lengthTextSchema,
@@ -78,8 +79,8 @@ const instrumentFields = {
   settingStandardCoverageFactor: coverageFactorSchema.nullable(),
   calibrationIntervalDays: z.number().int('whole days').min(1, 'at least 1 day').max(3650, 'at most 10 years').nullable(),
   lastCalibratedOn: isoDateSchema.nullable(),
-  calibratedBy: z.string().trim().max(160, 'at most 160 characters'),
-  note: z.string().trim().max(2000, 'at most 2000 characters'),
+  calibratedBy: textWithoutNul.trim().max(160, 'at most 160 characters'),
+  note: textWithoutNul.trim().max(2000, 'at most 2000 characters'),
   retired: z.boolean(),
 };
 
@@ -156,7 +157,7 @@ export type InstrumentInput = z.input<typeof instrumentInputSchema>;
  * Changing `unit` needs `resolution` sent with it.
  */
 export const instrumentPatchSchema = z
-  .strictObject({ ...instrumentFields, lockVersion: z.number().int().positive() })
+  .strictObject({ ...instrumentFields, lockVersion: dbPositiveInteger })
   .partial()
   .required({ lockVersion: true })
   .superRefine((v, ctx) => {
@@ -192,8 +193,8 @@ export const zeroCheckInputSchema = z.strictObject({
   checkedOn: isoDateSchema,
   standardSize: lengthTextSchema,
   shown: lengthTextSchema,
-  momentId: z.number().int().positive().nullable().default(null),
-  note: z.string().trim().max(1000).default(''),
+  momentId: dbPositiveInteger.nullable().default(null),
+  note: textWithoutNul.trim().max(1000).default(''),
 });
 export type ZeroCheckInput = z.input<typeof zeroCheckInputSchema>;
 
@@ -232,15 +233,15 @@ export type Instrument = z.infer<typeof instrumentSchema>;
 export const instrumentResponseSchema = z.object({ instrument: instrumentSchema });
 export const instrumentListResponseSchema = z.object({ items: z.array(instrumentSchema), nextAfter: z.number().int().nullable() });
 export const instrumentListQuerySchema = z.object({
-  after: z.coerce.number().int().positive().optional(),
+  after: dbIdText.optional(),
   limit: z.coerce.number().int().min(1).max(200).default(100),
 });
-export const instrumentIdParamsSchema = z.object({ instrumentId: z.coerce.number().int().positive() });
+export const instrumentIdParamsSchema = z.object({ instrumentId: dbIdText });
 /** Response of `GET /api/instruments/:instrumentId/zero-checks`: newest first; `nextBefore` asks for the page after. */
 export const zeroCheckListResponseSchema = z.object({ items: z.array(zeroCheckSchema), nextBefore: z.number().int().nullable().default(null) });
 /** Query of `GET /api/instruments/:instrumentId/zero-checks`: keyset `before` = the id of the last check shown. */
 export const zeroCheckListQuerySchema = z.object({
-  before: z.coerce.number().int().positive().optional(),
+  before: dbIdText.optional(),
   limit: z.coerce.number().int().min(1).max(200).default(100),
 });
 export const zeroCheckResponseSchema = z.object({ zeroCheck: zeroCheckSchema });

@@ -2,12 +2,13 @@
  * Following builders (mail when they publish) and a reader's preferences.
  */
 import { z } from 'zod';
+import { dbIdText } from '../http/db-values.schema';
 import { unitSystems } from '../measure/format';
 import { defaultUnitSystemSchema, temperatureScaleSchema } from '../users/user.schema';
 import { publicBuilderRefSchema } from './public-story.schema';
 
 /** Path parameters of the follow routes. */
-export const builderIdParamsSchema = z.object({ builderId: z.coerce.number().int().positive() });
+export const builderIdParamsSchema = z.object({ builderId: dbIdText });
 
 /** A builder the caller follows. */
 export const followSchema = z.object({
@@ -26,7 +27,7 @@ export const followResponseSchema = z.object({ follow: followSchema });
 
 /** Query of `GET /api/me/follows`: keyset on the builder's id. */
 export const followListQuerySchema = z.object({
-  after: z.coerce.number().int().positive().optional(),
+  after: dbIdText.optional(),
   limit: z.coerce.number().int().min(1).max(200).default(100),
 });
 /** Response of `GET /api/me/follows`; `nextAfter` is null on the last page. */

@@ -2,12 +2,13 @@
  * A build and a builder as the public sees them: only what published stories made public.
  */
 import { z } from 'zod';
+import { dbIdText } from '../http/db-values.schema';
 import { unitSchema } from '../measure/calc.schema';
 import { decisionRules, verdicts } from '../measure/spec';
 import { publicBuilderRefSchema, publicPartSchema } from './public-story.schema';
 
 /** Path parameters of `GET /api/public/builds/:buildId`. */
-export const publicBuildParamsSchema = z.object({ buildId: z.coerce.number().int().positive() });
+export const publicBuildParamsSchema = z.object({ buildId: dbIdText });
 
 /** One public diary entry of a build (its current publication). */
 export const publicBuildEntrySchema = z.object({

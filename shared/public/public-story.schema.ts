@@ -6,6 +6,7 @@
  * a publication and has not been withdrawn; a newer revision in review leaves the old one public.
  */
 import { z } from 'zod';
+import { dbIdText, instantIdCursor, textWithoutNul } from '../http/db-values.schema';
 import { bandUmSchema, coverageResultFields } from '../clearances/clearance.schema';
 import { calibrationStates } from '../instruments/instrument.schema';
 import { calcInstrumentSchema, readingSchema as engineReadingSchema, unitSchema } from '../measure/calc.schema';
@@ -15,7 +16,7 @@ import { readingKinds, readingWarningSchema } from '../readings/reading.schema';
 import { storyTagsSchema } from '../stories/story.schema';
 
 /** A keyset cursor over (publishedAt, publication id): opaque to clients, pass back as `before`. */
-export const publicCursorSchema = z.string().regex(/^\d{4}-\d{2}-\d{2}T[\d:.]+Z_\d{1,12}$/, 'before must be a cursor from a previous page');
+export const publicCursorSchema = instantIdCursor('before must be a cursor from a previous page');
 
 /** A reader's measuring system for figures shown beside the builder's own (`?units=`); absent = as entered. */
 export const unitsQuerySchema = z.enum(unitSystems, { error: 'units must be "imperial" or "metric"' });
@@ -28,12 +29,12 @@ export const publicStoryListQuerySchema = z.object({
   before: publicCursorSchema.optional(),
   limit: z.coerce.number().int().min(1, 'limit is at least 1').max(50, 'limit is at most 50').default(20),
   /** A tag in any group (machine, component or operation), matched exactly. */
-  tag: z.string().trim().min(1).max(40, 'a tag is at most 40 characters').optional(),
+  tag: textWithoutNul.trim().min(1).max(40, 'a tag is at most 40 characters').optional(),
   /** A builder's login. */
-  builder: z.string().trim().min(1).max(64).optional(),
+  builder: textWithoutNul.trim().min(1).max(64).optional(),
   verdict: z.enum(publicVerdictFilters, { error: 'verdict must be "out-of-spec"' }).optional(),
   /** Words in the title or summary (case-insensitive; % and _ are taken literally). */
-  q: z.string().trim().min(1).max(100, 'search for at most 100 characters').optional(),
+  q: textWithoutNul.trim().min(1).max(100, 'search for at most 100 characters').optional(),
 });
 export type PublicStoryListQuery = z.infer<typeof publicStoryListQuerySchema>;
 
@@ -74,7 +75,7 @@ export const publicStoryListResponseSchema = z.object({
 export type PublicStoryListResponse = z.infer<typeof publicStoryListResponseSchema>;
 
 /** Path parameters naming a story. */
-export const publicStoryParamsSchema = z.object({ storyId: z.coerce.number().int().positive() });
+export const publicStoryParamsSchema = z.object({ storyId: dbIdText });
 /** Query of `GET /api/public/stories/:storyId`. */
 export const publicStoryQuerySchema = z.object({ units: unitsQuerySchema.optional() });
 
@@ -241,4 +242,4 @@ export const publicStorySchema = z.object({
 export type PublicStory = z.infer<typeof publicStorySchema>;
 
 /** Public media of a clip cited by a published story. */
-export const publicClipParamsSchema = z.object({ clipId: z.coerce.number().int().positive() });
+export const publicClipParamsSchema = z.object({ clipId: dbIdText });

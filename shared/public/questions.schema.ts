@@ -3,6 +3,7 @@
  * typed and shown as text, never as HTML.
  */
 import { z } from 'zod';
+import { dbIdText } from '../http/db-values.schema';
 
 /** Longest question (characters). */
 export const MAX_QUESTION = 2000;
@@ -26,11 +27,11 @@ export const hideInputSchema = z.strictObject({
   reason: z.string({ error: 'say why it is hidden' }).trim().min(3, 'say why it is hidden (at least 3 characters)').max(500, 'at most 500 characters'),
 });
 
-export const questionIdParamsSchema = z.object({ questionId: z.coerce.number().int().positive() });
+export const questionIdParamsSchema = z.object({ questionId: dbIdText });
 
 /** Query of the question list: oldest first, keyset on id. */
 export const questionListQuerySchema = z.object({
-  after: z.coerce.number().int().positive().optional(),
+  after: dbIdText.optional(),
   limit: z.coerce.number().int().min(1).max(100).default(50),
 });
 

@@ -4,6 +4,7 @@
  * that reads the same figures from the database again and says whether they are still current.
  */
 import { z } from 'zod';
+import { dbIdText } from '../http/db-values.schema';
 import { calibrationStates } from '../instruments/instrument.schema';
 import { unitSchema } from '../measure/calc.schema';
 import { decisionRules, verdicts } from '../measure/spec';
@@ -11,12 +12,12 @@ import { readingWarningSchema } from '../readings/reading.schema';
 import { publicBuilderRefSchema } from './public-story.schema';
 
 /** Path parameters of the sheet, PDF and verification routes. */
-export const partParamsSchema = z.object({ partId: z.coerce.number().int().positive() });
+export const partParamsSchema = z.object({ partId: dbIdText });
 
 /** Query of the sheet and the PDF: one entry only (`story`), or every public entry when absent. */
-export const sheetQuerySchema = z.object({ story: z.coerce.number().int().positive().optional() });
+export const sheetQuerySchema = z.object({ story: dbIdText.optional() });
 
-const ids = z.union([z.coerce.number().int().positive(), z.array(z.coerce.number().int().positive()).min(1).max(50)]).transform((v) => (Array.isArray(v) ? v : [v]));
+const ids = z.union([dbIdText, z.array(dbIdText).min(1).max(50)]).transform((v) => (Array.isArray(v) ? v : [v]));
 
 /**
  * Query of `GET /api/public/verify/parts/:partId`: the entries a sheet was printed from, as

@@ -3,6 +3,7 @@
  * unit), with who logged it, its history, and what the engine makes of it.
  */
 import { z } from 'zod';
+import { dbIdText, dbPositiveInteger, textWithoutNul } from '../http/db-values.schema';
 import { calcInstrumentSchema, readingKeySchema, readingSchema as engineReadingSchema, TEMPERATURE_RANGE_C, unitSchema } from '../measure/calc.schema';
 import { lengthTextSchema } from '../measure/length-text';
 import { materialNames } from '../measure/thermal';
@@ -25,7 +26,7 @@ const readingFields = {
   partId: z.number().int().positive().nullable(),
   /** The name claims and clearances use; derived from `name` when not sent. */
   key: readingKeySchema,
-  name: z.string().trim().min(1, 'name the reading').max(120, 'at most 120 characters'),
+  name: textWithoutNul.trim().min(1, 'name the reading').max(120, 'at most 120 characters'),
   kind: z.enum(readingKinds, { error: 'kind must be "direct", "bracket" or "repeated"' }),
   /** Unit for texts typed without one; defaults to the instrument's. A unit typed in the text wins. */
   unit: unitSchema,
@@ -47,7 +48,7 @@ const readingFields = {
     .max(TEMPERATURE_RANGE_C.max, `at most ${TEMPERATURE_RANGE_C.max} °C`)
     .nullable(),
   material: z.enum(materialNames as [string, ...string[]], { error: `material must be one of ${materialNames.join(', ')}` }).nullable(),
-  note: z.string().trim().max(2000, 'at most 2000 characters'),
+  note: textWithoutNul.trim().max(2000, 'at most 2000 characters'),
   /** The day it was measured (zero checks and calibration are judged on this day); default today. */
   takenOn: isoDateSchema,
 };
@@ -111,7 +112,7 @@ export type ReadingInput = z.input<typeof readingInputSchema>;
  * `kind` needs that kind's figures sent with it.
  */
 export const readingPatchSchema = z
-  .strictObject({ ...readingFields, lockVersion: z.number().int().positive() })
+  .strictObject({ ...readingFields, lockVersion: dbPositiveInteger })
   .partial()
   .required({ lockVersion: true })
   .superRefine((v, ctx) => {
@@ -182,15 +183,15 @@ export type Reading = z.infer<typeof readingSchema>;
 export const readingResponseSchema = z.object({ reading: readingSchema });
 /** Query of `GET /api/builds/:buildId/readings`: keyset by id, optional filters. */
 export const readingListQuerySchema = z.object({
-  after: z.coerce.number().int().positive().optional(),
+  after: dbIdText.optional(),
   limit: z.coerce.number().int().min(1).max(1000).default(500),
-  partId: z.coerce.number().int().positive().optional(),
-  instrumentId: z.coerce.number().int().positive().optional(),
-  clipId: z.coerce.number().int().positive().optional(),
+  partId: dbIdText.optional(),
+  instrumentId: dbIdText.optional(),
+  clipId: dbIdText.optional(),
   reviewState: z.enum(reviewStates).optional(),
 });
 export const readingListResponseSchema = z.object({ items: z.array(readingSchema), nextAfter: z.number().int().nullable() });
-export const readingIdParamsSchema = z.object({ readingId: z.coerce.number().int().positive() });
+export const readingIdParamsSchema = z.object({ readingId: dbIdText });
 
 /** One earlier state of a reading: what it was before an edit, and who made the edit. */
 export const readingRevisionSchema = z.object({

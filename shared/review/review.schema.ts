@@ -3,15 +3,16 @@
  * flag what does not hold up, and publish; every move is in the audit log.
  */
 import { z } from 'zod';
+import { dbBigintIdText, dbIdText, dbPositiveInteger, instantIdCursor, textWithoutNul } from '../http/db-values.schema';
 import { storyActions } from './workflow';
 import { storyStates } from '../stories/story.schema';
 
 /** Body of `POST /api/stories/:storyId/transitions`. */
 export const transitionInputSchema = z.strictObject({
   action: z.enum(storyActions, { error: `action must be one of ${storyActions.join(', ')}` }),
-  reason: z.string().trim().max(2000, 'at most 2000 characters').optional(),
+  reason: textWithoutNul.trim().max(2000, 'at most 2000 characters').optional(),
   /** The story version the person was looking at; a newer one is refused (409 edit_conflict). */
-  lockVersion: z.number().int().positive(),
+  lockVersion: dbPositiveInteger,
 });
 /** A parsed transition body. */
 export type TransitionInput = z.infer<typeof transitionInputSchema>;
@@ -110,7 +111,7 @@ export const queueResponseSchema = z.object({ items: z.array(queueItemSchema), n
 /** Query of `GET /api/review/queue`. */
 export const queueQuerySchema = z.object({
   /** Keyset: `<submittedAt ISO>_<storyId>` of the last row seen. */
-  after: z.string().regex(/^\d{4}-\d{2}-\d{2}T[\d:.]+Z_\d+$/).optional(),
+  after: instantIdCursor('after must be a cursor from a previous page').optional(),
   limit: z.coerce.number().int().min(1).max(100).default(50),
 });
 
@@ -132,7 +133,8 @@ export const auditEntrySchema = z.object({
 export const auditListResponseSchema = z.object({ items: z.array(auditEntrySchema), nextBefore: z.string().nullable() });
 /** Query of `GET /api/review/audit` and `GET /api/stories/:storyId/audit`. */
 export const auditQuerySchema = z.object({
-  storyId: z.coerce.number().int().positive().optional(),
-  before: z.string().regex(/^\d+$/).optional(),
+  storyId: dbIdText.optional(),
+  /** An audit line id (BIGINT), as text. */
+  before: dbBigintIdText.optional(),
   limit: z.coerce.number().int().min(1).max(200).default(100),
 });

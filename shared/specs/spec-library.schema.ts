@@ -4,6 +4,7 @@
  * engine's `Spec`, whose schema (shared/measure/spec.schema.ts) holds the band rules.
  */
 import { z } from 'zod';
+import { dbIdText, dbPositiveInteger, textWithoutNul } from '../http/db-values.schema';
 import { unitSchema } from '../measure/calc.schema';
 import { lengthTextIn, lengthTextSchema } from '../measure/length-text';
 import { decisionRules, DEFAULT_DECISION_RULE } from '../measure/spec';
@@ -82,8 +83,8 @@ export type SpecVersionInput = z.input<typeof specVersionInputSchema>;
 /** Body of `POST /api/specs`: the spec and its first version. */
 export const specInputSchema = z
   .strictObject({
-    name: z.string().trim().min(3, 'name the spec (at least 3 characters)').max(160, 'at most 160 characters'),
-    appliesTo: z.string().trim().max(200, 'at most 200 characters').default(''),
+    name: textWithoutNul.trim().min(3, 'name the spec (at least 3 characters)').max(160, 'at most 160 characters'),
+    appliesTo: textWithoutNul.trim().max(200, 'at most 200 characters').default(''),
     shared: z.boolean().default(false),
     ...versionFields,
   })
@@ -93,10 +94,10 @@ export type SpecInput = z.input<typeof specInputSchema>;
 /** Body of `PATCH /api/specs/:specId`: name, what it applies to, shared; figures change by a new version. */
 export const specPatchSchema = z
   .strictObject({
-    name: z.string().trim().min(3).max(160),
-    appliesTo: z.string().trim().max(200),
+    name: textWithoutNul.trim().min(3).max(160),
+    appliesTo: textWithoutNul.trim().max(200),
     shared: z.boolean(),
-    lockVersion: z.number().int().positive(),
+    lockVersion: dbPositiveInteger,
   })
   .partial()
   .required({ lockVersion: true });
@@ -140,13 +141,13 @@ export const specResponseSchema = z.object({ spec: specSchema });
 export const specVersionResponseSchema = z.object({ version: specVersionSchema });
 /** Query of `GET /api/specs`: own and shared specs; `q` searches name and applies-to; `mine=1` own only. */
 export const specListQuerySchema = z.object({
-  q: z.string().trim().max(100).optional(),
+  q: textWithoutNul.trim().max(100).optional(),
   mine: z.enum(['0', '1']).optional(),
-  after: z.coerce.number().int().positive().optional(),
+  after: dbIdText.optional(),
   limit: z.coerce.number().int().min(1).max(100).default(50),
 });
 export const specListResponseSchema = z.object({ items: z.array(specSchema), nextAfter: z.number().int().nullable() });
-export const specIdParamsSchema = z.object({ specId: z.coerce.number().int().positive() });
+export const specIdParamsSchema = z.object({ specId: dbIdText });
 
 /** A version's figures as the engine's spec (numbers in the version's unit). */
 export function toEngineSpec(v: VersionFigures & { version: number }): EngineSpec {

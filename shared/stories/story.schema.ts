@@ -4,6 +4,7 @@
  * an optimistic lock, revisions, and images.
  */
 import { z } from 'zod';
+import { dbIdText, dbPositiveInteger, textWithoutNul } from '../http/db-values.schema';
 import { isoDateSchema } from '../instruments/instrument.schema';
 
 /** A story's states (the words people see are in `storyStateWords`). */
@@ -19,7 +20,7 @@ export const storyStateWords: Readonly<Record<StoryState, string>> = {
 
 /** Tag groups: machine family, component, operation. */
 export const storyTagGroups = ['machine', 'component', 'operation'] as const;
-const tag = z.string().trim().min(1).max(40, 'a tag is at most 40 characters').regex(/^[^,#<>]+$/, 'a tag has no commas, # or angle brackets');
+const tag = textWithoutNul.trim().min(1).max(40, 'a tag is at most 40 characters').regex(/^[^,#<>]+$/, 'a tag has no commas, # or angle brackets');
 export const storyTagsSchema = z.strictObject({
   machine: z.array(tag).max(10, 'at most 10 tags').default([]),
   component: z.array(tag).max(10, 'at most 10 tags').default([]),
@@ -31,13 +32,13 @@ export type StoryTags = z.infer<typeof storyTagsSchema>;
 export const MAX_STORY_BODY = 100_000;
 
 const storyFields = {
-  title: z.string().trim().min(1, 'give the entry a title').max(160, 'at most 160 characters'),
-  summary: z.string().trim().max(500, 'at most 500 characters'),
+  title: textWithoutNul.trim().min(1, 'give the entry a title').max(160, 'at most 160 characters'),
+  summary: textWithoutNul.trim().max(500, 'at most 500 characters'),
   workDate: isoDateSchema.nullable(),
   tags: storyTagsSchema,
   /** A moment whose evidence still is the cover. */
-  coverMomentId: z.number().int().positive().nullable(),
-  body: z.string().max(MAX_STORY_BODY, `at most ${MAX_STORY_BODY} characters`),
+  coverMomentId: dbPositiveInteger.nullable(),
+  body: textWithoutNul.max(MAX_STORY_BODY, `at most ${MAX_STORY_BODY} characters`),
 };
 
 /** Body of `POST /api/builds/:buildId/stories`. */
@@ -57,7 +58,7 @@ export type StoryInput = z.input<typeof storyInputSchema>;
  * 409 `edit_conflict`, never merged silently.
  */
 export const storyPatchSchema = z
-  .strictObject({ ...storyFields, lockVersion: z.number().int().positive() })
+  .strictObject({ ...storyFields, lockVersion: dbPositiveInteger })
   .partial()
   .required({ lockVersion: true });
 export type StoryPatch = z.infer<typeof storyPatchSchema>;
@@ -87,11 +88,11 @@ export type Story = z.infer<typeof storySchema>;
 
 export const storyResponseSchema = z.object({ story: storySchema });
 export const storyListQuerySchema = z.object({
-  before: z.coerce.number().int().positive().optional(),
+  before: dbIdText.optional(),
   limit: z.coerce.number().int().min(1).max(100).default(50),
 });
 export const storyListResponseSchema = z.object({ items: z.array(storySchema.omit({ body: true })), nextBefore: z.number().int().nullable() });
-export const storyIdParamsSchema = z.object({ storyId: z.coerce.number().int().positive() });
+export const storyIdParamsSchema = z.object({ storyId: dbIdText });
 
 /** A kept state of a story. */
 export const storyRevisionSchema = z.object({
@@ -110,7 +111,7 @@ export const storyRevisionSchema = z.object({
 export type StoryRevision = z.infer<typeof storyRevisionSchema>;
 /** Query of `GET /api/stories/:storyId/revisions`: newest first, keyset `before` on the revision number. */
 export const storyRevisionListQuerySchema = z.object({
-  before: z.coerce.number().int().positive().optional(),
+  before: dbIdText.optional(),
   limit: z.coerce.number().int().min(1).max(100).default(50),
 });
 export const storyRevisionListResponseSchema = z.object({
@@ -120,8 +121,8 @@ export const storyRevisionListResponseSchema = z.object({
 });
 export const storyRevisionResponseSchema = z.object({ revision: storyRevisionSchema });
 export const storyRevisionParamsSchema = z.object({
-  storyId: z.coerce.number().int().positive(),
-  number: z.coerce.number().int().positive(),
+  storyId: dbIdText,
+  number: dbIdText,
 });
 
 /** An image uploaded into a story. */
@@ -140,7 +141,7 @@ export const storyImageSchema = z.object({
 export type StoryImage = z.infer<typeof storyImageSchema>;
 export const storyImageResponseSchema = z.object({ image: storyImageSchema });
 export const storyImageListResponseSchema = z.object({ items: z.array(storyImageSchema) });
-export const storyImageIdParamsSchema = z.object({ imageId: z.coerce.number().int().positive() });
+export const storyImageIdParamsSchema = z.object({ imageId: dbIdText });
 /** Form field of the file in `POST /api/stories/:storyId/images` (multipart), and the alt text field. */
 export const storyImageUploadField = 'file';
 export const storyImageAltField = 'alt';

@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { dbIdText, dbNonNegativeIntegerText } from '../http/db-values.schema';
 import { temperatureScales, unitSystemsForDefaults } from '../measure/quantities';
 
 /** Every role a Benchproof account can hold, lowest privilege first. New accounts are followers. */
@@ -48,11 +49,11 @@ export const changeRoleResponseSchema = z.object({ user: userSchema });
 export type ChangeRoleResponse = z.infer<typeof changeRoleResponseSchema>;
 
 /** Path parameters naming one user. */
-export const userIdParamsSchema = z.object({ id: z.coerce.number().int().positive() });
+export const userIdParamsSchema = z.object({ id: dbIdText });
 
 /** Query of `GET /api/admin/users`: keyset pagination by id, optional role filter. */
 export const listUsersQuerySchema = z.object({
-  after: z.coerce.number().int().nonnegative().optional(),
+  after: dbNonNegativeIntegerText.optional(),
   limit: z.coerce.number().int().min(1).max(100).default(50),
   role: roleSchema.optional(),
 });

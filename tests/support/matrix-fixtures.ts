@@ -245,6 +245,8 @@ export interface PublishedFixtures {
   partId: number;
   /** The clip its readings cite (`:clipId` of the public media). */
   clipId: number;
+  /** An image its published body shows (`:imageId` of a public story image). */
+  imageId: number;
   storyId: number;
   title: string;
   /** Its public revision (the `rev` a printed sheet carries). */
@@ -276,7 +278,7 @@ export async function buildMatrixFixtures(
   const signedIn = actors.filter((a): a is Exclude<Actor, 'anonymous'> => a !== 'anonymous');
 
   // Independent of the rest (builds of its own), so it is made alongside.
-  const publishedSide = buildPublishedFixtures(t, sessions, files.clip);
+  const publishedSide = buildPublishedFixtures(t, sessions, files);
   const [main, spare, instrumentId, micId, instrumentToDelete, spec, actorIdList] = await Promise.all([
     createBuild(owner, 'Authorization matrix build'),
     createBuild(owner, 'Authorization matrix throwaway build'),
@@ -410,13 +412,24 @@ async function ask(s: Session, storyId: number, body: string): Promise<number> {
  * actor but the owner following the owner; and, in builds of their own, a draft and a story
  * published and then withdrawn, so nothing of theirs is public.
  */
-async function buildPublishedFixtures(t: TestApp, sessions: Record<Actor, Session>, clip: string): Promise<PublishedFixtures> {
+async function buildPublishedFixtures(t: TestApp, sessions: Record<Actor, Session>, files: { clip: string; image: string }): Promise<PublishedFixtures> {
   const { owner, moderator } = sessions;
+  const clip = files.clip;
   const [pub, draft, withdrawn] = await Promise.all([
     makeReviewFixture(owner, { clipFile: clip, title: 'Matrix published build (invented)' }),
     makeReviewFixture(owner, { clipFile: clip, title: 'Matrix draft-only build (invented)' }),
     makeReviewFixture(owner, { clipFile: clip, title: 'Matrix withdrawn build (invented)' }),
   ]);
+  // An image in the published story's body, so the publication shows it.
+  const image = await expectStatus<{ image: { id: number; markdown: string } }>(
+    'published story image',
+    201,
+    owner.agent.post(`/api/stories/${pub.story.id}/images`).set('x-csrf-token', owner.token).attach('file', files.image, 'matrix-published.png'),
+  );
+  await expectStatus('story body with the image', 200, send(owner, 'patch', `/api/stories/${pub.story.id}`, {
+    body: `${pub.story.body}\n${image.image.markdown}\n`,
+    lockVersion: await storyLockVersion(owner, pub.story.id),
+  }));
   // One moderator publishes one story at a time (each move takes and gives back the hold).
   const revision = await publishThroughReview(owner, moderator, pub);
   const withdrawnRevision = await publishThroughReview(owner, moderator, withdrawn);
@@ -458,6 +471,7 @@ async function buildPublishedFixtures(t: TestApp, sessions: Record<Actor, Sessio
     buildId: pub.buildId,
     partId: pub.partId,
     clipId: pub.clipId,
+    imageId: image.image.id,
     storyId: pub.story.id,
     title: pub.story.title,
     revision,

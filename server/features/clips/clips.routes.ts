@@ -18,6 +18,7 @@ import {
 import type { Config } from '../../config';
 import { access } from '../../http/authorize';
 import { AppError, badRequest, conflict } from '../../http/errors';
+import { multipartFailure, refuseNulInUpload } from '../../http/multipart';
 import { limiter } from '../../http/rate-limit';
 import { validQuery, validate } from '../../http/validate';
 import type { Queue } from '../../jobs/queue';
@@ -77,12 +78,12 @@ export function buildClipsRouter(deps: ClipRouteDeps) {
     const declared = Number(req.headers['content-length'] ?? 0);
     if (declared > deps.config.uploads.maxBytes + 64 * 1024) return next(tooLarge(deps.config.uploads.maxBytes));
     upload(req, res, (err: unknown) => {
-      if (!err) return next();
-      if (err instanceof multer.MulterError) {
-        if (err.code === 'LIMIT_FILE_SIZE') return next(tooLarge(deps.config.uploads.maxBytes));
-        return next(badRequest(`The upload is not in the expected form (${err.message}). Send one video in the field "${clipUploadField}".`));
+      if (!err) {
+        refuseNulInUpload(req, clipUploadField).then((refused) => next(refused ?? undefined), next);
+        return;
       }
-      next(err);
+      if (err instanceof multer.MulterError && err.code === 'LIMIT_FILE_SIZE') return next(tooLarge(deps.config.uploads.maxBytes));
+      next(multipartFailure(err, `Send one video in the field "${clipUploadField}".`, clipUploadField));
     });
   };
 

@@ -3,6 +3,7 @@ import fsp from 'node:fs/promises';
 import path from 'node:path';
 import { Router, type RequestHandler } from 'express';
 import multer from 'multer';
+import { literal } from 'sequelize';
 import {
   storyIdParamsSchema,
   storyImageAltField,
@@ -12,12 +13,14 @@ import {
 } from '@shared/stories/story.schema';
 import type { Config } from '../../config';
 import { access } from '../../http/authorize';
-import { AppError, badRequest, conflict, notFound } from '../../http/errors';
+import { AppError, badRequest, conflict, notFound, unauthorized } from '../../http/errors';
+import { multipartFailure, refuseNulInUpload } from '../../http/multipart';
 import { limiter } from '../../http/rate-limit';
 import { validate } from '../../http/validate';
 import type { Storage } from '../../storage/storage';
 import { MediaCommandFailed, runFfmpeg, runFfprobe } from '../clips/media/ffmpeg-run';
 import { describeNonVideo, readHead } from '../clips/media/sniff';
+import { PUBLIC_STORY_SQL } from '../public/publication';
 import type { User } from '../users/user.model';
 import { MalformedImageError, stripImageMetadata } from './image-metadata';
 import { imagePrefix, storyForOwner, storyForViewer } from './stories.service';
@@ -246,16 +249,12 @@ export function storyImagesRouter(deps: StoryImageRouteDeps) {
     const declared = Number(req.headers['content-length'] ?? 0);
     if (declared > maxBytes + 64 * 1024) return next(tooLarge(maxBytes));
     upload(req, res, (err: unknown) => {
-      if (!err) return next();
-      if (err instanceof multer.MulterError) {
-        if (err.code === 'LIMIT_FILE_SIZE') return next(tooLarge(maxBytes));
-        return next(
-          badRequest(`The upload is not in the expected form (${err.message}). Send one image in the field "${storyImageUploadField}" and optional text in "${storyImageAltField}".`, [
-            { path: err.field ?? storyImageUploadField, message: err.message },
-          ]),
-        );
+      if (!err) {
+        refuseNulInUpload(req, storyImageUploadField).then((refused) => next(refused ?? undefined), next);
+        return;
       }
-      next(err);
+      if (err instanceof multer.MulterError && err.code === 'LIMIT_FILE_SIZE') return next(tooLarge(maxBytes));
+      next(multipartFailure(err, `Send one image in the field "${storyImageUploadField}" and optional text in "${storyImageAltField}".`, storyImageUploadField));
     });
   };
 
@@ -289,21 +288,65 @@ export function storyImagesRouter(deps: StoryImageRouteDeps) {
   return router;
 }
 
-/** Routes under /api/story-images/:imageId: the image itself, to those who may read its story. */
+/** How long a reader's browser or a shared cache may keep a published image (seconds). */
+export const PUBLIC_IMAGE_MAX_AGE = 300;
+
+/** A story image, and whether a current publication shows it. */
+export interface ImageLookup {
+  image: StoryImage;
+  published: boolean;
+}
+
+/**
+ * The image with this id and whether it is public, in one query. An image is public when its own
+ * story has a current publication (`PUBLIC_STORY_SQL`: published, not withdrawn) whose Markdown
+ * body references it as `/api/story-images/<id>` (not followed by another digit, so image 12 is
+ * not made public by a reference to 123). Only the publication counts: an image that only the
+ * draft or a later unpublished revision uses stays private, and withdrawing the story makes its
+ * images private again. Every join is on a primary key, so no index is needed.
+ */
+export async function findStoryImage(imageId: number): Promise<ImageLookup | null> {
+  const image = await StoryImage.findByPk(imageId, {
+    attributes: {
+      include: [
+        [
+          literal(`EXISTS (
+            SELECT 1 FROM stories s JOIN story_publications p ON p.id = s.published_publication_id
+            WHERE s.id = "StoryImage"."story_id" AND ${PUBLIC_STORY_SQL}
+              AND p.body ~ ('/api/story-images/' || "StoryImage"."id" || '(?![0-9])')
+          )`),
+          'published',
+        ],
+      ],
+    },
+  });
+  if (!image) return null;
+  return { image, published: image.get('published') === true };
+}
+
+/**
+ * Routes under /api/story-images/:imageId: the image itself. Anyone, signed in or not, gets an
+ * image a current publication shows (`findStoryImage`); any other image only those who may read
+ * its story get (401 to a visitor, whether or not the id exists; 404 to the signed-in who may not).
+ */
 export function storyImageFilesRouter(deps: { storage: Storage }) {
   const router = Router();
-  router.get('/:imageId', access.signedIn, validate({ params: storyImageIdParamsSchema }), async (req, res) => {
-    const image = await StoryImage.findByPk(Number(req.params.imageId));
-    if (!image) throw notFound('There is no image with that id.');
-    await storyForViewer(image.storyId, req.user).catch((err: unknown) => {
-      throw err instanceof AppError && err.status === 404 ? notFound('There is no image with that id.') : err;
-    });
+  router.get('/:imageId', access.public, validate({ params: storyImageIdParamsSchema }), async (req, res) => {
+    const found = await findStoryImage(Number(req.params.imageId));
+    if (!found?.published) {
+      if (!req.user) throw unauthorized();
+      if (!found) throw notFound('There is no image with that id.');
+      await storyForViewer(found.image.storyId, req.user).catch((err: unknown) => {
+        throw err instanceof AppError && err.status === 404 ? notFound('There is no image with that id.') : err;
+      });
+    }
     res.set({
-      'Cache-Control': 'private, max-age=3600',
+      // A withdrawn story's images turn private at once here; a shared cache may keep one this long.
+      'Cache-Control': found.published ? `public, max-age=${PUBLIC_IMAGE_MAX_AGE}` : 'private, max-age=3600',
       'X-Content-Type-Options': 'nosniff',
       'Content-Disposition': 'inline',
     });
-    await deps.storage.send(res, image.storageKey, { contentType: image.contentType });
+    await deps.storage.send(res, found.image.storageKey, { contentType: found.image.contentType });
   });
   return router;
 }

@@ -146,7 +146,9 @@ const TABLE: Record<string, Expected> = {
   'GET /api/stories/:storyId/claims':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   'GET /api/stories/:storyId/images':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   'POST /api/stories/:storyId/images':       { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
-  'GET /api/story-images/:imageId':          { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  // A story's image: an image a current publication shows is public (the visitor is sent the
+  // published story's image: 200); the signed-in are sent the draft's image, read as its story.
+  'GET /api/story-images/:imageId':          { anonymous: 200, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
 
   // Workflow moves: signed in, then the story as for its build (404 to those who may not see
   // it), then shared/review/workflow.ts decides by actor and state. Sending a draft for review
@@ -359,6 +361,7 @@ const SHAPES: Record<string, Shape> = {
   },
   'DELETE /api/stories/:storyId': { params: (actor) => ({ storyId: fx.storyToDelete[actor] }) },
   'POST /api/stories/:storyId/images': { attach: png },
+  'GET /api/story-images/:imageId': { params: (actor) => (actor === 'anonymous' ? { imageId: fx.published.imageId } : {}) },
   'POST /api/stories/:storyId/transitions': {
     params: (actor) => ({ storyId: fx.storyToSubmit[actor] }),
     body: async (actor) => ({ action: 'submit', lockVersion: await storyLockVersion(sessions.owner, fx.storyToSubmit[actor]) }),
