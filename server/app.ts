@@ -33,7 +33,7 @@ import { adminUsersRouter } from './features/users/users.routes';
 import { csrfProtection } from './http/csrf';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { mount } from './http/routes';
-import { sessionMiddleware } from './http/session';
+import { sessionLimits, sessionMiddleware } from './http/session';
 import type { Queue } from './jobs/queue';
 import type { Storage } from './storage/storage';
 
@@ -95,6 +95,7 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
   // An idle client dropped by a restarting database emits 'error'; unheard, that would end the process.
   sessionPool.on('error', (err) => logger.warn({ err }, 'session store connection lost; it reconnects on the next request'));
   app.use(sessionMiddleware(config, sessionPool));
+  app.use(sessionLimits(config.sessionMaxMs));
   const passport = createPassport(config);
   app.use(passport.initialize());
   app.use(passport.session());

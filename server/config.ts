@@ -16,6 +16,10 @@ const envSchema = z.object({
   DATABASE_URL: z.string().default('postgres://benchproof@127.0.0.1:54320/benchproof'),
   /** Required in production (npm start makes one per checkout in .data/session-secret). */
   SESSION_SECRET: z.string().min(16).optional(),
+  /** A session with no request for this long ends (idle timeout). */
+  SESSION_IDLE_HOURS: z.coerce.number().positive().max(24 * 30).default(72),
+  /** A session ends this long after sign-in, however busy (absolute timeout). */
+  SESSION_MAX_DAYS: z.coerce.number().positive().max(365).default(30),
   /** Set both to use the real GitHub; leave both unset to use the local fake provider. */
   GITHUB_CLIENT_ID: z.string().optional(),
   GITHUB_CLIENT_SECRET: z.string().optional(),
@@ -85,6 +89,9 @@ export interface Config {
   publicUrl: string;
   databaseUrl: string;
   sessionSecret: string;
+  /** Idle and absolute session timeouts, ms (OWASP ASVS V7.3). */
+  sessionIdleMs: number;
+  sessionMaxMs: number;
   github: {
     clientId: string;
     clientSecret: string;
@@ -134,6 +141,8 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     publicUrl: (e.PUBLIC_URL ?? `http://127.0.0.1:${e.PORT}`).replace(/\/$/, ''),
     databaseUrl: e.DATABASE_URL,
     sessionSecret: e.SESSION_SECRET ?? 'benchproof-development-only-secret',
+    sessionIdleMs: e.SESSION_IDLE_HOURS * 3600 * 1000,
+    sessionMaxMs: e.SESSION_MAX_DAYS * 24 * 3600 * 1000,
     github: realGithub
       ? {
           clientId: e.GITHUB_CLIENT_ID!,

@@ -71,6 +71,8 @@ function finishSignIn(passport: ReturnType<typeof createPassport>): RequestHandl
       // req.logIn gives the session a new id (passport >= 0.6) and drops what the old one held.
       req.logIn(user, (loginErr) => {
         if (loginErr) return next(loginErr);
+        // The start of the absolute session timeout (server/http/session.ts).
+        req.session.signedInAt = Date.now();
         req.log.info({ userId: user.id }, 'signed in');
         res.redirect(returnTo ?? '/');
       });
