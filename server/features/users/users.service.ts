@@ -17,7 +17,27 @@ export interface ProviderProfile {
  * an existing account keeps its role and shop, and takes the provider's current name and e-mail.
  */
 export async function upsertFromProvider(profile: ProviderProfile, opts: { demoAccounts: boolean }): Promise<User> {
-  const existing = await User.findOne({ where: { githubId: profile.githubId } });
+  const sequelize = User.sequelize!;
+  return sequelize.transaction(async (transaction) => {
+    const existing = await User.findOne({ where: { githubId: profile.githubId }, transaction });
+    await releaseLogin(profile, transaction);
+    return upsertIn(existing, profile, opts, transaction);
+  });
+}
+
+/**
+ * Accounts are keyed by GitHub id; a login is only what GitHub calls that id today. When another
+ * account still holds the login this person now has (its owner renamed and has not signed in
+ * since, and GitHub gave the name to this person), that account's login becomes `gh-<id>--moved`
+ * until its owner signs in again. GitHub logins never hold "--", so the placeholder cannot be
+ * anyone's real login.
+ */
+async function releaseLogin(profile: ProviderProfile, transaction: Transaction): Promise<void> {
+  const holder = await User.findOne({ where: { login: profile.login, githubId: { [Op.ne]: profile.githubId } }, transaction, lock: transaction.LOCK.UPDATE });
+  if (holder) await holder.update({ login: `gh-${holder.githubId}--moved` }, { transaction });
+}
+
+async function upsertIn(existing: User | null, profile: ProviderProfile, opts: { demoAccounts: boolean }, transaction: Transaction): Promise<User> {
   if (existing?.isDemo && !opts.demoAccounts) {
     // Demo ids are invented; with the real GitHub one may belong to a real person. Never hand
     // them a demo account (some demo accounts are admins).
@@ -30,17 +50,20 @@ export async function upsertFromProvider(profile: ProviderProfile, opts: { demoA
       email: profile.email ?? existing.email,
       avatarUrl: profile.avatarUrl ?? existing.avatarUrl,
     });
-    if (existing.changed()) await existing.save();
+    if (existing.changed()) await existing.save({ transaction });
     return existing;
   }
-  return User.create({
-    githubId: profile.githubId,
-    login: profile.login,
-    displayName: profile.displayName || profile.login,
-    email: profile.email,
-    avatarUrl: profile.avatarUrl,
-    role: 'follower',
-  });
+  return User.create(
+    {
+      githubId: profile.githubId,
+      login: profile.login,
+      displayName: profile.displayName || profile.login,
+      email: profile.email,
+      avatarUrl: profile.avatarUrl,
+      role: 'follower',
+    },
+    { transaction },
+  );
 }
 
 /** One page of users, oldest first, by keyset on id. */

@@ -116,6 +116,23 @@ describe('demo accounts and the real GitHub', () => {
   });
 });
 
+describe('a login that moved on GitHub', () => {
+  it('signs in the person GitHub now gives a login to, and the account that held it keeps its id until its owner returns', async () => {
+    // Invented ids and logins. Accounts are keyed by GitHub id; the login is only today's name for it.
+    const first = await upsertFromProvider({ githubId: '770001', login: 'moved-login', displayName: 'First (invented)', email: null, avatarUrl: null }, { demoAccounts: true });
+    // First renames on GitHub and does not sign in; GitHub gives "moved-login" to someone else.
+    const second = await upsertFromProvider({ githubId: '770002', login: 'moved-login', displayName: 'Second (invented)', email: null, avatarUrl: null }, { demoAccounts: true });
+    expect(second.id).not.toBe(first.id);
+    expect(second.login).toBe('moved-login');
+    await first.reload();
+    expect(first.login).toBe('gh-770001--moved');
+    // When First signs in again under the new name, the account takes it.
+    const back = await upsertFromProvider({ githubId: '770001', login: 'new-name-770001', displayName: 'First (invented)', email: null, avatarUrl: null }, { demoAccounts: true });
+    expect(back.id).toBe(first.id);
+    expect(back.login).toBe('new-name-770001');
+  });
+});
+
 describe('the session', () => {
   it('gets a new id at sign-in, and its cookie is HttpOnly and SameSite=Lax', async () => {
     const agent = request.agent(t.app);
