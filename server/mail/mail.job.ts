@@ -1,5 +1,6 @@
 import nodemailer from 'nodemailer';
 import type { Logger } from 'pino';
+import type { Transaction } from 'sequelize';
 import type { Config } from '../config';
 import type { Queue } from '../jobs/queue';
 
@@ -18,18 +19,28 @@ export interface OutgoingMail {
 /**
  * Puts messages on the mail queue. Sending happens in the worker, so a slow or failing mail
  * server never fails the request that caused the mail; pg-boss retries with growing delays.
- * Pass the transaction's `db` executor to enqueue only if the surrounding change commits.
+ * With `transaction`, the jobs are written on that transaction's connection (pg-boss's `db`
+ * option; its tables live in the same database), so the mail is queued exactly when the change
+ * that caused it commits: a crash between the two can no longer lose it.
  */
-export async function enqueueMail(queue: Queue | null, mails: OutgoingMail[], logger?: Logger): Promise<number> {
+export async function enqueueMail(queue: Queue | null, mails: OutgoingMail[], logger?: Logger, opts: { transaction?: Transaction } = {}): Promise<number> {
   if (!queue) {
     if (mails.length) logger?.warn({ count: mails.length }, 'no job queue in this process: mail not queued');
     return 0;
   }
+  const db = opts.transaction ? transactionDb(opts.transaction) : undefined;
   let sent = 0;
   for (const mail of mails) {
-    if (await queue.boss.send(queue.names.mailSend, mail)) sent += 1;
+    if (await queue.boss.send(queue.names.mailSend, mail, db ? { db } : {})) sent += 1;
   }
   return sent;
+}
+
+/** pg-boss's executor over a Sequelize transaction's own pg connection. */
+function transactionDb(transaction: Transaction) {
+  // Sequelize 6 keeps the transaction's pg client on `connection` (not in its typings).
+  const client = (transaction as unknown as { connection: { query(text: string, values: unknown[]): Promise<{ rows: unknown[] }> } }).connection;
+  return { executeSql: (text: string, values: unknown[]) => client.query(text, values) };
 }
 
 /** The SMTP transport for the configured server (the local capture server unless SMTP_URL is set). */

@@ -419,7 +419,8 @@ export async function checkDtos(q: { where: Record<string, unknown> }): Promise<
 /**
  * Moves a story through the workflow (shared/review/workflow.ts), server side: role, state,
  * reason, the claim for moderator actions, the publish gate, the audit line, and the mail
- * (queued after the change commits, so a slow mail server never fails the move).
+ * (queued in the same transaction, so it is queued exactly when the move commits; sending is the
+ * worker's, so a slow mail server never fails the move).
  */
 export async function transition(storyId: number, user: User, input: TransitionInput, deps: ReviewDeps) {
   const now = deps.now?.() ?? new Date();
@@ -522,14 +523,9 @@ export async function transition(storyId: number, user: User, input: TransitionI
       },
       transaction,
     );
+    await enqueueMail(deps.queue, mails, deps.logger, { transaction });
     return { storyId: story.id, state: verdict.to as StoryState, revision: publication?.number ?? null };
   });
-  // The move has committed; mail that cannot be queued now is logged, never turned into a failed move.
-  try {
-    await enqueueMail(deps.queue, mails, deps.logger);
-  } catch (err) {
-    deps.logger?.error({ err, storyId, action: input.action, count: mails.length }, 'could not queue the mail for a story move');
-  }
   return result;
 }
 
