@@ -146,27 +146,38 @@ function checkThermal(
   }
 }
 
+/** What a direct or repeated reading from an indicating instrument may carry besides its figures. */
+const indicatingFields = {
+  resolution: figureSchema('resolution').optional(),
+  uncertainty: figureSchema('uncertainty').optional(),
+  zeroOffset: figureSchema('zeroOffset').optional(),
+  /** Resolution of the zero check's own reading; the reading's resolution when absent. */
+  zeroResolution: figureSchema('zeroResolution').optional(),
+  instrument: instrumentName.optional(),
+  ...thermalFields,
+};
+
+type IndicatingFields = { unit: AnyUnit; resolution?: Figure | undefined; uncertainty?: Figure | undefined; zeroOffset?: Figure | undefined; zeroResolution?: Figure | undefined; temperatureC?: number | undefined; expansionPerK?: number | undefined; material?: string | undefined };
+
+function checkIndicating(reading: IndicatingFields, ctx: Ctx) {
+  checkFigure(ctx, ['resolution'], reading.resolution, reading.unit, positiveResolution);
+  checkFigure(ctx, ['uncertainty'], reading.uncertainty, reading.unit, nonNegative);
+  checkFigure(ctx, ['zeroOffset'], reading.zeroOffset, reading.unit);
+  checkFigure(ctx, ['zeroResolution'], reading.zeroResolution, reading.unit, positiveResolution);
+  checkThermal(reading, ctx);
+}
+
 /** A single reading from an indicating instrument (micrometer, depth micrometer, bore gauge, torque wrench…). */
 export const directReadingSchema = z
   .strictObject({
     kind: z.literal('direct'),
     value: figureSchema('value'),
     unit: anyUnitSchema,
-    resolution: figureSchema('resolution').optional(),
-    uncertainty: figureSchema('uncertainty').optional(),
-    zeroOffset: figureSchema('zeroOffset').optional(),
-    /** Resolution of the zero check's own reading; the reading's resolution when absent. */
-    zeroResolution: figureSchema('zeroResolution').optional(),
-    instrument: instrumentName.optional(),
-    ...thermalFields,
+    ...indicatingFields,
   })
   .superRefine((reading, ctx) => {
     checkFigure(ctx, ['value'], reading.value, reading.unit);
-    checkFigure(ctx, ['resolution'], reading.resolution, reading.unit, positiveResolution);
-    checkFigure(ctx, ['uncertainty'], reading.uncertainty, reading.unit, nonNegative);
-    checkFigure(ctx, ['zeroOffset'], reading.zeroOffset, reading.unit);
-    checkFigure(ctx, ['zeroResolution'], reading.zeroResolution, reading.unit, positiveResolution);
-    checkThermal(reading, ctx);
+    checkIndicating(reading, ctx);
   });
 
 /** How a feeler blade went into the gap. */
@@ -234,20 +245,11 @@ export const repeatedReadingSchema = z
       .min(2, 'values needs at least 2 numbers (use kind "direct" for one)')
       .max(MAX_REPEATED_VALUES, `values may hold at most ${MAX_REPEATED_VALUES} numbers`),
     unit: anyUnitSchema,
-    resolution: figureSchema('resolution').optional(),
-    uncertainty: figureSchema('uncertainty').optional(),
-    zeroOffset: figureSchema('zeroOffset').optional(),
-    zeroResolution: figureSchema('zeroResolution').optional(),
-    instrument: instrumentName.optional(),
-    ...thermalFields,
+    ...indicatingFields,
   })
   .superRefine((reading, ctx) => {
     reading.values.forEach((value, index) => checkFigure(ctx, ['values', index], value, reading.unit));
-    checkFigure(ctx, ['resolution'], reading.resolution, reading.unit, positiveResolution);
-    checkFigure(ctx, ['uncertainty'], reading.uncertainty, reading.unit, nonNegative);
-    checkFigure(ctx, ['zeroOffset'], reading.zeroOffset, reading.unit);
-    checkFigure(ctx, ['zeroResolution'], reading.zeroResolution, reading.unit, positiveResolution);
-    checkThermal(reading, ctx);
+    checkIndicating(reading, ctx);
   });
 
 /** One reading of any kind, told apart by `kind`. */

@@ -321,15 +321,31 @@ function evaluateDirect(ctx: Context, reading: DirectReading, instrument: CalcIn
   const resolutionGiven = reading.resolution !== undefined;
   const resolution = resolutionGiven ? exact(reading.resolution as Figure, 'resolution') : lastPlace(reading.value, 'value');
   ctx.steps.push(`${ctx.key}: direct reading ${typed(reading.value, ctx.unit)}${figureIsText(reading.value) ? ' (as typed)' : ''}.`);
-  let value = zeroCheck(ctx, raw, reading.zeroOffset, reading.zeroResolution, resolution, resolution);
-  const corrected = thermal(ctx, reading, value, resolution, reading.instrument, instrument);
-  value = corrected.value;
+  return finish(ctx, 'direct', indicated(ctx, reading, raw, resolution, resolutionGiven, resolution, instrument), resolution);
+}
+
+/**
+ * What an indicating instrument's estimate goes through, for a single or a repeated reading: the
+ * zero check, the correction to 20 °C, then the resolution, a stated uncertainty and what the
+ * instrument brings. Returns the corrected estimate.
+ */
+function indicated(
+  ctx: Context,
+  reading: DirectReading | RepeatedReading,
+  estimate: Fraction,
+  resolution: Fraction,
+  resolutionGiven: boolean,
+  step: Fraction,
+  instrument: CalcInstrument | undefined,
+): Fraction {
+  const zeroed = zeroCheck(ctx, estimate, reading.zeroOffset, reading.zeroResolution, resolution, step);
+  const corrected = thermal(ctx, reading, zeroed, step, reading.instrument, instrument);
   resolutionComponent(ctx, resolution, resolutionGiven);
   if (reading.uncertainty !== undefined) statedComponent(ctx, reading.uncertainty);
   instrumentComponents(ctx, reading.instrument, instrument, corrected.scale);
   // Own-unit components (the zero check's too) scale with the correction; instrument ones were scaled as made.
   scaleOwn(ctx, corrected.scale);
-  return finish(ctx, 'direct', value, resolution);
+  return corrected.value;
 }
 
 /** Scales the reading's own-unit components by the thermal factor. */
@@ -437,14 +453,7 @@ function evaluateRepeated(ctx: Context, reading: RepeatedReading, instrument: Ca
     effects: [{ reading: ctx.key, effect: factorNumber(ctx.unit) }],
   });
   if (n < 4) ctx.notes.push(`${ctx.key} rests on ${n} readings: with so few, the coverage interval is wide (GUM G.3, Table G.2).`);
-  let value = zeroCheck(ctx, mean, reading.zeroOffset, reading.zeroResolution, resolution, step);
-  const corrected = thermal(ctx, reading, value, step, reading.instrument, instrument);
-  value = corrected.value;
-  resolutionComponent(ctx, resolution, resolutionGiven);
-  if (reading.uncertainty !== undefined) statedComponent(ctx, reading.uncertainty);
-  instrumentComponents(ctx, reading.instrument, instrument, corrected.scale);
-  scaleOwn(ctx, corrected.scale);
-  return finish(ctx, 'repeated', value, step);
+  return finish(ctx, 'repeated', indicated(ctx, reading, mean, resolution, resolutionGiven, step, instrument), step);
 }
 
 /**

@@ -1,8 +1,10 @@
+import { useId } from 'react';
 import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import type { ClearanceResult } from '@shared/clearances/clearance.schema';
 import type { Reading } from '@shared/readings/reading.schema';
 import { formatUncertainty } from '@shared/measure/format';
 import { decisionRuleText, type Verdict } from '@shared/measure/spec';
+import { BudgetTable } from '@/components/budget-table';
 import { VerdictBadge } from '@/components/ui/badge';
 import { BandPicture } from '@/features/calc/components/band-picture';
 import { CalcSteps } from '@/features/calc/components/calc-steps';
@@ -68,13 +70,19 @@ export function ClearanceResultView({
   result,
   readings = [],
   stepsOpen = false,
+  budgetOpen = false,
+  noSpecText = 'No spec attached, so no verdict: attach a spec version to judge it.',
 }: {
   result: ClearanceResult;
   /** The readings summed, so the band picture's scale shows their places. */
   readings?: readonly Pick<Reading, 'unit' | 'result'>[];
   stepsOpen?: boolean;
+  /** The budget laid open under a heading (the moderator's view) instead of behind a disclosure. */
+  budgetOpen?: boolean;
+  noSpecText?: string;
 }) {
   const picture = bandPictureProps(result, readings);
+  const budgetId = useId();
   return (
     <div className="flex flex-col gap-3" data-clearance-result="">
       <dl className="grid gap-x-4 gap-y-0.5 text-sm sm:grid-cols-[max-content_minmax(0,1fr)] sm:gap-y-1">
@@ -92,7 +100,7 @@ export function ClearanceResultView({
           <p className="max-w-prose text-xs text-ink-muted">{decisionRuleText[result.rule]}</p>
         </>
       ) : (
-        <p className="text-sm text-ink-muted">No spec attached, so no verdict: attach a spec version to judge it.</p>
+        <p className="text-sm text-ink-muted">{noSpecText}</p>
       )}
       {picture && (
         <div className="max-w-xl">
@@ -100,7 +108,16 @@ export function ClearanceResultView({
         </div>
       )}
       {result.verdict && <VerdictCaution />}
-      <BudgetDisclosure facts={result} />
+      {budgetOpen && result.budget ? (
+        <section aria-labelledby={`budget-${budgetId}`} className="flex flex-col gap-1.5" data-budget="">
+          <h3 id={`budget-${budgetId}`} className="text-sm font-semibold">
+            Uncertainty budget
+          </h3>
+          <BudgetTable budget={result.budget} unit={result.unit} />
+        </section>
+      ) : (
+        <BudgetDisclosure facts={result} />
+      )}
       <details open={stepsOpen} className="rounded-md border border-rule px-3 py-2">
         <summary className="cursor-pointer text-sm font-medium">How it was worked out ({result.steps.length} steps)</summary>
         <div className="mt-2">

@@ -1,16 +1,7 @@
-import type { ClearanceResult } from '@shared/clearances/clearance.schema';
-import { formatUncertainty } from '@shared/measure/format';
-import { formatCoverageFactor } from '@shared/measure/format-quantity';
-import { decisionRuleText } from '@shared/measure/spec';
-import type { Reading } from '@shared/readings/reading.schema';
 import type { EvidenceCheckDto } from '@shared/review/review.schema';
 import type { ReviewSheet } from '@shared/review/review-sheet.schema';
-import { BudgetTable } from '@/components/budget-table';
-import { BandPicture } from '@/features/calc/components/band-picture';
-import { CalcSteps } from '@/features/calc/components/calc-steps';
-import { ClearanceVerdicts, specSourceWords, VerdictCaution } from '@/features/clearances/components/clearance-result-view';
-import { CoverageLine } from '@/features/clearances/components/coverage-facts';
-import { bandPictureProps, expressionOf, specLine } from '@/features/clearances/lib/clearance-view';
+import { ClearanceResultView, specSourceWords } from '@/features/clearances/components/clearance-result-view';
+import { expressionOf, specLine } from '@/features/clearances/lib/clearance-view';
 import { WarningIcon } from '@/features/readings/components/reading-badges';
 import { CitedChecksAndJudge } from './citing-sentences';
 import { EvidenceStateBadge } from './evidence-state-badge';
@@ -113,8 +104,9 @@ export function ClearanceReview({
         )}
       </dl>
 
+      {/* The budget laid open: which component carries the variance is what decides the method. */}
       {clearance.result ? (
-        <ClearanceFigures result={clearance.result} readings={summed.flatMap(({ entry }) => (entry ? [entry.reading] : []))} />
+        <ClearanceResultView result={clearance.result} readings={summed.flatMap(({ entry }) => (entry ? [entry.reading] : []))} budgetOpen noSpecText="No spec attached, so no verdict." />
       ) : (
         <div role="note" className="rounded-md border border-danger/50 bg-danger-wash/50 px-3 py-2 text-sm">
           <p className="font-medium">It cannot be worked out:</p>
@@ -131,52 +123,3 @@ export function ClearanceReview({
   );
 }
 
-/**
- * The worked-out figure for a moderator: value ± U, u_c and k, the interval with its method and
- * the probability within spec, the verdict with its rule, the band picture, the budget laid open
- * (which component carries the variance is what decides the method), and the working.
- */
-function ClearanceFigures({ result, readings }: { result: ClearanceResult; readings: readonly Pick<Reading, 'unit' | 'result'>[] }) {
-  const picture = bandPictureProps(result, readings);
-  return (
-    <div className="flex flex-col gap-3" data-clearance-result="">
-      <dl className="grid gap-x-4 gap-y-0.5 text-sm sm:grid-cols-[max-content_minmax(0,1fr)] sm:gap-y-1">
-        <dt className="text-ink-muted">Clearance ± U</dt>
-        <dd className="figures text-base font-semibold">{result.display}</dd>
-        <dt className="text-ink-muted">Standard uncertainty u_c</dt>
-        <dd className="figures">{formatUncertainty(result.standardUncertaintyUm, result.unit)}</dd>
-        <dt className="text-ink-muted">Expanded U (k = {formatCoverageFactor(result.coverageFactor)})</dt>
-        <dd className="figures">± {formatUncertainty(result.expandedUncertaintyUm, result.unit)}</dd>
-      </dl>
-      <CoverageLine facts={result} />
-      {result.verdict && result.rule ? (
-        <>
-          <ClearanceVerdicts result={result} />
-          <p className="max-w-prose text-xs text-ink-muted">{decisionRuleText[result.rule]}</p>
-        </>
-      ) : (
-        <p className="text-sm text-ink-muted">No spec attached, so no verdict.</p>
-      )}
-      {picture && (
-        <div className="max-w-xl">
-          <BandPicture {...picture} />
-        </div>
-      )}
-      {result.verdict && <VerdictCaution />}
-      {result.budget && (
-        <section aria-labelledby="review-budget-heading" className="flex flex-col gap-1.5" data-budget="">
-          <h3 id="review-budget-heading" className="text-sm font-semibold">
-            Uncertainty budget
-          </h3>
-          <BudgetTable budget={result.budget} unit={result.unit} />
-        </section>
-      )}
-      <details className="rounded-md border border-rule px-3 py-2">
-        <summary className="cursor-pointer text-sm font-medium">How it was worked out ({result.steps.length} steps)</summary>
-        <div className="mt-2">
-          <CalcSteps steps={result.steps} />
-        </div>
-      </details>
-    </div>
-  );
-}
