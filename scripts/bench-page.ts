@@ -11,7 +11,6 @@ import type { AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import zlib from 'node:zlib';
-import request from 'supertest';
 import { clipSchema } from '../shared/clips/clip.schema';
 import { createApp } from '../server/app';
 import { loadConfig } from '../server/config';
@@ -23,6 +22,7 @@ import { startClipWorker } from '../server/features/clips/clip.job';
 import { startQueue } from '../server/jobs/queue';
 import { localStorage } from '../server/storage/local-storage';
 import { makeTestClip } from '../tests/support/clips';
+import { benchSession, type BenchSession } from './lib/bench-env';
 import { prepareDatabase, repoRoot } from './lib/bootstrap';
 import { launchBrowser } from './lib/chromium';
 import { buildClientIfChanged } from './lib/client-build';
@@ -34,11 +34,7 @@ const clientDir = process.env.BENCHPROOF_CLIENT_OUT ? path.resolve(process.env.B
 
 const gzipCache = new Map<string, { raw: number; gzip: number }>();
 
-type Agent = ReturnType<typeof request.agent>;
-interface Session {
-  agent: Agent;
-  token: string;
-}
+type Session = BenchSession;
 
 const db = await prepareDatabase({
   dataDir: path.join(repoRoot, '.data/postgres-bench-page'),
@@ -223,8 +219,8 @@ async function coldLoad(storyUrl: string): Promise<Run> {
  * submit, claim, check everything, publish. All names and figures are invented.
  */
 async function publishStory(app: http.RequestListener, dir: string): Promise<number> {
-  const owner = await session(app, 'demo-builder');
-  const moderator = await session(app, 'demo-moderator');
+  const owner = await benchSession(app, 'demo-builder');
+  const moderator = await benchSession(app, 'demo-moderator');
   const send = (s: Session, verb: 'post' | 'patch', url: string, body: object = {}) => s.agent[verb](url).set('x-csrf-token', s.token).send(body);
   const ok = async <T>(what: string, res: { status: number; body: unknown }, pick: (b: never) => T): Promise<T> => {
     if (res.status !== 200 && res.status !== 201) throw new Error(`${what} answered ${res.status}: ${JSON.stringify(res.body)}`);
@@ -289,14 +285,3 @@ async function publishStory(app: http.RequestListener, dir: string): Promise<num
   return story;
 }
 
-/** Signs in through the whole round trip with the local provider; a cookie jar plus its CSRF token. */
-async function session(app: http.RequestListener, login: string): Promise<Session> {
-  const agent = request.agent(app);
-  const start = await agent.get(`/auth/github?login=${encodeURIComponent(login)}`).expect(302);
-  const authorize = await fetch(start.headers.location!, { redirect: 'manual' });
-  const callback = new URL(authorize.headers.get('location')!);
-  const done = await agent.get(callback.pathname + callback.search);
-  if (done.status !== 302 || done.headers.location?.startsWith('/sign-in')) throw new Error(`sign-in as ${login} did not complete: ${done.status}`);
-  const token = (await agent.get('/api/csrf-token').expect(200)).body.token as string;
-  return { agent, token };
-}

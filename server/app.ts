@@ -129,7 +129,7 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
   mount(app, '/api/review', reviewRouter(review));
   mount(app, '/api/admin/outbox', outboxRouter(config));
   mount(app, '/api/unsubscribe', unsubscribeRouter(config));
-  mount(app, '/api/public', publicRouter({ storage }));
+  mount(app, '/api/public', publicRouter({ storage, stillsPerClip: config.stillsPerClip }));
   mount(app, '/api/builders', followsRouter());
   mount(app, '/api/me', meFollowsRouter());
   mount(app, '/feeds', feedsRouter(config));

@@ -30,6 +30,12 @@ const envSchema = z.object({
   COOKIE_SECURE: z.enum(['0', '1', 'auto']).default('auto'),
   TRUST_PROXY: z.enum(['0', '1']).default('0'),
   MEDIA_DIR: z.string().default('media'),
+  /** The most the media store may hold, bytes; 0 for no cap (the disk's free-space floor still holds). */
+  MEDIA_MAX_BYTES: z.coerce.number().int().min(0).default(0),
+  /** Local store only: a write must leave this much free on the disk, bytes (default 64 MiB). */
+  MEDIA_MIN_FREE_BYTES: z.coerce.number().int().min(0).default(64 * 1024 ** 2),
+  /** Stills kept per clip for times no moment marks (scrubbing); the oldest go first. */
+  STILLS_PER_CLIP: z.coerce.number().int().min(1).max(10_000).default(120),
   CLIENT_DIR: z.string().default('dist/client'),
   SIGN_IN_RATE_LIMIT: z.coerce.number().int().positive().default(30),
   /** Largest clip accepted, bytes (default 2 GiB). */
@@ -106,6 +112,8 @@ export interface Config {
   trustProxy: boolean;
   mediaDir: string;
   clientDir: string;
+  /** Stills kept per clip beyond the moments' own (a bounded cache, oldest evicted first). */
+  stillsPerClip: number;
   signInRateLimit: number;
   uploads: { maxBytes: number; clipsPerBuild: number; ratePerMinute: number; maxSeconds: number; maxImageBytes: number };
   jobs: { worker: 'inline' | 'off'; retryLimit: number; expireSeconds: number; stallSeconds: number; queuePrefix: string };
@@ -163,6 +171,7 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     trustProxy: e.TRUST_PROXY === '1',
     mediaDir: e.MEDIA_DIR,
     clientDir: e.CLIENT_DIR,
+    stillsPerClip: e.STILLS_PER_CLIP,
     signInRateLimit: e.SIGN_IN_RATE_LIMIT,
     uploads: {
       maxBytes: e.UPLOAD_MAX_BYTES,
@@ -190,6 +199,8 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
     storage: {
       driver: e.STORAGE_DRIVER,
       mediaDir: e.MEDIA_DIR,
+      maxBytes: e.MEDIA_MAX_BYTES,
+      minFreeBytes: e.MEDIA_MIN_FREE_BYTES,
       s3:
         e.STORAGE_DRIVER === 's3'
           ? {

@@ -2,7 +2,9 @@ import crypto from 'node:crypto';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
+import type http from 'node:http';
 import type { Sequelize } from 'sequelize';
+import request from 'supertest';
 import { loadConfig, type Config } from '../../server/config';
 import { initModels } from '../../server/db/models';
 import { createSequelize } from '../../server/db/sequelize';
@@ -28,7 +30,7 @@ export interface BenchEnvironment {
  * people seeded; never the demo or test data), on BENCH_PG_PORT or `defaultPort`, a temporary
  * media folder, the parsed config and models.
  */
-export async function benchEnvironment(name: string, defaultPort: number): Promise<BenchEnvironment> {
+export async function benchEnvironment(name: string, defaultPort: number, env: Record<string, string> = {}): Promise<BenchEnvironment> {
   const db = await prepareDatabase({
     dataDir: path.join(repoRoot, '.data', name),
     port: Number(process.env.BENCH_PG_PORT ?? defaultPort),
@@ -38,7 +40,7 @@ export async function benchEnvironment(name: string, defaultPort: number): Promi
     throwaway: true,
   });
   const mediaDir = fs.mkdtempSync(path.join(os.tmpdir(), `benchproof-${name}-media-`));
-  const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: db.databaseUrl, MEDIA_DIR: mediaDir, LOG_LEVEL: 'silent', SESSION_SECRET: crypto.randomBytes(24).toString('hex') });
+  const config = loadConfig({ NODE_ENV: 'test', DATABASE_URL: db.databaseUrl, MEDIA_DIR: mediaDir, LOG_LEVEL: 'silent', SESSION_SECRET: crypto.randomBytes(24).toString('hex'), ...env });
   const sequelize = createSequelize(config.databaseUrl);
   initModels(sequelize);
   return {
@@ -52,6 +54,24 @@ export async function benchEnvironment(name: string, defaultPort: number): Promi
       fs.rmSync(mediaDir, { recursive: true, force: true });
     },
   };
+}
+
+/** A signed-in client: a cookie jar and its CSRF token. */
+export interface BenchSession {
+  agent: ReturnType<typeof request.agent>;
+  token: string;
+}
+
+/** Signs in through the whole round trip with the local provider (the app's FAKE_GITHUB_URL). */
+export async function benchSession(app: http.RequestListener | http.Server, login: string): Promise<BenchSession> {
+  const agent = request.agent(app);
+  const start = await agent.get(`/auth/github?login=${encodeURIComponent(login)}`).expect(302);
+  const authorize = await fetch(start.headers.location!, { redirect: 'manual' });
+  const callback = new URL(authorize.headers.get('location')!);
+  const done = await agent.get(callback.pathname + callback.search);
+  if (done.status !== 302 || done.headers.location?.startsWith('/sign-in')) throw new Error(`sign-in as ${login} did not complete: ${done.status}`);
+  const token = (await agent.get('/api/csrf-token').expect(200)).body.token as string;
+  return { agent, token };
 }
 
 /**

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import fsp from 'node:fs/promises';
 import path from 'node:path';
 import type { Response } from 'express';
-import { assertSafeKey, type Storage } from './storage';
+import { assertSafeKey, type Storage, type StoredObject } from './storage';
 
 /** Media on local disk under one root folder (default `media/`). */
 export function localStorage(rootDir: string): Storage {
@@ -56,6 +56,33 @@ export function localStorage(rootDir: string): Storage {
       const dir = pathOf(prefix);
       // Originals are read-only files; the folder is writable, so rm can still unlink them.
       await fsp.rm(dir, { recursive: true, force: true });
+    },
+    async list(prefix) {
+      const dir = prefix ? pathOf(prefix) : root;
+      let entries: fs.Dirent[];
+      try {
+        entries = await fsp.readdir(dir, { recursive: true, withFileTypes: true });
+      } catch (err) {
+        if ((err as NodeJS.ErrnoException).code === 'ENOENT') return [];
+        throw err;
+      }
+      const found: StoredObject[] = [];
+      for (const entry of entries) {
+        if (!entry.isFile()) continue;
+        const key = path.relative(root, path.join(entry.parentPath, entry.name)).split(path.sep).join('/');
+        // Scratch work, and the atomic writers' hidden part files, are not stored objects.
+        if (key.split('/').some((part) => part.startsWith('.'))) continue;
+        try {
+          const st = await fsp.stat(path.join(entry.parentPath, entry.name));
+          found.push({ key, size: st.size, modified: st.mtime });
+        } catch {
+          // Deleted while we listed: not there any more.
+        }
+      }
+      return found;
+    },
+    async delete(key) {
+      await fsp.rm(pathOf(key), { force: true });
     },
     scratchDir: () => scratch,
   };

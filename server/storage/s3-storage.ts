@@ -5,6 +5,7 @@ import path from 'node:path';
 import type { Readable } from 'node:stream';
 import { pipeline } from 'node:stream/promises';
 import {
+  DeleteObjectCommand,
   DeleteObjectsCommand,
   GetObjectCommand,
   HeadObjectCommand,
@@ -214,13 +215,7 @@ export function s3Storage(opts: S3StorageOptions): Storage {
       const Prefix = `${objectKey(prefixToDelete)}/`;
       // List everything first, then delete: some S3-compatible services page by position, and
       // deleting while paging would skip keys there.
-      const keys: string[] = [];
-      let ContinuationToken: string | undefined;
-      do {
-        const page = await client.send(new ListObjectsV2Command({ Bucket, Prefix, ContinuationToken, MaxKeys: pageSize }));
-        for (const o of page.Contents ?? []) if (o.Key) keys.push(o.Key);
-        ContinuationToken = page.IsTruncated ? page.NextContinuationToken : undefined;
-      } while (ContinuationToken);
+      const keys = (await listUnder(Prefix)).map((o) => o.Key);
 
       for (let i = 0; i < keys.length; i += deleteBatch) {
         const batch = keys.slice(i, i + deleteBatch);
@@ -234,8 +229,31 @@ export function s3Storage(opts: S3StorageOptions): Storage {
       }
     },
 
+    async list(prefixToList) {
+      const Prefix = prefixToList ? `${objectKey(prefixToList)}/` : prefix ? `${prefix}/` : '';
+      const strip = prefix ? prefix.length + 1 : 0;
+      return (await listUnder(Prefix)).map((o) => ({ key: o.Key.slice(strip), size: o.Size, modified: o.LastModified }));
+    },
+
+    async delete(key) {
+      await client.send(new DeleteObjectCommand({ Bucket, Key: objectKey(key) }));
+    },
+
     scratchDir: () => scratch,
   };
+
+  async function listUnder(Prefix: string) {
+    const found: { Key: string; Size: number; LastModified: Date }[] = [];
+    let ContinuationToken: string | undefined;
+    do {
+      const page = await client.send(new ListObjectsV2Command({ Bucket, Prefix, ContinuationToken, MaxKeys: pageSize }));
+      for (const o of page.Contents ?? []) {
+        if (o.Key) found.push({ Key: o.Key, Size: o.Size ?? 0, LastModified: o.LastModified ?? new Date(0) });
+      }
+      ContinuationToken = page.IsTruncated ? page.NextContinuationToken : undefined;
+    } while (ContinuationToken);
+    return found;
+  }
 }
 
 type ByteRange = { start: number; end: number };

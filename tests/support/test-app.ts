@@ -15,7 +15,7 @@ import { startMailWorker } from '../../server/mail/mail.job';
 import { fakeAccounts } from '../../scripts/lib/run-local';
 import { startClipWorker, type ClipJobDeps } from '../../server/features/clips/clip.job';
 import { startQueue } from '../../server/jobs/queue';
-import { localStorage } from '../../server/storage/local-storage';
+import { storageFromConfig } from '../../server/storage/select-storage';
 
 export interface TestAppOptions {
   /** Start the job queue and the clip worker (own queue names, so test files never share jobs). */
@@ -73,7 +73,7 @@ export async function startTestApp(env: Record<string, string> = {}, opts: TestA
   const sequelize = own ?? sharedSequelize();
   if (!own) users += 1;
   const logger = createLogger(config);
-  const storage = localStorage(config.mediaDir);
+  const storage = storageFromConfig(config.storage);
   const queue = opts.jobs ? await startQueue(config) : null;
   const worker = queue ? await startClipWorker(config, queue, { storage, logger, faultAt: opts.faultAt }) : null;
   const mailWorker = queue && opts.mail ? await startMailWorker(config, queue, { logger }) : null;

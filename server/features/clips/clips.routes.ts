@@ -176,7 +176,7 @@ export function clipsRouter(deps: ClipRouteDeps) {
   const frameLimiter = evidenceStillLimiter();
   router.get('/:clipId/frame', access.signedIn, frameLimiter, validate({ params: clipIdParamsSchema, query: frameQuerySchema }), async (req, res) => {
     const clip = await readyClip(req);
-    const key = await evidenceStillKey(deps.storage, clip, Math.round(validQuery<{ t: number }>(res).t * 1000));
+    const key = await evidenceStillKey(deps.storage, clip, Math.round(validQuery<{ t: number }>(res).t * 1000), deps.config.stillsPerClip);
     res.set('Cache-Control', privateCache(86_400));
     await deps.storage.send(res, key, { contentType: 'image/jpeg' });
   });

@@ -32,7 +32,7 @@ const PUBLIC_PAGE_CACHE = 'public, max-age=60, stale-while-revalidate=300';
  * The public side under /api/public: published stories, builds, builders and the media their
  * evidence cites. Everything is read from publications; drafts stay private.
  */
-export function publicRouter(deps: { storage: Storage }) {
+export function publicRouter(deps: { storage: Storage; stillsPerClip: number }) {
   const router = Router();
 
   router.get('/stories', access.public, validate({ query: publicStoryListQuerySchema }), async (_req, res) => {
@@ -100,7 +100,7 @@ export function publicRouter(deps: { storage: Storage }) {
     const atMs = Math.round(validQuery<{ t: number }>(res).t * 1000);
     // Only the moments a current publication cites (its readings' and its cover); nothing is cut for any other time.
     if (!scope.stillTimesMs.has(atMs)) throw notFound('There is no public still at that time: stills are shown at the moments a published story cites.');
-    const key = await evidenceStillKey(deps.storage, scope.clip, atMs);
+    const key = await evidenceStillKey(deps.storage, scope.clip, atMs, deps.stillsPerClip);
     res.set('Cache-Control', 'public, max-age=300');
     await deps.storage.send(res, key, { contentType: 'image/jpeg' });
   });

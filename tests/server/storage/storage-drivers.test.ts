@@ -294,6 +294,26 @@ describe.each(drivers)('the $name storage driver', ({ start }) => {
     for (const key of outside) expect(await d.storage.stat(key), key).toEqual({ size: 10 });
   });
 
+  it('list gives every object under a prefix with its size and time, and delete removes one', async () => {
+    const before = Date.now() - 60_000;
+    for (const [key, size] of [['clips/l1/frames/1000.jpg', 11], ['clips/l1/frames/2000.jpg', 12], ['clips/l1x/frames/1000.jpg', 13]] as const) {
+      await put(d.storage, key, bytes(size));
+    }
+    const listed = await d.storage.list('clips/l1/frames');
+    expect(listed.map((o) => [o.key, o.size]).sort()).toEqual([['clips/l1/frames/1000.jpg', 11], ['clips/l1/frames/2000.jpg', 12]]);
+    for (const o of listed) expect(o.modified.getTime()).toBeGreaterThan(before);
+    expect(await d.storage.list('clips/never-there')).toEqual([]);
+    // The whole store: what was put, never the scratch folder.
+    const all = (await d.storage.list('')).map((o) => o.key);
+    expect(all).toEqual(expect.arrayContaining(['clips/l1/frames/1000.jpg', 'clips/l1x/frames/1000.jpg']));
+    expect(all.some((k) => k.startsWith('.'))).toBe(false);
+
+    await d.storage.delete('clips/l1/frames/1000.jpg');
+    expect(await d.storage.stat('clips/l1/frames/1000.jpg')).toBeNull();
+    expect(await d.storage.stat('clips/l1/frames/2000.jpg')).toEqual({ size: 12 });
+    await expect(d.storage.delete('clips/l1/frames/1000.jpg')).resolves.toBeUndefined();
+  });
+
   it('deletePrefix of a prefix with nothing under it does nothing', async () => {
     await expect(d.storage.deletePrefix('clips/never-there')).resolves.toBeUndefined();
   });
@@ -307,6 +327,9 @@ describe.each(drivers)('the $name storage driver', ({ start }) => {
     await expect(d.storage.send(noResponse, bad, { contentType: 'video/mp4' })).rejects.toThrow(/unsafe storage key/);
     await expect(d.storage.localCopy(bad)).rejects.toThrow(/unsafe storage key/);
     await expect(d.storage.deletePrefix(bad)).rejects.toThrow(/unsafe storage key/);
+    await expect(d.storage.delete(bad)).rejects.toThrow(/unsafe storage key/);
+    // An empty prefix is the whole store for list; every other unsafe key is refused.
+    if (bad !== '') await expect(d.storage.list(bad)).rejects.toThrow(/unsafe storage key/);
     expect(await d.ioMark()).toBe(before);
     expect(fs.existsSync(src)).toBe(true);
     await fsp.rm(src);
