@@ -7,7 +7,7 @@ import { z } from 'zod';
 import { clearanceSchema } from '../clearances/clearance.schema';
 import { verdicts } from '../measure/spec';
 import { readingSchema } from '../readings/reading.schema';
-import { storyStates } from '../stories/story.schema';
+import { changesRequestedSchema, storyStates } from '../stories/story.schema';
 import { evidenceCheckSchema, publishBlockerSchema } from './review.schema';
 
 /** How a claim stands against its target (shared/stories/claims.ts `ClaimStatus`). */
@@ -65,6 +65,8 @@ export const reviewSheetSchema = z.object({
     body: z.string(),
     submittedAt: z.string().nullable(),
     hasPublicRevision: z.boolean(),
+    /** While the story is back with its builder: the moderator's reason. */
+    changesRequested: changesRequestedSchema.nullable(),
   }),
   claim: reviewClaimSchema.nullable(),
   readings: z.array(

@@ -88,6 +88,10 @@ export const evidenceCheckSchema = z.object({
 /** A check as the API shows it. */
 export type EvidenceCheckDto = z.infer<typeof evidenceCheckSchema>;
 
+/** Response of `GET /api/review/builds/:buildId/flags`: the flags standing on the build's readings and clearances. */
+export const buildFlagsResponseSchema = z.object({ items: z.array(evidenceCheckSchema.extend({ storyTitle: z.string() })) });
+export type BuildFlag = z.infer<typeof buildFlagsResponseSchema>['items'][number];
+
 /** One row of the review queue. */
 export const queueItemSchema = z.object({
   storyId: z.number().int().positive(),
@@ -102,6 +106,8 @@ export const queueItemSchema = z.object({
   clearances: z.number().int().nonnegative(),
   /** Readings and clearances the story relies on that have no current check yet (flags count as left). */
   leftToCheck: z.number().int().nonnegative(),
+  /** Claims whose text its evidence contradicts now, or that point at nothing: one line each. */
+  claimProblems: z.array(z.string()),
   claim: z.object({ moderatorId: z.number().int().positive(), moderatorName: z.string(), expiresAt: z.string() }).nullable(),
   /** Already published once: this is a new revision. */
   republication: z.boolean(),

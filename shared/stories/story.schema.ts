@@ -17,6 +17,14 @@ export const storyStateWords: Readonly<Record<StoryState, string>> = {
   published: 'published',
   withdrawn: 'withdrawn',
 };
+/** The state as the end of "This story is …": a sentence a person reads. */
+export const storyStateSentence: Readonly<Record<StoryState, string>> = {
+  draft: 'a draft',
+  'in-review': 'in review',
+  'changes-requested': 'back with its builder for changes',
+  published: 'published',
+  withdrawn: 'withdrawn from the public',
+};
 
 /** Tag groups: machine family, component, operation. */
 export const storyTagGroups = ['machine', 'component', 'operation'] as const;
@@ -64,6 +72,10 @@ export const storyPatchSchema = z
 export type StoryPatch = z.infer<typeof storyPatchSchema>;
 
 /** A story as the API shows it to its builder and reviewers. */
+/** A moderator's request for changes, as the builder's screens show it. */
+export const changesRequestedSchema = z.object({ reason: z.string(), moderatorName: z.string(), at: z.string() });
+export type ChangesRequested = z.infer<typeof changesRequestedSchema>;
+
 export const storySchema = z.object({
   id: z.number().int().positive(),
   buildId: z.number().int().positive(),
@@ -79,6 +91,8 @@ export const storySchema = z.object({
   /** An earlier revision is public (it stays public while a newer one is in review). */
   hasPublicRevision: z.boolean(),
   wordCount: z.number().int().nonnegative(),
+  /** While the story is back with its builder: the moderator's reason, who gave it and when. */
+  changesRequested: changesRequestedSchema.nullable(),
   lockVersion: z.number().int().positive(),
   updatedBy: z.number().int().positive(),
   createdAt: z.string(),

@@ -153,6 +153,15 @@ describe('a moderator checking a story against the footage', () => {
       const started = await current.locator('video').evaluate((v: HTMLVideoElement) => ({ lead: Number(v.dataset.leadInS), at: v.currentTime }));
       expect(started.lead).toBeCloseTo(0.8, 6);
       expect(started.at).toBeGreaterThanOrEqual(0.75);
+      // The lead-up stops on the moment: the clip shows the frame of the still beside it.
+      await page.waitForFunction(
+        (at) => {
+          const v = document.querySelector<HTMLVideoElement>('[data-current] video');
+          return v !== null && v.paused && Math.abs(v.currentTime - at) < 0.01;
+        },
+        FEELER_AT_MS / 1000,
+        { timeout: 15_000 },
+      );
 
       // f asks for a comment; an empty one is refused beside the field by the shared schema.
       await page.locator('body').press('f');
@@ -181,13 +190,13 @@ describe('a moderator checking a story against the footage', () => {
       await page.screenshot({ path: path.join(artifacts, 'review-screen-390.png'), fullPage: true });
       await page.setViewportSize({ width: 1280, height: 860 });
 
-      // Publishing is refused while the flag stands; the server's reasons are listed.
+      // Publishing is not offered while anything stops it: the button is disabled and says why, before it is pressed.
       const workflow = page.locator('[data-workflow-bar]');
-      await workflow.getByRole('button', { name: 'Publish' }).click();
-      await page.getByRole('dialog', { name: 'Publish this story?' }).getByRole('button', { name: 'Publish' }).click();
-      const refusal = workflow.locator('[data-refusal="publish_blocked"]');
-      await refusal.waitFor();
-      expect(await refusal.getByRole('list', { name: 'Why it cannot be published' }).innerText()).toContain(FLAG_COMMENT);
+      const publish = workflow.getByRole('button', { name: 'Publish' });
+      expect(await publish.isDisabled()).toBe(true);
+      const gate = workflow.locator('[data-gate="publish"]');
+      expect(await gate.innerText()).toBe('It cannot be published yet: 3 problems to resolve, listed under “What stops publishing”.');
+      expect(await publish.getAttribute('aria-describedby')).toBe(await gate.getAttribute('id'));
 
       // Asking for changes needs a reason.
       await workflow.getByRole('button', { name: 'Ask for changes…' }).click();
@@ -199,6 +208,19 @@ describe('a moderator checking a story against the footage', () => {
       await ask.waitFor({ state: 'detached' });
       await workflow.locator('[data-story-state="changes-requested"]').waitFor();
       await page.locator('[data-audit-action="story.request-changes"]').waitFor();
+      // The record reads as sentences; the stored fields are for admins.
+      expect(await page.locator('[data-audit-action="story.request-changes"]').innerText()).toMatch(
+        /Dagny Orlov sent the story back for changes at \d{2}:\d{2}: “The feeler blade in the still/,
+      );
+      expect(await page.locator('[data-audit-action="check.flagged"]').innerText()).toMatch(/Dagny Orlov flagged the reading “Outer rotor to body” at \d{2}:\d{2}: “the blade shown/);
+      expect(await page.locator('[data-audit-record]').count()).toBe(0);
+      expect(await page.getByText('lockVersion').count()).toBe(0);
+
+      // A key that can do nothing now says why.
+      await page.locator('body').press('c');
+      const told = page.locator('li').filter({ hasText: 'Nothing was checked' }).first();
+      await told.waitFor();
+      expect(await told.innerText()).toContain('this one is back with its builder for changes');
     } finally {
       await page.close();
     }
@@ -210,8 +232,29 @@ describe('the builder after changes were asked for', () => {
     const page = await browser.newPage();
     page.setDefaultTimeout(15_000);
     try {
-      await signInAs(page, 'demo-builder', `/review/stories/${fixture.story.id}`);
+      // In the workspace: the flag under the reading it concerns, with the story it came from and a box to answer.
+      await signInAs(page, 'demo-builder', `/builds/${fixture.buildId}`);
+      const note = page.locator('[data-flag-note="reading:rotor-to-body"]').first();
+      await note.waitFor();
+      expect(await note.innerText()).toContain(FLAG_COMMENT);
+      expect(await note.innerText()).toContain('Flagged by Dagny Orlov');
+      await note.getByRole('button', { name: 'Answer the flag on Outer rotor to body' }).click();
+      await note.getByLabel(/Your answer/).waitFor();
+      await note.scrollIntoViewIfNeeded();
+      await page.screenshot({ path: path.join(artifacts, 'workspace-flag-1280.png') });
+
+      // In the editor: the moderator's reason first, then the flag.
+      await page.goto(`${site.url}/stories/${fixture.story.id}/edit`);
+      const asked = page.locator('section[data-changes-requested]');
+      await asked.waitFor();
+      expect(await asked.locator('[data-changes-reason]').innerText()).toBe(REASON);
+      expect(await asked.innerText()).toContain('— Dagny Orlov');
+      await asked.locator('[data-flag="reading:rotor-to-body"]').waitFor();
+      await page.screenshot({ path: path.join(artifacts, 'editor-changes-requested-1280.png') });
+
+      await page.goto(`${site.url}/review/stories/${fixture.story.id}`);
       await page.getByRole('heading', { name: `${TITLE}: end float`, level: 1 }).waitFor();
+      expect(await page.locator('[data-changes-reason]').innerText()).toBe(REASON);
       const flags = page.getByRole('list', { name: 'Flags to answer' });
       const flag = flags.locator('[data-flag="reading:rotor-to-body"]');
       await flag.waitFor();
@@ -334,6 +377,10 @@ describe('the builder resubmits and the moderator publishes', () => {
       await workflow.getByRole('button', { name: 'Publish' }).click();
       await page.getByRole('dialog', { name: 'Publish this story?' }).getByRole('button', { name: 'Publish' }).click();
       await workflow.locator('[data-story-state="published"]').waitFor();
+      // The moderator is one click from what the public now sees.
+      const link = workflow.locator('[data-public-link] a');
+      expect(await link.getAttribute('href')).toBe(`/stories/${fixture.story.id}`);
+      expect(await workflow.locator('[data-public-link]').innerText()).toContain('Revision 1 is public.');
       await page.screenshot({ path: path.join(artifacts, 'journey-moderator-last.png') });
       const [published] = await site.smtp.waitFor((m) => m.to.includes('ines@marrow-and-vane.example') && m.subject.startsWith('Published') && m.text.includes(`/stories/${fixture.story.id}`));
       expect(published!.html).toContain(`/stories/${fixture.story.id}`);

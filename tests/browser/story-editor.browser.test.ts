@@ -343,3 +343,39 @@ describe('a builder writing up a session at the bench', () => {
     }
   }, 60_000);
 });
+
+describe('a builder sending an entry whose claim contradicts its figure', () => {
+  it('is not offered “Send for review” until the claim is corrected, and is told what to change', async () => {
+    // 0.9870 − 0.9823 = 0.0047 in; the text says 0.0062 in.
+    const story = await created(
+      send('post', `/api/builds/${buildId}/stories`, { title: 'End float, first try (test)', body: '[End float is 0.0062 in](clearance:end-float) after lapping.' }),
+      'story',
+    );
+    const storyId = (story as { story: { id: number } }).story.id;
+    await browser.clearCookies();
+    const page = await browser.newPage();
+    page.setDefaultTimeout(15_000);
+    try {
+      await page.goto(`${site.url}/auth/github?login=demo-builder&returnTo=${encodeURIComponent(`/stories/${storyId}/edit`)}`);
+      await page.getByRole('heading', { name: 'Edit diary entry' }).waitFor();
+      const workflow = page.locator('[data-workflow-bar]');
+      const sendIt = workflow.getByRole('button', { name: 'Send for review' });
+      const gate = page.locator('[data-gate="submit"]');
+      await gate.waitFor();
+      expect(await sendIt.isDisabled()).toBe(true);
+      expect(await sendIt.getAttribute('aria-describedby')).toBe(await gate.getAttribute('id'));
+      expect(await gate.innerText()).toContain('It cannot be sent for review yet: 1 claim to correct:');
+      expect(await gate.getByRole('list', { name: 'What to correct before sending' }).innerText()).toMatch(/Line 1: "End float is 0\.0062 in" — .*“0\.0062 in” means 0\.00615–0\.00625 in/);
+      await page.screenshot({ path: path.join(artifacts, 'editor-send-blocked-1280.png') });
+
+      // Corrected to the figure: the gate opens once the change is saved.
+      const text = page.getByLabel('Text (Markdown)');
+      await text.fill('[End float is 0.0047 in](clearance:end-float) after lapping.');
+      await waitSaved(page);
+      await gate.waitFor({ state: 'detached' });
+      expect(await sendIt.isDisabled()).toBe(false);
+    } finally {
+      await page.close();
+    }
+  }, 60_000);
+});

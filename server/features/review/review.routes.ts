@@ -1,11 +1,13 @@
 import { Router } from 'express';
 import { z } from 'zod';
+import { buildIdParamsSchema } from '@shared/builds/build.schema';
 import { storyIdParamsSchema } from '@shared/stories/story.schema';
 import { answerInputSchema, auditQuerySchema, checkInputSchema, queueQuerySchema, transitionInputSchema, type TransitionInput } from '@shared/review/review.schema';
 import { access } from '../../http/authorize';
 import { validQuery, validate } from '../../http/validate';
 import { listAudit } from '../audit/audit.service';
-import { answerCheck, claimStory, recordCheck, releaseClaim, reviewQueue, reviewSheet, storyForReview, transition, type ReviewDeps } from './review.service';
+import { buildForViewer } from '../builds/builds.service';
+import { answerCheck, claimStory, recordCheck, releaseClaim, reviewQueue, reviewSheet, standingFlagsOfBuild, storyForReview, transition, type ReviewDeps } from './review.service';
 
 const checkIdParams = z.object({ checkId: z.coerce.number().int().positive() });
 
@@ -46,6 +48,11 @@ export function reviewRouter(deps: ReviewDeps) {
   });
   router.post('/checks/:checkId/answers', access.role('builder'), validate({ params: checkIdParams, body: answerInputSchema }), async (req, res) => {
     res.status(201).json({ check: await answerCheck(req.user!, Number(req.params.checkId), (req.body as { body: string }).body) });
+  });
+  // The flags standing on a build's readings and clearances: whoever may see the build.
+  router.get('/builds/:buildId/flags', access.signedIn, validate({ params: buildIdParamsSchema }), async (req, res) => {
+    const build = await buildForViewer(Number(req.params.buildId), req.user);
+    res.json({ items: await standingFlagsOfBuild(build.id) });
   });
   router.get('/audit', access.role('moderator'), validate({ query: auditQuerySchema }), async (_req, res) => {
     res.json(await listAudit(validQuery(res)));

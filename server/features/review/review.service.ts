@@ -26,6 +26,8 @@ import { Clearance } from '../clearances/clearance.model';
 import { clearanceDtosForBuild } from '../clearances/clearances.service';
 import { Follow } from '../follows/follow.model';
 import { evidenceOf as publishedEvidenceOf } from '../public/publication';
+import { changesRequestedOf } from '../stories/stories.service';
+import { claimBlockers } from '@shared/review/claim-problems';
 import { signUnsubscribe } from '../follows/unsubscribe-token';
 import { Reading } from '../readings/reading.model';
 import { readingDtosForBuild } from '../readings/readings.service';
@@ -156,16 +158,7 @@ export async function publishBlockers(story: Story, build: Build, moderator: Use
   if (e.claims.length === 0 && e.broken.length === 0) {
     blockers.push({ code: 'no-claims', message: 'The story makes no claims linked to readings or clearances, so there is nothing to check.', subject: storySubject });
   }
-  for (const b of e.broken) {
-    blockers.push({ code: 'claim-broken', message: `Line ${b.line}: "${b.text}" — ${b.message}`, subject: { type: 'claim', key: b.target } });
-  }
-  for (const c of e.claims) {
-    if (c.status.state === 'unknown-target') {
-      blockers.push({ code: 'claim-unknown', message: `Line ${c.line}: "${c.text}" — ${c.status.message}`, subject: { type: 'claim', key: `${c.kind}:${c.key}` } });
-    } else if (c.status.state === 'number-disagrees' || c.status.state === 'verdict-disagrees') {
-      blockers.push({ code: 'claim-disagrees', message: `Line ${c.line}: "${c.text}" — ${c.status.message}`, subject: { type: 'claim', key: `${c.kind}:${c.key}` } });
-    }
-  }
+  blockers.push(...claimBlockers(e));
   const judgeOne = (type: 'reading' | 'clearance', id: number, key: string, name: string) => {
     const check = checks.get(`${type}:${id}`);
     if (!check) {
@@ -413,6 +406,24 @@ export async function checkDtos(q: { where: Record<string, unknown> }): Promise<
   });
 }
 
+/**
+ * The flags that stand on a build's readings and clearances, for its builder's workspace: per
+ * story back with its builder or in review, the latest check of each subject when it is a flag,
+ * with its comment, answers and the story's id and title. Newest first.
+ */
+export async function standingFlagsOfBuild(buildId: number): Promise<(EvidenceCheckDto & { storyTitle: string })[]> {
+  const stories = await Story.findAll({ where: { buildId, state: ['in-review', 'changes-requested'] }, attributes: ['id', 'title'] });
+  if (stories.length === 0) return [];
+  const titles = new Map(stories.map((s) => [s.id, s.title]));
+  const latest = new Map<string, EvidenceCheckDto>();
+  // Newest first: the first seen of a subject in a story is its latest check there.
+  for (const c of await checkDtos({ where: { storyId: stories.map((s) => s.id) } })) {
+    const key = `${c.storyId}:${c.subjectType}:${c.subjectId}`;
+    if (!latest.has(key)) latest.set(key, c);
+  }
+  return [...latest.values()].filter((c) => c.state === 'flagged').map((c) => ({ ...c, storyTitle: titles.get(c.storyId) ?? '' }));
+}
+
 // ---------------------------------------------------------------------------------------------
 // Transitions
 
@@ -425,6 +436,9 @@ export async function checkDtos(q: { where: Record<string, unknown> }): Promise<
 export async function transition(storyId: number, user: User, input: TransitionInput, deps: ReviewDeps) {
   const now = deps.now?.() ?? new Date();
   const mails: OutgoingMail[] = [];
+  // Read before the transaction: the evidence takes several queries of its own, and a
+  // transaction waiting on them could hold the last pooled connection they need.
+  const submitProblems = input.action === 'submit' ? claimBlockers(await evidenceOf((await storyForReview(storyId, user)).story)) : [];
   const result = await Story.sequelize!.transaction(async (transaction) => {
     const { story, build } = await storyForReview(storyId, user, transaction);
     const actor = actorFor(user, build, input.action);
@@ -441,12 +455,27 @@ export async function transition(storyId: number, user: User, input: TransitionI
     const owner = (await User.findByPk(build.ownerId, { transaction }))!;
     const ref = { id: story.id, title: story.title, buildTitle: build.title, builderName: owner.displayName };
     const reason = input.reason?.trim() ?? '';
-    const changes: Partial<Pick<Story, 'state' | 'submittedAt' | 'publishedPublicationId' | 'withdrawnReason' | 'withdrawnBy'>> = { state: verdict.to };
+    const changes: Partial<
+      Pick<Story, 'state' | 'submittedAt' | 'publishedPublicationId' | 'withdrawnReason' | 'withdrawnBy' | 'changesRequestedReason' | 'changesRequestedBy' | 'changesRequestedAt'>
+    > = { state: verdict.to };
     let publication: StoryPublication | null = null;
 
     switch (input.action) {
       case 'submit': {
+        // A story whose text contradicts its own evidence goes back to its builder, not to a moderator.
+        const problems = submitProblems;
+        if (problems.length) {
+          throw new AppError(
+            409,
+            'submit_blocked',
+            `This story cannot be sent for review yet: ${problems.length} claim${problems.length === 1 ? '' : 's'} to correct.`,
+            problems.map((b) => ({ path: b.code, message: b.message })),
+          );
+        }
         changes.submittedAt = now;
+        changes.changesRequestedReason = null;
+        changes.changesRequestedBy = null;
+        changes.changesRequestedAt = null;
         // A new submission is a new review: whoever held the last one lets go.
         await ReviewClaim.destroy({ where: { storyId: story.id }, transaction });
         const moderators = await User.findAll({ where: { role: 'moderator', id: { [Op.ne]: owner.id } }, transaction });
@@ -464,6 +493,9 @@ export async function transition(storyId: number, user: User, input: TransitionI
         // The flags that stand now: a later check of the same version replaces an earlier flag.
         const flags = [...checks.entries()].filter(([, c]) => c.current && c.state === 'flagged').map(([k, c]) => `${names.get(k) ?? k}: ${c.comment}`);
         mails.push(...changesRequestedMail(deps.config.publicUrl, ref, person(owner), reason, flags));
+        changes.changesRequestedReason = reason;
+        changes.changesRequestedBy = user.id;
+        changes.changesRequestedAt = now;
         await ReviewClaim.destroy({ where: { storyId: story.id }, transaction });
         break;
       }
@@ -646,6 +678,8 @@ export async function reviewQueue(q: { after?: string; limit: number }, now: Dat
       readings: e.citedReadings.length,
       clearances: e.citedClearances.length,
       leftToCheck: left,
+      // Claims can change after sending (a reading edited in the workspace): the card says so.
+      claimProblems: claimBlockers(e).map((b) => b.message),
       claim: live ? { moderatorId: live.moderatorId, moderatorName: people.get(live.moderatorId)?.displayName ?? '', expiresAt: live.expiresAt.toISOString() } : null,
       republication: s.publishedPublicationId !== null,
     });
@@ -687,6 +721,7 @@ export async function reviewSheet(storyId: number, user: User, deps: ReviewDeps)
       submittedAt: story.submittedAt?.toISOString() ?? null,
       hasPublicRevision: isPublicNow(story),
       publishedPublicationId: story.publishedPublicationId,
+      changesRequested: changesRequestedOf(story, new Map(story.changesRequestedBy != null ? [[story.changesRequestedBy, (await User.findByPk(story.changesRequestedBy))?.displayName ?? '']] : [])),
     },
     claim: claim && claim.expiresAt > now ? { moderatorId: claim.moderatorId, moderatorName: holder?.displayName ?? '', expiresAt: claim.expiresAt.toISOString() } : null,
     readings: e.citedReadings.map((r) => ({

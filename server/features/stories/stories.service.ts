@@ -59,7 +59,25 @@ async function coverUrls(momentIds: (number | null)[]): Promise<Map<number, stri
   return new Map(moments.map((m) => [m.id, momentDto(m).frameUrl]));
 }
 
-function toDto(story: Story, build: Build, covers: Map<number, string>): StoryDto {
+/** Display names of the moderators who sent the given stories back, by user id. */
+async function requesterNames(stories: Story[]): Promise<Map<number, string>> {
+  const ids = [...new Set(stories.map((s) => s.changesRequestedBy).filter((id): id is number => id != null))];
+  if (ids.length === 0) return new Map();
+  const people = await User.findAll({ where: { id: ids }, attributes: ['id', 'displayName'] });
+  return new Map(people.map((p) => [p.id, p.displayName]));
+}
+
+/** The moderator's request for changes while the story is back with its builder, else null. */
+export function changesRequestedOf(story: Story, names: Map<number, string>): StoryDto['changesRequested'] {
+  if (story.state !== 'changes-requested' || story.changesRequestedReason == null) return null;
+  return {
+    reason: story.changesRequestedReason,
+    moderatorName: (story.changesRequestedBy != null && names.get(story.changesRequestedBy)) || 'A moderator',
+    at: (story.changesRequestedAt ?? story.updatedAt).toISOString(),
+  };
+}
+
+function toDto(story: Story, build: Build, covers: Map<number, string>, names: Map<number, string>): StoryDto {
   return {
     id: story.id,
     buildId: story.buildId,
@@ -74,6 +92,7 @@ function toDto(story: Story, build: Build, covers: Map<number, string>): StoryDt
     state: story.state,
     hasPublicRevision: story.publishedPublicationId !== null,
     wordCount: countWords(story.body),
+    changesRequested: changesRequestedOf(story, names),
     lockVersion: story.lockVersion,
     updatedBy: story.updatedBy,
     createdAt: story.createdAt.toISOString(),
@@ -82,7 +101,7 @@ function toDto(story: Story, build: Build, covers: Map<number, string>): StoryDt
 }
 
 async function oneDto(story: Story, build: Build): Promise<StoryDto> {
-  return toDto(story, build, await coverUrls([story.coverMomentId ?? null]));
+  return toDto(story, build, await coverUrls([story.coverMomentId ?? null]), await requesterNames([story]));
 }
 
 /** Refuses a cover that is not a moment on a clip of this build (400 naming the field). */
@@ -106,9 +125,10 @@ export async function listStories(build: Build, q: { before?: number; limit: num
   });
   const page = rows.slice(0, q.limit);
   const covers = await coverUrls(page.map((s) => s.coverMomentId ?? null));
+  const names = await requesterNames(page);
   return {
     items: page.map((s) => {
-      const { body: _body, ...rest } = toDto(s, build, covers);
+      const { body: _body, ...rest } = toDto(s, build, covers, names);
       return rest;
     }),
     nextBefore: rows.length > q.limit ? page[page.length - 1]!.id : null,

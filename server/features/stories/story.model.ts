@@ -33,6 +33,10 @@ export class Story extends Model<InferAttributes<Story>, InferCreationAttributes
   declare submittedAt: CreationOptional<Date | null>;
   declare withdrawnReason: CreationOptional<string | null>;
   declare withdrawnBy: CreationOptional<number | null>;
+  /** The moderator's reason when the story was last sent back for changes; null once sent again. */
+  declare changesRequestedReason: CreationOptional<string | null>;
+  declare changesRequestedBy: CreationOptional<number | null>;
+  declare changesRequestedAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
   declare build?: NonAttribute<Build>;
@@ -85,6 +89,9 @@ export function initStoryModels(sequelize: Sequelize) {
       submittedAt: { type: DataTypes.DATE, allowNull: true },
       withdrawnReason: { type: DataTypes.TEXT, allowNull: true },
       withdrawnBy: { type: DataTypes.INTEGER, allowNull: true },
+      changesRequestedReason: { type: DataTypes.TEXT, allowNull: true },
+      changesRequestedBy: { type: DataTypes.INTEGER, allowNull: true },
+      changesRequestedAt: { type: DataTypes.DATE, allowNull: true },
       createdAt: DataTypes.DATE,
       updatedAt: DataTypes.DATE,
     },

@@ -3,7 +3,9 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { errorBodySchema } from '@shared/http/error.schema';
+import { buildFlagsResponseSchema, queueResponseSchema } from '@shared/review/review.schema';
 import { reviewSheetSchema } from '@shared/review/review-sheet.schema';
+import { storyResponseSchema } from '@shared/stories/story.schema';
 import { SpecVersion } from '../../../server/features/specs/spec.model';
 import { Story } from '../../../server/features/stories/story.model';
 import { User } from '../../../server/features/users/user.model';
@@ -109,26 +111,29 @@ describe('the publish gate refuses, one detail per reason', () => {
     expect(sheet.readings.find((r) => r.reading.id === f.readings.depth.id)!.check).toMatchObject({ state: 'checked', current: true });
   }, 60_000);
 
-  it('while a claim’s words disagree with its number', async () => {
-    // "0.0062 in" means 0.00615–0.00625 in; the end float is 0.0047 in ± 0.000082 in: no overlap.
-    const f = await submitted(fixtureBody({ clearanceWords: 'End float is 0.0062 in, within spec' }));
+  it('while a claim’s words disagree with its number (a reading changed after the story was sent)', async () => {
+    const f = await submitted();
+    // 0.5642 − 0.5580 = 0.0062 in: the words "0.0047 in" (0.00465–0.00475 in) no longer fit.
+    const edit = await send(owner, 'patch', `/api/readings/${f.readings.height.id}`, { value: '0.5580', lockVersion: f.readings.height.lockVersion });
+    expect(edit.status).toBe(200);
     await claimAndCheckAll(moderator, f);
     const details = await refusal(moderator, f.story.id);
-    expect(details).toEqual([['claim-disagrees', expect.stringMatching(/“0\.0062 in” means 0\.00615–0\.00625 in.*do not overlap/)]]);
+    expect(details).toEqual([['claim-disagrees', expect.stringMatching(/“0\.0047 in” means 0\.00465–0\.00475 in.*do not overlap/)]]);
+    // The queue card says so before anyone opens the story.
+    const queue = queueResponseSchema.parse((await moderator.agent.get('/api/review/queue?limit=100').expect(200)).body);
+    expect(queue.items.find((i) => i.storyId === f.story.id)?.claimProblems).toEqual([expect.stringContaining('“0.0047 in” means')]);
   }, 60_000);
 
-  it('while a claim names a reading the build does not have', async () => {
-    const f = await submitted(fixtureBody({ extra: 'The [tip gap was two thou](reading:rotor-tip-gap) on every lobe.' }));
+  it.each([
+    ['claim-unknown', 'The [tip gap was two thou](reading:rotor-tip-gap) on every lobe.', 'This build has no reading "rotor-tip-gap"'],
+    ['claim-broken', 'The [tip gap was two thou](readng:rotor-tip-gap) on every lobe.', '"readng:" is not a kind of claim'],
+  ])('while a claim is %s (a story already in review when it went wrong)', async (code, extra, words) => {
+    const f = await makeReviewFixture(owner, { clipFile, body: fixtureBody({ extra }) });
+    // Sending it would be refused now (see below); a story in review before that rule stands for it.
+    await Story.update({ state: 'in-review', submittedAt: new Date() }, { where: { id: f.story.id } });
     await claimAndCheckAll(moderator, f);
     const details = await refusal(moderator, f.story.id);
-    expect(details).toEqual([['claim-unknown', expect.stringContaining('This build has no reading "rotor-tip-gap"')]]);
-  }, 60_000);
-
-  it('while a claim link is broken (a misspelt kind)', async () => {
-    const f = await submitted(fixtureBody({ extra: 'The [tip gap was two thou](readng:rotor-tip-gap) on every lobe.' }));
-    await claimAndCheckAll(moderator, f);
-    const details = await refusal(moderator, f.story.id);
-    expect(details).toEqual([['claim-broken', expect.stringContaining('"readng:" is not a kind of claim')]]);
+    expect(details).toEqual([[code, expect.stringContaining(words)]]);
   }, 60_000);
 
   it('while the moderator holds no claim on it (let go, or held by someone else)', async () => {
@@ -186,6 +191,12 @@ describe('flags go back to the builder as a list to answer', () => {
     expect(sheet.blockers).toEqual([]);
     expect(sheet.checks.filter((c) => c.state === 'flagged' && c.current).map((c) => c.comment)).toEqual(['the dial in the still reads 0.5643, not 0.5642']);
 
+    // And in the workspace: the build's standing flags, with the story they belong to.
+    const standing = buildFlagsResponseSchema.parse((await owner.agent.get(`/api/review/builds/${f.buildId}/flags`).expect(200)).body).items;
+    expect(standing.map((c) => [c.subjectType, c.subjectId, c.comment, c.storyId, c.storyTitle])).toEqual([
+      ['reading', f.readings.depth.id, 'the dial in the still reads 0.5643, not 0.5642', f.story.id, f.story.title],
+    ]);
+
     const answer = await send(owner, 'post', `/api/review/checks/${flag.id}/answers`, { body: 'You are right; I copied it wrong. Corrected to 0.5643.' });
     expect(answer.status).toBe(201);
     expect(answer.body.check.answers).toEqual([expect.objectContaining({ body: 'You are right; I copied it wrong. Corrected to 0.5643.', authorName: 'Ines Calloway' })]);
@@ -201,6 +212,8 @@ describe('flags go back to the builder as a list to answer', () => {
     expect((await refusal(moderator, f.story.id)).map(([code]) => code)).toEqual(['changed-since-checked']);
     expect((await checkSubject(moderator, f.story.id, 'reading', f.readings.depth.id)).status).toBe(201);
     expect((await move(moderator, f.story.id, 'publish')).status).toBe(200);
+    // Published: no flag stands on the build any more.
+    expect(buildFlagsResponseSchema.parse((await owner.agent.get(`/api/review/builds/${f.buildId}/flags`).expect(200)).body).items).toEqual([]);
 
     // Every check and answer is kept, newest first.
     const after = reviewSheetSchema.parse((await moderator.agent.get(`/api/review/stories/${f.story.id}`).expect(200)).body);
@@ -232,5 +245,45 @@ describe('flags go back to the builder as a list to answer', () => {
     const res = await checkSubject(moderator, f.story.id, 'reading', f.readings.depth.id);
     expect(res.status).toBe(409);
     expect(error(res).code).toBe('claim_not_held');
+  }, 60_000);
+});
+
+describe('sending for review refuses a story whose claims cannot stand', () => {
+  it('answers 409 submit_blocked with one detail per claim, in the publish gate’s codes, and the story stays a draft', async () => {
+    const body = fixtureBody({
+      clearanceWords: 'End float is 0.0062 in, within spec',
+      extra: 'The [tip gap was two thou](reading:rotor-tip-gap) on every lobe. The [lobe gap](readng:lobe-gap) too.',
+    });
+    const f = await makeReviewFixture(owner, { clipFile, body });
+    const res = await move(owner, f.story.id, 'submit');
+    expect(res.status).toBe(409);
+    const e = error(res);
+    expect(e.code).toBe('submit_blocked');
+    expect(e.message).toBe('This story cannot be sent for review yet: 3 claims to correct.');
+    expect(e.details.map((d) => d.path).sort()).toEqual(['claim-broken', 'claim-disagrees', 'claim-unknown']);
+    expect(e.details.find((d) => d.path === 'claim-disagrees')?.message).toMatch(/“0\.0062 in” means 0\.00615–0\.00625 in/);
+    expect((await Story.findByPk(f.story.id))!.state).toBe('draft');
+  }, 60_000);
+});
+
+describe('the reason for changes reaches the builder’s screens', () => {
+  it('the story and its review sheet carry the moderator’s reason until it is sent again', async () => {
+    const f = await submitted();
+    await send(moderator, 'post', `/api/review/stories/${f.story.id}/claim`).expect(200);
+    expect((await move(moderator, f.story.id, 'request-changes', { reason: 'Show the thimble when you read the rotor height.' })).status).toBe(200);
+    const me = (await moderator.agent.get('/api/me').expect(200)).body as { displayName?: string; user?: { displayName: string } };
+    const moderatorName = me.user?.displayName ?? me.displayName;
+    const story = storyResponseSchema.parse((await owner.agent.get(`/api/stories/${f.story.id}`).expect(200)).body).story;
+    expect(story.changesRequested).toMatchObject({ reason: 'Show the thimble when you read the rotor height.', moderatorName });
+    expect(Date.parse(story.changesRequested!.at)).not.toBeNaN();
+    const list = (await owner.agent.get(`/api/builds/${f.buildId}/stories`).expect(200)).body.items as { id: number; changesRequested: unknown }[];
+    expect(list.find((i) => i.id === f.story.id)?.changesRequested).toMatchObject({ reason: 'Show the thimble when you read the rotor height.' });
+    const sheet = reviewSheetSchema.parse((await owner.agent.get(`/api/review/stories/${f.story.id}`).expect(200)).body);
+    expect(sheet.story.changesRequested?.reason).toBe('Show the thimble when you read the rotor height.');
+
+    expect((await move(owner, f.story.id, 'submit')).status).toBe(200);
+    const again = storyResponseSchema.parse((await owner.agent.get(`/api/stories/${f.story.id}`).expect(200)).body).story;
+    expect(again.changesRequested).toBeNull();
+    expect((await Story.findByPk(f.story.id))!.changesRequestedReason).toBeNull();
   }, 60_000);
 });

@@ -162,6 +162,8 @@ const TABLE: Record<string, Expected> = {
   'GET /api/review/audit':                   { anonymous: 401, follower: 403, owner: 403, otherBuilder: 403, moderator: 200, admin: 200 },
   // The review sheet: those who may see the story (its builder reads the flags to answer).
   'GET /api/review/stories/:storyId':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  // The flags standing on a build's readings: whoever may see the build (its builder answers them in the workspace).
+  'GET /api/review/builds/:buildId/flags':   { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   // Taking a story for review, letting it go, and recording a check: role moderator; a check
   // also needs the hold on the story (the fixtures take it with that actor's session). Letting
   // go is for the holder or an admin: the admin's throwaway is held by the moderator.

@@ -1,8 +1,9 @@
 import { useMemo, useState } from 'react';
-import { useInfiniteQuery } from '@tanstack/react-query';
+import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
 import type { Build } from '@shared/builds/build.schema';
 import type { Clearance } from '@shared/clearances/clearance.schema';
 import type { Reading } from '@shared/readings/reading.schema';
+import type { BuildFlag } from '@shared/review/review.schema';
 import { Button } from '@/components/ui/button';
 import { DeleteDialog } from '@/components/ui/dialog';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
@@ -11,6 +12,8 @@ import { Panel } from '@/components/ui/panel';
 import { useToast } from '@/components/ui/toast';
 import { readingQueries } from '@/features/readings/api/reading-queries';
 import { WarningIcon } from '@/features/readings/components/reading-badges';
+import { reviewQueries } from '@/features/review/api/review-queries';
+import { FlagNote } from '@/features/review/components/flag-note';
 import { errorMessage } from '@/lib/api';
 import { useDeleteClearance } from '../api/clearance-mutations';
 import { clearanceQueries } from '../api/clearance-queries';
@@ -28,6 +31,7 @@ export function ClearancesPanel({ build }: { build: Build }) {
   const [deleting, setDeleting] = useState<Clearance | null>(null);
   const [refusal, setRefusal] = useState<{ id: number; text: string } | null>(null);
   const remove = useDeleteClearance();
+  const flags = useQuery(reviewQueries.buildFlags(build.id));
   const { toast } = useToast();
 
   return (
@@ -91,6 +95,7 @@ export function ClearancesPanel({ build }: { build: Build }) {
                 ) : (
                   <ClearanceItem
                     key={c.id}
+                    flags={(flags.data ?? []).filter((f) => f.subjectType === 'clearance' && f.subjectId === c.id)}
                     clearance={c}
                     readings={readingItems}
                     refused={refusal?.id === c.id}
@@ -123,12 +128,14 @@ export function ClearancesPanel({ build }: { build: Build }) {
 
 function ClearanceItem({
   clearance: c,
+  flags,
   readings,
   refused,
   onEdit,
   onDelete,
 }: {
   clearance: Clearance;
+  flags: readonly BuildFlag[];
   readings: readonly Reading[];
   refused: boolean;
   onEdit: () => void;
@@ -176,6 +183,9 @@ function ClearanceItem({
           'No spec attached: worked out, not judged.'
         )}
       </p>
+      {flags.map((flag) => (
+        <FlagNote key={flag.id} flag={flag} className="mt-2" />
+      ))}
       {c.result && (
         <details className="mt-1.5">
           <summary className="cursor-pointer text-xs text-accent">Band picture and working</summary>

@@ -1,4 +1,4 @@
-import { useMemo, useState, type KeyboardEvent, type MouseEvent, type ReactNode } from 'react';
+import { Fragment, useMemo, useState, type KeyboardEvent, type MouseEvent, type ReactNode } from 'react';
 import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
 import {
   createColumnHelper,
@@ -12,6 +12,7 @@ import {
   type SortingState,
 } from '@tanstack/react-table';
 import type { Build } from '@shared/builds/build.schema';
+import type { BuildFlag } from '@shared/review/review.schema';
 import { formatUncertainty } from '@shared/measure/format';
 import { reviewStates, type Reading, type ReviewState } from '@shared/readings/reading.schema';
 import { Button } from '@/components/ui/button';
@@ -24,6 +25,8 @@ import { Panel } from '@/components/ui/panel';
 import { Table, TBody, Td, Th, THead, Tr } from '@/components/ui/table';
 import { useToast } from '@/components/ui/toast';
 import { formatTime } from '@/features/clips/lib/clip-format';
+import { reviewQueries } from '@/features/review/api/review-queries';
+import { FlagNote } from '@/features/review/components/flag-note';
 import { errorMessage } from '@/lib/api';
 import { cn } from '@/lib/cn';
 import { useDeleteReading } from '../api/reading-mutations';
@@ -194,6 +197,8 @@ function ReadingsTable({ build, items, onOpen }: { build: Build; items: Reading[
   const [refusal, setRefusal] = useState<{ id: number; text: string } | null>(null);
   const remove = useDeleteReading();
   const instruments = useQuery(readingInstrumentsQuery);
+  const flags = useQuery(reviewQueries.buildFlags(build.id));
+  const flagsOf = (reading: Reading) => (flags.data ?? []).filter((f) => f.subjectType === 'reading' && f.subjectId === reading.id);
   const { toast } = useToast();
 
   const table = useReactTable({
@@ -312,6 +317,7 @@ function ReadingsTable({ build, items, onOpen }: { build: Build; items: Reading[
               ) : (
                 <ReadingCard
                   key={row.id}
+                  flags={flagsOf(row.original)}
                   reading={row.original}
                   refused={refusal?.id === row.original.id}
                   onOpen={(event) => open(event, row.original)}
@@ -395,9 +401,10 @@ function ReadingsTable({ build, items, onOpen }: { build: Build; items: Reading[
                   </Tr>
                 );
               }
+              const standing = flagsOf(reading);
               return (
+                <Fragment key={row.id}>
                 <Tr
-                  key={row.id}
                   tabIndex={0}
                   data-reading-row={reading.key}
                   aria-label={`${reading.name}, ${estimateText(reading)}, at ${formatTime(reading.atMs / 1000)} in ${reading.clipTitle}`}
@@ -419,6 +426,19 @@ function ReadingsTable({ build, items, onOpen }: { build: Build; items: Reading[
                     </Td>
                   ))}
                 </Tr>
+                {standing.length > 0 && (
+                  <Tr data-flags-of={reading.key}>
+                    <Td colSpan={colCount} className="px-2 pt-0 pb-3">
+                      {/* Held in the visible box when the table scrolls sideways, like the editor row. */}
+                      <div className="sticky left-2 flex max-w-[58rem] flex-col gap-2">
+                        {standing.map((flag) => (
+                          <FlagNote key={flag.id} flag={flag} />
+                        ))}
+                      </div>
+                    </Td>
+                  </Tr>
+                )}
+                </Fragment>
               );
             })}
           </TBody>
@@ -467,11 +487,13 @@ function RowMenu({ reading, onEdit, onHistory, onDelete }: { reading: Reading; o
 /** On a phone: one card per reading, the figures first, in the table's order and filters. */
 function ReadingCard({
   reading,
+  flags,
   menu,
   refused,
   onOpen,
 }: {
   reading: Reading;
+  flags: readonly BuildFlag[];
   menu: ReactNode;
   refused: boolean;
   onOpen: (event: MouseEvent | KeyboardEvent) => void;
@@ -510,6 +532,9 @@ function ReadingCard({
         <br />
         {reading.clipTitle} at <span className="figures">{formatTime(reading.atMs / 1000)}</span> · taken <span className="figures">{reading.takenOn}</span>
       </p>
+      {flags.map((flag) => (
+        <FlagNote key={flag.id} flag={flag} className="mt-1" />
+      ))}
     </li>
   );
 }

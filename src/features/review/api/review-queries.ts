@@ -1,5 +1,5 @@
 import { infiniteQueryOptions, queryOptions } from '@tanstack/react-query';
-import { auditListResponseSchema, queueResponseSchema } from '@shared/review/review.schema';
+import { auditListResponseSchema, buildFlagsResponseSchema, queueResponseSchema } from '@shared/review/review.schema';
 import { reviewSheetSchema } from '@shared/review/review-sheet.schema';
 import { apiFetch } from '@/lib/api';
 
@@ -28,6 +28,13 @@ export const reviewQueries = {
     queryOptions({
       queryKey: [...reviewQueries.all, 'sheet', storyId] as const,
       queryFn: ({ signal }) => apiFetch(`/api/review/stories/${storyId}`, { schema: reviewSheetSchema, signal }),
+    }),
+  /** The flags standing on a build's readings and clearances (the builder answers them in the workspace). */
+  buildFlags: (buildId: number) =>
+    queryOptions({
+      queryKey: [...reviewQueries.all, 'build-flags', buildId] as const,
+      queryFn: ({ signal }) => apiFetch(`/api/review/builds/${buildId}/flags`, { schema: buildFlagsResponseSchema, signal }),
+      select: (data) => data.items,
     }),
   /** The story's audit trail, newest first, one keyset page at a time (`nextBefore` → `before`). */
   audit: (storyId: number) =>

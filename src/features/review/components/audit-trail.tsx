@@ -4,22 +4,54 @@ import type { auditEntrySchema } from '@shared/review/review.schema';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { LoadMore } from '@/components/ui/load-more';
 import { reviewQueries } from '../api/review-queries';
-import { exactTime } from '../lib/review-format';
+import { clockTime, exactTime } from '../lib/review-format';
 
 type AuditEntry = z.infer<typeof auditEntrySchema>;
 
-const actionWords: Record<string, string> = {
-  'story.submit': 'sent it for review',
-  'story.request-changes': 'asked for changes',
-  'story.publish': 'published it',
-  'story.withdraw': 'withdrew it',
-  'story.republish': 'made it public again',
-  'review.claim': 'took it for review',
-  'review.release': 'let it go',
-  'check.checked': 'checked',
-  'check.flagged': 'flagged',
-  'check.answered': 'answered the flag on',
-};
+const dayFormat = new Intl.DateTimeFormat(undefined, { dateStyle: 'medium' });
+
+/** The day of a line in the viewer's time zone, as clockTime gives its time, so the sentence says only the time. */
+function dayOf(iso: string): string {
+  const at = new Date(iso);
+  return Number.isNaN(at.getTime()) ? iso : dayFormat.format(at);
+}
+
+/** What the person did, as the middle of a sentence ("Dagny … at 10:42"). */
+function deed(entry: AuditEntry, subject: string | null): string {
+  const thing = subject ? `the ${entry.subjectType} “${subject}”` : `a ${entry.subjectType} no longer in the build`;
+  const revision = typeof entry.after?.revision === 'number' ? ` as revision ${entry.after.revision}` : '';
+  switch (entry.action) {
+    case 'story.submit':
+      return 'sent the story for review';
+    case 'story.request-changes':
+      return 'sent the story back for changes';
+    case 'story.publish':
+      return `published the story${revision}`;
+    case 'story.withdraw':
+      return 'withdrew the story from the public';
+    case 'story.republish':
+      return 'made the story public again';
+    case 'review.claim':
+      return 'took the story for review';
+    case 'review.release':
+      return 'let the story go';
+    case 'check.checked':
+      return `checked ${thing} against the footage`;
+    case 'check.flagged':
+      return `flagged ${thing}`;
+    case 'check.answered':
+      return `answered the flag on ${thing}`;
+    default:
+      return `did “${entry.action}” to ${entry.subjectType === 'story' ? 'the story' : thing}`;
+  }
+}
+
+/** What the person wrote with the move: its reason, a flag's comment, an answer's text. */
+function words(entry: AuditEntry): string {
+  if (entry.note) return entry.note;
+  const written = entry.action === 'check.answered' ? entry.after?.body : entry.action === 'check.flagged' ? entry.after?.comment : undefined;
+  return typeof written === 'string' ? written : '';
+}
 
 /** A value of a before/after record in a few characters. */
 function valueText(value: unknown): string {
@@ -32,8 +64,8 @@ function valueText(value: unknown): string {
 const blank = (value: unknown) => value === null || value === undefined || value === '';
 
 /**
- * "state: in-review → changes-requested" for every field either side names; a field that did
- * not change shows its one value, and one that is empty on both sides is left out.
+ * The stored record as fields, for an admin: "state: in-review → changes-requested" for every
+ * field either side names; one that is empty on both sides is left out.
  */
 function changes(entry: AuditEntry): { field: string; before: string | null; after: string }[] {
   const before = entry.before ?? {};
@@ -49,10 +81,20 @@ function changes(entry: AuditEntry): { field: string; before: string | null; aft
 }
 
 /**
- * The story's audit trail, newest first: who, when, what, and before → after. Subject names
- * come from the review sheet where the line is about one of the story's readings or clearances.
+ * The story's audit trail, newest first, each line a sentence ("Dagny Orlov checked the reading
+ * “Rotor height” against the footage at 10:42"). Subject names come from the review sheet. An
+ * admin can open the stored record (the fields before and after) under each line.
  */
-export function AuditTrail({ storyId, subjectName }: { storyId: number; subjectName: (type: string, id: number) => string | null }) {
+export function AuditTrail({
+  storyId,
+  subjectName,
+  showRecord = false,
+}: {
+  storyId: number;
+  subjectName: (type: string, id: number) => string | null;
+  /** Offer the stored fields of each line (for admins). */
+  showRecord?: boolean;
+}) {
   const audit = useInfiniteQuery(reviewQueries.audit(storyId));
   if (audit.isPending) return <LoadingState label="Loading the record…" />;
   if (!audit.data) {
@@ -69,29 +111,28 @@ export function AuditTrail({ storyId, subjectName }: { storyId: number; subjectN
           const subject = entry.subjectType === 'story' ? null : subjectName(entry.subjectType, entry.subjectId);
           return (
             <li key={entry.id} className="grid gap-x-3 py-1.5 sm:grid-cols-[10.5rem_minmax(0,1fr)]" data-audit-action={entry.action}>
-              <time dateTime={entry.at} className="figures text-xs text-ink-muted">
-                {exactTime(entry.at)}
-              </time>
+              <span className="figures text-xs text-ink-muted">{dayOf(entry.at)}</span>
               <div className="min-w-0">
                 <p>
-                  <span className="font-medium">{entry.actorName ?? 'The system'}</span> {actionWords[entry.action] ?? entry.action}
-                  {subject && (
-                    <>
-                      {' '}
-                      the {entry.subjectType} <q>{subject}</q>
-                    </>
-                  )}
-                  {entry.note && <span className="text-ink-muted"> — “{entry.note}”</span>}
+                  <span className="font-medium">{entry.actorName ?? 'Benchproof'}</span> {deed(entry, subject)} at{' '}
+                  <time dateTime={entry.at} title={exactTime(entry.at)}>
+                    {clockTime(entry.at)}
+                  </time>
+                  {words(entry) ? ':' : '.'}
+                  {words(entry) && <span className="text-ink-muted"> “{words(entry)}”</span>}
                 </p>
-                {changes(entry).length > 0 && (
-                  <ul className="figures flex flex-wrap gap-x-4 text-xs text-ink-muted">
-                    {changes(entry).map((c) => (
-                      <li key={c.field} className="min-w-0 break-words">
-                        {c.field}: {c.before !== null && <>{c.before} → </>}
-                        <span className="text-ink">{c.after}</span>
-                      </li>
-                    ))}
-                  </ul>
+                {showRecord && changes(entry).length > 0 && (
+                  <details className="text-xs text-ink-muted" data-audit-record="">
+                    <summary className="cursor-pointer">Stored record</summary>
+                    <ul className="figures mt-1 flex flex-wrap gap-x-4">
+                      {changes(entry).map((c) => (
+                        <li key={c.field} className="min-w-0 break-words">
+                          {c.field}: {c.before !== null && <>{c.before} → </>}
+                          <span className="text-ink">{c.after}</span>
+                        </li>
+                      ))}
+                    </ul>
+                  </details>
                 )}
               </div>
             </li>

@@ -9,6 +9,7 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-state
 import { Field, Textarea } from '@/components/ui/field';
 import { useToast } from '@/components/ui/toast';
 import { authQueries } from '@/features/auth/api/auth-queries';
+import { formatTime } from '@/features/clips/lib/clip-format';
 import { enteredFigures, estimateText } from '@/features/readings/lib/reading-text';
 import { ApiError, errorMessage } from '@/lib/api';
 import { useAnswerCheck } from '../api/review-mutations';
@@ -92,6 +93,19 @@ function FlagCard({ flag, sheet, canAnswer }: { flag: EvidenceCheckDto; sheet: R
         </footer>
       </blockquote>
       {reading && (
+        <figure className="mt-2">
+          <img
+            src={reading.frameUrl}
+            alt={`The still the flag refers to: ${reading.clipTitle} at ${formatTime(reading.atMs / 1000)}`}
+            className="w-full max-w-72 rounded-sm border border-rule bg-paper-2"
+            loading="lazy"
+          />
+          <figcaption className="figures mt-0.5 text-xs text-ink-muted">
+            {reading.clipTitle} at {formatTime(reading.atMs / 1000)}
+          </figcaption>
+        </figure>
+      )}
+      {reading && (
         <p className="mt-2 text-xs text-ink-muted">
           Logged: <span className="figures text-ink">{enteredFigures(reading)}</span> → <span className="figures text-ink">{estimateText(reading)}</span>, with{' '}
           {reading.instrumentName}, {reading.clipTitle}
@@ -125,7 +139,7 @@ function FlagCard({ flag, sheet, canAnswer }: { flag: EvidenceCheckDto; sheet: R
 
 type AnswerForm = z.input<typeof answerInputSchema>;
 
-function AnswerForm({ checkId, subjectName }: { checkId: number; subjectName: string }) {
+export function AnswerForm({ checkId, subjectName }: { checkId: number; subjectName: string }) {
   const { toast } = useToast();
   const answer = useAnswerCheck();
   const form = useForm<AnswerForm>({ resolver: zodResolver(answerInputSchema), defaultValues: { body: '' } });

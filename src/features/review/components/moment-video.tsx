@@ -4,19 +4,32 @@ import { Button } from '@/components/ui/button';
 import { LEAD_IN_S, leadInStart } from '../lib/review-format';
 
 /**
- * The clip of a reading, playing from a few seconds before its moment so the moderator sees the
- * instrument being set and read. Muted, so the browser lets it start on its own.
+ * The clip of a reading: it plays the few seconds before its moment, so the moderator sees the
+ * instrument being set and read, and stops on the moment itself, the frame of the evidence still
+ * beside it. Muted, so the browser lets it start on its own; the controls play on from there.
  */
 export function MomentVideo({ clipId, atMs, label }: { clipId: number; atMs: number; label: string }) {
   const ref = useRef<HTMLVideoElement>(null);
   const start = leadInStart(atMs);
+  const at = atMs / 1000;
+  // True while a lead-up is playing towards the moment; pressing play on the controls after it plays on.
+  const holding = useRef(false);
 
   function playFromLeadIn() {
     const video = ref.current;
     if (!video) return;
+    holding.current = true;
     video.currentTime = start;
     // Autoplay may be refused (a browser setting); the controls are there to start it by hand.
     video.play().catch(() => undefined);
+  }
+
+  function stopAtMoment() {
+    const video = ref.current;
+    if (!video || !holding.current || video.currentTime < at - 0.02) return;
+    holding.current = false;
+    video.pause();
+    video.currentTime = at;
   }
 
   return (
@@ -31,14 +44,20 @@ export function MomentVideo({ clipId, atMs, label }: { clipId: number; atMs: num
         playsInline
         preload="metadata"
         onLoadedMetadata={playFromLeadIn}
-        aria-label={`Clip of ${label}, from ${LEAD_IN_S} seconds before the moment`}
+        onTimeUpdate={stopAtMoment}
+        onSeeking={() => {
+          // A seek by hand ends the lead-up: the moderator is looking around.
+          const video = ref.current;
+          if (video && holding.current && Math.abs(video.currentTime - start) > 0.05) holding.current = false;
+        }}
+        aria-label={`Clip of ${label}: the ${LEAD_IN_S} seconds before the moment, stopping on it`}
         className="aspect-video w-full rounded-md border border-rule bg-ink object-contain"
         data-lead-in-s={start}
       />
       <figcaption className="flex items-center justify-between gap-2 text-xs text-ink-muted">
         <span>
-          Clip · moment at <span className="figures text-ink">{formatTime(atMs / 1000)}</span>, played from{' '}
-          <span className="figures">{formatTime(start)}</span>
+          Clip · plays from <span className="figures">{formatTime(start)}</span> and stops on the moment at{' '}
+          <span className="figures text-ink">{formatTime(at)}</span>, the still’s frame
         </span>
         <Button variant="secondary" size="sm" className="h-7 shrink-0 px-2 text-xs" onClick={playFromLeadIn}>
           Replay<span className="sr-only"> from {formatTime(start)}</span>

@@ -77,6 +77,18 @@ function QueueRow({ item, meId, now }: { item: QueueItem; meId: number | undefin
         <p className="text-sm text-ink-muted">
           Relies on {plural(item.readings, 'reading')} and {plural(item.clearances, 'clearance')}
         </p>
+        {item.claimProblems.length > 0 && (
+          <div className="mt-2 text-sm" data-claim-problems={item.claimProblems.length}>
+            <p className="font-semibold text-danger">
+              {item.claimProblems.length === 1 ? 'A claim disagrees with its evidence' : `${item.claimProblems.length} claims disagree with their evidence`}
+            </p>
+            <ul className="list-disc pl-5">
+              {item.claimProblems.map((message, i) => (
+                <li key={i}>{message}</li>
+              ))}
+            </ul>
+          </div>
+        )}
       </div>
       <div className="flex flex-col gap-1">
         <Progress

@@ -1,11 +1,12 @@
-import { useId, useState } from 'react';
+import { useEffect, useId, useState } from 'react';
 import { useQuery } from '@tanstack/react-query';
+import { Link } from 'react-router-dom';
 import { useForm } from 'react-hook-form';
 import { zodResolver } from '@hookform/resolvers/zod';
 import type { z } from 'zod';
-import { transitionInputSchema } from '@shared/review/review.schema';
+import { transitionInputSchema, type PublishBlocker } from '@shared/review/review.schema';
 import { actionsFor, canTransition, transitions, type StoryAction } from '@shared/review/workflow';
-import { storyStateWords, type StoryState } from '@shared/stories/story.schema';
+import { storyStateSentence, type StoryState } from '@shared/stories/story.schema';
 import { Button, type ButtonVariant } from '@/components/ui/button';
 import { ConfirmDialog, Dialog, DialogClose, DialogContent } from '@/components/ui/dialog';
 import { Field, Textarea } from '@/components/ui/field';
@@ -26,6 +27,19 @@ export interface StoryWorkflowBarProps {
    * where the page does not know: the bar then reads it from the review sheet.
    */
   hasPublicRevision?: boolean;
+  /**
+   * What stops the forward move (sending for review for the builder, publishing for a
+   * moderator): the button is disabled and says why until the list is empty. Left out, a
+   * moderator's bar reads the publish gate from the review sheet while the story is in review.
+   */
+  blockers?: readonly PublishBlocker[];
+  /** The page lists the blockers right beside the bar already: say how many, not each again. */
+  blockersListedNearby?: boolean;
+  /**
+   * The page shows why the move is closed itself (a `GateClosed` with this id, where it has room),
+   * so the bar only disables the button and points to it.
+   */
+  gateShownAt?: string;
   /** Called after a move succeeded, with the new state. */
   onMoved?: (to: StoryState) => void;
 }
@@ -69,25 +83,49 @@ const confirmWords: Partial<Record<StoryAction, { title: string; description: st
  * this viewer from this state, a reason asked for where the move needs one, and the server's
  * refusal shown in full (for a blocked publish, every reason).
  */
-export function StoryWorkflowBar({ storyId, state, lockVersion, isBuilder, hasPublicRevision, onMoved }: StoryWorkflowBarProps) {
+export function StoryWorkflowBar({
+  storyId,
+  state,
+  lockVersion,
+  isBuilder,
+  hasPublicRevision,
+  blockers,
+  blockersListedNearby,
+  gateShownAt,
+  onMoved,
+}: StoryWorkflowBarProps) {
   const { toast } = useToast();
   const move = useStoryTransition(storyId);
   const [asking, setAsking] = useState<StoryAction | null>(null);
   const [confirming, setConfirming] = useState<StoryAction | null>(null);
   const [refusal, setRefusal] = useState<ApiError | Error | null>(null);
+  const [publicNow, setPublicNow] = useState<{ revision: number | null } | null>(null);
   const refusalId = useId();
   // Only where it changes which moves exist: withdrawing a story in review or republishing one.
-  const needsSheet = hasPublicRevision === undefined && (state === 'in-review' || state === 'changes-requested');
+  // And for a moderator's publish button, the gate, when the page did not pass it.
+  const needsSheet =
+    (hasPublicRevision === undefined && (state === 'in-review' || state === 'changes-requested')) || (!isBuilder && blockers === undefined && state === 'in-review');
   const sheet = useQuery({ ...reviewQueries.sheet(storyId), enabled: needsSheet });
   const isPublic = hasPublicRevision ?? (state === 'published' || state === 'withdrawn' || (sheet.data?.story.hasPublicRevision ?? false));
   const actor = isBuilder ? 'builder' : 'moderator';
   const actions = actionsFor(state, actor, isPublic);
+  const gated: StoryAction = isBuilder ? 'submit' : 'publish';
+  const gate = blockers ?? (isBuilder ? [] : (sheet.data?.blockers ?? []));
+  const ownGateId = useId();
+  const gateId = gateShownAt ?? ownGateId;
+  const gateClosed = actions.includes(gated) && gate.length > 0;
+
+  // A refusal is about the story as it was: once it changes (a save, a check, a move), it goes.
+  const gateKey = gate.map((b) => b.message).join('\n');
+  useEffect(() => setRefusal(null), [state, lockVersion, gateKey]);
 
   async function run(action: StoryAction, reason?: string) {
     setRefusal(null);
     try {
       const result = await move.mutateAsync({ action, lockVersion, ...(reason !== undefined && { reason }) });
-      toast({ tone: 'success', title: doneWords[action], description: `The story is now ${storyStateWords[result.state]}.` });
+      toast({ tone: 'success', title: doneWords[action], description: `The story is now ${storyStateSentence[result.state]}.` });
+      // What the public now sees, one click away.
+      setPublicNow(action === 'publish' || action === 'republish' ? { revision: result.revision } : null);
       setAsking(null);
       setConfirming(null);
       onMoved?.(result.state);
@@ -111,7 +149,7 @@ export function StoryWorkflowBar({ storyId, state, lockVersion, isBuilder, hasPu
   return (
     <div className="flex flex-col gap-3" data-workflow-bar="">
       <p className="text-sm">
-        This story is <strong data-story-state={state}>{storyStateWords[state]}</strong>.
+        This story is <strong data-story-state={state}>{storyStateSentence[state]}</strong>.
         {actions.length === 0 && <span className="text-ink-muted"> {nothingToDo(state, isBuilder)}</span>}
       </p>
       {actions.length > 0 && (
@@ -123,7 +161,8 @@ export function StoryWorkflowBar({ storyId, state, lockVersion, isBuilder, hasPu
               size="sm"
               onClick={() => start(action)}
               loading={move.isPending && move.variables?.action === action}
-              disabled={move.isPending}
+              disabled={move.isPending || (action === gated && gateClosed)}
+              aria-describedby={action === gated && gateClosed ? gateId : undefined}
             >
               {labelOf(action)}
               {transitions.find((t) => t.action === action)?.needsReason && '…'}
@@ -131,7 +170,14 @@ export function StoryWorkflowBar({ storyId, state, lockVersion, isBuilder, hasPu
           ))}
         </div>
       )}
+      {gateClosed && !gateShownAt && <GateClosed id={gateId} action={gated} blockers={gate} listedNearby={blockersListedNearby ?? false} />}
       {refusal && <Refusal id={refusalId} error={refusal} onDismiss={() => setRefusal(null)} />}
+      {publicNow && state === 'published' && (
+        <p role="status" className="text-sm" data-public-link="">
+          {publicNow.revision ? `Revision ${publicNow.revision} is public. ` : 'It is public again. '}
+          <Link to={`/stories/${storyId}`}>Open the public page</Link>
+        </p>
+      )}
 
       {asking && (
         <ReasonDialog
@@ -175,15 +221,37 @@ function nothingToDo(state: StoryState, isBuilder: boolean): string {
   return 'There is no move for a moderator to make from here.';
 }
 
+/** Why the forward move is not offered yet, before anyone presses it. */
+export function GateClosed({ id, action, blockers, listedNearby = false }: { id: string; action: StoryAction; blockers: readonly PublishBlocker[]; listedNearby?: boolean }) {
+  const n = blockers.length;
+  const what = action === 'submit' ? 'sent for review' : 'published';
+  const things = action === 'submit' ? `claim${n === 1 ? '' : 's'} to correct` : `problem${n === 1 ? '' : 's'} to resolve`;
+  return (
+    <div id={id} className="max-w-prose rounded-md border border-line border-l-4 border-l-danger bg-paper-2/60 px-3 py-2 text-sm" data-gate={action}>
+      <p className="font-medium">
+        It cannot be {what} yet: {n} {things}
+        {listedNearby ? ', listed under “What stops publishing”.' : ':'}
+      </p>
+      {!listedNearby && (
+        <ul className="mt-1 list-disc pl-5" aria-label={action === 'submit' ? 'What to correct before sending' : 'What stops publishing'}>
+          {blockers.map((b, i) => (
+            <li key={`${b.code}-${i}`}>{b.message}</li>
+          ))}
+        </ul>
+      )}
+    </div>
+  );
+}
+
 /** The server said no: what, and for a blocked publish every reason. */
 function Refusal({ id, error, onDismiss }: { id: string; error: ApiError | Error; onDismiss: () => void }) {
-  const blocked = error instanceof ApiError && error.code === 'publish_blocked';
+  const blocked = error instanceof ApiError && (error.code === 'publish_blocked' || error.code === 'submit_blocked');
   const conflict = error instanceof ApiError && error.code === 'edit_conflict';
   return (
     <div id={id} role="alert" className="rounded-md border border-danger/50 bg-danger-wash/50 px-3 py-2 text-sm" data-refusal={error instanceof ApiError ? error.code : 'error'}>
       <p className="font-medium">{errorMessage(error)}</p>
       {blocked && error.details.length > 0 && (
-        <ul className="mt-1 list-disc pl-5" aria-label="Why it cannot be published">
+        <ul className="mt-1 list-disc pl-5" aria-label={error.code === 'submit_blocked' ? 'Why it cannot be sent' : 'Why it cannot be published'}>
           {error.details.map((d, i) => (
             <li key={`${d.path ?? ''}-${i}`}>{d.message}</li>
           ))}

@@ -5,7 +5,7 @@ import type { EvidenceCheckDto, PublishBlocker } from '@shared/review/review.sch
 import type { ReviewSheet } from '@shared/review/review-sheet.schema';
 import { claimTargetsFrom } from '@shared/stories/claims';
 import { renderStory } from '@shared/stories/render';
-import { storyIdParamsSchema, storyStateWords } from '@shared/stories/story.schema';
+import { storyIdParamsSchema, storyStateSentence, storyStateWords } from '@shared/stories/story.schema';
 import { ButtonLink } from '@/components/ui/button';
 import { ErrorState, LoadingState } from '@/components/ui/data-states';
 import { PageHeader } from '@/components/ui/page-header';
@@ -67,7 +67,7 @@ export function Component() {
     );
   }
   const isBuilder = me.data?.id === sheet.data.story.builderId;
-  return <ReviewScreen key={storyId} sheet={sheet.data} meId={me.data?.id} isBuilder={isBuilder} />;
+  return <ReviewScreen key={storyId} sheet={sheet.data} meId={me.data?.id} isBuilder={isBuilder} isAdmin={me.data?.role === 'admin'} />;
 }
 
 function itemsOf(sheet: ReviewSheet): EvidenceItem[] {
@@ -100,7 +100,7 @@ function isTyping(target: EventTarget | null): boolean {
   return target.isContentEditable || ['INPUT', 'TEXTAREA', 'SELECT', 'VIDEO'].includes(target.tagName) || Boolean(target.closest('[role="dialog"]'));
 }
 
-function ReviewScreen({ sheet, meId, isBuilder }: { sheet: ReviewSheet; meId: number | undefined; isBuilder: boolean }) {
+function ReviewScreen({ sheet, meId, isBuilder, isAdmin }: { sheet: ReviewSheet; meId: number | undefined; isBuilder: boolean; isAdmin: boolean }) {
   const { story } = sheet;
   const { toast } = useToast();
   const now = useNow();
@@ -117,7 +117,7 @@ function ReviewScreen({ sheet, meId, isBuilder }: { sheet: ReviewSheet; meId: nu
   const claim = sheet.claim && new Date(sheet.claim.expiresAt) > now ? sheet.claim : null;
   const allowed: JudgeAllowed =
     story.state !== 'in-review'
-      ? { ok: false, why: `Readings are checked while a story is in review; this one is ${storyStateWords[story.state]}.` }
+      ? { ok: false, why: `Readings are checked while a story is in review; this one is ${storyStateSentence[story.state]}.` }
       : !claim || claim.moderatorId !== meId
         ? { ok: false, why: claim ? `${claim.moderatorName} holds this story; you can look, not check.` : 'Take the story for review first (“Take for review” above), then check.' }
         : { ok: true };
@@ -156,16 +156,29 @@ function ReviewScreen({ sheet, meId, isBuilder }: { sheet: ReviewSheet; meId: nu
     if (next) setChosen(next.id);
   }
 
+  /** A key that can do nothing now says why, on screen and to a screen reader, instead of nothing. */
+  function refuseKey(key: string) {
+    if (allowed.ok) return false;
+    const why = allowed.why;
+    setAnnouncement(`${key.toUpperCase()} did nothing: ${why}`);
+    toast({ tone: 'info', title: `${key === 'c' ? 'Nothing was checked' : 'Nothing was flagged'}`, description: why });
+    return true;
+  }
+  const judgeKeys = {
+    markChecked: (item: EvidenceItem) => !refuseKey('c') && void markChecked(item),
+    openFlag: (item: EvidenceItem) => !refuseKey('f') && setFlagging(item),
+  };
+
   // j/k, c and f anywhere on the page except in text fields and dialogs; arrows live in the list itself.
-  const keys = useRef({ move, markChecked, openFlag: (item: EvidenceItem) => allowed.ok && setFlagging(item), selected, isBuilder });
-  keys.current = { move, markChecked, openFlag: (item: EvidenceItem) => allowed.ok && setFlagging(item), selected, isBuilder };
+  const keys = useRef({ move, ...judgeKeys, selected, isBuilder });
+  keys.current = { move, ...judgeKeys, selected, isBuilder };
   useEffect(() => {
     function onKey(event: KeyboardEvent) {
       if (event.defaultPrevented || event.ctrlKey || event.metaKey || event.altKey || isTyping(event.target)) return;
       const k = keys.current;
       if (event.key === 'j') k.move(1);
       else if (event.key === 'k') k.move(-1);
-      else if (event.key === 'c' && k.selected && !k.isBuilder) void k.markChecked(k.selected);
+      else if (event.key === 'c' && k.selected && !k.isBuilder) k.markChecked(k.selected);
       else if (event.key === 'f' && k.selected && !k.isBuilder) k.openFlag(k.selected);
       else return;
       event.preventDefault();
@@ -204,7 +217,15 @@ function ReviewScreen({ sheet, meId, isBuilder }: { sheet: ReviewSheet; meId: nu
 
   const workflow = (
     <Panel title="Workflow">
-      <StoryWorkflowBar storyId={story.id} state={story.state} lockVersion={story.lockVersion} isBuilder={isBuilder} hasPublicRevision={story.hasPublicRevision} />
+      <StoryWorkflowBar
+        storyId={story.id}
+        state={story.state}
+        lockVersion={story.lockVersion}
+        isBuilder={isBuilder}
+        hasPublicRevision={story.hasPublicRevision}
+        blockers={isBuilder ? undefined : sheet.blockers}
+        blockersListedNearby={!isBuilder}
+      />
     </Panel>
   );
 
@@ -257,6 +278,17 @@ function ReviewScreen({ sheet, meId, isBuilder }: { sheet: ReviewSheet; meId: nu
         <div className="flex min-w-0 flex-col gap-6 lg:col-start-1 lg:row-span-2 lg:row-start-1">
           {isBuilder && (
             <Panel title="Flags to answer" description="What a moderator found. Answer each one, correct the reading in the build if needed, then send the story for review again.">
+              {story.changesRequested && (
+                <figure className="mb-3 max-w-prose" data-changes-requested="">
+                  <blockquote className="border-l-2 border-danger pl-3 text-md" data-changes-reason="">
+                    {story.changesRequested.reason}
+                  </blockquote>
+                  <figcaption className="mt-1 text-sm text-ink-muted">
+                    — {story.changesRequested.moderatorName}, asking for changes{' '}
+                    <time dateTime={story.changesRequested.at}>{relativeTime(story.changesRequested.at, now)}</time>
+                  </figcaption>
+                </figure>
+              )}
               <FlagsToAnswer storyId={story.id} />
             </Panel>
           )}
@@ -332,7 +364,7 @@ function ReviewScreen({ sheet, meId, isBuilder }: { sheet: ReviewSheet; meId: nu
 
           {!isBuilder && (
             <Panel title="Record" description="Every move on this story, newest first.">
-              <AuditTrail storyId={story.id} subjectName={subjectName} />
+              <AuditTrail storyId={story.id} subjectName={subjectName} showRecord={isAdmin} />
             </Panel>
           )}
         </div>

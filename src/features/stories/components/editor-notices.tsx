@@ -1,4 +1,5 @@
 import type { ReactNode } from 'react';
+import type { ChangesRequested } from '@shared/stories/story.schema';
 import { Button } from '@/components/ui/button';
 import { errorMessage } from '@/lib/api';
 import { WarnIcon } from './claim-evidence';
@@ -71,6 +72,37 @@ export function ConflictNotice({
         </p>
       )}
     </Notice>
+  );
+}
+
+/**
+ * The story is back with its builder: the moderator's reason first, in their words, then what
+ * they flagged (`children`: each flag with its comment, its still and a box to answer).
+ */
+export function ChangesRequestedNotice({ changes, children }: { changes: ChangesRequested | null; children: ReactNode }) {
+  return (
+    <section aria-labelledby="changes-requested-heading" className="mb-4 rounded-lg border border-danger/60 border-l-4 bg-danger-wash/40 px-4 py-3" data-changes-requested="">
+      <h2 id="changes-requested-heading" className="flex items-center gap-2 text-md font-semibold">
+        <WarnIcon className="size-4 shrink-0 text-danger" />
+        A moderator asked for changes
+      </h2>
+      {changes ? (
+        <figure className="mt-2 max-w-prose">
+          <blockquote className="border-l-2 border-rule pl-3 text-md text-ink" data-changes-reason="">
+            {changes.reason}
+          </blockquote>
+          <figcaption className="mt-1 text-sm text-ink-muted">
+            — {changes.moderatorName}, <time dateTime={changes.at}>{savedTime(changes.at)}</time>
+          </figcaption>
+        </figure>
+      ) : (
+        <p className="mt-1 text-sm">The reason was sent to you by e-mail.</p>
+      )}
+      <p className="mt-2 max-w-prose text-sm">
+        Answer each flag below, correct the reading or the text where needed, then send the story for review again.
+      </p>
+      <div className="mt-3">{children}</div>
+    </section>
   );
 }
 

@@ -4,6 +4,8 @@ import { Controller, useForm, useWatch, type FieldError, type Path } from 'react
 import { zodResolver } from '@hookform/resolvers/zod';
 import { useBlocker } from 'react-router-dom';
 import type { ErrorDetail } from '@shared/http/error.schema';
+import { claimBlockers } from '@shared/review/claim-problems';
+import { actionsFor } from '@shared/review/workflow';
 import { claimTargetsFrom } from '@shared/stories/claims';
 import { renderStory } from '@shared/stories/render';
 import { storyStateWords, storyTagGroups, type Story, type StoryTags } from '@shared/stories/story.schema';
@@ -27,10 +29,10 @@ import { useStoryAutosave } from '../lib/use-story-autosave';
 import { BodyEditor } from './body-editor';
 import { ClaimPicker, pickableTargets, type PickableTarget } from './claim-picker';
 import { FlagsToAnswer } from '@/features/review/components/flags-to-answer';
-import { StoryWorkflowBar } from '@/features/review/components/story-workflow-bar';
+import { GateClosed, StoryWorkflowBar } from '@/features/review/components/story-workflow-bar';
 import { ClaimsPanel } from './claims-panel';
 import { CoverPicker, useBuildMoments } from './cover-picker';
-import { ConflictNotice, RestoreOffer } from './editor-notices';
+import { ChangesRequestedNotice, ConflictNotice, RestoreOffer } from './editor-notices';
 import { RevisionPanel } from './revision-panel';
 import { SaveStatus } from './save-status';
 import { StoryPreview, type PreviewContent } from './story-preview';
@@ -146,6 +148,8 @@ export function StoryEditor({ story }: { story: Story }) {
   const targets = useMemo(() => claimTargetsFrom(readings.data ?? [], clearances.data ?? []), [readings.data, clearances.data]);
   const lookup = useMemo(() => ({ buildId, readings: readings.data ?? [], clearances: clearances.data ?? [] }), [buildId, readings.data, clearances.data]);
   const rendered = useMemo(() => renderStory(deferredBody, { targets }), [deferredBody, targets]);
+  // What stops sending for review, from the same rule the server applies (once the evidence is in).
+  const sendBlockers = useMemo(() => (evidencePending || evidenceError ? undefined : claimBlockers(rendered)), [evidencePending, evidenceError, rendered]);
   const pickable = useMemo(
     () => (readings.data && clearances.data ? pickableTargets(readings.data, clearances.data) : undefined),
     [readings.data, clearances.data],
@@ -402,8 +406,8 @@ export function StoryEditor({ story }: { story: Story }) {
           onClaim={openPicker}
         />
       </form>
-      {/* A moderator's flags come back here to answer, once the story has been reviewed. */}
-      {story.state !== 'draft' && <FlagsToAnswer storyId={storyId} />}
+      {/* A moderator's flags come back here to answer, once the story has been reviewed (at the top while it is back with you). */}
+      {story.state !== 'draft' && story.state !== 'changes-requested' && <FlagsToAnswer storyId={storyId} />}
       <ClaimsPanel
         claims={rendered.claims}
         broken={rendered.broken}
@@ -449,6 +453,8 @@ export function StoryEditor({ story }: { story: Story }) {
               lockVersion={autosave.lockVersion()}
               isBuilder
               hasPublicRevision={story.hasPublicRevision}
+              blockers={sendBlockers}
+              gateShownAt="story-send-gate"
             />
           ) : (
             <span className="text-xs text-ink-muted">Sending for review waits until your changes are saved.</span>
@@ -456,6 +462,16 @@ export function StoryEditor({ story }: { story: Story }) {
         </div>
       </header>
 
+      {saveState.kind === 'saved' && sendBlockers && sendBlockers.length > 0 && actionsFor(story.state, 'builder', story.hasPublicRevision).includes('submit') && (
+        <div className="mb-4" data-workflow-gate="">
+          <GateClosed id="story-send-gate" action="submit" blockers={sendBlockers} />
+        </div>
+      )}
+      {story.state === 'changes-requested' && (
+        <ChangesRequestedNotice changes={story.changesRequested}>
+          <FlagsToAnswer storyId={storyId} />
+        </ChangesRequestedNotice>
+      )}
       {offer && (
         <RestoreOffer
           at={offer.at}
