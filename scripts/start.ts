@@ -1,4 +1,4 @@
-// `npm start`: database, migrations, demo data, client build, local fakes, then the server.
+// `npm start`: Debian's ffmpeg (installed when missing), database, migrations, demo data, client build, local fakes, then the server.
 import { seedDemoClips } from '../server/db/seed-clips';
 import { seedDemoDiary } from '../server/db/seed-diary';
 import { startServer } from '../server/server';

@@ -13,6 +13,8 @@ import { createPassport } from './features/auth/auth.passport';
 import { buildsRouter } from './features/builds/builds.routes';
 import { createCalcRouter } from './features/calc/calc.routes';
 import { buildClipsRouter, clipsRouter, momentsRouter } from './features/clips/clips.routes';
+import { clipUploadsRouter } from './features/clips/clip-uploads.routes';
+import { createResumableUploads } from './features/clips/clip-uploads.service';
 import { buildReadingsRouter, readingsRouter } from './features/readings/readings.routes';
 import { buildClearancesRouter, clearancesRouter } from './features/clearances/clearances.routes';
 import { healthRouter } from './features/health/health.routes';
@@ -112,6 +114,9 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
   mount(app, '/api/calc', createCalcRouter());
   mount(app, '/api/builds', buildsRouter);
   mount(app, '/api/builds/:buildId/clips', buildClipsRouter({ config, storage, queue }));
+  // Resumable uploads (tus); their sweep of expired uploads stops with close().
+  const uploads = createResumableUploads({ config, storage, queue, logger });
+  mount(app, '/api/builds/:buildId/uploads', clipUploadsRouter(uploads, config));
   mount(app, '/api/clips', clipsRouter({ config, storage, queue }));
   mount(app, '/api/moments', momentsRouter());
   mount(app, '/api/builds/:buildId/stories', buildStoriesRouter());
@@ -145,6 +150,7 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
   return {
     app,
     async close() {
+      await uploads.close();
       await sessionPool.end();
     },
   };

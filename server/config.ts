@@ -44,6 +44,12 @@ const envSchema = z.object({
   STORY_IMAGE_MAX_BYTES: z.coerce.number().int().positive().default(10 * 1024 ** 2),
   CLIPS_PER_BUILD_MAX: z.coerce.number().int().positive().default(200),
   UPLOAD_RATE_LIMIT: z.coerce.number().int().positive().default(60),
+  /** An unfinished resumable upload is kept this long after it was started, seconds (default 24 h). */
+  UPLOAD_EXPIRE_SECONDS: z.coerce.number().int().min(1).default(24 * 3600),
+  /** How often expired resumable uploads are removed, seconds. */
+  UPLOAD_SWEEP_SECONDS: z.coerce.number().int().min(1).default(15 * 60),
+  /** Unfinished resumable uploads one builder may have at once. */
+  UPLOADS_OPEN_PER_BUILDER: z.coerce.number().int().positive().default(10),
   /** Longest clip accepted, seconds. */
   CLIP_MAX_SECONDS: z.coerce.number().positive().default(2 * 3600),
   /** "inline": the job worker runs inside the web server; "off": run `npm run worker` separately. */
@@ -115,7 +121,17 @@ export interface Config {
   /** Stills kept per clip beyond the moments' own (a bounded cache, oldest evicted first). */
   stillsPerClip: number;
   signInRateLimit: number;
-  uploads: { maxBytes: number; clipsPerBuild: number; ratePerMinute: number; maxSeconds: number; maxImageBytes: number };
+  uploads: {
+    maxBytes: number;
+    clipsPerBuild: number;
+    ratePerMinute: number;
+    maxSeconds: number;
+    maxImageBytes: number;
+    /** Resumable uploads: how long an unfinished one is kept, how often expired ones are swept (s), how many one builder may have open. */
+    expireSeconds: number;
+    sweepSeconds: number;
+    openPerBuilder: number;
+  };
   jobs: { worker: 'inline' | 'off'; retryLimit: number; expireSeconds: number; stallSeconds: number; queuePrefix: string };
   /** Holds S3 credentials when configured: never log a Config. */
   storage: StorageSettings;
@@ -179,6 +195,9 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
       ratePerMinute: e.UPLOAD_RATE_LIMIT,
       maxSeconds: e.CLIP_MAX_SECONDS,
       maxImageBytes: e.STORY_IMAGE_MAX_BYTES,
+      expireSeconds: e.UPLOAD_EXPIRE_SECONDS,
+      sweepSeconds: e.UPLOAD_SWEEP_SECONDS,
+      openPerBuilder: e.UPLOADS_OPEN_PER_BUILDER,
     },
     jobs: {
       worker: e.WORKER,

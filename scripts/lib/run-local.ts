@@ -6,6 +6,7 @@ import { createFakeGithub } from '../../server/fakes/github/fake-github';
 import { createFakeSmtp } from '../../server/fakes/smtp/fake-smtp';
 import { loadDemoPeople } from '../../server/db/demo-content';
 import { prepareDatabase, repoRoot } from './bootstrap';
+import { ensureSystemFfmpeg } from './ffmpeg';
 
 /** Ports and folders of the local instance; each one can be overridden from the environment. */
 export function localSettings(env = process.env) {
@@ -38,10 +39,12 @@ export function fakeAccounts() {
 }
 
 /**
- * The shared part of `npm start` and `npm run dev`: database ready, fakes running, config
- * built. Returns the config and a function that stops everything started here.
+ * The shared part of `npm start` and `npm run dev`: Debian's ffmpeg there (installed when
+ * missing), database ready, fakes running, config built. Returns the config and a function that
+ * stops everything started here.
  */
 export async function bringUpLocal(overrides: Record<string, string> = {}) {
+  ensureSystemFfmpeg();
   const s = localSettings();
   // The invented demo people are for the local fake provider only, never next to real GitHub.
   const realGithub = Boolean(process.env.GITHUB_CLIENT_ID && process.env.GITHUB_CLIENT_SECRET);

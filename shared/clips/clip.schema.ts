@@ -111,3 +111,15 @@ export const momentResponseSchema = z.object({ moment: momentSchema });
 
 /** Form field name of the file in `POST /api/builds/:buildId/clips` (multipart). */
 export const clipUploadField = 'file';
+
+/** Where a build's resumable uploads (tus 1.0.0) are created: `POST` here answers 201 with the upload's `Location`. */
+export const resumableUploadsPath = (buildId: number) => `/api/builds/${buildId}/uploads`;
+
+/** Path parameters naming one resumable upload: its build and its generated id (32 hex digits). */
+export const uploadParamsSchema = z.object({ buildId: dbIdText, uploadId: z.string().regex(/^[0-9a-f]{32}$/, 'not an upload id') });
+
+/**
+ * Response header naming the clip a resumable upload became: on the `PATCH` that brings the last
+ * byte, and on a `HEAD` of the upload after that (until it expires).
+ */
+export const uploadClipIdHeader = 'Benchproof-Clip-Id';

@@ -2,8 +2,9 @@
  * Display of any quantity: a value at the decimal place its resolution or its uncertainty
  * earns, an uncertainty to two significant digits (GUM 7.2.6), a unit symbol after it.
  */
-import { Fraction, fractionToFixed } from './exact';
-import { unitTable, type AnyUnit } from './quantities';
+import { parseDecimalText } from './decimal';
+import { Fraction, fractionOfDecimal, fractionToFixed } from './exact';
+import { convertExact, unitTable, type AnyUnit } from './quantities';
 
 /** The symbol shown after a number: "tenth" for exactly one tenth, "tenths" otherwise; nothing for a ratio. */
 export function symbolOf(unit: AnyUnit, numberText: string): string {
@@ -66,4 +67,31 @@ export function plainNumber(value: number, significant = 6): string {
 /** A coverage factor for the working and labels: "2" when whole, else two decimals ("1.90"). */
 export function formatCoverageFactor(k: number): string {
   return Math.abs(k - Math.round(k)) < 1e-9 ? String(Math.round(k)) : k.toFixed(2);
+}
+
+/**
+ * Decimal places in `to` for a figure written to `fromDecimals` places in `from` (any quantity):
+ * the step of its last place converted exactly, then the largest power of ten not coarser than
+ * it, so the converted figure keeps the original's precision (NIST SP 811 (2008) B.7.2; exact
+ * factors from B.8, e.g. 1 in = 25.4 mm). A difference has no offset, so °F → °C steps by 5/9.
+ * The same unit keeps its places. Lengths stored in picometres use `convertedDecimals` in
+ * format.ts, the same rule in integers.
+ */
+export function convertedDecimalsIn(fromDecimals: number, from: AnyUnit, to: AnyUnit): number {
+  const places = Math.max(0, Math.min(12, Math.trunc(fromDecimals)));
+  if (from === to) return places;
+  const step = new Fraction(1n, 10n ** BigInt(places)).mul(unitTable[from].factor).div(unitTable[to].factor);
+  return decimalsForStep(step);
+}
+
+/**
+ * A figure written as `text` (plain decimal, its trailing zeros count) in `from`, converted to
+ * `to` at the places it supports: ("0.5642", in → mm) → "14.331 mm"; ("68", °F → °C) → "20 °C".
+ * Null when `text` is not a plain decimal.
+ */
+export function formatConvertedFigure(text: string, from: AnyUnit, to: AnyUnit): string | null {
+  const decimal = parseDecimalText(text.trim().replace('−', '-'));
+  if (!decimal) return null;
+  const value = convertExact(fractionOfDecimal(decimal), from, to);
+  return formatValue(value, to, convertedDecimalsIn(decimal.scale, from, to));
 }

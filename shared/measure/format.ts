@@ -10,7 +10,7 @@
  * For a computed result with an uncertainty, GUM 7.2.6 governs instead: the standard uncertainty
  * is given to two significant digits and the value to the same decimal place.
  */
-import { divideRounded } from './decimal';
+import { divideRounded, parseDecimalText } from './decimal';
 import { picometresPerUnit, type LengthUnit, micrometresToUnitNumber, unitSymbols } from './units';
 
 /** The two systems a reader can choose. */
@@ -101,4 +101,126 @@ export function formatResult(pm: bigint, uncertaintyUm: number, unit: LengthUnit
   const decimals = Math.max(minDecimals, Math.min(MAX_DISPLAY_DECIMALS, twoSignificantDecimals(inUnit)));
   const value = formatNumber(pm, unit, decimals);
   return { value: `${value} ${symbolFor(unit, value)}`, uncertainty: formatUncertainty(uncertaintyUm, unit) };
+}
+
+/*
+ * Converting a written figure to another unit.
+ *
+ * The rule (NIST SP 811 (2008) B.7.2, "Rounding converted numerical values of quantities"; the
+ * factor 1 in = 25.4 mm exactly is B.8's 2.54 E−02 m): a converted number keeps the precision of
+ * the original, no more and no less. A figure written to d places of `from` stands for anything
+ * within half a step 10^−d of that unit; the converted figure is rounded to the largest power-of-ten
+ * step of `to` that is not coarser than that step, so its rounding error is never larger than the
+ * original's and less than ten times smaller. It is `displayDecimals` applied to the step of the
+ * figure's last place (what a reading's resolution is to its display):
+ *   0.0001 in = 0.00254 mm → steps of 0.001 mm: 0.5642 in → 14.331 mm, 0.0015 in → 0.038 mm,
+ *   0.0040 in → 0.102 mm (0.0381 and 0.1016 would claim a tenth of a micrometre nobody measured);
+ *   0.01 mm = 0.000394 in → steps of 0.0001 in: 25.40 mm → 1.0000 in;
+ *   SP 811's own example: 36 ft → 10.9728 m → 11.0 m (a step of 1 ft = 0.3048 m → 0.1 m).
+ * Within one system the factors are powers of ten and the conversion is exact: 0.0015 in → 1.5 thou.
+ */
+
+/** The step of a figure's last place, `decimals` places of `unit`, in picometres (at least 1). */
+export function lastPlaceStepPm(decimals: number, unit: LengthUnit): bigint {
+  const places = Math.max(0, Math.min(MAX_DISPLAY_DECIMALS, Math.trunc(decimals)));
+  const step = divideRounded(picometresPerUnit[unit], 10n ** BigInt(places), 'half-even');
+  return step > 0n ? step : 1n;
+}
+
+/**
+ * Decimal places in `to` for a figure written to `fromDecimals` places in `from`, by the rule
+ * above (NIST SP 811 B.7.2). The same unit keeps its places.
+ */
+export function convertedDecimals(fromDecimals: number, from: LengthUnit, to: LengthUnit): number {
+  if (from === to) return Math.max(0, Math.min(MAX_DISPLAY_DECIMALS, Math.trunc(fromDecimals)));
+  return displayDecimals(lastPlaceStepPm(fromDecimals, from), to);
+}
+
+/** A length written to `fromDecimals` places in `from`, shown in `to` at the places it supports: "14.331 mm". */
+export function formatConvertedLength(pm: bigint, from: LengthUnit, fromDecimals: number, to: LengthUnit): string {
+  const text = formatNumber(pm, to, convertedDecimals(fromDecimals, from, to));
+  return `${text} ${symbolFor(to, text)}`;
+}
+
+/** Decimal places of the first number in `text` ("0.0040 in" → 4, "−3.5 thou" → 1, "12 mm" → 0). */
+export function decimalPlacesOf(text: string): number {
+  return /\d+(?:\.(\d+))?/.exec(text)?.[1]?.length ?? 0;
+}
+
+/**
+ * A figure as written ("3.5 thou", "0.5642 in": its number and the unit it was written in) shown in
+ * `to` at the places it supports, so a reading typed in thou reads like its neighbours in a table
+ * of inches: "3.5 thou" → "0.0035 in". Null when the text holds no number.
+ */
+export function convertWrittenLength(text: string, from: LengthUnit, to: LengthUnit): string | null {
+  const match = /[−-]?\d+(?:\.\d+)?/.exec(text);
+  if (!match) return null;
+  const decimal = parseDecimalText(match[0].replace('−', '-'));
+  if (!decimal) return null;
+  // Exact in picometres for every place a unit holds exactly; finer text is rounded to the picometre.
+  const pm = divideRounded(decimal.coefficient * picometresPerUnit[from], 10n ** BigInt(decimal.scale), 'half-even');
+  return formatConvertedLength(pm, from, decimal.scale, to);
+}
+
+/**
+ * Fewest places a converted limit is shown with, across systems: 0.001 mm and 0.0001 in, the grain
+ * workshop clearances are written to. A limit is exact as written (it is not a rounded
+ * measurement), so it is not shown coarser than the figures judged against it. Common practice (no
+ * published source).
+ */
+export const CONVERTED_LIMIT_MIN_DECIMALS: Readonly<Record<LengthUnit, number>> = { in: 4, thou: 1, tenth: 0, mm: 3, um: 0 };
+
+/** Fewest places that write `pm` exactly in `unit` (at most the unit's exact places). */
+export function exactPlaces(pm: bigint, unit: LengthUnit): number {
+  const per = picometresPerUnit[unit];
+  for (let d = 0; d < MAX_DISPLAY_DECIMALS; d += 1) if ((pm * 10n ** BigInt(d)) % per === 0n) return d;
+  return MAX_DISPLAY_DECIMALS;
+}
+
+/**
+ * Places for a spec's limits shown in `shownIn` when they were written in `writtenIn`: the places
+ * the spec was written to (the finest of its limits, so 0.0015 and 0.004 read 0.0015 and 0.0040),
+ * converted by NIST SP 811 B.7.2, never below `CONVERTED_LIMIT_MIN_DECIMALS` across systems.
+ */
+export function limitDecimals(limitsPm: readonly bigint[], writtenIn: LengthUnit, shownIn: LengthUnit): number {
+  const written = Math.max(0, ...limitsPm.map((pm) => exactPlaces(pm, writtenIn)));
+  const converted = convertedDecimals(written, writtenIn, shownIn);
+  if (systemOf(writtenIn) === systemOf(shownIn)) return converted;
+  return Math.max(converted, CONVERTED_LIMIT_MIN_DECIMALS[shownIn]);
+}
+
+/** One limit at `decimals` places, with its symbol: "0.102 mm". */
+export function formatLimit(pm: bigint, unit: LengthUnit, decimals: number): string {
+  const text = formatNumber(pm, unit, decimals);
+  return `${text} ${symbolFor(unit, text)}`;
+}
+
+/** A span of limits at `decimals` places: "0.038–0.102 mm", "at least 0.038 mm", "at most 5.0 thou". */
+export function formatLimitSpan(minPm: bigint | null, maxPm: bigint | null, unit: LengthUnit, decimals: number): string {
+  const number = (pm: bigint) => formatNumber(pm, unit, decimals);
+  const symbol = (text: string) => symbolFor(unit, text);
+  if (minPm !== null && maxPm !== null) {
+    const hi = number(maxPm);
+    return `${number(minPm)}–${hi} ${symbol(hi)}`;
+  }
+  if (minPm !== null) {
+    const lo = number(minPm);
+    return `at least ${lo} ${symbol(lo)}`;
+  }
+  if (maxPm !== null) {
+    const hi = number(maxPm);
+    return `at most ${hi} ${symbol(hi)}`;
+  }
+  return 'no limits';
+}
+
+/**
+ * A figure's companion in the fine unit of its system (thou beside inches, µm beside millimetres)
+ * is shown only below one main unit: a clearance of 0.119 mm also reads 119 µm, but a size is
+ * written as a metric machinist writes it, 14.331 mm, never 14331 µm. Its uncertainty is always in
+ * the unit of the value it qualifies ("14.331 mm ± 0.0015 mm", "119.4 µm ± 2.1 µm"), as GUM 7.2.4
+ * writes a value and its U in one unit. The threshold is common practice (no published source).
+ */
+export function showsFineUnit(pm: bigint, mainUnit: LengthUnit): boolean {
+  return (pm < 0n ? -pm : pm) < picometresPerUnit[mainUnit];
 }

@@ -4,6 +4,7 @@
  * that reads the same figures from the database again and says whether they are still current.
  */
 import { z } from 'zod';
+import { bandUmSchema } from '../clearances/clearance.schema';
 import { dbIdText } from '../http/db-values.schema';
 import { calibrationStates } from '../instruments/instrument.schema';
 import { unitSchema } from '../measure/calc.schema';
@@ -41,13 +42,28 @@ export const sheetPublicationSchema = z.object({
 export const sheetReadingSchema = z.object({
   key: z.string(),
   name: z.string(),
+  /** As judged (after a zero offset), in the reading's unit: "3.5 thou". */
   display: z.string(),
+  /** The figures as read off the instrument, before any zero offset: "0.5595 in", "blade 0.003 enters, 0.004 does not (in)". */
+  read: z.string(),
+  /**
+   * The same figure in its clearance's unit at the places it was written to (NIST SP 811 B.7.2), so
+   * it reads like its neighbours: "3.5 thou" in a clearance in inches is "0.0035 in".
+   */
+  figure: z.string(),
   instrumentId: z.number().int().positive(),
   instrumentName: z.string(),
+  /** The instrument's serial from the builder's register ('' when none is recorded). */
+  instrumentSerial: z.string(),
   takenOn: z.string(),
+  /** The zero check of that instrument on that day whose offset was taken off: "+0.0001 in". */
+  zeroOffset: z.object({ offset: z.string(), unit: unitSchema, text: z.string() }).nullable(),
+  /** The instrument is zero-checked, yet no check was recorded on the day (the reading says so). */
+  zeroCheckMissing: z.boolean(),
   checkedBy: z.string(),
   checkedAt: z.string(),
 });
+export type SheetReading = z.infer<typeof sheetReadingSchema>;
 
 /** One checked clearance on a sheet, as published. */
 export const sheetClearanceSchema = z.object({
@@ -62,9 +78,18 @@ export const sheetClearanceSchema = z.object({
   verdict: z.enum(verdicts).nullable(),
   /** "within spec", "out of spec", "too close to call" (or "no spec"). */
   verdictWords: z.string(),
+  /** Against the preferred band and the reject limit, by the same rule: secondary facts, never a second verdict. */
+  preferredVerdict: z.enum(verdicts).nullable(),
+  rejectVerdict: z.enum(verdicts).nullable(),
   rule: z.enum(decisionRules).nullable(),
   ruleText: z.string().nullable(),
   spec: z.object({ name: z.string(), version: z.number().int().positive(), sourceKind: z.string(), sourceText: z.string() }).nullable(),
+  /** The spec's limits in µm, as judged. */
+  band: bandUmSchema.nullable(),
+  /** The limits written out in the clearance's unit: "0.0015–0.0040 in"; null where the spec has none. */
+  limits: z.object({ band: z.string().nullable(), preferred: z.string().nullable(), reject: z.string().nullable() }),
+  /** The preferred band and reject limit in plain words: "Outside the preferred band 0.0020–0.0030 in.". */
+  limitFacts: z.array(z.string()),
   checkedBy: z.string(),
   checkedAt: z.string(),
   /** The publication it comes from. */
@@ -78,6 +103,13 @@ export type SheetClearance = z.infer<typeof sheetClearanceSchema>;
 export const sheetInstrumentSchema = z.object({
   id: z.number().int().positive(),
   name: z.string(),
+  /** From the builder's register ('' when none is recorded). */
+  serial: z.string(),
+  /** The calibration on record in the register now, and the day it falls due (null when none). */
+  calibratedOn: z.string().nullable(),
+  calibrationDueOn: z.string().nullable(),
+  /** The days the sheet's readings were taken with it, earliest first. */
+  readingDays: z.array(z.string()),
   /** The worst state over the readings on the sheet (overdue > no record > in date). */
   calibration: z.enum(calibrationStates),
   warnings: z.array(readingWarningSchema),
@@ -105,6 +137,8 @@ export type PartSheet = z.infer<typeof partSheetSchema>;
 /** One entry of a verified sheet: the revision printed and the one public now. */
 export const verifiedEntrySchema = z.object({
   storyId: z.number().int().positive(),
+  /** The story's title as public now; null once it is no longer public. */
+  title: z.string().nullable(),
   printedRevision: z.number().int().positive(),
   /** Null when the entry is no longer public (withdrawn). */
   currentRevision: z.number().int().positive().nullable(),

@@ -3,6 +3,7 @@ import fsp from 'node:fs/promises';
 import { createRequire } from 'node:module';
 import os from 'node:os';
 import path from 'node:path';
+import { multipartApiScript } from './s3-fake-multipart';
 
 export interface S3Fake {
   endpoint: string;
@@ -25,6 +26,7 @@ const server = new S3rver({
   directory: process.env.S3_FAKE_DIR,
   configureBuckets: [{ name: process.env.S3_FAKE_BUCKET }],
 });
+${multipartApiScript}
 let requests = 0;
 server.run().then(
   (address) => {

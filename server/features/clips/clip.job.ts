@@ -10,6 +10,7 @@ import type { Storage } from '../../storage/storage';
 import { Clip } from './clip.model';
 import { clipKeys } from './clips.service';
 import { MediaCommandFailed } from './media/ffmpeg-run';
+import { clipJobBoundS } from './media/limits';
 import { MediaRejected } from './media/probe';
 import { planWebCopy } from './media/plan';
 import { makeWebCopy } from './media/transcode';
@@ -18,8 +19,8 @@ import { makePoster, makeThumbnailStrip } from './media/stills';
 export interface ClipJobDeps {
   storage: Storage;
   logger: Logger;
-  /** Test hook: called at each stage; a throw simulates a crash there. */
-  faultAt?: (stage: 'start' | 'web-copy' | 'stills', clipId: number, attempt: number) => void;
+  /** Test hook: called at each stage; a throw simulates a crash there, a promise a stall. */
+  faultAt?: (stage: 'start' | 'web-copy' | 'stills', clipId: number, attempt: number) => void | Promise<void>;
   /** How often a running job touches its row; a third of the stall time at most (set by startClipWorker). */
   heartbeatMs?: number;
 }
@@ -28,9 +29,45 @@ export interface ClipJobData {
   clipId: number;
 }
 
-/** Puts a clip's processing on the queue (at most one waiting job per clip). */
-export async function enqueueClip(queue: Queue, clipId: number) {
-  return queue.boss.send(queue.names.clipProcess, { clipId } satisfies ClipJobData, { singletonKey: `clip-${clipId}` });
+/** Bounds of a clip job's expiry, seconds: pg-boss refuses 24 h or more. */
+export const CLIP_JOB_EXPIRY_CEILING_S = 23 * 3600;
+
+/**
+ * How long pg-boss lets one attempt at a clip run before it takes the worker for dead and
+ * hands the job out again: the longest the media commands may take for a clip of `durationS`
+ * seconds (clipJobBoundS), never less than the queue's own setting (`floorS`,
+ * JOB_EXPIRE_SECONDS) and never more than CLIP_JOB_EXPIRY_CEILING_S. A shorter expiry would
+ * start a second run beside a long transcode that is still working.
+ */
+export function clipJobExpireSeconds(durationS: number, floorS: number): number {
+  const wanted = Number.isFinite(durationS) && durationS > 0 ? clipJobBoundS(durationS) : 0;
+  return Math.min(CLIP_JOB_EXPIRY_CEILING_S, Math.max(Math.ceil(floorS), wanted));
+}
+
+/**
+ * Puts a clip's processing on the queue (at most one waiting job per clip), with an expiry
+ * derived from its duration (read from its row when not given).
+ */
+export async function enqueueClip(queue: Queue, clipId: number, durationS?: number) {
+  const seconds = durationS ?? (await Clip.findByPk(clipId, { attributes: ['id', 'probe'] }))?.probe?.durationS ?? 0;
+  const settings = (await queue.boss.getQueue(queue.names.clipProcess)) as { expireInSeconds?: number } | null;
+  const expireInSeconds = clipJobExpireSeconds(seconds, settings?.expireInSeconds ?? 0);
+  return queue.boss.send(queue.names.clipProcess, { clipId } satisfies ClipJobData, { singletonKey: `clip-${clipId}`, expireInSeconds });
+}
+
+/**
+ * Takes the clip for this run: status processing, one more attempt. The attempt number is the
+ * run's token: every later write of the run names it, so a run that a newer one has replaced
+ * (it stalled, was expired and handed out again) can no longer change the clip. Null when the
+ * clip is gone or already ready.
+ */
+async function claim(clipId: number): Promise<number | null> {
+  const [rows] = (await Clip.sequelize!.query(
+    `UPDATE clips SET status = 'processing', progress = 0, failure_reason = NULL, attempts = attempts + 1, updated_at = now()
+     WHERE id = :id AND status <> 'ready' RETURNING attempts`,
+    { replacements: { id: clipId } },
+  )) as [{ attempts: number }[], unknown];
+  return rows[0]?.attempts ?? null;
 }
 
 /**
@@ -38,10 +75,17 @@ export async function enqueueClip(queue: Queue, clipId: number) {
  * strip. Idempotent: every output goes to a scratch name and is moved in whole, so running it
  * again after a crash just does the work again. A file ffmpeg rejects fails at once; other
  * errors are thrown so pg-boss retries, and the last attempt marks the clip failed with a reason.
+ * Every write after the claim holds only while the clip is still processing under this run's
+ * token: a run another has replaced stops at its next step and changes nothing.
  */
 export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { retryCount: number; retryLimit: number }) {
   const clip = await Clip.findByPk(clipId);
   if (!clip || clip.status === 'ready') return;
+  const token = await claim(clip.id);
+  if (token == null) return;
+  const ours = { id: clip.id, status: 'processing' as const, attempts: token };
+  const write = async (values: Parameters<typeof Clip.update>[0]) => (await Clip.update(values, { where: ours }))[0] > 0;
+  const stillOurs = async () => (await Clip.count({ where: ours })) > 0;
   const last = attempt.retryCount >= attempt.retryLimit;
   const keys = clipKeys(clip);
   const scratch = path.join(deps.storage.scratchDir(), `job-${clip.id}-${crypto.randomUUID()}`);
@@ -50,55 +94,62 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
   // A heartbeat for the whole job (not only the transcode), so the recovery sweep never takes a
   // slow but living job for a dead one.
   const heartbeat = setInterval(() => {
-    Clip.sequelize!.query(`UPDATE clips SET updated_at = now() WHERE id = :id AND status = 'processing'`, { replacements: { id: clip.id } }).catch((err: unknown) =>
-      deps.logger.warn({ err, clipId: clip.id }, 'heartbeat not written'),
-    );
+    Clip.sequelize!.query(`UPDATE clips SET updated_at = now() WHERE id = :id AND status = 'processing' AND attempts = :token`, {
+      replacements: { id: clip.id, token },
+    }).catch((err: unknown) => deps.logger.warn({ err, clipId: clip.id }, 'heartbeat not written'));
   }, deps.heartbeatMs ?? 5000);
   heartbeat.unref();
+  const superseded = () => deps.logger.warn({ clipId: clip.id, token }, 'a newer run took over this clip; this one stops without changing it');
   try {
     await fsp.mkdir(scratch, { recursive: true });
     original = await deps.storage.localCopy(keys.original);
-    await clip.update({ status: 'processing', progress: 0, failureReason: null, attempts: clip.attempts + 1 });
-    deps.faultAt?.('start', clip.id, attempt.retryCount);
+    await deps.faultAt?.('start', clip.id, attempt.retryCount);
     const probe = clip.probe!;
     const plan = await planWebCopy(probe, clip.container, original.path);
 
     let source = original.path;
+    let sourceContainer = clip.container;
     if (plan !== 'original') {
       const out = path.join(scratch, 'web.mp4');
       let lastWrite = 0;
       await makeWebCopy(original.path, out, plan, {
         durationS: probe.durationS,
+        container: clip.container,
         onProgress: (percent) => {
           // Also the heartbeat that tells recovery this clip is alive; at most once a second.
           const now = Date.now();
           if (now - lastWrite < 1000) return;
           lastWrite = now;
-          Clip.update({ progress: Math.min(90, Math.round(percent * 0.9)) }, { where: { id: clip.id } }).catch((err: unknown) =>
+          write({ progress: Math.min(90, Math.round(percent * 0.9)) }).catch((err: unknown) =>
             deps.logger.warn({ err, clipId: clip.id }, 'progress heartbeat not written'),
           );
         },
       });
-      deps.faultAt?.('web-copy', clip.id, attempt.retryCount);
+      await deps.faultAt?.('web-copy', clip.id, attempt.retryCount);
+      if (!(await stillOurs())) return superseded();
       await deps.storage.putFile(keys.web, out, { contentType: 'video/mp4' });
       webCopy = await deps.storage.localCopy(keys.web);
       source = webCopy.path;
+      sourceContainer = 'mp4';
     }
-    await clip.update({ progress: 92 });
+    if (!(await write({ progress: 92 }))) return superseded();
     const posterOut = path.join(scratch, 'poster.jpg');
-    await makePoster(source, posterOut, Math.min(1, probe.durationS / 2));
+    await makePoster(source, posterOut, Math.min(1, probe.durationS / 2), { container: sourceContainer });
+    if (!(await stillOurs())) return superseded();
     await deps.storage.putFile(keys.poster, posterOut, { contentType: 'image/jpeg' });
     const stripOut = path.join(scratch, 'thumbnails.jpg');
-    const strip = await makeThumbnailStrip(source, stripOut, { count: Math.max(1, Math.min(60, Math.ceil(probe.durationS))), tileWidth: 160 });
-    deps.faultAt?.('stills', clip.id, attempt.retryCount);
+    const strip = await makeThumbnailStrip(source, stripOut, {
+      count: Math.max(1, Math.min(60, Math.ceil(probe.durationS))),
+      tileWidth: 160,
+      container: sourceContainer,
+    });
+    await deps.faultAt?.('stills', clip.id, attempt.retryCount);
+    if (!(await stillOurs())) return superseded();
     await deps.storage.putFile(keys.thumbnails, stripOut, { contentType: 'image/jpeg' });
-    // The clip may have been deleted meanwhile: then remove what this job wrote, not a ready row.
-    const [updated] = await Clip.update(
-      { status: 'ready', progress: 100, webCopy: plan, thumbnails: strip, failureReason: null },
-      { where: { id: clip.id } },
-    );
-    if (updated === 0) {
-      await deps.storage.deletePrefix(keys.base);
+    if (!(await write({ status: 'ready', progress: 100, webCopy: plan, thumbnails: strip, failureReason: null }))) {
+      // The clip was deleted meanwhile: remove what this job wrote. Replaced by a newer run: leave its files alone.
+      if ((await Clip.count({ where: { id: clip.id } })) === 0) await deps.storage.deletePrefix(keys.base);
+      else superseded();
       return;
     }
     deps.logger.info({ clipId: clip.id, plan }, 'clip ready');
@@ -110,10 +161,11 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
     deps.logger.warn({ err, clipId: clip.id, attempt: attempt.retryCount }, 'clip processing failed');
     if (permanent || last) {
       // The original stays; the builder can delete the clip or upload it again.
-      await clip.update({ status: 'failed', failureReason: permanent ? reason : `${reason} The original is kept.` });
+      if (!(await write({ status: 'failed', failureReason: permanent ? reason : `${reason} The original is kept.` }))) superseded();
       return;
     }
-    await clip.update({ status: 'uploaded', failureReason: reason });
+    // A replaced run has nothing to retry: the newer one owns the clip.
+    if (!(await write({ status: 'uploaded', failureReason: reason }))) return superseded();
     throw err;
   } finally {
     clearInterval(heartbeat);
@@ -163,7 +215,7 @@ export async function startClipWorker(config: Config, queue: Queue, given: ClipJ
       deps.logger.warn({ clipId: clip.id }, 're-queueing a clip left unfinished');
       clip.changed('updatedAt', true); // touch, so the next sweep does not pick it again at once
       await clip.save();
-      await enqueueClip(queue, clip.id);
+      await enqueueClip(queue, clip.id, clip.probe?.durationS);
     }
     return stale.length;
   };

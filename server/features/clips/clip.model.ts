@@ -13,6 +13,7 @@ import type { z } from 'zod';
 import type { thumbnailStripSchema, webCopyKindSchema } from '@shared/clips/clip.schema';
 import type { Build } from '../builds/build.model';
 import type { User } from '../users/user.model';
+import { initClipUploadModel } from './clip-upload.model';
 
 /** One uploaded video segment of a build. */
 export class Clip extends Model<InferAttributes<Clip>, InferCreationAttributes<Clip>> {
@@ -84,4 +85,5 @@ export function initClipModels(sequelize: Sequelize) {
     },
     { sequelize, tableName: 'moments', modelName: 'Moment' },
   );
+  initClipUploadModel(sequelize);
 }

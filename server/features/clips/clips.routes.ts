@@ -17,7 +17,7 @@ import {
 } from '@shared/clips/clip.schema';
 import type { Config } from '../../config';
 import { access } from '../../http/authorize';
-import { AppError, badRequest, conflict } from '../../http/errors';
+import { badRequest, conflict } from '../../http/errors';
 import { multipartFailure, refuseNulInUpload } from '../../http/multipart';
 import { limiter } from '../../http/rate-limit';
 import { validQuery, validate } from '../../http/validate';
@@ -45,6 +45,7 @@ import {
   playableKey,
   reorderClips,
   toClipDto,
+  tooLargeError,
 } from './clips.service';
 import { chaptersVtt, cuesFromMoments, momentCueText } from './media/vtt';
 
@@ -76,13 +77,13 @@ export function buildClipsRouter(deps: ClipRouteDeps) {
 
   const receive: RequestHandler = (req, res, next) => {
     const declared = Number(req.headers['content-length'] ?? 0);
-    if (declared > deps.config.uploads.maxBytes + 64 * 1024) return next(tooLarge(deps.config.uploads.maxBytes));
+    if (declared > deps.config.uploads.maxBytes + 64 * 1024) return next(tooLargeError(deps.config.uploads.maxBytes));
     upload(req, res, (err: unknown) => {
       if (!err) {
         refuseNulInUpload(req, clipUploadField).then((refused) => next(refused ?? undefined), next);
         return;
       }
-      if (err instanceof multer.MulterError && err.code === 'LIMIT_FILE_SIZE') return next(tooLarge(deps.config.uploads.maxBytes));
+      if (err instanceof multer.MulterError && err.code === 'LIMIT_FILE_SIZE') return next(tooLargeError(deps.config.uploads.maxBytes));
       next(multipartFailure(err, `Send one video in the field "${clipUploadField}".`, clipUploadField));
     });
   };
@@ -123,12 +124,6 @@ export function buildClipsRouter(deps: ClipRouteDeps) {
   });
 
   return router;
-}
-
-function tooLarge(max: number) {
-  const gib = max / 1024 ** 3;
-  const size = gib >= 1 ? `${gib.toFixed(gib % 1 ? 1 : 0)} GiB` : `${Math.round(max / 1024 ** 2)} MiB`;
-  return new AppError(413, 'too_large', `The file is larger than the ${size} a clip may be. Split the recording or lower its bitrate.`);
 }
 
 /** Routes under /api/clips/:clipId: one clip, its media, its moments. */

@@ -99,7 +99,14 @@ async function momentCounts(clipIds: number[]) {
   return new Map(rows.map((r) => [r.clipId, Number(r.count)]));
 }
 
-/** What multer handed over: a file in the scratch folder, not yet trusted. */
+/** The refusal of a file larger than a clip may be (413), for the one-shot and the resumable upload alike. */
+export function tooLargeError(max: number): AppError {
+  const gib = max / 1024 ** 3;
+  const size = gib >= 1 ? `${gib.toFixed(gib % 1 ? 1 : 0)} GiB` : `${Math.round(max / 1024 ** 2)} MiB`;
+  return new AppError(413, 'too_large', `The file is larger than the ${size} a clip may be. Split the recording or lower its bitrate.`);
+}
+
+/** What multer (or a finished resumable upload) handed over: a file in the scratch folder, not yet trusted. */
 export interface IncomingFile {
   path: string;
   originalname: string;

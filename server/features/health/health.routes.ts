@@ -2,11 +2,17 @@ import { Router } from 'express';
 import type { Sequelize } from 'sequelize';
 import { access } from '../../http/authorize';
 import { AppError } from '../../http/errors';
+import { mediaBinaries } from '../clips/media/binaries';
 
-/** GET /api/health: 200 when the database answers within two seconds, 503 otherwise. */
+/**
+ * GET /api/health: 200 when the database answers within two seconds, 503 otherwise. An admin
+ * also sees which ffmpeg decodes uploads (its version line and whether it is the system's
+ * package or the npm build); everyone else gets only the status, since a version tells an
+ * attacker which published flaws to try.
+ */
 export function healthRouter(sequelize: Sequelize) {
   const router = Router();
-  router.get('/', access.public, async (_req, res) => {
+  router.get('/', access.public, async (req, res) => {
     const started = Date.now();
     try {
       await Promise.race([
@@ -17,7 +23,10 @@ export function healthRouter(sequelize: Sequelize) {
       throw new AppError(503, 'database_unreachable', 'The database is not answering. Benchproof cannot serve data right now.');
     }
     res.set('Cache-Control', 'no-store');
-    res.json({ status: 'ok', database: 'reachable', latencyMs: Date.now() - started });
+    const body = { status: 'ok', database: 'reachable', latencyMs: Date.now() - started };
+    if (req.user?.role !== 'admin') return res.json(body);
+    const { source, version } = mediaBinaries();
+    res.json({ ...body, media: { ffmpeg: { source, version } } });
   });
   return router;
 }

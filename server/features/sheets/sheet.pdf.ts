@@ -4,7 +4,7 @@ import zlib from 'node:zlib';
 import PDFDocument from 'pdfkit';
 import QRCode from 'qrcode';
 import type { Verdict } from '@shared/measure/spec';
-import type { PartSheet } from '@shared/public/sheet.schema';
+import type { PartSheet, SheetClearance } from '@shared/public/sheet.schema';
 
 const require = createRequire(import.meta.url);
 // The interface and figure faces the site uses (DESIGN.md), embedded so the sheet prints the same anywhere.
@@ -73,6 +73,35 @@ const ACCENT = '#1f4fa8';
 
 const calibrationWords = { 'in-date': 'calibration in date', overdue: 'calibration overdue on the day of a reading', 'no-record': 'no calibration on record' } as const;
 
+const sentenceCase = (words: string) => words.charAt(0).toUpperCase() + words.slice(1);
+
+/** "Spec band 0.0015–0.0040 in · preferred band 0.0020–0.0030 in · reject limit 0.0050 in", or null with no spec. */
+export function limitsLine(limits: SheetClearance['limits']): string | null {
+  const parts = [
+    limits.band && `Spec band ${limits.band}`,
+    limits.preferred && `preferred band ${limits.preferred}`,
+    limits.reject && `reject limit ${limits.reject}`,
+  ].filter(Boolean);
+  return parts.length ? parts.join(' · ') : null;
+}
+
+/** After a reading's figure: what was read when it differs, the instrument and serial, the day, the zero offset, who checked. */
+export function readingFacts(r: SheetClearance['readings'][number]): string {
+  const typed = r.figure === r.read ? '' : ` (read ${r.read})`;
+  const serial = r.instrumentSerial ? `, serial ${r.instrumentSerial}` : '';
+  const zero = r.zeroOffset ? `; zero offset ${r.zeroOffset.text} taken off` : r.zeroCheckMissing ? '; no zero check that day, no offset taken off' : '';
+  return `${typed} — ${r.instrumentName}${serial}, ${r.takenOn}${zero}; checked by ${r.checkedBy}`;
+}
+
+/** "Calibrated 2026-01-05, due 2036-01-03; calibration in date (readings of 2026-11-20)". */
+export function instrumentCalibration(i: PartSheet['instruments'][number]): string {
+  const days = i.readingDays.length ? ` (readings of ${i.readingDays.join(', ')})` : '';
+  const record = i.calibratedOn
+    ? `Calibrated ${i.calibratedOn}${i.readingDays[0] && i.calibratedOn > i.readingDays[0] ? ' (after the first reading on this sheet)' : ''}, ${i.calibrationDueOn ? `due ${i.calibrationDueOn}` : 'no interval recorded'}`
+    : 'No calibration date recorded';
+  return `${record}; ${calibrationWords[i.calibration]}${days}.`;
+}
+
 /** The QR code of a sheet, as PNG: what the PDF embeds. */
 export function sheetQrPng(verifyUrl: string): Promise<Buffer> {
   return QRCode.toBuffer(verifyUrl, { type: 'png', errorCorrectionLevel: 'M', margin: 2, width: 360 });
@@ -94,7 +123,12 @@ function verdictMark(doc: PDFKit.PDFDocument, verdict: Verdict | null, x: number
   doc.restore();
 }
 
-/** An A4 inspection sheet: the part, every clearance with U, verdict, rule and spec, instruments, checks, the caution, and a QR code to verify it. */
+/**
+ * An A4 inspection sheet: the part, every clearance with U, its verdict and rule, the spec's band,
+ * preferred band and reject limit with where the value lies against them, the readings with their
+ * instruments' serials and zero offsets, each instrument's calibration and due date, checks, the
+ * caution, and a QR code to verify it.
+ */
 export async function sheetPdf(sheet: PartSheet, opts: { generatedAt: Date }): Promise<Buffer> {
   const qr = await sheetQrPng(sheet.verifyUrl);
   const doc = new PDFDocument({
@@ -149,15 +183,20 @@ export async function sheetPdf(sheet: PartSheet, opts: { generatedAt: Date }): P
     doc.moveDown(0.4);
     doc.font('bold').fontSize(11).fillColor(INK).text(c.name, left, doc.y, { width });
     doc.font('mono').fontSize(12).text(c.display, { width });
+    // One verdict, stated first; the preferred band and reject limit follow as facts in words.
     const markY = doc.y + 2;
     verdictMark(doc, c.verdict, left, markY);
-    doc.font('bold').fontSize(11).text(c.verdictWords, left + 14, doc.y, { width: width - 14 });
+    doc.font('bold').fontSize(11).text(sentenceCase(c.verdictWords), left + 14, doc.y, { width: width - 14 });
     doc.font('sans').fontSize(8.5).fillColor(MUTED);
     if (c.ruleText) doc.text(c.ruleText, left, doc.y, { width });
-    if (c.spec) doc.text(`Spec: ${c.spec.name}, version ${c.spec.version}. Source (${c.spec.sourceKind}): ${c.spec.sourceText}`, { width });
+    const limits = limitsLine(c.limits);
+    if (limits) doc.font('sans').fontSize(9).fillColor(INK).text(limits, left, doc.y, { width });
+    for (const fact of c.limitFacts) doc.font('sans').fontSize(9).fillColor(INK).text(fact, left, doc.y, { width });
+    doc.font('sans').fontSize(8.5).fillColor(MUTED);
+    if (c.spec) doc.text(`Spec: ${c.spec.name}, version ${c.spec.version}. Source (${c.spec.sourceKind}): ${c.spec.sourceText}`, left, doc.y, { width });
     for (const r of c.readings) {
-      doc.font('mono').fontSize(8.5).fillColor(INK).text(`${r.name}: ${r.display}`, { width, continued: true });
-      doc.font('sans').fillColor(MUTED).text(` — ${r.instrumentName}, ${r.takenOn}; checked by ${r.checkedBy}`, { width });
+      doc.font('mono').fontSize(8.5).fillColor(INK).text(`${r.name}: ${r.figure}`, left, doc.y, { width, continued: true });
+      doc.font('sans').fillColor(MUTED).text(` ${readingFacts(r)}`, { width });
     }
     doc.font('sans').fontSize(8.5).fillColor(MUTED).text(`Checked against the footage by ${c.checkedBy} on ${c.checkedAt.slice(0, 10)}. From story ${c.storyId}, revision ${c.revision}.`, { width });
     doc.moveDown(0.6);
@@ -168,7 +207,8 @@ export async function sheetPdf(sheet: PartSheet, opts: { generatedAt: Date }): P
   doc.font('bold').fontSize(12).fillColor(INK).text('Instruments', left, doc.y, { width });
   doc.moveDown(0.2);
   for (const i of sheet.instruments) {
-    doc.font('sans').fontSize(9).fillColor(INK).text(`${i.name}: ${calibrationWords[i.calibration]}`, { width });
+    doc.font('sans').fontSize(9).fillColor(INK).text(`${i.name}, ${i.serial ? `serial ${i.serial}` : 'no serial recorded'}`, left, doc.y, { width });
+    doc.fillColor(MUTED).fontSize(8.5).text(instrumentCalibration(i), { width, indent: 10 });
     for (const w of i.warnings) doc.fillColor(MUTED).fontSize(8).text(w.message, { width, indent: 10 });
   }
   doc.moveDown(0.6);

@@ -1,7 +1,8 @@
-import { Router } from 'express';
+import { Router, type RequestHandler } from 'express';
 import { partParamsSchema, sheetQuerySchema, verifyQuerySchema, type VerifyQuery } from '@shared/public/sheet.schema';
 import type { Config } from '../../config';
 import { access } from '../../http/authorize';
+import { AppError } from '../../http/errors';
 import { limiter } from '../../http/rate-limit';
 import { validQuery, validate } from '../../http/validate';
 import { sheetPdf } from './sheet.pdf';
@@ -12,6 +13,33 @@ const storyFilter = (res: { locals: Record<string, unknown> }) => {
   return story === undefined ? undefined : [story];
 };
 
+const AGAIN = 'scan the code again or open the part’s current sheet.';
+
+/**
+ * The story and revision numbers a printed sheet's QR code carries. Whoever holds a sheet reads
+ * this message, so it says what is wrong with the address in their words; `details` keep the
+ * fields for programs.
+ */
+export const verifyQueryMessages = {
+  story: `This sheet’s story number is missing or not a number; ${AGAIN}`,
+  rev: `This sheet’s revision number is missing or not a number; ${AGAIN}`,
+  pairs: `This sheet’s address does not give one revision number for each story; ${AGAIN}`,
+} as const;
+
+const printedEntries: RequestHandler = (req, res, next) => {
+  const parsed = verifyQuerySchema.safeParse(req.query);
+  if (parsed.success) {
+    res.locals.query = parsed.data;
+    next();
+    return;
+  }
+  const issues = parsed.error.issues;
+  const details = issues.map((i) => ({ path: i.path.map(String).join('.'), message: i.message }));
+  const on = (field: string) => issues.some((i) => i.path[0] === field && i.code !== 'custom');
+  const message = on('story') ? verifyQueryMessages.story : on('rev') ? verifyQueryMessages.rev : verifyQueryMessages.pairs;
+  throw new AppError(400, 'invalid_request', message, details);
+};
+
 /** Under /api/public: a part's inspection sheet as JSON and its verification. */
 export function sheetsApiRouter(config: Pick<Config, 'publicUrl'>) {
   const router = Router();
@@ -19,7 +47,7 @@ export function sheetsApiRouter(config: Pick<Config, 'publicUrl'>) {
     res.set('Cache-Control', 'public, max-age=60');
     res.json(await partSheet(Number(req.params.partId), config.publicUrl, storyFilter(res)));
   });
-  router.get('/verify/parts/:partId', access.public, validate({ params: partParamsSchema, query: verifyQuerySchema }), async (req, res) => {
+  router.get('/verify/parts/:partId', access.public, validate({ params: partParamsSchema }), printedEntries, async (req, res) => {
     // Read now, every time: the point is to see the database, not a cached copy.
     res.set('Cache-Control', 'no-store');
     const q = validQuery<VerifyQuery>(res);

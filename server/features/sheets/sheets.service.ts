@@ -1,10 +1,14 @@
-import type { CalibrationState } from '@shared/instruments/instrument.schema';
+import { calibrationDueOn, type CalibrationState } from '@shared/instruments/instrument.schema';
+import { convertWrittenLength, symbolFor } from '@shared/measure/format';
 import { decisionRuleText, verdictWords } from '@shared/measure/spec';
-import type { PartSheet, SheetClearance, VerifySheet } from '@shared/public/sheet.schema';
+import type { PartSheet, SheetClearance, SheetReading, VerifySheet } from '@shared/public/sheet.schema';
+import { limitFacts, specLimitTexts } from '@shared/public/spec-limits';
+import type { LengthUnit } from '@shared/measure/units';
 import { STANDING_NOTE } from '@shared/stories/cautions';
 import { AppError, notFound } from '../../http/errors';
 import { Build, Part } from '../builds/build.model';
-import { builderRef, calibrationFromWarnings, currentPublications, evidenceOf } from '../public/publication';
+import { Instrument } from '../instruments/instrument.model';
+import { builderRef, calibrationFromWarnings, currentPublications, evidenceOf, type PublishedEvidence } from '../public/publication';
 import { StoryPublication } from '../review/review.model';
 import { Story } from '../stories/story.model';
 import { User } from '../users/user.model';
@@ -22,6 +26,47 @@ export function verifyUrlFor(publicUrl: string, partId: number, entries: { story
 
 const missing = () => notFound('There is no public inspection sheet for that part.');
 
+/** A zero offset as taken off, with its sign and as written: "+0.0001 in", "−0.002 mm". */
+export function zeroOffsetText(offset: string, unit: LengthUnit): string {
+  const text = offset.trim();
+  const negative = text.startsWith('-') || text.startsWith('−');
+  const digits = text.replace(/^[+−-]/, '');
+  const sign = /[1-9]/.test(digits) ? (negative ? '−' : '+') : '';
+  return `${sign}${digits} ${symbolFor(unit, digits)}`;
+}
+
+type PublishedReading = PublishedEvidence['readings'][number];
+
+/** What the instrument showed, before any zero offset, in the reading's unit. */
+function readText(r: Pick<PublishedReading, 'kind' | 'unit' | 'value' | 'values' | 'passes' | 'stops'>): string {
+  const unit = (text: string) => symbolFor(r.unit, text);
+  if (r.kind === 'bracket') return `blade ${r.passes ?? '?'} enters, ${r.stops ?? '?'} does not (${unit('')})`;
+  if (r.kind === 'repeated') {
+    const values = r.values ?? [];
+    return `${values.join(', ')} ${unit(values.at(-1) ?? '')}`;
+  }
+  return `${r.value ?? '?'} ${unit(r.value ?? '')}`;
+}
+
+/** A reading as a sheet prints it, its figure in the unit of the clearance it belongs to. */
+function sheetReading(r: PublishedReading, clearanceUnit: LengthUnit, serials: Map<number, string>): SheetReading {
+  return {
+    key: r.key,
+    name: r.name,
+    display: r.result.display,
+    read: readText(r),
+    figure: r.unit === clearanceUnit ? r.result.display : (convertWrittenLength(r.result.display, r.unit, clearanceUnit) ?? r.result.display),
+    instrumentId: r.instrumentId,
+    instrumentName: r.instrumentName,
+    instrumentSerial: serials.get(r.instrumentId) ?? '',
+    takenOn: r.takenOn,
+    zeroOffset: r.zeroCheck ? { offset: r.zeroCheck.offset, unit: r.zeroCheck.unit, text: zeroOffsetText(r.zeroCheck.offset, r.zeroCheck.unit) } : null,
+    zeroCheckMissing: r.warnings.some((w) => w.code === 'no-zero-check'),
+    checkedBy: r.checked.byName,
+    checkedAt: r.checked.at,
+  };
+}
+
 /**
  * The sheet of a part: every checked clearance that a current public entry of its build
  * published with a reading taken on the part, with the instruments and who checked. `storyIds`
@@ -35,9 +80,8 @@ export async function partSheet(partId: number, publicUrl: string, storyIds?: nu
     (a, b) => a.publishedAt.getTime() - b.publishedAt.getTime() || a.id - b.id,
   );
 
-  const clearances: SheetClearance[] = [];
+  const found: { p: StoryPublication; c: PublishedEvidence['clearances'][number]; readings: PublishedReading[] }[] = [];
   const used: StoryPublication[] = [];
-  const instruments = new Map<number, { id: number; name: string; calibration: CalibrationState; warnings: Map<string, { code: string; message: string }> }>();
   for (const p of publications) {
     const e = evidenceOf(p);
     const readingById = new Map(e.readings.map((r) => [r.id, r]));
@@ -46,47 +90,56 @@ export async function partSheet(partId: number, publicUrl: string, storyIds?: nu
     for (const c of e.clearances) {
       if (!c.result || !c.checked || !c.terms.some((t) => onPart.has(t.readingId))) continue;
       any = true;
-      const readings = c.terms.map((t) => readingById.get(t.readingId)).filter((r) => r !== undefined);
-      for (const r of readings) {
-        const known = instruments.get(r.instrumentId) ?? { id: r.instrumentId, name: r.instrumentName, calibration: 'in-date' as CalibrationState, warnings: new Map() };
-        const state = calibrationFromWarnings(r.warnings);
-        if (calibrationRank[state] > calibrationRank[known.calibration]) known.calibration = state;
-        for (const w of r.warnings) if (w.code === 'calibration-overdue' || w.code === 'no-calibration-record') known.warnings.set(w.message, w);
-        instruments.set(r.instrumentId, known);
-      }
-      const result = c.result;
-      clearances.push({
-        key: c.key,
-        name: c.name,
-        unit: result.unit,
-        valueUm: result.valueUm,
-        expandedUncertaintyUm: result.expandedUncertaintyUm,
-        coverageFactor: result.coverageFactor,
-        display: result.display,
-        verdict: result.verdict,
-        verdictWords: result.verdict ? verdictWords[result.verdict] : 'no spec',
-        rule: result.rule,
-        ruleText: result.rule ? decisionRuleText[result.rule] : null,
-        spec: c.spec ? { name: c.spec.name, version: c.spec.version, sourceKind: c.spec.sourceKind, sourceText: c.spec.sourceText } : null,
-        checkedBy: c.checked.byName,
-        checkedAt: c.checked.at,
-        storyId: p.storyId,
-        revision: p.number,
-        readings: readings.map((r) => ({
-          key: r.key,
-          name: r.name,
-          display: r.result.display,
-          instrumentId: r.instrumentId,
-          instrumentName: r.instrumentName,
-          takenOn: r.takenOn,
-          checkedBy: r.checked.byName,
-          checkedAt: r.checked.at,
-        })),
-      });
+      found.push({ p, c, readings: c.terms.map((t) => readingById.get(t.readingId)).filter((r) => r !== undefined) });
     }
     if (any) used.push(p);
   }
   if (used.length === 0) throw missing();
+
+  // Serials and calibration dates are the register's (the publication keeps the figures as judged, not these).
+  const register = new Map(
+    (await Instrument.findAll({ where: { id: [...new Set(found.flatMap((f) => f.readings.map((r) => r.instrumentId)))] } })).map((i) => [i.id, i]),
+  );
+  const serials = new Map([...register].map(([id, i]) => [id, i.serial ?? '']));
+
+  const clearances: SheetClearance[] = [];
+  const instruments = new Map<number, { id: number; name: string; calibration: CalibrationState; warnings: Map<string, { code: string; message: string }>; days: Set<string> }>();
+  for (const { p, c, readings } of found) {
+    for (const r of readings) {
+      const known = instruments.get(r.instrumentId) ?? { id: r.instrumentId, name: r.instrumentName, calibration: 'in-date' as CalibrationState, warnings: new Map(), days: new Set<string>() };
+      const state = calibrationFromWarnings(r.warnings);
+      if (calibrationRank[state] > calibrationRank[known.calibration]) known.calibration = state;
+      for (const w of r.warnings) if (w.code === 'calibration-overdue' || w.code === 'no-calibration-record') known.warnings.set(w.message, w);
+      known.days.add(r.takenOn);
+      instruments.set(r.instrumentId, known);
+    }
+    const result = c.result!;
+    const limits = result.band ? specLimitTexts(result.band, result.unit) : { band: null, preferred: null, reject: null };
+    clearances.push({
+      key: c.key,
+      name: c.name,
+      unit: result.unit,
+      valueUm: result.valueUm,
+      expandedUncertaintyUm: result.expandedUncertaintyUm,
+      coverageFactor: result.coverageFactor,
+      display: result.display,
+      verdict: result.verdict,
+      verdictWords: result.verdict ? verdictWords[result.verdict] : 'no spec',
+      preferredVerdict: result.preferredVerdict ?? null,
+      rejectVerdict: result.rejectVerdict ?? null,
+      rule: result.rule,
+      ruleText: result.rule ? decisionRuleText[result.rule] : null,
+      spec: c.spec ? { name: c.spec.name, version: c.spec.version, sourceKind: c.spec.sourceKind, sourceText: c.spec.sourceText } : null,
+      band: result.band,
+      limits,
+      limitFacts: result.verdict ? limitFacts({ preferredVerdict: result.preferredVerdict ?? null, rejectVerdict: result.rejectVerdict ?? null }, limits) : [],
+      checkedBy: c.checked.byName,
+      checkedAt: c.checked.at,
+      storyId: p.storyId,
+      revision: p.number,
+      readings: readings.map((r) => sheetReading(r, result.unit, serials)),
+    });
+  }
 
   const people = new Map((await User.findAll({ where: { id: [build.ownerId, ...used.map((p) => p.publishedBy)] } })).map((u) => [u.id, u]));
   const owner = people.get(build.ownerId)!;
@@ -104,7 +157,20 @@ export async function partSheet(partId: number, publicUrl: string, storyIds?: nu
       publishedBy: people.get(p.publishedBy)?.displayName ?? '',
     })),
     clearances,
-    instruments: [...instruments.values()].map((i) => ({ id: i.id, name: i.name, calibration: i.calibration, warnings: [...i.warnings.values()] as PartSheet['instruments'][number]['warnings'] })),
+    instruments: [...instruments.values()].map((i) => {
+      const record = register.get(i.id);
+      const calibratedOn = record?.lastCalibratedOn ?? null;
+      return {
+        id: i.id,
+        name: i.name,
+        serial: record?.serial ?? '',
+        calibratedOn,
+        calibrationDueOn: calibrationDueOn(calibratedOn, record?.calibrationIntervalDays ?? null),
+        readingDays: [...i.days].sort(),
+        calibration: i.calibration,
+        warnings: [...i.warnings.values()] as PartSheet['instruments'][number]['warnings'],
+      };
+    }),
     checkedBy,
     verifyUrl: verifyUrlFor(publicUrl, part.id, entries),
     pdfUrl: `/sheets/parts/${part.id}.pdf${storyIds?.length === 1 ? `?story=${storyIds[0]}` : ''}`,
@@ -124,7 +190,7 @@ export async function verifySheet(partId: number, publicUrl: string, printed: { 
   const entries = printed.storyIds.map((storyId, i) => {
     const now = current.get(storyId) ?? null;
     const printedRevision = printed.revisions[i]!;
-    return { storyId, printedRevision, currentRevision: now?.number ?? null, current: now !== null && now.number === printedRevision };
+    return { storyId, title: now?.title ?? null, printedRevision, currentRevision: now?.number ?? null, current: now !== null && now.number === printedRevision };
   });
   const stillPublic = entries.filter((e) => e.currentRevision !== null).map((e) => e.storyId);
   // Still public, yet no longer with a checked clearance on this part: nothing to show, and not current.

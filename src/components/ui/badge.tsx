@@ -1,5 +1,6 @@
 import type { ComponentProps, ReactNode } from 'react';
 import { verdictWords, type Verdict } from '@shared/measure/spec';
+import { limitFact, type LimitKind } from '@shared/public/spec-limits';
 import { cn } from '@/lib/cn';
 
 export type BadgeTone = 'neutral' | 'strong' | 'accent';
@@ -87,7 +88,10 @@ export function VerdictMark({ verdict, label, className }: { verdict: VerdictCod
 
 export interface VerdictBadgeProps {
   verdict: VerdictCode;
-  /** Replaces the standard words, e.g. "Within preferred band". Keep it a verdict. */
+  /**
+   * Replaces the standard words, e.g. "Current". Keep it a verdict against the spec: words about
+   * the preferred band or the reject limit are shown as a `LimitFact` instead (see below).
+   */
   children?: ReactNode;
   /** The rule beside the verdict, e.g. "guarded by U, k = 2". Shown muted after the words. */
   rule?: ReactNode;
@@ -95,8 +99,36 @@ export interface VerdictBadgeProps {
   className?: string;
 }
 
-/** A verdict as shape + words (+ the rule applied), readable in print and without colour. */
+/** Which secondary limit words passed as a badge's children are about, if any. */
+function limitKindOf(children: ReactNode): LimitKind | null {
+  if (typeof children !== 'string') return null;
+  if (/preferred band/i.test(children)) return 'preferred';
+  if (/reject limit/i.test(children)) return 'reject';
+  return null;
+}
+
+/**
+ * Where a value lies against the preferred band or the reject limit, in plain words ("Outside the
+ * preferred band 0.003–0.005 in."): a secondary fact beside the one verdict, so it has neither a
+ * verdict's shape nor its colour.
+ */
+export function LimitFact({ kind, verdict, limit = null, className }: { kind: LimitKind; verdict: VerdictCode; limit?: string | null; className?: string }) {
+  return (
+    <span data-limit-fact={kind} className={cn('text-xs text-ink', className)}>
+      {limitFact(kind, verdict, limit)}
+    </span>
+  );
+}
+
+/**
+ * A verdict as shape + words (+ the rule applied), readable in print and without colour. One per
+ * judged value: a badge asked to carry a judgement against the preferred band or the reject limit
+ * renders it as a `LimitFact` instead, so no screen shows "Out of spec" beside a green "Clear of the
+ * reject limit".
+ */
 export function VerdictBadge({ verdict, children, rule, size = 'md', className }: VerdictBadgeProps) {
+  const limitKind = limitKindOf(children);
+  if (limitKind) return <LimitFact kind={limitKind} verdict={verdict} className={className} />;
   return (
     <span
       data-verdict={verdict}

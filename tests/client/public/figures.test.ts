@@ -34,7 +34,10 @@ describe('a clearance in the reader’s system', () => {
     const u = 2 * (2.54 / Math.sqrt(12));
     expect(systemFigure(14330.68, u, 'imperial', resolution).main).toBe('0.5642 in ± 0.000058 in');
     expect(systemFigure(14330.68, u, 'metric', resolution).main).toBe('14.331 mm ± 0.0015 mm');
+    // The fine unit accompanies figures below one main unit only (shared/measure/format.ts,
+    // showsFineUnit): 0.5642 in is under an inch, but 14.331 mm is never written "14331 µm".
     expect(systemFigure(14330.68, u, 'imperial', resolution).fine).toBe('564.2 thou ± 0.058 thou');
+    expect(systemFigure(14330.68, u, 'metric', resolution).fine).toBeNull();
   });
 
   it('takes the resolution from the engine input when the publication carries it, and none for a feeler bracket', () => {
@@ -43,11 +46,17 @@ describe('a clearance in the reader’s system', () => {
     expect(readingResolutionPm({ kind: 'bracket', unit: 'in', value: null, values: null })).toBeNull();
   });
 
-  it('writes spec limits exactly, without trailing zeros, in either system', () => {
-    // 0.003 in = 76.2 µm and 0.005 in = 127 µm exactly.
-    expect(bandText({ minUm: 76.2, maxUm: 127 }, 'in')).toBe('0.003 in to 0.005 in');
-    expect(bandText({ minUm: 76.2, maxUm: 127 }, 'mm')).toBe('0.0762 mm to 0.127 mm');
-    expect(bandText({ minUm: null, maxUm: 127 }, 'thou')).toBe('at most 5 thou');
+  it('writes spec limits as the spec wrote them, and converted at the places they support', () => {
+    const band = (minUm: number | null, maxUm: number | null) => ({ minUm, maxUm, preferredMinUm: null, preferredMaxUm: null, rejectUm: null });
+    // 0.003 in = 76.2 µm and 0.005 in = 127 µm exactly (1 in = 25.4 mm, NIST SP 811 B.8).
+    expect(bandText(band(76.2, 127), 'in', 'in')).toBe('0.003–0.005 in');
+    // Whole thou convert to steps of 0.01 mm (NIST SP 811 B.7.2), shown to 0.001 mm across systems
+    // (a limit is not shown coarser than the figures judged against it; common practice, no published source).
+    expect(bandText(band(76.2, 127), 'in', 'mm')).toBe('0.076–0.127 mm');
+    // 0.0015–0.0040 in = 0.0381–0.1016 mm exactly; 0.0001 in = 0.00254 mm, so steps of 0.001 mm (B.7.2).
+    expect(bandText(band(38.1, 101.6), 'in', 'mm')).toBe('0.038–0.102 mm');
+    expect(bandText(band(38.1, 101.6), 'in', 'in')).toBe('0.0015–0.0040 in');
+    expect(bandText(band(null, 127), 'in', 'thou')).toBe('at most 5 thou');
     expect(exactText(micrometresToPicometres(25400), 'in')).toBe('1');
   });
 });

@@ -3,7 +3,11 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { clipSchema, type Clip as ClipDto } from '@shared/clips/clip.schema';
+import { CLIP_JOB_EXPIRY_CEILING_S, clipJobExpireSeconds, enqueueClip, processClip } from '../../../server/features/clips/clip.job';
 import { Clip } from '../../../server/features/clips/clip.model';
+import { clipJobBoundS, transcodeTimeoutS } from '../../../server/features/clips/media/limits';
+import { startQueue } from '../../../server/jobs/queue';
+import { createLogger } from '../../../server/logger';
 import { makeTestClip } from '../../support/clips';
 import { csrfToken, signIn, startTestApp, type TestApp } from '../../support/test-app';
 
@@ -100,6 +104,112 @@ describe('processing survives faults', () => {
     } finally {
       await second.close();
       await first.close();
+    }
+  });
+});
+
+describe('a run that a newer one has replaced', () => {
+  const logger = createLogger({ logLevel: 'silent' });
+
+  it.each([
+    ['finishes', false],
+    ['fails', true],
+  ])('cannot change a clip the newer run made ready when it %s late', async (_how, failLate) => {
+    const t = await startTestApp(); // no worker: the test runs the two attempts itself
+    try {
+      const { agent, token, buildId } = await setUp(t);
+      const res = await agent.post(`/api/builds/${buildId}/clips`).set('x-csrf-token', token).attach('file', mp4).expect(201);
+      const id = res.body.clip.id as number;
+      let arrive!: () => void;
+      const arrived = new Promise<void>((resolve) => (arrive = resolve));
+      let release!: () => void;
+      const released = new Promise<void>((resolve) => (release = resolve));
+      // The first run stalls with its strip made, as a worker paused for longer than the job's expiry.
+      const stale = processClip(
+        {
+          storage: t.storage,
+          logger,
+          faultAt: async (stage) => {
+            if (stage !== 'stills') return;
+            arrive();
+            await released;
+            if (failLate) throw new Error('simulated failure after the stall');
+          },
+        },
+        id,
+        { retryCount: 0, retryLimit: 2 },
+      );
+      await arrived;
+      // pg-boss hands the expired job out again and the second run finishes the clip.
+      await processClip({ storage: t.storage, logger }, id, { retryCount: 1, retryLimit: 2 });
+      const ready = (await Clip.findByPk(id))!;
+      expect(ready).toMatchObject({ status: 'ready', progress: 100, attempts: 2, failureReason: null });
+      const thumbnails = path.join(t.mediaDir, 'clips', ready.storagePrefix, 'thumbnails.jpg');
+      const written = fs.statSync(thumbnails).mtimeMs;
+
+      release();
+      await expect(stale).resolves.toBeUndefined(); // nothing for pg-boss to retry either
+      const after = (await Clip.findByPk(id))!;
+      expect(after.toJSON()).toEqual(ready.toJSON());
+      // Its files are the newer run's, untouched.
+      expect(fs.statSync(thumbnails).mtimeMs).toBe(written);
+      expect(fs.existsSync(path.join(t.mediaDir, 'clips', ready.storagePrefix, 'poster.jpg'))).toBe(true);
+    } finally {
+      await t.close();
+    }
+  });
+
+  it('a duplicate run that starts after the clip is ready leaves it alone', async () => {
+    const t = await startTestApp();
+    try {
+      const { agent, token, buildId } = await setUp(t);
+      const res = await agent.post(`/api/builds/${buildId}/clips`).set('x-csrf-token', token).attach('file', mp4).expect(201);
+      const id = res.body.clip.id as number;
+      await processClip({ storage: t.storage, logger }, id, { retryCount: 0, retryLimit: 2 });
+      const ready = (await Clip.findByPk(id))!;
+      expect(ready.status).toBe('ready');
+      await processClip({ storage: t.storage, logger }, id, { retryCount: 0, retryLimit: 2 });
+      expect((await Clip.findByPk(id))!.toJSON()).toEqual(ready.toJSON());
+    } finally {
+      await t.close();
+    }
+  });
+});
+
+describe('how long pg-boss lets one attempt run', () => {
+  it('grows with the clip’s duration, between the queue’s setting and a ceiling under 24 h', () => {
+    // A short clip: the queue's own expiry (JOB_EXPIRE_SECONDS) is already longer than its work can take.
+    expect(clipJobExpireSeconds(3, 1800)).toBe(1800);
+    // Ten minutes: every step at its bound, longer than the transcode's own limit.
+    expect(clipJobExpireSeconds(600, 1800)).toBe(clipJobBoundS(600));
+    expect(clipJobBoundS(600)).toBeGreaterThan(transcodeTimeoutS(600));
+    expect(clipJobExpireSeconds(1200, 1800)).toBeGreaterThan(clipJobExpireSeconds(600, 1800));
+    // Two hours would need more than pg-boss accepts (under 24 h): the ceiling.
+    expect(clipJobExpireSeconds(2 * 3600, 1800)).toBe(CLIP_JOB_EXPIRY_CEILING_S);
+    expect(CLIP_JOB_EXPIRY_CEILING_S).toBeLessThan(24 * 3600);
+    // A clip with no known duration gets the queue's setting.
+    expect(clipJobExpireSeconds(Number.NaN, 1800)).toBe(1800);
+  });
+
+  it('is written on the queued job, from the duration stored with the clip', async () => {
+    const t = await startTestApp();
+    const queue = await startQueue(t.config); // a queue with no worker, so the jobs stay as queued
+    try {
+      const { agent, token, buildId } = await setUp(t);
+      const res = await agent.post(`/api/builds/${buildId}/clips`).set('x-csrf-token', token).attach('file', mp4).expect(201);
+      const id = res.body.clip.id as number;
+      const row = (await Clip.findByPk(id))!;
+      await row.update({ probe: { ...row.probe!, durationS: 600 } });
+      await enqueueClip(queue, id);
+      const [rows] = await Clip.sequelize!.query(
+        `SELECT EXTRACT(epoch FROM expire_in)::int AS seconds FROM pgboss.job WHERE name = :name AND singleton_key = :key`,
+        { replacements: { name: queue.names.clipProcess, key: `clip-${id}` } },
+      );
+      expect(rows).toEqual([{ seconds: clipJobExpireSeconds(600, t.config.jobs.expireSeconds) }]);
+      expect((rows[0] as { seconds: number }).seconds).toBeGreaterThan(t.config.jobs.expireSeconds);
+    } finally {
+      await queue.boss.stop({ graceful: false, wait: true });
+      await t.close();
     }
   });
 });

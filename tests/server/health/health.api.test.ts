@@ -1,7 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { errorBodySchema } from '@shared/http/error.schema';
-import { startTestApp, type TestApp } from '../../support/test-app';
+import { mediaBinaries } from '../../../server/features/clips/media/binaries';
+import { signIn, startTestApp, type TestApp } from '../../support/test-app';
 
 let t: TestApp;
 beforeAll(async () => {
@@ -13,6 +14,23 @@ describe('GET /api/health', () => {
   it('answers 200 when the database is reachable', async () => {
     const res = await request(t.app).get('/api/health').expect(200);
     expect(res.body).toMatchObject({ status: 'ok', database: 'reachable' });
+  });
+
+  it('tells anyone but an admin only the status, never which ffmpeg runs', async () => {
+    const anonymous = await request(t.app).get('/api/health').expect(200);
+    expect(Object.keys(anonymous.body).sort()).toEqual(['database', 'latencyMs', 'status']);
+    const builder = await (await signIn(t, 'demo-builder')).get('/api/health').expect(200);
+    expect(Object.keys(builder.body).sort()).toEqual(['database', 'latencyMs', 'status']);
+  });
+
+  it("tells an admin which ffmpeg decodes uploads: its version line and whether it is the system's", async () => {
+    const admin = await signIn(t, 'demo-admin');
+    const res = await admin.get('/api/health').expect(200);
+    const { source, version } = mediaBinaries();
+    expect(res.body).toMatchObject({ status: 'ok', database: 'reachable', media: { ffmpeg: { source, version } } });
+    expect(res.body.media.ffmpeg.version).toMatch(/^ffmpeg version \S+/);
+    expect(['system', 'packaged']).toContain(res.body.media.ffmpeg.source);
+    expect(res.headers['cache-control']).toBe('no-store');
   });
 
   it('answers 503 in the error contract when the database is not reachable', async () => {

@@ -5,6 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { listRoutes } from '../../../server/http/routes';
 import { Follow } from '../../../server/features/follows/follow.model';
 import { Question } from '../../../server/features/questions/question.model';
+import { ClipUpload } from '../../../server/features/clips/clip-upload.model';
 import { makeTestClip } from '../../support/clips';
 import {
   actors,
@@ -17,6 +18,7 @@ import {
   type Session,
 } from '../../support/matrix-fixtures';
 import { startTestApp, type TestApp } from '../../support/test-app';
+import { createUpload, headUpload } from '../../support/tus';
 
 /*
  * The authorization matrix: every route the app mounts (from listRoutes(), so a new route
@@ -79,6 +81,13 @@ const TABLE: Record<string, Expected> = {
   'GET /api/builds/:buildId/clips':          { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   'POST /api/builds/:buildId/clips':         { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
   'PUT /api/builds/:buildId/clips/order':    { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
+  // Resumable uploads (tus), as for uploading a clip: only the build's builder starts one, asks
+  // where it stands, continues it or cancels it; an admin passes the role check and is refused
+  // there (nobody writes in a builder's name). HEAD answers carry no body, only the status.
+  'POST /api/builds/:buildId/uploads':             { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+  'HEAD /api/builds/:buildId/uploads/:uploadId':   { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
+  'PATCH /api/builds/:buildId/uploads/:uploadId':  { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
+  'DELETE /api/builds/:buildId/uploads/:uploadId': { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
 
   // One clip and its media: reading as for its build; changing as for its build.
   'GET /api/clips/:clipId':                  { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
@@ -263,6 +272,8 @@ interface Shape {
   ownSession?: boolean;
   /** Sent without the CSRF header, because the route is exempt (a signed token is its authority). */
   noCsrf?: boolean;
+  /** Request headers (the tus protocol's); may read the current state first. */
+  headers?: (actor: Actor) => Record<string, string> | Promise<Record<string, string>>;
 }
 
 /** The resource's lock version now, as its builder sees it (a PATCH sends the version it started from). */
@@ -272,6 +283,15 @@ async function lockVersionAt(url: string, field: string): Promise<number> {
 }
 
 const clip = () => ({ file: clipFile, name: 'matrix-upload.mp4' });
+
+/** The owner's resumable upload every actor asks about and continues, and one per actor to cancel. */
+const uploads = { url: '', id: '', toCancel: {} as Record<Actor, string>, offsetBefore: 0 };
+const tusHeaders = { 'Tus-Resumable': '1.0.0' };
+/** Where the fixture upload stands now, as its builder sees it. */
+async function uploadOffset(): Promise<number> {
+  const res = await headUpload(sessions.owner.agent, uploads.url).expect(200);
+  return Number(res.headers['upload-offset']);
+}
 const png = () => ({ file: pngFile, name: 'matrix.png' });
 const token = () => `?token=${encodeURIComponent(fx.unsubscribeToken)}`;
 const publishedStory = () => ({ storyId: fx.published.storyId });
@@ -312,6 +332,19 @@ const SHAPES: Record<string, Shape> = {
   'POST /api/builds': { body: () => ({ title: 'Matrix new build', parts: [{ name: 'Matrix crank' }] }) },
   'PATCH /api/builds/:buildId': { body: () => ({ title: 'Matrix check title' }) },
   'POST /api/builds/:buildId/clips': { attach: clip },
+  'POST /api/builds/:buildId/uploads': {
+    headers: () => ({ ...tusHeaders, 'Upload-Length': '1000', 'Upload-Metadata': `filename ${Buffer.from('matrix-resumable.mp4').toString('base64')}` }),
+  },
+  'HEAD /api/builds/:buildId/uploads/:uploadId': { headers: () => tusHeaders },
+  'PATCH /api/builds/:buildId/uploads/:uploadId': {
+    before: async () => {
+      uploads.offsetBefore = await uploadOffset();
+    },
+    headers: () => ({ ...tusHeaders, 'Upload-Offset': String(uploads.offsetBefore), 'Content-Type': 'application/offset+octet-stream' }),
+    // One byte, so a success moves the offset and a refusal visibly does not.
+    body: () => Buffer.from('m'),
+  },
+  'DELETE /api/builds/:buildId/uploads/:uploadId': { headers: () => tusHeaders, params: (actor) => ({ uploadId: uploads.toCancel[actor] }) },
   'PATCH /api/clips/:clipId': { body: () => ({ title: 'x' }) },
   'DELETE /api/clips/:clipId': { params: (actor) => ({ clipId: fx.clipToDelete[actor] }) },
   'GET /api/clips/:clipId/frame': { query: () => '?t=0.5' },
@@ -427,6 +460,7 @@ function fill(routePath: string, actor: Actor, shape: Shape): string {
     login: fx.published.ownerLogin,
     partId: fx.published.partId,
     questionId: fx.published.questionId,
+    uploadId: uploads.id,
     ...shape.params?.(actor),
   };
   return routePath.replace(/:(\w+)/g, (_, name: string) => {
@@ -442,11 +476,12 @@ async function send(routeKey: string, actor: Actor) {
   const s = shape.ownSession ? await sessionFor(t, actor) : sessions[actor];
   await shape.before?.(actor);
   const url = fill(routePath, actor, shape) + (shape.query?.() ?? '');
-  const verb = method.toLowerCase() as 'get' | 'post' | 'put' | 'patch' | 'delete';
+  const verb = method.toLowerCase() as 'get' | 'head' | 'post' | 'put' | 'patch' | 'delete';
   // Worked out before the request starts, so reading the current lock version is not part of it.
   const body = routeKey === 'PUT /api/builds/:buildId/clips/order' ? { clipIds: await currentClipIds() } : await shape.body?.(actor);
   let req = s.agent[verb](url);
-  if (verb !== 'get' && !shape.noCsrf) req = req.set('x-csrf-token', s.token);
+  if (verb !== 'get' && verb !== 'head' && !shape.noCsrf) req = req.set('x-csrf-token', s.token);
+  if (shape.headers) req = req.set(await shape.headers(actor));
   if (shape.attach) {
     const { file, name } = shape.attach();
     return { s, res: await req.attach('file', file, name) };
@@ -473,6 +508,27 @@ let answersSoFar = 0;
  * nothing; a success really did the one thing asked, to the actor's own throwaway.
  */
 const EFFECTS: Record<string, (actor: Actor, status: number, s: Session, res: { headers: Record<string, string>; body: unknown }) => Promise<void>> = {
+  // Resumable uploads: a created upload is the owner's and is at the address given; nobody else
+  // starts one on the build; a PATCH moved the offset by its one byte or not at all; a cancelled
+  // upload is gone, a refused cancel leaves it.
+  'POST /api/builds/:buildId/uploads': async (actor, status, _s, res) => {
+    if (status === 201) {
+      const row = await ClipUpload.findByPk(res.headers.location!.split('/').pop()!);
+      expect({ build: row?.buildId, owner: row?.ownerId }).toEqual({ build: fx.buildId, owner: fx.actorIds.owner });
+    } else if (idOf(actor) !== null) {
+      expect(await ClipUpload.count({ where: { buildId: fx.buildId, ownerId: idOf(actor)! } })).toBe(0);
+    }
+  },
+  'HEAD /api/builds/:buildId/uploads/:uploadId': async (_actor, status, _s, res) => {
+    if (status === 200) expect(res.headers['upload-length']).toBe('1000');
+    else expect(res.headers['upload-offset']).toBeUndefined();
+  },
+  'PATCH /api/builds/:buildId/uploads/:uploadId': async (_actor, status) => {
+    expect(await uploadOffset()).toBe(uploads.offsetBefore + (status === 204 ? 1 : 0));
+  },
+  'DELETE /api/builds/:buildId/uploads/:uploadId': async (actor, status) => {
+    await headUpload(sessions.owner.agent, `/api/builds/${fx.buildId}/uploads/${uploads.toCancel[actor]}`).expect(status === 204 ? 404 : 200);
+  },
   'DELETE /api/clips/:clipId': (actor, status) => stillThere(`/api/clips/${fx.clipToDelete[actor]}`, status === 204),
   'DELETE /api/moments/:momentId': async (actor, status) => {
     const list = await sessions.owner.agent.get(`/api/clips/${fx.clipId}/moments`).expect(200);
@@ -605,6 +661,13 @@ beforeAll(async () => {
   const opened = await Promise.all(actors.map((actor) => sessionFor(t, actor)));
   actors.forEach((actor, i) => (sessions[actor] = opened[i]!));
   fx = await buildMatrixFixtures(t, sessions, { clip: clipFile, image: pngFile });
+  const startUpload = async () => {
+    const res = await createUpload(sessions.owner.agent, sessions.owner.token, fx.buildId, 1000, 'matrix-resumable.mp4').expect(201);
+    return res.headers.location!.split('/').pop()!;
+  };
+  uploads.id = await startUpload();
+  uploads.url = `/api/builds/${fx.buildId}/uploads/${uploads.id}`;
+  for (const actor of actors) uploads.toCancel[actor] = await startUpload();
 }, 240_000);
 
 afterAll(async () => {
@@ -638,7 +701,8 @@ describe.each(Object.entries(TABLE))('%s', (routeKey, expected) => {
     const { s, res } = await send(routeKey, actor);
     expect(res.status, `${routeKey} as ${actor}: ${JSON.stringify(res.body ?? '').slice(0, 300)}`).toBe(status);
 
-    if (status === 401 || status === 403 || status === 404) {
+    // A HEAD answer has no body to read the code from.
+    if ((status === 401 || status === 403 || status === 404) && !routeKey.startsWith('HEAD ')) {
       // A refusal is our error body, and carries no resource data.
       expect(res.body?.error?.code).toBe({ 401: 'unauthorized', 403: 'forbidden', 404: 'not_found' }[status]);
     }

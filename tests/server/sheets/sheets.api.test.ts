@@ -6,8 +6,11 @@ import * as pdfjs from 'pdfjs-dist/legacy/build/pdf.mjs';
 import { PNG } from 'pngjs';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { clearanceResponseSchema } from '@shared/clearances/clearance.schema';
+import { instrumentResponseSchema } from '@shared/instruments/instrument.schema';
 import { partSheetSchema, verifySheetSchema, type PartSheet } from '@shared/public/sheet.schema';
 import { sheetQrPng } from '../../../server/features/sheets/sheet.pdf';
+import { verifyQueryMessages } from '../../../server/features/sheets/sheets.routes';
 import { makeTestClip } from '../../support/clips';
 import { sessionFor, type Session } from '../../support/matrix-fixtures';
 import { fixtureBody, lockVersionOf, makeReviewFixture, move, publishThroughReview, type ReviewFixture } from '../../support/review-fixtures';
@@ -24,7 +27,47 @@ let published: ReviewFixture;
 let draft: ReviewFixture;
 let inReview: ReviewFixture;
 let withdrawn: ReviewFixture;
+let limited: ReviewFixture;
 let sheet: PartSheet;
+
+const send = (s: Session, verb: 'post' | 'patch', url: string, body: object) => s.agent[verb](url).set('x-csrf-token', s.token).send(body);
+
+/**
+ * The invented pump of the review fixture, judged against a spec with a preferred band and a
+ * reject limit, its outside micrometer given its own serial and a zero check on the day that read
+ * one tenth high: rotor height 0.5595 in − 0.0001 in = 0.5594 in, so the end float is
+ * 0.5642 in − 0.5594 in = 0.0048 in (exact decimal arithmetic). That is inside the 0.0020–0.0060 in
+ * band and clear of the 0.0080 in reject limit, but outside the 0.0030–0.0040 in preferred band, by
+ * more than U ≈ 0.00008 in either way (the guarded rule, ISO 14253-1).
+ */
+async function makeLimitedFixture(clipFile: string): Promise<ReviewFixture> {
+  const f = await makeReviewFixture(owner, {
+    clipFile,
+    title: 'Sheet test: limits',
+    body: fixtureBody({ clearanceWords: 'End float is 0.0048 in, within spec' }),
+  });
+  const mic = instrumentResponseSchema.parse((await owner.agent.get(`/api/instruments/${f.instruments.mic}`).expect(200)).body).instrument;
+  await send(owner, 'patch', `/api/instruments/${mic.id}`, { serial: 'OM-1147-T', lockVersion: mic.lockVersion }).expect(200);
+  await send(owner, 'post', `/api/instruments/${mic.id}/zero-checks`, { checkedOn: '2026-11-20', standardSize: '0.0000', shown: '0.0001' }).expect(201);
+  const spec = (
+    await send(owner, 'post', '/api/specs', {
+      name: 'Pump end float with limits (invented, test)',
+      appliesTo: 'Invented flat-twin rotor oil pump',
+      unit: 'in',
+      min: '0.0020',
+      max: '0.0060',
+      preferredMin: '0.0030',
+      preferredMax: '0.0040',
+      reject: '0.0080',
+      rule: 'guarded',
+      source: { kind: 'manual', text: 'Invented workshop manual, section 4 (test figures)' },
+    }).expect(201)
+  ).body as { spec: { latest: { id: number } } };
+  const clearance = clearanceResponseSchema.parse(
+    (await send(owner, 'patch', `/api/clearances/${f.clearance.id}`, { specVersionId: spec.spec.latest.id, lockVersion: f.clearance.lockVersion }).expect(200)).body,
+  ).clearance;
+  return { ...f, clearance };
+}
 
 beforeAll(async () => {
   work = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-sheets-'));
@@ -39,6 +82,8 @@ beforeAll(async () => {
   withdrawn = await makeReviewFixture(owner, { clipFile, title: 'Sheet test: withdrawn' });
   await publishThroughReview(owner, moderator, withdrawn);
   await move(moderator, withdrawn.story.id, 'withdraw', { reason: 'the still does not show the blade' });
+  limited = await makeLimitedFixture(clipFile);
+  await publishThroughReview(owner, moderator, limited);
   sheet = partSheetSchema.parse((await request(t.app).get(`/api/public/parts/${published.partId}/sheet`).expect(200)).body);
 }, 240_000);
 
@@ -46,6 +91,20 @@ afterAll(async () => {
   await t?.close();
   if (work) fs.rmSync(work, { recursive: true, force: true });
 });
+
+/** GET a sheet's PDF as bytes. */
+async function pdfOf(partId: number): Promise<Uint8Array> {
+  const res = await request(t.app)
+    .get(`/sheets/parts/${partId}.pdf`)
+    .buffer(true)
+    .parse((r, cb) => {
+      const chunks: Buffer[] = [];
+      r.on('data', (c: Buffer) => chunks.push(c));
+      r.on('end', () => cb(null, Buffer.concat(chunks)));
+    })
+    .expect(200);
+  return new Uint8Array(res.body as Buffer);
+}
 
 /** Every text item of every page, joined with spaces. */
 async function pdfText(data: Uint8Array): Promise<{ text: string; images: number; qrImages: { width: number; height: number; rgba: Uint8ClampedArray }[] }> {
@@ -159,7 +218,11 @@ describe('the printable sheet', () => {
     const { text, images, qrImages } = await pdfText(pdf.slice());
     expect(text).toContain('TP-0417');
     expect(text).toContain(sheet.clearances[0]!.display);
-    expect(text).toContain('within spec');
+    expect(text).toContain('Within spec');
+    // No preferred band and no reject limit on this spec: the band alone, and no second verdict.
+    expect(text).toContain('Spec band 0.003–0.005 in');
+    expect(text).not.toContain('preferred band');
+    expect(text).not.toContain('reject limit');
     expect(text).toContain('Dagny Orlov');
     expect(text).toContain('Pump end float (invented, test), version 1');
     expect(text).toContain('qualified practice');
@@ -177,13 +240,61 @@ describe('the printable sheet', () => {
   });
 });
 
+describe('the limits a sheet states', () => {
+  it('gives the band, preferred band and reject limit with one verdict, the readings’ serials and zero offsets, and each instrument’s calibration due date', async () => {
+    const res = partSheetSchema.parse((await request(t.app).get(`/api/public/parts/${limited.partId}/sheet`).expect(200)).body);
+    expect(res.clearances).toHaveLength(1);
+    const c = res.clearances[0]!;
+    // 0.5642 in − (0.5595 in − 0.0001 in) = 0.0048 in = 121.92 µm (1 in = 25.4 mm exactly, NIST SP 811 B.8).
+    expect(c.valueUm).toBe(121.92);
+    expect(c).toMatchObject({ verdict: 'conforms', verdictWords: 'within spec', preferredVerdict: 'does-not-conform', rejectVerdict: 'conforms' });
+    // The limits in the spec's unit, at the places that write them all exactly.
+    expect(c.limits).toEqual({ band: '0.002–0.006 in', preferred: '0.003–0.004 in', reject: '0.008 in' });
+    expect(c.limitFacts).toEqual(['Outside the preferred band 0.003–0.004 in.', 'Clear of the reject limit 0.008 in.']);
+    expect(c.band).toEqual({ minUm: 50.8, maxUm: 152.4, preferredMinUm: 76.2, preferredMaxUm: 101.6, rejectUm: 203.2 });
+
+    const height = c.readings.find((r) => r.key === 'rotor-height')!;
+    // As judged, after the offset, and as read off the micrometer.
+    expect(height).toMatchObject({ instrumentSerial: 'OM-1147-T', figure: '0.5594 in', read: '0.5595 in', zeroOffset: { offset: '0.0001', unit: 'in', text: '+0.0001 in' }, zeroCheckMissing: false });
+    const depth = c.readings.find((r) => r.key === 'bore-depth')!;
+    // The depth micrometer is zero-checked, but no check was recorded that day: the sheet says so.
+    expect(depth).toMatchObject({ instrumentSerial: 'INV-TEST', zeroOffset: null, zeroCheckMissing: true });
+
+    // Calibrated 2026-01-05 with a 3650-day interval: due 3650 days later, 2036-01-03 (2028 and 2032 are leap years).
+    expect(res.instruments.map((i) => [i.name, i.serial, i.calibratedOn, i.calibrationDueOn, i.readingDays, i.calibration])).toEqual([
+      ['Depth micrometer 0–6 in (test)', 'INV-TEST', '2026-01-05', '2036-01-03', ['2026-11-20'], 'in-date'],
+      ['Outside micrometer 0–1 in (test)', 'OM-1147-T', '2026-01-05', '2036-01-03', ['2026-11-20'], 'in-date'],
+    ]);
+
+    // The verification page reads the same.
+    const verified = verifySheetSchema.parse((await request(t.app).get(`/api/public/verify/parts/${limited.partId}`).query({ story: limited.story.id, rev: 1 }).expect(200)).body);
+    expect(verified.entries).toEqual([{ storyId: limited.story.id, title: 'Sheet test: limits: end float', printedRevision: 1, currentRevision: 1, current: true }]);
+    expect(verified.sheet!.clearances[0]!.limits).toEqual(c.limits);
+    expect(verified.sheet!.clearances[0]!.limitFacts).toEqual(c.limitFacts);
+    expect(verified.sheet!.instruments.map((i) => i.calibrationDueOn)).toEqual(['2036-01-03', '2036-01-03']);
+  });
+
+  it('prints them on the PDF: band, preferred band, reject limit, serials, calibration due dates and the zero offset taken off', async () => {
+    const { text } = await pdfText(await pdfOf(limited.partId));
+    expect(text).toContain('Within spec');
+    expect(text).toContain('Spec band 0.002–0.006 in · preferred band 0.003–0.004 in · reject limit 0.008 in');
+    expect(text).toContain('Outside the preferred band 0.003–0.004 in.');
+    expect(text).toContain('Clear of the reject limit 0.008 in.');
+    expect(text).toContain('Rotor height: 0.5594 in (read 0.5595 in) — Outside micrometer 0–1 in (test), serial OM-1147-T, 2026-11-20; zero offset +0.0001 in taken off');
+    expect(text).toContain('Depth micrometer 0–6 in (test), serial INV-TEST, 2026-11-20; no zero check that day');
+    expect(text).toContain('Calibrated 2026-01-05, due 2036-01-03; calibration in date (readings of 2026-11-20).');
+    // One verdict per clearance: none of the old chip words for the secondary limits.
+    expect(text).not.toMatch(/Too close to call against|Within the preferred band/);
+  }, 60_000);
+});
+
 describe('verifying a printed sheet', () => {
   const verify = (rev: number) => request(t.app).get(`/api/public/verify/parts/${published.partId}`).query({ story: published.story.id, rev });
 
   it('says current while the revision printed is the public one, with the figures read now', async () => {
     const res = verifySheetSchema.parse((await verify(1).expect(200)).body);
     expect(res.current).toBe(true);
-    expect(res.entries).toEqual([{ storyId: published.story.id, printedRevision: 1, currentRevision: 1, current: true }]);
+    expect(res.entries).toEqual([{ storyId: published.story.id, title: 'Sheet test: published: end float', printedRevision: 1, currentRevision: 1, current: true }]);
     expect(res.sheet!.clearances[0]!.valueUm).toBe(119.38);
   });
 
@@ -196,16 +307,29 @@ describe('verifying a printed sheet', () => {
 
     const res = verifySheetSchema.parse((await verify(1).expect(200)).body);
     expect(res.current).toBe(false);
-    expect(res.entries).toEqual([{ storyId: published.story.id, printedRevision: 1, currentRevision: 2, current: false }]);
+    expect(res.entries).toEqual([{ storyId: published.story.id, title: 'Sheet test: published: end float', printedRevision: 1, currentRevision: 2, current: false }]);
     expect(res.sheet!.clearances[0]!.valueUm).toBe(116.84);
     expect(verifySheetSchema.parse((await verify(2).expect(200)).body).current).toBe(true);
   }, 90_000);
 
   it('says not current for a withdrawn entry, and refuses a query without a revision per story', async () => {
     const gone = verifySheetSchema.parse((await request(t.app).get(`/api/public/verify/parts/${withdrawn.partId}`).query({ story: withdrawn.story.id, rev: 1 }).expect(200)).body);
-    expect(gone).toMatchObject({ current: false, sheet: null, entries: [{ storyId: withdrawn.story.id, currentRevision: null, current: false }] });
+    // A withdrawn story's title is not shown any more.
+    expect(gone).toMatchObject({ current: false, sheet: null, entries: [{ storyId: withdrawn.story.id, title: null, currentRevision: null, current: false }] });
     const bad = await request(t.app).get(`/api/public/verify/parts/${published.partId}?story=${published.story.id}&story=${withdrawn.story.id}&rev=1`);
     expect(bad.status).toBe(400);
     expect(bad.body.error.details[0].path).toBe('rev');
+    expect(bad.body.error.message).toBe(verifyQueryMessages.pairs);
+  });
+
+  it('answers a garbled or cut-off address in words for whoever scanned it, not in the schema’s terms', async () => {
+    const at = (query: string) => request(t.app).get(`/api/public/verify/parts/${published.partId}?${query}`);
+    for (const query of [`story=${published.story.id}&rev=abc`, `story=${published.story.id}&rev=0`, `story=${published.story.id}`]) {
+      const res = await at(query).expect(400);
+      expect(res.body.error).toMatchObject({ code: 'invalid_request', message: 'This sheet’s revision number is missing or not a number; scan the code again or open the part’s current sheet.' });
+      expect(res.body.error.details.map((d: { path: string }) => d.path)).toContain('rev');
+    }
+    const noStory = await at('rev=1').expect(400);
+    expect(noStory.body.error.message).toBe('This sheet’s story number is missing or not a number; scan the code again or open the part’s current sheet.');
   });
 });

@@ -1,8 +1,10 @@
 import { spawn } from 'node:child_process';
 import crypto from 'node:crypto';
+import fs from 'node:fs';
 import fsp from 'node:fs/promises';
 import path from 'node:path';
 import { mediaBinaries } from './binaries';
+import { cpuLimitSeconds, FIXED_TIMEOUT_S, memoryLimitBytes } from './limits';
 
 /**
  * ffmpeg or ffprobe failed on a file that passed the checks (or could not be started). The
@@ -21,13 +23,22 @@ export class MediaCommandFailed extends Error {
   }
 }
 
+/** Bounds of one command; see limits.ts for the defaults. */
+export interface RunLimits {
+  /** Wall-clock seconds before the command is killed (default FIXED_TIMEOUT_S). */
+  timeoutS: number;
+  /** Processor seconds, all threads together (RLIMIT_CPU; default: the timeout on every core). */
+  cpuSeconds: number;
+  /** Address space, bytes (RLIMIT_AS; default memoryLimitBytes()). */
+  memoryBytes: number;
+}
+
 /** How to run one ffmpeg/ffprobe command. */
 export interface RunOptions {
   /** What the command is for, as the end of "Could not …" ("make the web copy"). */
   what: string;
   signal?: AbortSignal;
-  /** Bytes written to the command's standard input, which is then closed. */
-  stdin?: Buffer;
+  limits?: Partial<RunLimits>;
   /** Each line of standard output as it arrives (ffmpeg's `-progress pipe:1`). */
   onStdoutLine?: (line: string) => void;
   /** Each line of standard error as it arrives (e.g. `showinfo` output). */
@@ -41,33 +52,87 @@ export interface RunResult {
 }
 
 const STDERR_KEEP = 64 * 1024;
+const PRLIMIT = '/usr/bin/prlimit';
 
 /**
  * Runs ffmpeg with `args` (no shell). Resolves with its output when it exits 0; otherwise
  * rejects with MediaCommandFailed, or with the signal's reason when aborted (the process is
  * killed and has exited before the promise settles, so callers can delete its output safely).
+ *
+ * The last argument must be the one output. Every input (`-i`) may be read through the `file`
+ * protocol only, so a playlist or reference inside an uploaded file cannot make ffmpeg fetch a
+ * URL or open `concat:`/`subfile:` views; the output may use `file`, or `pipe` when it is
+ * `pipe:N`/`-`. Inputs are pinned to a demuxer by the callers (`-f` before `-i`) once the
+ * probe has named the container. The command runs under the limits (see RunLimits).
  */
-export function runFfmpeg(args: string[], options: RunOptions): Promise<RunResult> {
-  return run(mediaBinaries().ffmpeg, ['-hide_banner', '-nostdin', ...args], options);
+export async function runFfmpeg(args: string[], options: RunOptions): Promise<RunResult> {
+  return run(mediaBinaries().ffmpeg, ['-hide_banner', '-nostdin', ...ffmpegProtocols(args)], options);
 }
 
-/** Like runFfmpeg, for ffprobe. */
-export function runFfprobe(args: string[], options: RunOptions): Promise<RunResult> {
-  return run(mediaBinaries().ffprobe, ['-hide_banner', ...args], options);
+/** Like runFfmpeg, for ffprobe: the last argument is the one input, read through `file` only. */
+export async function runFfprobe(args: string[], options: RunOptions): Promise<RunResult> {
+  const input = args.at(-1);
+  if (input === undefined || input.startsWith('-')) throw new RangeError('the last ffprobe argument must be its input');
+  return run(mediaBinaries().ffprobe, ['-hide_banner', ...args.slice(0, -1), '-protocol_whitelist', 'file', input], options);
+}
+
+function ffmpegProtocols(args: string[]): string[] {
+  const output = args.at(-1);
+  if (output === undefined || (output.startsWith('-') && output !== '-')) throw new RangeError('the last ffmpeg argument must be its output');
+  const out: string[] = [];
+  for (const arg of args.slice(0, -1)) {
+    // An input option: it applies to the `-i` that follows, and to everything that input opens.
+    if (arg === '-i') out.push('-protocol_whitelist', 'file');
+    out.push(arg);
+  }
+  const toPipe = output === '-' || output.startsWith('pipe:');
+  // An output option before the output name: where the output may be written.
+  out.push('-protocol_whitelist', toPipe ? 'pipe' : 'file', output);
+  return out;
+}
+
+let warnedNoPrlimit = false;
+
+/** The command line that runs `bin` under the CPU and address-space limits, when prlimit is there. */
+function withRlimits(bin: string, args: string[], limits: RunLimits): [string, string[]] {
+  if (!fs.existsSync(PRLIMIT)) {
+    if (!warnedNoPrlimit) {
+      warnedNoPrlimit = true;
+      process.emitWarning(`${PRLIMIT} (util-linux) is missing: ffmpeg and ffprobe run without CPU and memory limits.`, { code: 'BENCHPROOF_NO_PRLIMIT' });
+    }
+    return [bin, args];
+  }
+  // Soft and hard CPU limit alike: the kernel then sends SIGKILL, which ffmpeg cannot catch and
+  // turn into an ordinary exit code (it does catch SIGXCPU).
+  const cpu = Math.max(1, Math.ceil(limits.cpuSeconds));
+  const as = Math.max(1, Math.floor(limits.memoryBytes));
+  return [PRLIMIT, [`--cpu=${cpu}`, `--as=${as}`, '--', bin, ...args]];
 }
 
 function run(bin: string, args: string[], options: RunOptions): Promise<RunResult> {
   const { signal } = options;
   if (signal?.aborted) return Promise.reject(abortReason(signal));
+  const timeoutS = options.limits?.timeoutS ?? FIXED_TIMEOUT_S;
+  const limits: RunLimits = {
+    timeoutS,
+    cpuSeconds: options.limits?.cpuSeconds ?? cpuLimitSeconds(timeoutS),
+    memoryBytes: options.limits?.memoryBytes ?? memoryLimitBytes(),
+  };
+  const [file, argv] = withRlimits(bin, args, limits);
   return new Promise((resolve, reject) => {
-    const child = spawn(bin, args, { stdio: ['pipe', 'pipe', 'pipe'], windowsHide: true });
+    const child = spawn(file, argv, { stdio: ['ignore', 'pipe', 'pipe'], windowsHide: true });
     const out: Buffer[] = [];
     let stderr = '';
     let outLine = '';
     let errLine = '';
     let spawnError: Error | null = null;
+    let timedOut = false;
     const onAbort = () => child.kill('SIGKILL');
     signal?.addEventListener('abort', onAbort, { once: true });
+    const timer = setTimeout(() => {
+      timedOut = true;
+      child.kill('SIGKILL');
+    }, limits.timeoutS * 1000);
 
     child.stdout.on('data', (chunk: Buffer) => {
       if (options.onStdoutLine) {
@@ -81,25 +146,35 @@ function run(bin: string, args: string[], options: RunOptions): Promise<RunResul
       stderr = (stderr + text).slice(-STDERR_KEEP);
       if (options.onStderrLine) errLine = eachLine(errLine + text, options.onStderrLine);
     });
-    // ffmpeg may exit before reading all its input (an error, or enough frames): not our failure.
-    child.stdin.on('error', () => {});
-    child.stdin.end(options.stdin ?? undefined);
     child.on('error', (err) => {
       spawnError = err;
     });
     child.on('close', (code, killedBy) => {
+      clearTimeout(timer);
       signal?.removeEventListener('abort', onAbort);
       if (signal?.aborted) return reject(abortReason(signal));
       if (spawnError) {
         const missing = (spawnError as NodeJS.ErrnoException).code === 'ENOENT';
-        const why = missing ? `${path.basename(bin)} was not found (${bin})` : spawnError.message;
+        const why = missing ? `${path.basename(file)} was not found (${file})` : spawnError.message;
         return reject(new MediaCommandFailed(`Could not ${options.what}: ${why}.`, '', null));
       }
+      if (timedOut) {
+        return reject(new MediaCommandFailed(`Could not ${options.what}: it took longer than ${seconds(limits.timeoutS)} and was stopped.`, stderr.slice(-4000), code));
+      }
       if (code === 0) return resolve({ stdout: Buffer.concat(out), stderr });
-      const summary = summariseStderr(stderr) ?? (killedBy ? `it was stopped (${killedBy})` : `it exited with code ${code}`);
+      // We send SIGKILL only on a timeout or an abort (handled above), so this one came from the
+      // kernel: the CPU limit, or the out-of-memory killer.
+      const killed = killedBy === 'SIGKILL' || killedBy === 'SIGXCPU';
+      const summary = killed
+        ? `it was stopped by the system (${killedBy}), most likely for using more than its ${seconds(Math.ceil(limits.cpuSeconds))} of processor time`
+        : (summariseStderr(stderr) ?? (killedBy ? `it was stopped (${killedBy})` : `it exited with code ${code}`));
       reject(new MediaCommandFailed(`Could not ${options.what}: ${summary}.`, stderr.slice(-4000), code));
     });
   });
+}
+
+function seconds(s: number): string {
+  return s >= 1 ? `${Math.round(s)} s` : `${Math.round(s * 1000)} ms`;
 }
 
 function eachLine(buffered: string, fn: (line: string) => void): string {

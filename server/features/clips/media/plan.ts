@@ -2,6 +2,7 @@ import type { z } from 'zod';
 import type { ClipProbe, webCopyKindSchema } from '@shared/clips/clip.schema';
 import { moovBeforeMdat } from './atoms';
 import { runFfprobe } from './ffmpeg-run';
+import { inputFormatArgs } from './sniff';
 
 /** original | remux | transcode, from the shared schema. */
 export type WebCopyKind = z.infer<typeof webCopyKindSchema>;
@@ -53,17 +54,21 @@ export function chooseWebCopy(facts: WebCopyFacts): WebCopyKind {
  */
 export async function planWebCopy(probe: ClipProbe, container: string, file: string): Promise<WebCopyKind> {
   const [pixelFormat, fastStart] = await Promise.all([
-    videoPixelFormat(file),
+    videoPixelFormat(file, container),
     ISO_BMFF.has(container) ? moovBeforeMdat(file) : Promise.resolve(null),
   ]);
   return chooseWebCopy({ container, videoCodec: probe.videoCodec, audioCodec: probe.audioCodec, pixelFormat, fastStart });
 }
 
-/** ffprobe's pix_fmt of the first real video stream (cover pictures skipped), or null. */
-export async function videoPixelFormat(file: string): Promise<string | null> {
+/**
+ * ffprobe's pix_fmt of the first real video stream (cover pictures skipped), or null. Read with
+ * the demuxer of `container` (the probe's), else of the file's first bytes.
+ */
+export async function videoPixelFormat(file: string, container?: string): Promise<string | null> {
+  const what = 'read the video';
   const { stdout } = await runFfprobe(
-    ['-v', 'error', '-select_streams', 'v', '-show_entries', 'stream=pix_fmt:stream_disposition=attached_pic', '-print_format', 'json', file],
-    { what: 'read the video' },
+    [...(await inputFormatArgs(file, container, what)), '-v', 'error', '-select_streams', 'v', '-show_entries', 'stream=pix_fmt:stream_disposition=attached_pic', '-print_format', 'json', file],
+    { what },
   );
   const streams = (JSON.parse(stdout.toString('utf8')) as { streams?: { pix_fmt?: string; disposition?: { attached_pic?: number } }[] }).streams ?? [];
   return streams.find((s) => !s.disposition?.attached_pic)?.pix_fmt ?? null;

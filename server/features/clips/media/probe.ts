@@ -1,7 +1,7 @@
 import type { ClipProbe } from '@shared/clips/clip.schema';
 import { readTopLevelAtoms } from './atoms';
 import { MediaCommandFailed, runFfmpeg, runFfprobe } from './ffmpeg-run';
-import { describeNonVideo, readHead, sniffContainer } from './sniff';
+import { demuxerFor, describeNonVideo, readHead, sniffContainer, VIDEO_DEMUXERS } from './sniff';
 
 /** Why a file was refused; stable strings for the API's error codes. */
 export type MediaRejectionCode = 'empty_file' | 'not_a_video' | 'no_video_stream' | 'zero_duration' | 'damaged_video' | 'too_long';
@@ -58,7 +58,10 @@ export async function probeVideo(file: string, options: ProbeOptions = {}): Prom
 
   let info: FfprobeOutput;
   try {
-    const { stdout } = await runFfprobe(['-v', 'error', '-print_format', 'json', '-show_format', '-show_streams', file], {
+    // Not pinned: this is where ffmpeg names the format. It may only pick a demuxer of the
+    // containers we accept, never a playlist (HLS), concatenation or image sequence one.
+    const formats = ['-format_whitelist', VIDEO_DEMUXERS.join(',')];
+    const { stdout } = await runFfprobe(['-v', 'error', ...formats, '-print_format', 'json', '-show_format', '-show_streams', file], {
       what: 'read the video',
       signal: options.signal,
     });
@@ -66,6 +69,13 @@ export async function probeVideo(file: string, options: ProbeOptions = {}): Prom
   } catch (err) {
     if (err instanceof MediaCommandFailed) throw damaged(explainProbeFailure(err.stderrTail));
     throw err;
+  }
+
+  // Every later command reads the file with the demuxer its magic bytes name (`-f`), so ffprobe
+  // must have read it with that one too.
+  const demuxer = demuxerFor(container)!;
+  if (!(info.format?.format_name ?? '').split(',').includes(demuxer)) {
+    throw damaged(`its contents are not those of the ${container.toUpperCase()} file its first bytes announce`);
   }
 
   const streams = info.streams ?? [];
@@ -96,7 +106,7 @@ export async function probeVideo(file: string, options: ProbeOptions = {}): Prom
       'too_long',
     );
   }
-  if (options.decodeCheck !== false) await checkDecodes(file, durationS, options.signal);
+  if (options.decodeCheck !== false) await checkDecodes(file, demuxer, durationS, options.signal);
 
   return {
     container,
@@ -115,12 +125,12 @@ export async function probeVideo(file: string, options: ProbeOptions = {}): Prom
  * accurate, so everything from the keyframe before it must decode: a file whose data stops
  * early fails here. Costs at most one keyframe interval of decoding.
  */
-async function checkDecodes(file: string, durationS: number, signal?: AbortSignal) {
+async function checkDecodes(file: string, demuxer: string, durationS: number, signal?: AbortSignal) {
   const grab = async (seekS: number | null) => {
     const seek = seekS == null ? [] : ['-ss', seekS.toFixed(3)];
     try {
       const { stdout } = await runFfmpeg(
-        ['-v', 'error', ...seek, '-i', file, '-map', '0:v:0', '-frames:v', '1', '-vf', 'scale=16:16', '-vsync', '0', '-pix_fmt', 'gray', '-f', 'rawvideo', 'pipe:1'],
+        ['-v', 'error', ...seek, '-f', demuxer, '-i', file, '-map', '0:v:0', '-frames:v', '1', '-vf', 'scale=16:16', '-vsync', '0', '-pix_fmt', 'gray', '-f', 'rawvideo', 'pipe:1'],
         { what: 'decode the video', signal },
       );
       return stdout.length > 0;

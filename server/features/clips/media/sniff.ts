@@ -1,4 +1,5 @@
 import fsp from 'node:fs/promises';
+import { MediaCommandFailed } from './ffmpeg-run';
 
 /** Containers the first gate lets through; ffprobe decides the rest. */
 export type VideoContainer = 'mp4' | 'mov' | 'm4v' | '3gp' | 'matroska' | 'webm' | 'avi' | 'mpegts' | 'mpeg' | 'flv' | 'ogg' | 'asf';
@@ -52,6 +53,53 @@ export function sniffContainer(head: Buffer): VideoContainer | null {
   if (head.toString('latin1', 0, 4) === 'OggS') return 'ogg';
   if (head.length >= 16 && head.subarray(0, 16).equals(ASF_GUID)) return 'asf';
   return null;
+}
+
+// ffmpeg's demuxer for each container (`ffmpeg -demuxers`): one reads the ISO BMFF family, one
+// both Matroska and WebM, and mpegts reads M2TS too.
+const DEMUXERS: Record<VideoContainer, string> = {
+  mp4: 'mov',
+  mov: 'mov',
+  m4v: 'mov',
+  '3gp': 'mov',
+  matroska: 'matroska',
+  webm: 'matroska',
+  avi: 'avi',
+  mpegts: 'mpegts',
+  mpeg: 'mpeg',
+  flv: 'flv',
+  ogg: 'ogg',
+  asf: 'asf',
+};
+
+/** Every demuxer a sniffed container may be read with: the probe's `-format_whitelist`. */
+export const VIDEO_DEMUXERS: readonly string[] = [...new Set(Object.values(DEMUXERS))];
+
+/** The ffmpeg demuxer for a container sniffContainer named (as stored with a clip), or null. */
+export function demuxerFor(container: string): string | null {
+  return Object.hasOwn(DEMUXERS, container) ? DEMUXERS[container as VideoContainer] : null;
+}
+
+/**
+ * `-f <demuxer>` for an input: from `container` when the caller knows it (the probe stored it
+ * with the clip), else from the file's own first bytes, the same test the probe starts with.
+ * Pinned so ffmpeg never guesses the format again and cannot be steered to a playlist or
+ * concatenation demuxer. Throws MediaCommandFailed ("Could not <what>: …") when neither names
+ * a container we read.
+ */
+export async function inputFormatArgs(file: string, container: string | undefined, what: string): Promise<string[]> {
+  let known = container ?? null;
+  if (known == null) {
+    try {
+      known = sniffContainer(await readHead(file));
+    } catch (err) {
+      const code = (err as NodeJS.ErrnoException).code ?? 'unreadable';
+      throw new MediaCommandFailed(`Could not ${what}: the file could not be read (${code}).`, '', null);
+    }
+  }
+  const demuxer = known == null ? null : demuxerFor(known);
+  if (!demuxer) throw new MediaCommandFailed(`Could not ${what}: the file is not in a video container Benchproof reads.`, '', null);
+  return ['-f', demuxer];
 }
 
 /** MPEG-TS (188-byte packets) or M2TS/AVCHD (192, with a 4-byte timestamp first): 0x47 at every packet start. */

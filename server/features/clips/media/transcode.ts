@@ -1,7 +1,7 @@
-import ffmpeg from 'fluent-ffmpeg';
-import { mediaBinaries } from './binaries';
-import { MediaCommandFailed, summariseStderr, writeAtomically } from './ffmpeg-run';
+import { runFfmpeg, writeAtomically } from './ffmpeg-run';
+import { transcodeTimeoutS } from './limits';
 import type { WebCopyKind } from './plan';
+import { inputFormatArgs } from './sniff';
 
 /** Inputs of makeWebCopy besides the files. */
 export interface WebCopyOptions {
@@ -11,6 +11,10 @@ export interface WebCopyOptions {
   onProgress?: (percent: number) => void;
   /** Aborting kills ffmpeg, deletes the partial file and rejects with the signal's reason. */
   signal?: AbortSignal;
+  /** The container the probe named (`clip.container`); read from the file's first bytes when absent. */
+  container?: string;
+  /** Wall-clock bound, seconds; transcodeTimeoutS(durationS) when absent. */
+  timeoutS?: number;
 }
 
 // Both kinds: the first video and first sound track only (subtitle and data tracks of MKV/MOV
@@ -32,6 +36,7 @@ const TRANSCODE = [
  * `transcode` re-encodes to H.264 (libx264 veryfast, CRF 23, 8-bit 4:2:0, upright, even size)
  * + AAC. Written under a scratch name and renamed into `output`, so `output` is either whole or
  * absent; on failure the scratch file is deleted and MediaCommandFailed carries ffmpeg's reason.
+ * ffmpeg is stopped after transcodeTimeoutS(durationS) seconds.
  */
 export async function makeWebCopy(input: string, output: string, kind: Exclude<WebCopyKind, 'original'>, options: WebCopyOptions): Promise<void> {
   const { durationS, onProgress, signal } = options;
@@ -43,38 +48,34 @@ export async function makeWebCopy(input: string, output: string, kind: Exclude<W
       onProgress?.(p);
     }
   };
-  mediaBinaries(); // points fluent-ffmpeg at the packaged binaries
-  await writeAtomically(output, (scratch) =>
-    new Promise<void>((resolve, reject) => {
-      if (signal?.aborted) return reject(signal.reason);
-      const what = kind === 'remux' ? 'copy the video into MP4' : 'convert the video for browsers';
-      const command = ffmpeg(input)
-        .outputOptions([...(kind === 'remux' ? ['-c', 'copy'] : TRANSCODE), ...COMMON_OUT])
-        .output(scratch)
-        .on('progress', (p: { timemark?: string }) => {
-          const t = timemarkSeconds(p.timemark);
+  const what = kind === 'remux' ? 'copy the video into MP4' : 'convert the video for browsers';
+  const format = await inputFormatArgs(input, options.container, what);
+  await writeAtomically(output, async (scratch) => {
+    await runFfmpeg(
+      [
+        '-v', 'error', '-nostats', '-progress', 'pipe:1',
+        ...format, '-i', input,
+        ...(kind === 'remux' ? ['-c', 'copy'] : TRANSCODE), ...COMMON_OUT,
+        '-y', scratch,
+      ],
+      {
+        what,
+        signal,
+        limits: { timeoutS: options.timeoutS ?? transcodeTimeoutS(durationS) },
+        onStdoutLine: (line) => {
+          // `-progress` writes key=value blocks; out_time is how far the output has got.
+          if (!line.startsWith('out_time=')) return;
+          const t = timemarkSeconds(line.slice('out_time='.length));
           // Held below 100 until the file is in place: +faststart rewrites it after the last frame.
           if (t != null && durationS > 0) report(Math.min(99, (t / durationS) * 100));
-        })
-        .on('end', () => {
-          signal?.removeEventListener('abort', onAbort);
-          resolve();
-        })
-        .on('error', (err: Error, _stdout: string | null, stderr: string | null) => {
-          signal?.removeEventListener('abort', onAbort);
-          if (signal?.aborted) return reject(signal.reason);
-          const why = summariseStderr(stderr ?? '') ?? err.message;
-          reject(new MediaCommandFailed(`Could not ${what}: ${why}.`, (stderr ?? '').slice(-4000), null));
-        });
-      const onAbort = () => command.kill('SIGKILL');
-      signal?.addEventListener('abort', onAbort, { once: true });
-      command.run();
-    }),
-  );
+        },
+      },
+    );
+  });
   report(100);
 }
 
-/** Seconds from fluent-ffmpeg's `timemark` ("00:01:02.50"); null when absent. */
+/** Seconds from an ffmpeg time mark ("00:01:02.50", as `-progress` writes out_time); null when absent or negative. */
 export function timemarkSeconds(mark: string | undefined): number | null {
   const m = /^(\d+):(\d{2}):(\d{2}(?:\.\d+)?)$/.exec(mark ?? '');
   return m ? Number(m[1]) * 3600 + Number(m[2]) * 60 + Number(m[3]) : null;

@@ -188,10 +188,14 @@ export function Component() {
                 items={uploads.items}
                 clips={clipList}
                 onAdd={uploads.add}
+                onPause={uploads.pause}
+                onResume={uploads.resume}
                 onCancel={uploads.cancel}
                 onRetry={uploads.retry}
                 onDismiss={uploads.dismiss}
                 onOpen={select}
+                unfinished={uploads.unfinished}
+                onDiscardUnfinished={uploads.discard}
               />
               <ClipsBody
                 buildId={buildId}
@@ -246,8 +250,8 @@ export function Component() {
         open={blocker.state === 'blocked'}
         onOpenChange={(open) => !open && blocker.reset?.()}
         title="Leave while files are uploading?"
-        description={`${uploads.activeCount} ${uploads.activeCount === 1 ? 'file is' : 'files are'} still uploading or waiting. Leaving this build cancels them; clips already uploaded are kept and keep processing.`}
-        confirmLabel="Leave and cancel uploads"
+        description={`${uploads.activeCount} ${uploads.activeCount === 1 ? 'file is' : 'files are'} still uploading or waiting. Leaving this build stops them; choose the same files here again later to carry on from where they stopped. Clips already uploaded are kept and keep processing.`}
+        confirmLabel="Leave and stop uploads"
         cancelLabel="Stay here"
         confirmVariant="danger"
         onConfirm={() => blocker.proceed?.()}

@@ -3,8 +3,10 @@ import type { Clip } from '@shared/clips/clip.schema';
 import { Button } from '@/components/ui/button';
 import { Progress } from '@/components/ui/progress';
 import { cn } from '@/lib/cn';
+import type { UnfinishedUpload } from '../api/resumable-upload';
 import type { UploadItem } from '../api/use-clip-uploads';
 import { formatBytes } from '../lib/clip-format';
+import { formatSpeed, formatTimeLeft } from '../lib/upload-rate';
 import { ClipStatusBadge } from './clip-status';
 
 export interface UploadPanelProps {
@@ -12,17 +14,38 @@ export interface UploadPanelProps {
   /** The build's clips, to follow a sent file through processing. */
   clips: Clip[] | undefined;
   onAdd: (files: File[]) => void;
+  onPause: (key: string) => void;
+  onResume: (key: string) => void;
   onCancel: (key: string) => void;
   onRetry: (key: string) => void;
   onDismiss: (key: string) => void;
   onOpen: (clipId: number) => void;
+  /** Uploads an earlier page left unfinished; choosing the same file again carries one on. */
+  unfinished?: UnfinishedUpload[];
+  onDiscardUnfinished?: (upload: UnfinishedUpload) => void;
+}
+
+/** A phone or tablet, where the picker can also record with the camera. */
+function hasCamera(): boolean {
+  return typeof window !== 'undefined' && typeof window.matchMedia === 'function' && window.matchMedia('(pointer: coarse)').matches;
 }
 
 /** A drop zone and a "Choose files" button, then one row per file: upload, processing, ready or failed. */
-export function UploadPanel({ items, clips, onAdd, onCancel, onRetry, onDismiss, onOpen }: UploadPanelProps) {
+export function UploadPanel({ items, clips, onAdd, onPause, onResume, onCancel, onRetry, onDismiss, onOpen, unfinished = [], onDiscardUnfinished }: UploadPanelProps) {
   const inputRef = useRef<HTMLInputElement>(null);
   const hintId = useId();
   const [dragging, setDragging] = useState(false);
+  const [camera] = useState(hasCamera);
+
+  // One file input for both buttons: "Record" asks the picker for the camera (capture), "Choose"
+  // leaves the choice to the builder; a phone's picker offers the camera there too.
+  const pick = (record: boolean) => {
+    const input = inputRef.current;
+    if (!input) return;
+    if (record) input.setAttribute('capture', 'environment');
+    else input.removeAttribute('capture');
+    input.click();
+  };
 
   const carriesFiles = (event: DragEvent) => event.dataTransfer.types.includes('Files');
 
@@ -58,9 +81,16 @@ export function UploadPanel({ items, clips, onAdd, onCancel, onRetry, onDismiss,
         <p id={hintId} className="text-sm text-ink-muted">
           {dragging ? 'Drop to upload.' : 'Drop video files here, or choose them. One clip per file; any length your phone or camera made.'}
         </p>
-        <Button size="sm" variant="primary" onClick={() => inputRef.current?.click()} aria-describedby={hintId}>
-          Choose files…
-        </Button>
+        <span className="flex flex-wrap gap-2">
+          <Button size="sm" variant="primary" onClick={() => pick(false)} aria-describedby={hintId}>
+            Choose files…
+          </Button>
+          {camera && (
+            <Button size="sm" variant="secondary" onClick={() => pick(true)}>
+              Record with the camera…
+            </Button>
+          )}
+        </span>
         <input
           ref={inputRef}
           type="file"
@@ -78,6 +108,29 @@ export function UploadPanel({ items, clips, onAdd, onCancel, onRetry, onDismiss,
         />
       </div>
 
+      {unfinished.length > 0 && (
+        <ul aria-label="Unfinished uploads" className="flex flex-col divide-y divide-rule rounded-md border border-rule">
+          {unfinished.map((u) => (
+            <li key={u.urlStorageKey} className="flex flex-wrap items-center justify-between gap-2 px-3 py-2 text-sm">
+              <span className="min-w-0 flex-1">
+                <span className="font-medium">{u.fileName}</span>{' '}
+                <span className="text-xs text-ink-muted">
+                  {u.offset !== null && u.size > 0
+                    ? `stopped at ${Math.floor((u.offset / u.size) * 100)} % (${formatBytes(u.offset)} of ${formatBytes(u.size)}).`
+                    : `did not finish (${formatBytes(u.size)}).`}{' '}
+                  Choose the same file again to carry on from there.
+                </span>
+              </span>
+              {onDiscardUnfinished && (
+                <Button size="sm" variant="quiet" onClick={() => onDiscardUnfinished(u)} aria-label={`Discard the unfinished upload of ${u.fileName}`}>
+                  Discard
+                </Button>
+              )}
+            </li>
+          ))}
+        </ul>
+      )}
+
       {items.length > 0 && (
         <>
           <ul aria-label="Uploads" className="flex flex-col divide-y divide-rule rounded-md border border-rule">
@@ -86,6 +139,8 @@ export function UploadPanel({ items, clips, onAdd, onCancel, onRetry, onDismiss,
                 key={item.key}
                 item={item}
                 clip={item.clipId ? clips?.find((clip) => clip.id === item.clipId) : undefined}
+                onPause={() => onPause(item.key)}
+                onResume={() => onResume(item.key)}
                 onCancel={() => onCancel(item.key)}
                 onRetry={() => onRetry(item.key)}
                 onDismiss={() => onDismiss(item.key)}
@@ -114,6 +169,8 @@ function isFinished(item: UploadItem, clips: Clip[] | undefined): boolean {
 function UploadRow({
   item,
   clip,
+  onPause,
+  onResume,
   onCancel,
   onRetry,
   onDismiss,
@@ -121,6 +178,8 @@ function UploadRow({
 }: {
   item: UploadItem;
   clip: Clip | undefined;
+  onPause: () => void;
+  onResume: () => void;
   onCancel: () => void;
   onRetry: () => void;
   onDismiss: () => void;
@@ -131,6 +190,10 @@ function UploadRow({
   const percent = total > 0 ? (item.loaded / total) * 100 : null;
   // Every byte is out but no answer yet: the server is reading the file to see what it is.
   const checking = item.state === 'uploading' && total > 0 && item.loaded >= total;
+  const { bytesPerSecond, secondsLeft } = item.rate;
+  const paceParts = [bytesPerSecond ? formatSpeed(bytesPerSecond) : null, secondsLeft !== null ? formatTimeLeft(secondsLeft) : null].filter((p): p is string => p !== null);
+  const pace = paceParts.join(', ');
+  const amount = `${formatBytes(item.loaded)} of ${formatBytes(total)}`;
 
   return (
     <li className="flex flex-col gap-1.5 px-3 py-2 text-sm">
@@ -149,25 +212,58 @@ function UploadRow({
         </Row>
       )}
 
-      {item.state === 'uploading' && (
-        <div className="flex items-center gap-2">
-          <Progress
-            className="flex-1"
-            value={checking ? null : percent}
-            label={`Upload of ${name}`}
-            valueText={
-              checking
-                ? 'Sent; the server is checking the file'
-                : percent === null
-                  ? 'Uploading'
-                  : `${Math.floor(percent)} %, ${formatBytes(item.loaded)} of ${formatBytes(total)}`
-            }
-          >
-            {checking ? 'Sent, checking…' : percent === null ? 'Uploading…' : `${Math.floor(percent)} %`}
-          </Progress>
-          <Button size="sm" variant="secondary" onClick={onCancel} aria-label={`Cancel upload of ${name}`}>
-            Cancel
-          </Button>
+      {(item.state === 'uploading' || item.state === 'retrying' || item.state === 'offline' || item.state === 'paused') && (
+        <div className="flex flex-col gap-1">
+          <div className="flex items-center gap-2">
+            <Progress
+              className="flex-1"
+              value={checking ? null : percent}
+              label={`Upload of ${name}`}
+              valueText={
+                checking
+                  ? 'Sent; the server is checking the file'
+                  : percent === null
+                    ? 'Uploading'
+                    : `${Math.floor(percent)} %, ${amount}${pace ? `, ${pace}` : ''}`
+              }
+            >
+              {checking ? 'Sent, checking…' : percent === null ? 'Uploading…' : `${Math.floor(percent)} %`}
+            </Progress>
+            {item.state === 'paused' ? (
+              <Button size="sm" variant="secondary" onClick={onResume} aria-label={`Resume upload of ${name}`}>
+                Resume
+              </Button>
+            ) : item.state === 'offline' ? (
+              <Button size="sm" variant="secondary" onClick={onResume} aria-label={`Try the upload of ${name} now`}>
+                Try now
+              </Button>
+            ) : (
+              !checking && (
+                <Button size="sm" variant="secondary" onClick={onPause} aria-label={`Pause upload of ${name}`}>
+                  Pause
+                </Button>
+              )
+            )}
+            {!checking && (
+              <Button size="sm" variant="quiet" onClick={onCancel} aria-label={`Cancel upload of ${name}`}>
+                Cancel
+              </Button>
+            )}
+          </div>
+          <p role="status" className="text-xs text-ink-muted">
+            {item.state === 'paused'
+              ? `Paused at ${amount}. The server keeps what it has; resume when you are ready.`
+              : item.state === 'retrying' || item.state === 'offline'
+                ? item.error
+                : checking
+                  ? 'Every byte is here; the server is checking the file.'
+                  : [amount, ...paceParts].map((part, i) => (
+                      <span key={part} className="figures whitespace-nowrap">
+                        {i > 0 && ' · '}
+                        {part}
+                      </span>
+                    ))}
+          </p>
         </div>
       )}
 

@@ -1,4 +1,4 @@
-import { useId } from 'react';
+import { useId, useRef, useState } from 'react';
 import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
 import { Link, type LoaderFunctionArgs, redirect } from 'react-router-dom';
 import type { Follow, Preferences, PreferencesPatch } from '@shared/public/follows.schema';
@@ -14,6 +14,7 @@ import { queryClient } from '@/lib/query-client';
 import { instantDay } from '@/features/public/lib/dates';
 import { useSetFollowEmail, useSetFollowing, useUpdatePreferences } from '../api/follow-mutations';
 import { followQueries } from '../api/follow-queries';
+import { UnfollowDialog } from '../components/unfollow-dialog';
 
 /** Any signed-in account may follow builders; signed out, sign in first and come back. */
 export async function loader({ request }: LoaderFunctionArgs) {
@@ -36,11 +37,48 @@ export function Component() {
         description="Builders you follow, whether each one’s new entries reach you by e-mail, the weekly digest, and the units new figures start in."
       />
       <div className="flex max-w-3xl flex-col gap-10">
+        <MailAddress />
         <DigestSetting />
         <UnitsSetting />
         <FollowList />
       </div>
     </>
+  );
+}
+
+/**
+ * Where the mail goes: the address of the GitHub account one signs in with (`/api/me`), taken
+ * again at every sign-in. The mail itself is chosen on this page.
+ */
+function MailAddress() {
+  const me = useQuery(authQueries.me());
+  const id = useId();
+  const email = me.data?.email ?? null;
+  return (
+    <section aria-labelledby={`${id}-h`} className="rounded-lg border border-rule p-4" data-mail-address="">
+      <h2 id={`${id}-h`} className="text-md font-semibold">
+        Where your e-mail goes
+      </h2>
+      {me.isPending ? (
+        <LoadingState label="Loading your account…" />
+      ) : email ? (
+        <>
+          <p className="mt-1 text-sm">
+            Mail from Benchproof goes to <strong className="font-semibold break-all">{email}</strong>.
+          </p>
+          <p className="mt-1 text-xs text-ink-muted">
+            It is the address of the GitHub account you sign in with, read again each time you sign in: to use another, change it on GitHub
+            and sign in again. Which mail you get is chosen below: the weekly digest, and for each builder whether their new stories reach
+            you.
+          </p>
+        </>
+      ) : (
+        <p className="mt-1 text-sm">
+          Your account has no e-mail address, so no mail can reach you. Add one to the GitHub account you sign in with, make it visible to
+          apps, then sign in again.
+        </p>
+      )}
+    </section>
   );
 }
 
@@ -193,9 +231,35 @@ function UnitsSetting() {
 function FollowList() {
   const follows = useInfiniteQuery(followQueries.list());
   const items = follows.data?.pages.flatMap((p) => p.items) ?? [];
+  // The mutation lives here, not in the row: the row leaves the list when it succeeds, and the toast must still show.
+  const following = useSetFollowing();
+  const { toast } = useToast();
+  const [asking, setAsking] = useState<Follow['builder'] | null>(null);
+  const opener = useRef<HTMLButtonElement | null>(null);
+  const heading = useRef<HTMLHeadingElement>(null);
+
+  const unfollow = (builder: Follow['builder']) =>
+    following.mutate(
+      { builderId: builder.id, follow: false },
+      {
+        onSuccess: () => {
+          setAsking(null);
+          toast({
+            tone: 'success',
+            title: `You no longer follow ${builder.displayName}`,
+            description: 'No more e-mail when they publish. Follow them again from their profile.',
+          });
+        },
+        onError: (error) => {
+          setAsking(null);
+          toast({ tone: 'error', title: 'Still following', description: `${builder.displayName} was not unfollowed: ${errorMessage(error)}` });
+        },
+      },
+    );
+
   return (
     <section aria-labelledby="follows-heading" className="flex flex-col gap-3">
-      <h2 id="follows-heading" className="text-md font-semibold">
+      <h2 id="follows-heading" ref={heading} tabIndex={-1} className="text-md font-semibold outline-none">
         Builders you follow
       </h2>
       {follows.isPending ? (
@@ -210,19 +274,36 @@ function FollowList() {
         <>
           <ul className="flex flex-col divide-y divide-rule rounded-lg border border-rule">
             {items.map((follow) => (
-              <FollowRow key={follow.builder.id} follow={follow} />
+              <FollowRow
+                key={follow.builder.id}
+                follow={follow}
+                onUnfollow={(button) => {
+                  opener.current = button;
+                  setAsking(follow.builder);
+                }}
+              />
             ))}
           </ul>
           <LoadMore query={follows} shown={items.length} what="follows" />
         </>
       )}
+      <UnfollowDialog
+        open={asking !== null}
+        onOpenChange={(open) => {
+          if (!open && !following.isPending) setAsking(null);
+        }}
+        builderName={asking?.displayName ?? ''}
+        pending={following.isPending}
+        onConfirm={() => asking && unfollow(asking)}
+        // Back to the row's button when it is still there (cancelled), else to the list's heading.
+        returnFocus={() => (opener.current?.isConnected ? opener.current : heading.current)}
+      />
     </section>
   );
 }
 
-function FollowRow({ follow }: { follow: Follow }) {
+function FollowRow({ follow, onUnfollow }: { follow: Follow; onUnfollow: (button: HTMLButtonElement) => void }) {
   const email = useSetFollowEmail();
-  const following = useSetFollowing();
   const { toast } = useToast();
   const id = useId();
   const { builder } = follow;
@@ -247,27 +328,20 @@ function FollowRow({ follow }: { follow: Follow }) {
             onChange={(e) =>
               email.mutate(
                 { builderId: builder.id, emailOnPublish: e.target.checked },
-                { onError: (error) => toast({ tone: 'error', title: 'Not saved', description: errorMessage(error) }) },
+                {
+                  onSuccess: (saved) =>
+                    toast({
+                      tone: 'success',
+                      title: saved.follow.emailOnPublish ? `E-mail on for ${builder.displayName}` : `E-mail off for ${builder.displayName}`,
+                    }),
+                  onError: (error) => toast({ tone: 'error', title: 'Not saved', description: errorMessage(error) }),
+                },
               )
             }
           />
           E-mail when {builder.displayName} publishes
         </label>
-        <Button
-          size="sm"
-          variant="secondary"
-          loading={following.isPending}
-          loadingText="Unfollowing…"
-          onClick={() =>
-            following.mutate(
-              { builderId: builder.id, follow: false },
-              {
-                onSuccess: () => toast({ tone: 'success', title: `You no longer follow ${builder.displayName}` }),
-                onError: (error) => toast({ tone: 'error', title: 'Not changed', description: errorMessage(error) }),
-              },
-            )
-          }
-        >
+        <Button size="sm" variant="secondary" onClick={(event) => onUnfollow(event.currentTarget)}>
           Unfollow<span className="sr-only"> {builder.displayName}</span>
         </Button>
       </div>

@@ -1,11 +1,11 @@
 import { useId, type ReactNode } from 'react';
-import type { UnitSystem } from '@shared/measure/format';
+import { formatNumber, type UnitSystem } from '@shared/measure/format';
 import { verdictWords, type Verdict } from '@shared/measure/spec';
-import { micrometresToPicometres } from '@shared/measure/units';
+import { micrometresToPicometres, type LengthUnit } from '@shared/measure/units';
 import { VerdictBadge, VerdictGlyph } from '@/components/ui/badge';
 import { cn } from '@/lib/cn';
 import type { BandUm } from '../lib/band';
-import { exactText, systemDisplayUnits, systemFigure } from '../lib/figures';
+import { bandDecimals, systemDisplayUnits, systemFigure } from '../lib/figures';
 
 /** One measurement of the same clearance at a stage of the build. */
 export interface ChartPoint {
@@ -39,12 +39,15 @@ export function BeforeAfterChart({
   title,
   points,
   band,
+  bandUnit,
   system,
   className,
 }: {
   title: string;
   points: readonly ChartPoint[];
   band: BandUm | null;
+  /** The unit the spec's band was written in (the clearances'); its limits keep those places. */
+  bandUnit?: LengthUnit;
   system: UnitSystem;
   className?: string;
 }) {
@@ -64,7 +67,8 @@ export function BeforeAfterChart({
   const first = points[0];
   const last = points[points.length - 1];
   const change = first && last && points.length > 1 ? last.valueUm - first.valueUm : null;
-  const limitText = (um: number) => `${exactText(micrometresToPicometres(um), unit)}`;
+  const limitPlaces = band ? bandDecimals(band, bandUnit ?? unit, unit) : 0;
+  const limitText = (um: number) => formatNumber(micrometresToPicometres(um), unit, limitPlaces);
 
   const strip = (children: ReactNode, label?: string) => (
     <svg viewBox={`0 0 ${W} ${H}`} className="block h-auto w-full text-ink" {...(label ? { role: 'img', 'aria-label': label } : { 'aria-hidden': true })}>

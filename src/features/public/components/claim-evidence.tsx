@@ -1,7 +1,8 @@
 import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import { useState } from 'react';
 import { systemOf, type UnitSystem } from '@shared/measure/format';
-import { decisionRuleText, type Verdict } from '@shared/measure/spec';
+import { decisionRuleText } from '@shared/measure/spec';
+import { limitFacts, specLimitTexts } from '@shared/public/spec-limits';
 import type { PublicClaim, PublicClearance, PublicReading } from '@shared/public/public-story.schema';
 import { VerdictBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
@@ -12,23 +13,11 @@ import { conformanceOf, intervalOf } from '@/features/clearances/components/cove
 import { CalibrationBadge } from '@/features/instruments/components/calibration-badge';
 import { formatTime } from '@/features/clips/lib/clip-format';
 import { dayText, instantDay } from '../lib/dates';
-import { bandText, pictureProps, readingResolutionPm, systemDisplayUnits, valueWithU } from '../lib/figures';
+import { pictureProps, readingResolutionPm, systemDisplayUnits, valueWithU } from '../lib/figures';
 import { Figure } from './figure';
 import { MomentClip } from './moment-clip';
 import { Recompute } from './recompute';
 import { CoverageRows, ReaderBudget, ReaderWarnings } from './uncertainty-evidence';
-
-const preferredWords: Record<Verdict, string> = {
-  conforms: 'Within the preferred band',
-  'does-not-conform': 'Outside the preferred band',
-  undecided: 'Too close to call against the preferred band',
-};
-
-const rejectWords: Record<Verdict, string> = {
-  conforms: 'Clear of the reject limit',
-  'does-not-conform': 'Past the reject limit',
-  undecided: 'Too close to call against the reject limit',
-};
 
 /** A reading's figures as the builder typed them: "0.5642 in", "passes 0.003, stops 0.004 in". */
 export function enteredText(reading: PublicReading): string {
@@ -99,6 +88,7 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
           expandedUm: clearance.expandedUncertaintyUm,
           coverageFactor: clearance.coverageFactor,
           band: clearance.band,
+          bandUnit: clearance.unit,
           verdict: clearance.verdict,
           rule: clearance.rule,
           system,
@@ -106,6 +96,10 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
       : null;
   const expression = clearance.terms.map((t, i) => `${t.sign === -1 ? '− ' : i === 0 ? '' : '+ '}${t.readingName.toLowerCase()}`).join(' ');
   const otherSystem = systemOf(clearance.unit) !== system;
+  const shownIn = systemDisplayUnits[system].main;
+  const limits = clearance.band ? specLimitTexts(clearance.band, clearance.unit, shownIn) : null;
+  // One verdict, against the spec band; the preferred band and the reject limit are facts in words.
+  const facts = limits ? limitFacts({ preferredVerdict: clearance.preferredVerdict, rejectVerdict: clearance.rejectVerdict }, limits) : [];
   return (
     <section aria-labelledby="evidence-clearance" className="flex flex-col gap-3">
       <div>
@@ -142,20 +136,19 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
       </dl>
 
       {clearance.verdict && clearance.rule ? (
-        <div className="flex flex-col gap-2">
-          <div className="flex flex-wrap items-center gap-1.5">
+        <div className="flex flex-col gap-2" data-verdict-block="">
+          <div>
             <VerdictBadge verdict={clearance.verdict} rule={`${clearance.rule} rule, k = ${formatCoverageFactor(clearance.coverageFactor)}`} />
-            {clearance.preferredVerdict && (
-              <VerdictBadge verdict={clearance.preferredVerdict} size="sm">
-                {preferredWords[clearance.preferredVerdict]}
-              </VerdictBadge>
-            )}
-            {clearance.rejectVerdict && (
-              <VerdictBadge verdict={clearance.rejectVerdict} size="sm">
-                {rejectWords[clearance.rejectVerdict]}
-              </VerdictBadge>
-            )}
           </div>
+          {facts.length > 0 && (
+            <ul className="flex flex-col gap-0.5 text-sm" aria-label="Against the preferred band and the reject limit">
+              {facts.map((fact) => (
+                <li key={fact} data-limit-fact="">
+                  {fact}
+                </li>
+              ))}
+            </ul>
+          )}
           <p className="text-xs leading-relaxed text-ink-muted">{decisionRuleText[clearance.rule]}</p>
         </div>
       ) : (
@@ -175,10 +168,9 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
         <p className="text-sm">
           <span className="text-ink-muted">Spec: </span>
           {clearance.spec.name}, version {clearance.spec.version}
-          {clearance.band && (
+          {limits?.band && (
             <>
-              {' · '}
-              <span className="figures">{bandText(clearance.band, systemDisplayUnits[system].main)}</span>
+              {' · '}band <span className="figures">{limits.band}</span>
             </>
           )}
           <br />

@@ -6,7 +6,7 @@ import { systemFigure } from '../lib/figures';
 
 /**
  * A measured figure in the reader's system: value ± U in the main unit, the fine unit beside it
- * (in and thou, mm and µm), in the monospace with tabular digits.
+ * below one main unit (in and thou, mm and µm), in the monospace with tabular digits.
  */
 export function Figure({
   valueUm,
@@ -43,7 +43,7 @@ export function Figure({
         ))}{' '}
         {coverageFactor !== undefined && expandedUm > 0 && <span className="font-normal whitespace-nowrap text-ink-muted">(k = {formatCoverageFactor(coverageFactor)})</span>}
       </span>
-      <span className="figures text-xs text-ink-muted">{figure.fine}</span>
+      {figure.fine && <span className="figures text-xs text-ink-muted">{figure.fine}</span>}
     </span>
   );
 }

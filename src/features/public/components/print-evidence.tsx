@@ -2,6 +2,7 @@ import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import type { UnitSystem } from '@shared/measure/format';
 import { verdictWords } from '@shared/measure/spec';
 import type { PublicStory } from '@shared/public/public-story.schema';
+import { limitFacts, specLimitTexts } from '@shared/public/spec-limits';
 import { formatTime } from '@/features/clips/lib/clip-format';
 import { instantDay } from '../lib/dates';
 import { bandText, readingResolutionPm, systemDisplayUnits, systemFigure } from '../lib/figures';
@@ -30,6 +31,7 @@ export function PrintEvidence({ story, system }: { story: PublicStory; system: U
                   {c?.verdict && c.rule && (
                     <>
                       , {verdictWords[c.verdict]} ({c.rule} rule, k = {formatCoverageFactor(c.coverageFactor)})
+                      {c.band && limitFacts(c, specLimitTexts(c.band, c.unit, systemDisplayUnits[system].main)).map((fact) => ` ${fact}`)}
                     </>
                   )}
                 </>
@@ -37,7 +39,7 @@ export function PrintEvidence({ story, system }: { story: PublicStory; system: U
               {c?.spec && (
                 <span className="block text-xs">
                   Spec {c.spec.name} v{c.spec.version}
-                  {c.band ? `, ${bandText(c.band, systemDisplayUnits[system].main)}` : ''}; source: {c.spec.sourceText}
+                  {c.band ? `, band ${bandText(c.band, c.unit, systemDisplayUnits[system].main)}` : ''}; source: {c.spec.sourceText}
                 </span>
               )}
               <span className="block text-xs">

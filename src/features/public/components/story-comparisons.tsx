@@ -17,6 +17,7 @@ export default function StoryComparisons({ story, system }: { story: PublicStory
           key={group.spec}
           title={`${group.spec}: how the build changed it`}
           band={group.clearances[0]?.band ?? null}
+          bandUnit={group.clearances[0]?.unit}
           system={system}
           points={group.clearances.map((c) => ({
             id: c.key,

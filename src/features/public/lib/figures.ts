@@ -1,5 +1,6 @@
-import { formatLength, formatNumber, formatResult, formatUncertainty, symbolFor, type UnitSystem } from '@shared/measure/format';
+import { formatLength, formatNumber, formatResult, formatUncertainty, limitDecimals, showsFineUnit, symbolFor, systemOf, type UnitSystem } from '@shared/measure/format';
 import { guardedLimits, type BandPm, type DecisionRule, type Verdict } from '@shared/measure/spec';
+import { specLimitTexts } from '@shared/public/spec-limits';
 import { maxExactDecimals, micrometresToPicometres, picometresPerUnit, type LengthUnit } from '@shared/measure/units';
 import type { BandUm } from './band';
 
@@ -26,8 +27,11 @@ export function valueWithU(valueUm: number, expandedUm: number, unit: LengthUnit
 export interface SystemFigure {
   /** "0.00470 in ± 0.00031 in". */
   main: string;
-  /** "4.70 thou ± 0.31 thou". */
-  fine: string;
+  /**
+   * "4.70 thou ± 0.31 thou"; null for a figure of one main unit or more, which is written in the
+   * main unit only (14.331 mm, never 14331 µm: `showsFineUnit`, shared/measure/format.ts).
+   */
+  fine: string | null;
   /** The value alone in the main unit, "0.00470 in". */
   value: string;
 }
@@ -35,7 +39,9 @@ export interface SystemFigure {
 /**
  * `valueUm` ± `expandedUm` in `system` (the engine's µm, formatted by shared/measure/format). A
  * computed figure follows GUM 7.2.6 (U to two significant digits, the value to its place); a
- * reading given its `resolutionPm` is shown at its resolution instead, as format.ts sets out.
+ * reading given its `resolutionPm` is shown at its resolution instead, as format.ts sets out,
+ * which keeps the precision of the figure typed when it is converted (NIST SP 811 B.7.2): a
+ * 0.5642 in reading reads 14.331 mm. U is always in the unit of the value beside it.
  */
 export function systemFigure(valueUm: number, expandedUm: number, system: UnitSystem, resolutionPm?: bigint | null): SystemFigure {
   const { main, fine } = systemDisplayUnits[system];
@@ -44,10 +50,10 @@ export function systemFigure(valueUm: number, expandedUm: number, system: UnitSy
       ? { value: formatLength(micrometresToPicometres(valueUm), unit, resolutionPm), uncertainty: formatUncertainty(expandedUm, unit) }
       : valueWithU(valueUm, expandedUm, unit);
   const a = at(main);
-  const b = at(fine);
+  const b = showsFineUnit(micrometresToPicometres(valueUm), main) ? at(fine) : null;
   return {
     main: expandedUm === 0 ? a.value : `${a.value} ± ${a.uncertainty}`,
-    fine: expandedUm === 0 ? b.value : `${b.value} ± ${b.uncertainty}`,
+    fine: b === null ? null : expandedUm === 0 ? b.value : `${b.value} ± ${b.uncertainty}`,
     value: a.value,
   };
 }
@@ -72,23 +78,19 @@ export function bandPm(min: number | null, max: number | null): BandPm {
   return { ...(minPm !== undefined && { minPm }), ...(maxPm !== undefined && { maxPm }) };
 }
 
-/** "0.003 in to 0.005 in", "at least 0.0762 mm", "at most 5 thou", in `unit`. */
-export function bandText(band: { minUm: number | null; maxUm: number | null }, unit: LengthUnit): string {
-  const at = (um: number) => {
-    const text = exactText(micrometresToPicometres(um), unit);
-    return `${text} ${symbolFor(unit, text)}`;
-  };
-  if (band.minUm !== null && band.maxUm !== null) return `${at(band.minUm)} to ${at(band.maxUm)}`;
-  if (band.minUm !== null) return `at least ${at(band.minUm)}`;
-  if (band.maxUm !== null) return `at most ${at(band.maxUm)}`;
-  return 'no limits';
+/**
+ * A spec's band written in `writtenIn` (the clearance's unit), shown in `unit` at the places the
+ * spec was written to, converted by NIST SP 811 B.7.2 (`limitDecimals`): 0.0015–0.0040 in reads
+ * "0.038–0.102 mm", not 0.0381–0.1016 mm. "at least …", "at most …" for one-sided bands.
+ */
+export function bandText(band: BandUm, writtenIn: LengthUnit, unit: LengthUnit): string {
+  return specLimitTexts(band, writtenIn, unit).band ?? 'no limits';
 }
 
-/** Fewest places that write `pm` exactly in `unit`. */
-export function exactDecimals(pm: bigint, unit: LengthUnit): number {
-  const per = picometresPerUnit[unit];
-  for (let d = 0; d <= maxExactDecimals[unit]; d += 1) if ((pm * 10n ** BigInt(d)) % per === 0n) return d;
-  return maxExactDecimals[unit];
+/** Places a spec's limits are shown with in `unit` (the band picture's scale, the before-and-after chart). */
+export function bandDecimals(band: BandUm, writtenIn: LengthUnit, unit: LengthUnit): number {
+  const limits = [band.minUm, band.maxUm, band.preferredMinUm, band.preferredMaxUm, band.rejectUm].filter((um): um is number => um !== null);
+  return limitDecimals(limits.map(micrometresToPicometres), writtenIn, unit);
 }
 
 /** What the band picture needs, in the reader's main unit. */
@@ -97,6 +99,8 @@ export function pictureProps(input: {
   expandedUm: number;
   coverageFactor: number;
   band: BandUm;
+  /** The unit the spec was written in (the clearance's). */
+  bandUnit: LengthUnit;
   verdict: Verdict;
   rule: DecisionRule;
   system: UnitSystem;
@@ -107,12 +111,13 @@ export function pictureProps(input: {
   const preferred = hasPreferred ? bandPm(input.band.preferredMinUm ?? input.band.minUm, input.band.preferredMaxUm ?? input.band.maxUm) : null;
   const rejectPm = pmOf(input.band.rejectUm) ?? null;
   const expandedPm = micrometresToPicometres(input.expandedUm);
-  const limits = [band.minPm, band.maxPm, preferred?.minPm, preferred?.maxPm, rejectPm].filter((p): p is bigint => p !== undefined && p !== null);
   // The scale is labelled as the limits were written, with at most one place more for the value
-  // (its U is in the words beside the picture): 0.0030, 0.0047, 0.0050 in.
+  // (its U is in the words beside the picture): 0.0030, 0.0047, 0.0050 in. Converted to the other
+  // system (NIST SP 811 B.7.2) the limits set the places alone: 0.076, 0.119, 0.127 mm.
+  // Across systems the converted limits have no place to spare, so the scale keeps theirs.
   const valueDecimals = decimalsOf(valueWithU(input.valueUm, input.expandedUm, unit).value);
-  const limitDecimals = Math.max(0, ...limits.map((p) => exactDecimals(p, unit)));
-  const decimals = Math.max(limitDecimals, Math.min(valueDecimals, limitDecimals + 1));
+  const limitPlaces = bandDecimals(input.band, input.bandUnit, unit);
+  const decimals = systemOf(input.bandUnit) === input.system ? Math.max(limitPlaces, Math.min(valueDecimals, limitPlaces + 1)) : limitPlaces;
   return {
     unit,
     decimals,

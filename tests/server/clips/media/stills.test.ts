@@ -3,7 +3,7 @@ import os from 'node:os';
 import path from 'node:path';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { MediaCommandFailed } from '../../../../server/features/clips/media/ffmpeg-run';
-import { extractFrame, makePoster, makeThumbnailStrip } from '../../../../server/features/clips/media/stills';
+import { extractFrame, keyframesFit, makePoster, makeThumbnailStrip } from '../../../../server/features/clips/media/stills';
 import { decodeGray, ffmpegDirect, makeTestClip, meanAbsDiff } from '../../../support/clips';
 
 let dir: string;
@@ -119,17 +119,56 @@ describe('makeThumbnailStrip', () => {
     });
   }
 
+  /** Frame number `frame` of `input`, scaled and stored like a tile. */
+  async function referenceTile(input: string, frame: number, width: number, height: number) {
+    const file = out('ref-tile');
+    await ffmpegDirect(['-v', 'error', '-i', input, '-vf', `select=eq(n\\,${frame}),scale=${width}:${height},setsar=1`, '-vsync', '0', '-frames:v', '1', '-q:v', '4', file]);
+    return (await decodeGray(file)).pixels;
+  }
+
+  // 5 s at 30 fps, no sound (so the clip lasts exactly 5 s), 5 tiles: the middles are 0.5, 1.5 … 4.5 s.
   it.each([
-    ['keyframes every second (fast path)', 1],
-    ['a single keyframe (decodes everything)', undefined],
-  ])('makes one JPEG of count tiles in a row from a clip with %s', async (_name, keyframeEveryS) => {
-    const input = await makeTestClip({ format: 'mp4-h264', dir, seconds: 5, keyframeEveryS, name: `strip-${keyframeEveryS ?? 'long'}` });
+    // Keyframes at 0, 1 … 4 s: each tile shows the last keyframe at or before its middle.
+    ['keyframes every second, from the keyframes alone', 1, (i: number) => 30 * i],
+    // One keyframe: every frame is decoded and each tile shows the frame on screen at its middle.
+    ['a single keyframe, from every frame', undefined, (i: number) => 30 * i + 15],
+  ])('makes one JPEG of count tiles in a row from a clip with %s, each tile the right frame', async (_name, keyframeEveryS, expectedFrame) => {
+    const input = await makeTestClip({ format: 'mp4-h264', dir, seconds: 5, keyframeEveryS, audio: false, name: `strip-${keyframeEveryS ?? 'long'}` });
     const file = out('strip');
     const strip = await makeThumbnailStrip(input, file, { count: 5, tileWidth: 160 });
     expect(strip).toEqual({ count: 5, intervalS: 1, width: 160, height: 120 });
     expect(await decodeGray(file)).toMatchObject({ width: 800, height: 120 });
     const each = await tiles(file, 5);
-    for (let i = 1; i < each.length; i++) expect(meanAbsDiff(each[i - 1]!, each[i]!)).toBeGreaterThan(5);
+    for (const [i, tile] of each.entries()) {
+      const frame = expectedFrame(i);
+      const diff = meanAbsDiff(tile, await referenceTile(input, frame, 160, 120));
+      expect(diff, `tile ${i} against frame ${frame}`).toBeLessThan(1.5);
+      // A third of a second either side is clearly another picture.
+      if (frame >= 10) expect(meanAbsDiff(tile, await referenceTile(input, frame - 10, 160, 120))).toBeGreaterThan(diff + 1);
+      expect(meanAbsDiff(tile, await referenceTile(input, frame + 10, 160, 120))).toBeGreaterThan(diff + 1);
+    }
+  });
+
+  it('fills every tile when there are more tiles than keyframes, repeating the nearest earlier one', async () => {
+    // 6 tiles over 5 s (0.833 s each) and keyframes every second: tile 3 (middle 2.92 s) repeats the keyframe at 2 s.
+    const input = await makeTestClip({ format: 'mp4-h264', dir, seconds: 5, keyframeEveryS: 1, audio: false, name: 'strip-six' });
+    const file = out('strip-six');
+    expect(await makeThumbnailStrip(input, file, { count: 6, tileWidth: 160 })).toEqual({ count: 6, intervalS: 0.833, width: 160, height: 120 });
+    const each = await tiles(file, 6);
+    const expected = [0, 30, 60, 60, 90, 120];
+    for (const [i, tile] of each.entries()) {
+      expect(meanAbsDiff(tile, await referenceTile(input, expected[i]!, 160, 120)), `tile ${i}`).toBeLessThan(1.5);
+    }
+  });
+
+  it('takes the keyframes alone only when every tile has one within 1.5 intervals of its middle', () => {
+    expect(keyframesFit([0, 1, 2, 3, 4], 6, 5 / 6)).toBe(true);
+    // Middles 0.5 … 4.5 s; keyframes 2 s apart leave 1.5 s at most: just fits.
+    expect(keyframesFit([0, 2, 4], 5, 1)).toBe(true);
+    // 3 s apart: the tile at 2.5 s would show 0 s.
+    expect(keyframesFit([0, 3], 5, 1)).toBe(false);
+    expect(keyframesFit([0], 5, 1)).toBe(false);
+    expect(keyframesFit([], 1, 1)).toBe(false);
   });
 
   it('keeps the shown shape of a portrait clip', async () => {

@@ -9,7 +9,7 @@ import { moovBeforeMdat } from '../../../../server/features/clips/media/atoms';
 import { MediaCommandFailed } from '../../../../server/features/clips/media/ffmpeg-run';
 import { probeVideo } from '../../../../server/features/clips/media/probe';
 import { makeWebCopy, timemarkSeconds } from '../../../../server/features/clips/media/transcode';
-import { ffprobeJson, makeDisguisedFile, makeTestClip } from '../../../support/clips';
+import { ffprobeJson, makeDisguisedFile, makeTestClip, makeTruncatedCopy } from '../../../support/clips';
 
 const run = promisify(execFile);
 let dir: string;
@@ -89,11 +89,23 @@ describe('makeWebCopy', () => {
 
   it('on failure leaves no file behind and says why in a sentence', async () => {
     const sub = await fs.mkdtemp(path.join(dir, 'fail-'));
-    const input = await makeDisguisedFile('html', sub);
+    // Starts like a MOV, so ffmpeg reads it with the MOV demuxer, but its index never came.
+    const whole = await makeTestClip({ format: 'mov-no-faststart', dir: sub, seconds: 3, name: 'whole' });
+    const input = await makeTruncatedCopy(whole, 0.4);
+    await fs.rm(whole);
     const out = path.join(sub, 'web.mp4');
-    const err = await makeWebCopy(input, out, 'transcode', { durationS: 5 }).catch((e: unknown) => e);
+    const err = await makeWebCopy(input, out, 'transcode', { durationS: 3 }).catch((e: unknown) => e);
     expect(err).toBeInstanceOf(MediaCommandFailed);
-    expect((err as Error).message).toMatch(/^Could not convert the video for browsers: .*Invalid data found when processing input\.$/);
+    expect((err as Error).message).toMatch(/^Could not convert the video for browsers: .*moov atom not found.*Invalid data found when processing input\.$/);
+    expect(await filesIn(sub)).toEqual([path.basename(input)]);
+  });
+
+  it('refuses a file that is not in a video container before ffmpeg reads it', async () => {
+    const sub = await fs.mkdtemp(path.join(dir, 'html-'));
+    const input = await makeDisguisedFile('html', sub);
+    const err = await makeWebCopy(input, path.join(sub, 'web.mp4'), 'remux', { durationS: 5 }).catch((e: unknown) => e);
+    expect(err).toBeInstanceOf(MediaCommandFailed);
+    expect((err as Error).message).toBe('Could not copy the video into MP4: the file is not in a video container Benchproof reads.');
     expect(await filesIn(sub)).toEqual([path.basename(input)]);
   });
 

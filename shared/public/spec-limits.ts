@@ -1,0 +1,85 @@
+/**
+ * A spec's limits and what a judged value is against them, in words, for every place a reader sees
+ * a verdict (the story's claim panel, the inspection sheet and its verification page). One verdict
+ * is stated against the spec band; the preferred band and the reject limit are secondary facts in
+ * plain words ("Outside the preferred band 0.003–0.005 in."), never a second verdict. No zod here:
+ * the verification page is a reader's first load.
+ */
+import { formatLimit, formatLimitSpan, limitDecimals } from '../measure/format';
+import type { Verdict } from '../measure/spec';
+import { micrometresToPicometres, type LengthUnit } from '../measure/units';
+
+/** A spec's limits in µm, as a clearance result carries them (`bandUmSchema`). */
+export interface SpecLimitsUm {
+  minUm: number | null;
+  maxUm: number | null;
+  preferredMinUm: number | null;
+  preferredMaxUm: number | null;
+  rejectUm: number | null;
+}
+
+/** The limits written out in one unit; null where the spec has none. */
+export interface SpecLimitTexts {
+  /** "0.0015–0.0040 in", "at most 0.0060 in". */
+  band: string | null;
+  /** "0.0020–0.0030 in". An open side is the band's own limit, as the engine judges it. */
+  preferred: string | null;
+  /** "0.0050 in". */
+  reject: string | null;
+}
+
+const pm = (um: number | null) => (um === null ? null : micrometresToPicometres(um));
+
+/**
+ * The limits of a spec written in `writtenIn`, shown in `shownIn`: every limit at the places the spec
+ * was written to, converted by NIST SP 811 B.7.2 (shared/measure/format.ts, `limitDecimals`).
+ */
+export function specLimitTexts(limits: SpecLimitsUm, writtenIn: LengthUnit, shownIn: LengthUnit = writtenIn): SpecLimitTexts {
+  const min = pm(limits.minUm);
+  const max = pm(limits.maxUm);
+  const hasPreferred = limits.preferredMinUm !== null || limits.preferredMaxUm !== null;
+  const preferredMin = hasPreferred ? (pm(limits.preferredMinUm) ?? min) : null;
+  const preferredMax = hasPreferred ? (pm(limits.preferredMaxUm) ?? max) : null;
+  const reject = pm(limits.rejectUm);
+  const all = [min, max, preferredMin, preferredMax, reject].filter((p): p is bigint => p !== null);
+  const decimals = limitDecimals(all, writtenIn, shownIn);
+  return {
+    band: min === null && max === null ? null : formatLimitSpan(min, max, shownIn, decimals),
+    preferred: hasPreferred ? formatLimitSpan(preferredMin, preferredMax, shownIn, decimals) : null,
+    reject: reject === null ? null : formatLimit(reject, shownIn, decimals),
+  };
+}
+
+/** Which secondary limit a fact is about. */
+export type LimitKind = 'preferred' | 'reject';
+
+const limitFactWords: Record<LimitKind, Record<Verdict, string>> = {
+  preferred: {
+    conforms: 'Inside the preferred band',
+    'does-not-conform': 'Outside the preferred band',
+    undecided: 'At the edge of the preferred band',
+  },
+  reject: {
+    conforms: 'Clear of the reject limit',
+    'does-not-conform': 'Past the reject limit',
+    undecided: 'At the reject limit',
+  },
+};
+
+/**
+ * One secondary fact in plain words: "Outside the preferred band 0.003–0.005 in.", "Clear of the
+ * reject limit 0.008 in."; "too close to call" reads as "at the edge of … (its uncertainty spans
+ * the limit)". `limit` may be null where the figures are shown elsewhere.
+ */
+export function limitFact(kind: LimitKind, verdict: Verdict, limit: string | null): string {
+  const words = `${limitFactWords[kind][verdict]}${limit ? ` ${limit}` : ''}`;
+  return verdict === 'undecided' ? `${words} (its uncertainty spans the limit).` : `${words}.`;
+}
+
+/** The secondary facts of a judged value, preferred band first; empty when the spec has neither. */
+export function limitFacts(judged: { preferredVerdict: Verdict | null; rejectVerdict: Verdict | null }, texts: SpecLimitTexts): string[] {
+  const facts: string[] = [];
+  if (judged.preferredVerdict) facts.push(limitFact('preferred', judged.preferredVerdict, texts.preferred));
+  if (judged.rejectVerdict) facts.push(limitFact('reject', judged.rejectVerdict, texts.reject));
+  return facts;
+}
