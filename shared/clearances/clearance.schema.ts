@@ -19,30 +19,32 @@ export const clearanceTermInputSchema = z.strictObject({
   sign: z.union([z.literal(1), z.literal(-1)], { error: 'sign must be 1 or -1' }),
 });
 
+const coverageFactorMessage = `enter k as a number from ${COVERAGE_FACTOR_RANGE.min} to ${COVERAGE_FACTOR_RANGE.max}, or leave it empty for a 95 % interval`;
+
 const clearanceFields = {
   key: readingKeySchema,
-  name: textWithoutNul.trim().min(1, 'name the clearance').max(120, 'at most 120 characters'),
+  name: textWithoutNul.trim().min(1, 'name the clearance').max(120, 'shorten the name to 120 characters or fewer'),
   template: z.enum(clearanceTemplateIds).nullable(),
   terms: z
     .array(clearanceTermInputSchema)
     .min(1, 'pick at least one reading')
-    .max(20, 'at most 20 readings')
+    .max(20, 'a clearance takes at most 20 readings: remove a term')
     .superRefine((terms, ctx) => {
       const seen = new Set<number>();
       terms.forEach((t, i) => {
         // GUM eq. (10) for uncorrelated inputs: one reading, one term.
-        if (seen.has(t.readingId)) ctx.addIssue({ code: 'custom', path: [i, 'readingId'], message: 'this reading is already a term' });
+        if (seen.has(t.readingId)) ctx.addIssue({ code: 'custom', path: [i, 'readingId'], message: 'this reading is already a term: pick another reading, or remove this term' });
         seen.add(t.readingId);
       });
     }),
   specVersionId: z.number().int().positive().nullable(),
   /** A fixed k, or null for a 95 % coverage interval worked out by the engine (t-factor or Monte Carlo). */
   coverageFactor: z
-    .number({ error: 'coverageFactor must be a number' })
-    .min(COVERAGE_FACTOR_RANGE.min, `coverageFactor must be at least ${COVERAGE_FACTOR_RANGE.min}`)
-    .max(COVERAGE_FACTOR_RANGE.max, `coverageFactor must be at most ${COVERAGE_FACTOR_RANGE.max}`)
+    .number({ error: coverageFactorMessage })
+    .min(COVERAGE_FACTOR_RANGE.min, coverageFactorMessage)
+    .max(COVERAGE_FACTOR_RANGE.max, coverageFactorMessage)
     .nullable(),
-  note: textWithoutNul.trim().max(2000, 'at most 2000 characters'),
+  note: textWithoutNul.trim().max(2000, 'shorten the note to 2000 characters or fewer'),
 };
 
 /** Body of `POST /api/builds/:buildId/clearances`. `key` is derived from `name` when not sent. */

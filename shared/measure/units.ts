@@ -74,6 +74,12 @@ export const unitNames: Readonly<Record<LengthUnit, string>> = {
   um: 'micrometres',
 };
 
+/** A unit as a label says it once: "inches (in)", "millimetres (mm)", "thou (0.001 in)". */
+export function unitLabel(unit: LengthUnit): string {
+  const name = unitNames[unit];
+  return name.includes('(') ? name : `${name} (${unitSymbols[unit]})`;
+}
+
 /** Type guard for a unit code. */
 export function isLengthUnit(value: unknown): value is LengthUnit {
   return typeof value === 'string' && (lengthUnits as readonly string[]).includes(value);

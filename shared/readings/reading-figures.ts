@@ -12,6 +12,7 @@ import { parseLength, type EnteredLength } from '../measure/parse';
 import { parseDecimalText } from '../measure/decimal';
 import { decimalToPicometres, maxExactDecimals, picometresPerUnit, type LengthUnit, unitSymbols } from '../measure/units';
 import type { ReadingKind, ReadingWarning } from './reading.schema';
+import { bracketOrderMessage, engineMessageInFormWords, missingFigureMessages, mixedUnitsMessage, notOfKindMessage, TOO_FEW_VALUES_MESSAGE } from './reading-words';
 
 /** A reading's figures as stored: decimal text in `unit`, and the texts exactly as typed. */
 export interface ReadingFigures {
@@ -40,13 +41,6 @@ const fieldsOfKind: Readonly<Record<ReadingKind, readonly FigureField[]>> = {
   repeated: ['values'],
 };
 
-const missingMessage: Readonly<Record<FigureField, string>> = {
-  value: 'enter the value as shown',
-  passes: 'enter the thickest blade that enters',
-  stops: 'enter the thinnest blade that does not enter',
-  values: 'enter each value',
-};
-
 /** True when the text carries a unit of its own (parsing it without a default unit succeeds). */
 function typedUnitOf(text: string): LengthUnit | null {
   const alone = parseLength(text);
@@ -57,8 +51,9 @@ function typedUnitOf(text: string): LengthUnit | null {
  * Texts as typed → decimal text in one unit. The reading's unit is the unit typed in the texts
  * (all must agree), else input.unit, else the instrument's. Refuses, naming the field: a unit
  * the engine cannot read, texts in different units, a negative length (except from a dial test
- * indicator or dial bore gauge, which show deviations), a feeler bracket whose stops is not
- * thicker than its passes, and anything the engine's own reading schema refuses.
+ * indicator or dial bore gauge, which show deviations), a feeler bracket whose "does not enter"
+ * blade is not thicker than the one that enters, and anything the engine's own reading schema
+ * refuses. Messages use the form's words; paths keep the API's field names.
  */
 export function normaliseReadingFigures(
   input: { kind: ReadingKind; unit?: LengthUnit; value?: string; passes?: string; stops?: string; values?: string[] },
@@ -69,9 +64,9 @@ export function normaliseReadingFigures(
   for (const field of fieldsOfKind[input.kind]) {
     const sent = input[field];
     if (sent === undefined) {
-      problems.push({ path: field, message: missingMessage[field] });
+      problems.push({ path: field, message: missingFigureMessages[field] });
     } else if (Array.isArray(sent)) {
-      if (sent.length < 2) problems.push({ path: field, message: 'a repeated reading needs at least 2 values' });
+      if (sent.length < 2) problems.push({ path: field, message: TOO_FEW_VALUES_MESSAGE });
       sent.forEach((text, i) => texts.push({ path: `${field}.${i}`, field, text }));
     } else {
       texts.push({ path: field, field, text: sent });
@@ -79,7 +74,7 @@ export function normaliseReadingFigures(
   }
   for (const field of ['value', 'passes', 'stops', 'values'] as const) {
     if (!fieldsOfKind[input.kind].includes(field) && input[field] !== undefined) {
-      problems.push({ path: field, message: `a ${input.kind} reading has no ${field}` });
+      problems.push({ path: field, message: notOfKindMessage(input.kind, field) });
     }
   }
 
@@ -97,10 +92,7 @@ export function normaliseReadingFigures(
     if (own !== null) {
       if (typed === null) typed = { unit: own, path: t.path };
       else if (typed.unit !== own) {
-        problems.push({
-          path: t.path,
-          message: `this is in ${unitSymbols[own]} but ${typed.path} is in ${unitSymbols[typed.unit]}; enter every figure of one reading in the same unit`,
-        });
+        problems.push({ path: t.path, message: mixedUnitsMessage(input.kind, unitSymbols[own], typed.path, unitSymbols[typed.unit]) });
         continue;
       }
     }
@@ -125,7 +117,7 @@ export function normaliseReadingFigures(
       if (!deviationKinds.has(instrument.kind)) {
         problems.push({
           path: t.path,
-          message: 'a length cannot be negative; only a dial test indicator or a dial bore gauge reads below zero',
+          message: 'a length cannot be negative: enter it without the minus sign (only a dial test indicator or a dial bore gauge reads below zero)',
         });
         continue;
       }
@@ -137,10 +129,7 @@ export function normaliseReadingFigures(
     const passes = lengths.get('passes');
     const stops = lengths.get('stops');
     if (passes && stops && stops.pm <= passes.pm) {
-      problems.push({
-        path: 'stops',
-        message: 'stops must be thicker than passes (the thinnest blade that does not enter is thicker than the thickest that does)',
-      });
+      problems.push({ path: 'stops', message: bracketOrderMessage(`${passes.text} ${unitSymbols[unit]}`, `${stops.text} ${unitSymbols[unit]}`) });
     }
   }
   if (problems.length) return { ok: false, problems };
@@ -241,12 +230,17 @@ export function engineInstrumentOf(instrument: RegisterInstrument): EngineInstru
 
 /**
  * The engine's own reading schema run over a built engine reading, its issues renamed to our
- * fields: the instrument's figures (resolution, stated uncertainty) and the day's zero offset
- * come from the instrument, so their issues name `instrumentId`.
+ * fields and told in the form's words: the instrument's figures (resolution, stated uncertainty)
+ * and the day's zero offset come from the instrument, so their issues name `instrumentId`.
  */
 export function engineReadingProblems(engine: EngineReading): { path: string; message: string }[] {
   const result = engineReadingSchema.safeParse(engine);
-  return result.success ? [] : result.error.issues.map((issue) => ({ path: fieldPathOf(issue.path), message: issue.message }));
+  if (result.success) return [];
+  const bracket = engine.kind === 'bracket' ? { passes: String(engine.passes), stops: String(engine.stops), unit: unitSymbols[engine.unit] } : undefined;
+  return result.error.issues.map((issue) => ({
+    path: fieldPathOf(issue.path),
+    message: engineMessageInFormWords(issue.path.map(String).join('.'), issue.message, bracket),
+  }));
 }
 
 /**

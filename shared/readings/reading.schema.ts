@@ -5,9 +5,9 @@
 import { z } from 'zod';
 import { dbIdText, dbPositiveInteger, textWithoutNul } from '../http/db-values.schema';
 import { calcInstrumentSchema, readingKeySchema, readingSchema as engineReadingSchema, TEMPERATURE_RANGE_C, unitSchema } from '../measure/calc.schema';
-import { lengthTextSchema } from '../measure/length-text';
 import { materialNames } from '../measure/thermal';
 import { isoDateSchema } from '../instruments/instrument.schema';
+import { missingFigureMessages, notOfKindMessage, TOO_FEW_VALUES_MESSAGE } from './reading-words';
 
 /** How a reading was taken: one indication, a feeler-blade bracket, or the same size several times. */
 export const readingKinds = ['direct', 'bracket', 'repeated'] as const;
@@ -20,35 +20,48 @@ export type ReviewState = (typeof reviewStates)[number];
 /** Most values in one repeated reading entered by hand. */
 export const MAX_ENTERED_REPEATS = 50;
 
+/** A length as typed, refused in the words of its box when empty ("enter the thickest blade that enters"). */
+function figureText(missing: string) {
+  return z
+    .string({ error: missing })
+    .trim()
+    .min(1, missing)
+    .max(64, 'that is too long for a length: enter the number and its unit, e.g. 0.0035 in');
+}
+
 const readingFields = {
   momentId: z.number().int().positive(),
   instrumentId: z.number().int().positive(),
   partId: z.number().int().positive().nullable(),
   /** The name claims and clearances use; derived from `name` when not sent. */
   key: readingKeySchema,
-  name: textWithoutNul.trim().min(1, 'name the reading').max(120, 'at most 120 characters'),
-  kind: z.enum(readingKinds, { error: 'kind must be "direct", "bracket" or "repeated"' }),
+  name: textWithoutNul.trim().min(1, 'name the reading').max(120, 'shorten the name to 120 characters or fewer'),
+  kind: z.enum(readingKinds, {
+    error: 'choose how it was read: “One indication”, “Feeler bracket” or “Repeated” (kind "direct", "bracket" or "repeated")',
+  }),
   /** Unit for texts typed without one; defaults to the instrument's. A unit typed in the text wins. */
   unit: unitSchema,
   /** direct: the indication as shown ("0.5642", "0.5642 in", "564.2 thou"). */
-  value: lengthTextSchema,
+  value: figureText(missingFigureMessages.value),
   /** bracket: the thickest blade that enters. */
-  passes: lengthTextSchema,
+  passes: figureText(missingFigureMessages.passes),
   /** bracket: the thinnest blade that does not. */
-  stops: lengthTextSchema,
+  stops: figureText(missingFigureMessages.stops),
   /** repeated: each indication. */
   values: z
-    .array(lengthTextSchema)
-    .min(2, 'a repeated reading needs at least 2 values')
-    .max(MAX_ENTERED_REPEATS, `at most ${MAX_ENTERED_REPEATS} values`),
+    .array(figureText(missingFigureMessages.values), { error: missingFigureMessages.values })
+    .min(2, TOO_FEW_VALUES_MESSAGE)
+    .max(MAX_ENTERED_REPEATS, `enter at most ${MAX_ENTERED_REPEATS} values; log the rest as another reading`),
   /** Part temperature when measured, °C; with `material` the value is corrected to 20 °C. */
   temperatureC: z
-    .number({ error: 'temperatureC must be a number' })
-    .min(TEMPERATURE_RANGE_C.min, `at least ${TEMPERATURE_RANGE_C.min} °C`)
-    .max(TEMPERATURE_RANGE_C.max, `at most ${TEMPERATURE_RANGE_C.max} °C`)
+    .number({ error: 'enter the temperature as a number of °C, e.g. 21.5, or leave it empty' })
+    .min(TEMPERATURE_RANGE_C.min, `enter a temperature from ${TEMPERATURE_RANGE_C.min} to ${TEMPERATURE_RANGE_C.max} °C`)
+    .max(TEMPERATURE_RANGE_C.max, `enter a temperature from ${TEMPERATURE_RANGE_C.min} to ${TEMPERATURE_RANGE_C.max} °C`)
     .nullable(),
-  material: z.enum(materialNames as [string, ...string[]], { error: `material must be one of ${materialNames.join(', ')}` }).nullable(),
-  note: textWithoutNul.trim().max(2000, 'at most 2000 characters'),
+  material: z
+    .enum(materialNames as [string, ...string[]], { error: `choose the material from the list (one of ${materialNames.join(', ')})` })
+    .nullable(),
+  note: textWithoutNul.trim().max(2000, 'shorten the note to 2000 characters or fewer'),
   /** The day it was measured (zero checks and calibration are judged on this day); default today. */
   takenOn: isoDateSchema,
 };
@@ -61,20 +74,20 @@ function refineKind(
     if (v[field] === undefined) ctx.addIssue({ code: 'custom', path: [field], message });
   };
   const forbid = (field: 'value' | 'passes' | 'stops' | 'values') => {
-    if (v[field] !== undefined) ctx.addIssue({ code: 'custom', path: [field], message: `a ${v.kind} reading has no ${field}` });
+    if (v[field] !== undefined) ctx.addIssue({ code: 'custom', path: [field], message: notOfKindMessage(v.kind, field) });
   };
   if (v.kind === 'direct') {
-    need('value', 'enter the value as shown');
+    need('value', missingFigureMessages.value);
     forbid('passes');
     forbid('stops');
     forbid('values');
   } else if (v.kind === 'bracket') {
-    need('passes', 'enter the thickest blade that enters');
-    need('stops', 'enter the thinnest blade that does not enter');
+    need('passes', missingFigureMessages.passes);
+    need('stops', missingFigureMessages.stops);
     forbid('value');
     forbid('values');
   } else if (v.kind === 'repeated') {
-    need('values', 'enter each value');
+    need('values', missingFigureMessages.values);
     forbid('value');
     forbid('passes');
     forbid('stops');
@@ -239,4 +252,30 @@ export function keyFromName(name: string): string {
     .slice(0, 40)
     .replace(/-+$/, '');
   return /^[a-z]/.test(slug) ? slug : `r-${slug}`.slice(0, 40).replace(/-+$/, '') || 'reading';
+}
+
+/** The longest key a reading or clearance may have (the engine's reading keys are 1–40 characters). */
+export const MAX_KEY_LENGTH = 40;
+
+/**
+ * `base` when no key in `taken` has it, else `base-2`, `base-3`… (the base cut so the key stays
+ * within 40 characters): the same rule the server follows when it derives a key from a name.
+ */
+export function uniqueKey(base: string, taken: Iterable<string>): string {
+  const used = new Set(taken);
+  if (!used.has(base)) return base;
+  for (let n = 2; ; n += 1) {
+    const suffix = `-${n}`;
+    const candidate = `${base.slice(0, MAX_KEY_LENGTH - suffix.length).replace(/-+$/, '')}${suffix}`;
+    if (!used.has(candidate)) return candidate;
+  }
+}
+
+/**
+ * The key to offer for a name, free among the build's `taken` keys: "Outer rotor to body" →
+ * "outer-rotor-to-body", or "outer-rotor-to-body-2" when that one is taken. An empty name takes
+ * `fallbackName` ("Clearance" → "clearance", made free the same way).
+ */
+export function suggestKey(name: string, taken: Iterable<string>, fallbackName = 'Reading'): string {
+  return uniqueKey(keyFromName(name.trim() || fallbackName), taken);
 }

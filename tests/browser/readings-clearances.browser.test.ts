@@ -174,7 +174,7 @@ describe('readings and clearances at the bench', () => {
       await form.getByLabel('Thickest blade that enters').fill('0.006');
       await form.getByLabel('Thinnest blade that does not').fill('0.005');
       await form.getByRole('button', { name: 'Save reading' }).click();
-      const stopsError = form.locator('[id$="-error"]', { hasText: 'stops must be thicker than passes' });
+      const stopsError = form.locator('[id$="-error"]', { hasText: 'The blade that does not enter must be thicker than the one that enters (0.006 in enters, 0.005 in does not).' });
       await stopsError.waitFor();
       // The refusal sits with the "does not enter" box it is about.
       const stopsBox = form.getByLabel('Thinnest blade that does not');

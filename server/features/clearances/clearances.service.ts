@@ -125,8 +125,11 @@ export async function clearanceForOwner(clearanceId: number, user: User | undefi
 async function checkTerms(buildId: number, terms: { readingId: number }[], transaction?: Transaction) {
   const found = await Reading.findAll({ attributes: ['id'], where: { id: terms.map((t) => t.readingId), buildId }, transaction });
   const have = new Set(found.map((r) => r.id));
-  const problems = terms.flatMap((t, i) => (have.has(t.readingId) ? [] : [{ path: `terms.${i}.readingId`, message: 'not a reading of this build' }]));
-  if (problems.length) throw badRequest(`Some fields are not right: ${problems[0]!.path}: ${problems[0]!.message}`, problems, 'invalid_request');
+  const missing = terms.flatMap((t, i) => (have.has(t.readingId) ? [] : [i]));
+  const problems = missing.map((i) => ({ path: `terms.${i}.readingId`, message: 'not a reading of this build: pick one of its readings' }));
+  if (problems.length) {
+    throw badRequest(`Pick readings of this build: term ${missing.map((i) => i + 1).join(', ')} ${missing.length === 1 ? 'is' : 'are'} not one of them.`, problems, 'invalid_request');
+  }
 }
 
 function termRows(clearanceId: number, terms: { readingId: number; sign: 1 | -1 }[]) {

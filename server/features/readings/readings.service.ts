@@ -9,6 +9,8 @@ import { engineInstrumentsMap } from '@shared/measure/instrument-map';
 import { engineReadingProblems, normaliseReadingFigures, toEngineReading, type ReadingFigures, type RegisterInstrument } from '@shared/readings/reading-figures';
 import {
   keyFromName,
+  MAX_KEY_LENGTH,
+  uniqueKey,
   type Reading as ReadingDto,
   type ReadingKind,
   type ReadingWarning,
@@ -34,8 +36,6 @@ type ReadingInput = z.output<typeof readingInputSchema>;
 type ReadingListQuery = z.output<typeof readingListQuerySchema>;
 type ReadingHistory = z.infer<typeof readingHistoryResponseSchema>;
 
-const MAX_KEY = 40;
-
 /** Today in UTC, YYYY-MM-DD: the default day a reading was taken. */
 function todayUtc(): string {
   return new Date().toISOString().slice(0, 10);
@@ -46,14 +46,16 @@ export function escapeLike(text: string): string {
   return text.replace(/[\\%_]/g, (c) => `\\${c}`);
 }
 
-/** The field-named 400 every figure refusal uses, in the same body as a schema refusal. */
+/**
+ * The field-named 400 every figure refusal uses, in the same body as a schema refusal. The
+ * messages say what is wrong in the form's words, so the first one is the sentence on top.
+ */
 function invalid(problems: { path: string; message: string }[]): AppError {
   const first = problems[0];
-  return badRequest(
-    first ? `Some fields are not right: ${first.path}: ${first.message}` : 'Some fields are not right.',
-    problems,
-    'invalid_request',
-  );
+  if (!first) return badRequest('Some fields are not right.', problems, 'invalid_request');
+  const sentence = `${first.message.charAt(0).toUpperCase()}${first.message.slice(1)}`.replace(/[.]?$/, '.');
+  const more = problems.length > 1 ? ` ${problems.length - 1} more ${problems.length === 2 ? 'problem is' : 'problems are'} shown beside ${problems.length === 2 ? 'its field' : 'their fields'}.` : '';
+  return badRequest(`${sentence}${more}`, problems, 'invalid_request');
 }
 
 /**
@@ -69,29 +71,27 @@ export async function allocateKey(
   what: 'reading' | 'clearance',
 ): Promise<string> {
   const finder = model as unknown as ModelStatic<Reading>;
+  /** `base`, or the first of `base-2`, `base-3`… that no row of the build has. */
+  const freeFrom = async (base: string) => {
+    const rows = await finder.findAll({
+      attributes: ['key'],
+      where: { buildId, key: { [Op.like]: `${escapeLike(base.slice(0, MAX_KEY_LENGTH - 4).replace(/-+$/, ''))}%` } },
+      transaction,
+    });
+    return uniqueKey(base, rows.map((r) => r.key));
+  };
   if (wanted.key !== undefined) {
     const taken = await finder.count({ where: { buildId, key: wanted.key }, transaction });
-    if (taken) throw keyTaken(wanted.key, what);
+    if (taken) throw keyTaken(wanted.key, await freeFrom(wanted.key), what);
     return wanted.key;
   }
-  const base = keyFromName(wanted.name);
-  const rows = await finder.findAll({
-    attributes: ['key'],
-    where: { buildId, key: { [Op.like]: `${escapeLike(base.slice(0, MAX_KEY - 4).replace(/-+$/, ''))}%` } },
-    transaction,
-  });
-  const used = new Set(rows.map((r) => r.key));
-  if (!used.has(base)) return base;
-  for (let n = 2; ; n += 1) {
-    const suffix = `-${n}`;
-    const candidate = `${base.slice(0, MAX_KEY - suffix.length).replace(/-+$/, '')}${suffix}`;
-    if (!used.has(candidate)) return candidate;
-  }
+  return freeFrom(keyFromName(wanted.name));
 }
 
-function keyTaken(key: string, what: 'reading' | 'clearance'): AppError {
-  return new AppError(409, 'key_taken', `Another ${what} of this build already has the key "${key}". Choose another key.`, [
-    { path: 'key', message: `"${key}" is taken in this build` },
+/** 409 `key_taken`, offering the first free key after the one asked for. */
+function keyTaken(key: string, free: string, what: 'reading' | 'clearance'): AppError {
+  return new AppError(409, 'key_taken', `Another ${what} of this build already has the key "${key}". Use "${free}", or type another key.`, [
+    { path: 'key', message: `another ${what} of this build has the key "${key}": use "${free}", or type another key` },
   ]);
 }
 
@@ -340,14 +340,14 @@ async function momentOfBuild(momentId: number, buildId: number, transaction?: Tr
   const moment = await Moment.findByPk(momentId, { include: [{ model: Clip, as: 'clip', attributes: ['id', 'buildId'] }], transaction });
   const clip = (moment as (Moment & { clip?: Clip }) | null)?.clip;
   if (!moment || !clip || clip.buildId !== buildId) {
-    throw invalid([{ path: 'momentId', message: 'not a moment of a clip in this build' }]);
+    throw invalid([{ path: 'momentId', message: 'that moment is not in a clip of this build: mark the moment again in the player' }]);
   }
   return moment;
 }
 
 async function usableInstrument(instrumentId: number, builderId: number, transaction?: Transaction): Promise<Instrument> {
   const instrument = await Instrument.findByPk(instrumentId, { transaction });
-  if (!instrument || instrument.ownerId !== builderId) throw invalid([{ path: 'instrumentId', message: 'not one of your instruments' }]);
+  if (!instrument || instrument.ownerId !== builderId) throw invalid([{ path: 'instrumentId', message: 'that is not one of your instruments: choose one from your register' }]);
   if (instrument.retired) {
     throw invalid([{ path: 'instrumentId', message: `${instrument.name} is retired; bring it back into use on its page, or pick another instrument` }]);
   }
@@ -357,7 +357,7 @@ async function usableInstrument(instrumentId: number, builderId: number, transac
 async function partOfBuild(partId: number | null, buildId: number, transaction?: Transaction): Promise<void> {
   if (partId === null) return;
   const part = await Part.findOne({ where: { id: partId, buildId }, transaction });
-  if (!part) throw invalid([{ path: 'partId', message: 'not a part of this build' }]);
+  if (!part) throw invalid([{ path: 'partId', message: "that is not a part of this build: choose one of its parts, or “Not tied to a part”" }]);
 }
 
 /** Rules across fields that the engine needs and the body schema cannot see alone. */
@@ -365,7 +365,7 @@ function checkTemperature(kind: ReadingKind, temperatureC: number | null, materi
   if (temperatureC === null) return;
   if (kind === 'repeated') {
     throw invalid([
-      { path: 'temperatureC', message: 'a repeated reading is not corrected to 20 °C; leave the temperature out, or log each value as a direct reading with its temperature' },
+      { path: 'temperatureC', message: 'a “Repeated” reading is not corrected to 20 °C: leave the temperature empty, or log each value as “One indication” with its temperature' },
     ]);
   }
   if (kind === 'direct' && material === null) {

@@ -60,6 +60,12 @@ export function submittedMails(publicUrl: string, story: StoryRef, moderators: P
     .filter(present);
 }
 
+/** Someone's words as a sentence: one full stop at the end, whether they typed it or not. */
+export function sentence(words: string): string {
+  const text = words.trim();
+  return /[.!?…]["”’)]?$/.test(text) ? text : `${text}.`;
+}
+
 /** To the builder: a moderator asked for changes, with the reason and the flags to answer. */
 export function changesRequestedMail(publicUrl: string, story: StoryRef, builder: Person, reason: string, flags: string[]): OutgoingMail[] {
   return [
@@ -69,8 +75,8 @@ export function changesRequestedMail(publicUrl: string, story: StoryRef, builder
       subject: `Changes requested: ${story.title}`,
       paragraphs: [
         `A moderator looked at "${story.title}" and asked for changes before it can be published.`,
-        `Reason: ${reason}`,
-        ...(flags.length ? [`Flagged: ${flags.join('; ')}. Answer each flag in the editor, then send the story for review again.`] : []),
+        `Reason: ${sentence(reason)}`,
+        ...(flags.length ? [`Flagged: ${flags.map((f) => f.trim().replace(/[.;\s]+$/, '')).join('; ')}.`, 'Answer each flag in the editor, then send the story for review again.'] : []),
       ],
       link: { url: `${publicUrl}/stories/${story.id}/edit`, label: 'Open the story' },
     }),
@@ -97,7 +103,7 @@ export function withdrawnMail(publicUrl: string, story: StoryRef, builder: Perso
       to: builder,
       kind: 'story-withdrawn',
       subject: `Withdrawn: ${story.title}`,
-      paragraphs: [`"${story.title}" is no longer public: it was withdrawn ${byModerator ? 'by a moderator' : 'by you'}.`, `Reason: ${reason}`],
+      paragraphs: [`"${story.title}" is no longer public: it was withdrawn ${byModerator ? 'by a moderator' : 'by you'}.`, `Reason: ${sentence(reason)}`],
       link: { url: `${publicUrl}/stories/${story.id}/edit`, label: 'Open the story' },
     }),
   ].filter(present);

@@ -26,8 +26,10 @@ const entries: NavEntry[] = [
 export function MainNav({ user }: { user: User | null | undefined }) {
   const visible = entries.filter((entry) => !entry.area || canOpen(entry.area, user?.role));
   return (
-    <nav aria-label="Main" data-print="hide" className="-mx-2 overflow-x-auto">
-      <ul className="flex items-center gap-1 px-2">
+    // Wraps onto a second line on a narrow screen rather than scrolling sideways out of sight;
+    // no overflow box, so the focus ring is never clipped.
+    <nav aria-label="Main" data-print="hide" className="-mx-2">
+      <ul className="flex flex-wrap items-center gap-x-1 gap-y-0.5 px-2 py-0.5">
         {visible.map((entry) => (
           <li key={entry.to}>
             <NavLink

@@ -70,13 +70,15 @@ describe('mail about a story’s review', () => {
     const f = await makeReviewFixture(owner, { clipFile, title: 'Mail test: changes' });
     await move(owner, f.story.id, 'submit');
     await claimAndCheckAll(moderator, f);
-    await checkSubject(moderator, f.story.id, 'reading', f.readings.height.id, 'flagged', 'the micrometer in the still is not the one logged');
-    expect((await move(moderator, f.story.id, 'request-changes', { reason: 'one reading needs another look' })).status).toBe(200);
+    // Both typed with their own full stop: the message must not end up with two.
+    await checkSubject(moderator, f.story.id, 'reading', f.readings.height.id, 'flagged', 'the micrometer in the still is not the one logged.');
+    expect((await move(moderator, f.story.id, 'request-changes', { reason: 'one reading needs another look.' })).status).toBe(200);
     const [m] = await t.smtp.waitFor(to(BUILDER_EMAIL, `Changes requested: ${f.story.title}`));
     expectBothParts(m!, `${PUBLIC_URL}/stories/${f.story.id}/edit`);
-    expect(m!.text).toContain('Reason: one reading needs another look');
-    expect(m!.text).toContain('Flagged: Rotor height: the micrometer in the still is not the one logged.');
-    expect(m!.html).toContain('Reason: one reading needs another look');
+    expect(m!.text).toContain('Reason: one reading needs another look.\n');
+    expect(m!.text).toContain('Flagged: Rotor height: the micrometer in the still is not the one logged.\n');
+    expect(m!.text).not.toMatch(/\.\./);
+    expect(m!.html).toContain('Reason: one reading needs another look.</p>');
   }, 60_000);
 
   it('publishing tells the builder, and each follower who wants mail, with a one-click unsubscribe (RFC 8058)', async () => {

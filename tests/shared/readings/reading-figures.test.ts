@@ -61,13 +61,15 @@ describe('normaliseReadingFigures: texts as typed become decimal text in one uni
     expect(figures(normaliseReadingFigures({ kind: 'direct', value: '−0.012' }, { unit: 'mm', kind: 'dial-bore-gauge' })).value).toBe('-0.012');
   });
 
-  it('refuses a bracket that runs backwards or whose blades are equal, naming stops', () => {
+  it('refuses a bracket that runs backwards or whose blades are equal, naming stops in the words of the form', () => {
     for (const [passes, stops] of [
       ['0.004', '0.003'],
       ['0.003', '0.0030'],
     ] as const) {
       const p = problems(normaliseReadingFigures({ kind: 'bracket', passes, stops }, blades));
-      expect(p).toEqual([{ path: 'stops', message: expect.stringMatching(/thicker than passes/) }]);
+      expect(p).toEqual([
+        { path: 'stops', message: `The blade that does not enter must be thicker than the one that enters (${passes} in enters, ${stops} in does not).` },
+      ]);
     }
   });
 

@@ -1,12 +1,12 @@
-import { useDeferredValue, useId, useMemo, useState } from 'react';
+import { useDeferredValue, useEffect, useId, useMemo, useRef, useState } from 'react';
 import { useFieldArray, useForm, useWatch, type Path, type UseFormReturn } from 'react-hook-form';
-import { useQuery, useQueryClient } from '@tanstack/react-query';
+import { useInfiniteQuery, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Build } from '@shared/builds/build.schema';
 import type { Clearance } from '@shared/clearances/clearance.schema';
 import { computeClearance } from '@shared/clearances/clearance-calc';
 import { engineInstrumentsMap } from '@shared/measure/instrument-map';
 import { clearanceTemplate, clearanceTemplates } from '@shared/clearances/templates';
-import { keyFromName, type Reading } from '@shared/readings/reading.schema';
+import type { Reading } from '@shared/readings/reading.schema';
 import { Button } from '@/components/ui/button';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { Field, Input, Select, Textarea } from '@/components/ui/field';
@@ -21,8 +21,10 @@ import { clearanceQueries, clearanceSpecQueries } from '../api/clearance-queries
 import {
   blankClearanceForm,
   clearanceFormOf,
+  clearanceKeyFor,
   clearanceFormPath,
   clearanceFormResolver,
+  suggestedClearanceName,
   termsForTemplate,
   toClearanceInput,
   versionSummary,
@@ -44,8 +46,14 @@ export interface ClearanceFormProps {
  * picture and working update as readings and spec are chosen, by the engine the server runs.
  */
 export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceFormProps) {
+  // The build's other clearance keys (the list the panel shows), so a suggested key is free.
+  const clearanceList = useInfiniteQuery(clearanceQueries.list(build.id));
+  const takenKeys = useMemo(
+    () => (clearanceList.data?.pages.flatMap((p) => p.items) ?? []).filter((c) => c.id !== clearance?.id).map((c) => c.key),
+    [clearanceList.data, clearance?.id],
+  );
   const form = useForm<ClearanceFormValues>({
-    defaultValues: clearance ? clearanceFormOf(clearance) : blankClearanceForm(),
+    defaultValues: clearance ? clearanceFormOf(clearance) : blankClearanceForm(takenKeys),
     resolver: clearanceFormResolver,
     mode: 'onTouched',
   });
@@ -61,10 +69,24 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
   const [conflict, setConflict] = useState<'stale' | 'reloaded' | null>(null);
   const [reloading, setReloading] = useState(false);
   const templateLegendId = useId();
+  const keyId = useId();
   const errors = formState.errors;
   const template = clearanceTemplate(watched.template);
   const byId = useMemo(() => new Map(readings.map((r) => [String(r.id), r])), [readings]);
   const sortedReadings = useMemo(() => [...readings].sort((a, b) => a.name.localeCompare(b.name)), [readings]);
+  // A stored clearance keeps its name and key (stories cite the key); a new one's follow the form until typed.
+  const nameByHand = useRef(Boolean(clearance));
+  const [keyByHand, setKeyByHand] = useState(Boolean(clearance));
+  const suggestedKey = clearanceKeyFor(watched.name ?? '', takenKeys);
+
+  useEffect(() => {
+    if (!keyByHand && getValues('key') !== suggestedKey) setValue('key', suggestedKey);
+  }, [keyByHand, suggestedKey, getValues, setValue]);
+
+  /** The name the template and its picked readings suggest, unless the builder typed one. */
+  function followName(id: ClearanceFormValues['template'], rows: ClearanceFormValues['terms']) {
+    if (!nameByHand.current) setValue('name', suggestedClearanceName(id, rows, readings), { shouldValidate: formState.isSubmitted });
+  }
 
   const spec = useQuery({ ...clearanceSpecQueries.detail(Number(values.specId)), enabled: Boolean(values.specId) });
   const version = spec.data?.versions?.find((v) => String(v.id) === values.specVersionId) ?? null;
@@ -82,15 +104,14 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
   }, [values.terms, values.coverageFactor, byId, version]);
 
   function chooseTemplate(id: ClearanceFormValues['template']) {
-    const next = clearanceTemplate(id);
-    setValue('terms', termsForTemplate(id, getValues('terms')));
-    // The suggested name and key follow the template until the builder types their own.
-    if (!formState.dirtyFields.name || getValues('name') === template.suggestedName) setValue('name', next.suggestedName);
-    if (!formState.dirtyFields.key || getValues('key') === template.suggestedKey) setValue('key', next.suggestedKey);
+    const rows = termsForTemplate(id, getValues('terms'));
+    setValue('terms', rows);
+    followName(id, rows);
   }
 
   const submit = handleSubmit(async (formValues) => {
-    const input = toClearanceInput(formValues);
+    // A key left as suggested is not sent: the server derives the same one from the name, free at the moment it saves.
+    const input = toClearanceInput(keyByHand ? formValues : { ...formValues, key: '' });
     try {
       const saved = clearance
         ? await update.mutateAsync({
@@ -98,7 +119,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
             patch: {
               lockVersion,
               name: input.name,
-              key: input.key ?? keyFromName(input.name),
+              key: input.key ?? clearanceKeyFor(input.name, takenKeys),
               template: input.template ?? null,
               terms: input.terms,
               specVersionId: input.specVersionId ?? null,
@@ -204,7 +225,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
                     hint={slot?.hint}
                     error={errors.terms?.[index]?.readingId?.message}
                   >
-                    <Select size="sm" {...register(`terms.${index}.readingId`)}>
+                    <Select size="sm" {...register(`terms.${index}.readingId`, { onChange: () => followName(getValues('template'), getValues('terms')) })}>
                       {readingOptions}
                     </Select>
                   </Field>
@@ -240,22 +261,43 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
 
         <div className="grid gap-3 sm:grid-cols-2">
           <Field label="Name" required error={errors.name?.message}>
-            <Input {...register('name')} autoComplete="off" className="h-8! text-sm" />
+            <Input
+              {...register('name', {
+                onChange: () => {
+                  nameByHand.current = true;
+                },
+              })}
+              autoComplete="off"
+              className="h-8! text-sm"
+            />
           </Field>
-          <Field label="Key" error={errors.key?.message} hint={`How claims name it; blank = ${keyFromName(watched.name || 'clearance')}.`}>
-            <Input {...register('key')} autoComplete="off" className="figures h-8! text-sm" />
+          <Field id={keyId} label="Key" error={errors.key?.message}>
+            <Input
+              {...register('key', { onChange: () => setKeyByHand(true) })}
+              // The explanation sits under both boxes, so the two boxes line up.
+              aria-describedby={[`${keyId}-about`, errors.key?.message && `${keyId}-error`].filter(Boolean).join(' ')}
+              autoComplete="off"
+              className="figures h-8! text-sm"
+            />
           </Field>
+          <p id={`${keyId}-about`} className="-mt-1.5 text-xs text-ink-muted sm:col-span-2">
+            Claims name it as <span className="figures text-ink">(clearance:{watched.key?.trim() || suggestedKey})</span>.{' '}
+            {keyByHand
+              ? `Left empty, it is made from the name: ${suggestedKey}.`
+              : 'It is made from the name and is free in this build; type your own to keep it.'}
+          </p>
         </div>
 
         <SpecPicker form={form} error={errors.specId?.message} />
 
-        <div className="grid gap-3 sm:grid-cols-[minmax(0,10rem)_minmax(0,1fr)]">
+        {/* One above the other: the k box is short but its hint is long, and side by side the boxes did not line up. */}
+        <div className="flex flex-col gap-3">
           <Field
             label="Coverage factor k (optional)"
             error={errors.coverageFactor?.message}
             hint="Leave empty for a 95 % interval worked out from the readings (Student's t for few readings, Monte Carlo for feeler brackets); type a k only to fix it."
           >
-            <Input {...register('coverageFactor')} inputMode="decimal" className="figures h-8! text-sm" />
+            <Input {...register('coverageFactor')} inputMode="decimal" className="figures h-8! max-w-40 text-sm" />
           </Field>
           <Field label="Note" error={errors.note?.message}>
             <Textarea {...register('note')} rows={2} className="text-sm" />

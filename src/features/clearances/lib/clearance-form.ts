@@ -1,6 +1,7 @@
 import type { FieldErrors, Resolver } from 'react-hook-form';
 import { clearanceInputSchema, type Clearance, type ClearanceInput, type ClearanceTemplateId } from '@shared/clearances/clearance.schema';
 import { clearanceTemplate } from '@shared/clearances/templates';
+import { suggestKey, type Reading } from '@shared/readings/reading.schema';
 import type { SpecVersion } from '@shared/specs/spec-library.schema';
 import { unitSymbols } from '@shared/measure/units';
 
@@ -15,7 +16,7 @@ export interface ClearanceFormValues {
   template: ClearanceTemplateId;
   terms: TermRow[];
   name: string;
-  /** '' = derived from the name by the server. */
+  /** '' = derived from the name by the server. Follows the name until typed by hand. */
   key: string;
   /** The spec picked in the library ('' = none) and which of its versions. */
   specId: string;
@@ -34,14 +35,36 @@ export function termsForTemplate(id: ClearanceTemplateId, current: readonly Term
   return template.slots.map((slot, i) => ({ readingId: current[i]?.readingId ?? '', sign: slot.sign === 1 ? '1' : '-1' }));
 }
 
-/** A new clearance from the end-float template, its 95 % interval worked out by the engine. */
-export function blankClearanceForm(): ClearanceFormValues {
+/**
+ * The key a clearance's name suggests, free among the build's other clearance keys: "Outer rotor
+ * to body" → "outer-rotor-to-body", then "outer-rotor-to-body-2" for the next one so named.
+ */
+export function clearanceKeyFor(name: string, takenKeys: Iterable<string>): string {
+  return suggestKey(name, takenKeys, 'Clearance');
+}
+
+/**
+ * The name a template suggests for its readings: a template of one reading (a feeler gap) takes
+ * that reading's name ("Outer rotor to body"), since the clearance is that gap; the others their
+ * own words ("End float").
+ */
+export function suggestedClearanceName(id: ClearanceTemplateId, terms: readonly TermRow[], readings: readonly Pick<Reading, 'id' | 'name'>[]): string {
+  const template = clearanceTemplate(id);
+  if (template.slots.length === 1) {
+    const picked = readings.find((r) => String(r.id) === terms[0]?.readingId);
+    if (picked) return picked.name;
+  }
+  return template.suggestedName;
+}
+
+/** A new clearance from the end-float template, its 95 % interval worked out by the engine; its key free among `takenKeys`. */
+export function blankClearanceForm(takenKeys: Iterable<string> = []): ClearanceFormValues {
   const template = clearanceTemplate('end-float');
   return {
     template: template.id,
     terms: termsForTemplate(template.id, []),
     name: template.suggestedName,
-    key: template.suggestedKey,
+    key: clearanceKeyFor(template.suggestedName, takenKeys),
     specId: '',
     specVersionId: '',
     coverageFactor: '',

@@ -57,43 +57,39 @@ export function Component() {
           each follower). Do one of those, then refresh.
         </EmptyState>
       ) : (
-        <div className="grid gap-6 lg:grid-cols-[minmax(0,26rem)_minmax(0,1fr)]">
-          <ol className="flex flex-col divide-y divide-rule self-start rounded-md border border-rule" aria-label={`Captured messages, newest first (${outbox.data.items.length})`}>
+        // A log, one line per message, newest first; a line opens in place, under itself.
+        <div className="flex flex-col gap-2">
+          {openId && !outbox.data.items.some((m) => m.id === openId) && (
+            <p className="text-sm text-ink-muted">That message is no longer in the outbox (the capture server keeps the last 500).</p>
+          )}
+          <ol className="flex flex-col gap-1.5" aria-label={`Captured messages, newest first (${outbox.data.items.length})`}>
             {outbox.data.items.map((m) => {
               const open = m.id === openId;
               return (
-                <li key={m.id}>
+                <li key={m.id} className={cn('rounded-md border bg-paper', open ? 'border-ink' : 'border-rule')}>
                   <button
                     type="button"
-                    aria-current={open || undefined}
-                    onClick={() => setParams({ message: m.id }, { replace: true })}
-                    className={cn(
-                      'grid w-full grid-cols-[minmax(0,1fr)_auto] gap-x-3 px-3 py-2 text-left text-sm hover:bg-paper-2',
-                      open && 'bg-accent-wash shadow-[inset_3px_0_0_var(--color-accent)] hover:bg-accent-wash',
-                    )}
+                    aria-expanded={open}
+                    onClick={() => setParams(open ? {} : { message: m.id }, { replace: true })}
+                    className="grid w-full gap-x-4 px-3 py-2 text-left text-sm hover:bg-paper-2 sm:grid-cols-[9.5rem_minmax(0,14rem)_minmax(0,1fr)_auto]"
                     data-outbox-row={m.subject}
                   >
-                    <span className="line-clamp-2 min-w-0 font-medium">{m.subject || '(no subject)'}</span>
-                    <span className="figures text-xs text-ink-muted">{formatBytes(m.sizeBytes)}</span>
-                    <span className="min-w-0 truncate text-xs text-ink-muted">to {m.to.join(', ')}</span>
-                    <time dateTime={m.receivedAt} className="figures text-xs text-ink-muted">
+                    <time dateTime={m.receivedAt} className="figures text-xs text-ink-muted sm:pt-0.5">
                       {receivedText(m.receivedAt)}
                     </time>
+                    <span className="min-w-0 truncate text-ink-muted">{m.to.join(', ')}</span>
+                    <span className="min-w-0 font-medium">{m.subject || '(no subject)'}</span>
+                    <span className="figures text-xs text-ink-muted sm:pt-0.5">{formatBytes(m.sizeBytes)}</span>
                   </button>
+                  {open && (
+                    <div className="border-t border-rule p-4">
+                      <MessageView message={m} headingId="outbox-message" />
+                    </div>
+                  )}
                 </li>
               );
             })}
           </ol>
-          {(() => {
-            const message = outbox.data.items.find((m) => m.id === openId);
-            return message ? (
-              <div className="min-w-0 rounded-lg border border-rule bg-paper p-4">
-                <MessageView message={message} headingId="outbox-message" />
-              </div>
-            ) : (
-              <p className="text-sm text-ink-muted">{openId ? 'That message is no longer in the outbox (the capture server keeps the last 500).' : 'Choose a message to read it: both parts and its headers.'}</p>
-            );
-          })()}
         </div>
       )}
     </>

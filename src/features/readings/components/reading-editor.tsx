@@ -5,6 +5,7 @@ import type { Instrument } from '@shared/instruments/instrument.schema';
 import { unitSymbols } from '@shared/measure/units';
 import { readingPatchSchema, type Reading, type ReadingPatch } from '@shared/readings/reading.schema';
 import { normaliseReadingFigures } from '@shared/readings/reading-figures';
+import { readingKindLabels } from '@shared/readings/reading-words';
 import { Button } from '@/components/ui/button';
 import { Field, Input, Select, Textarea } from '@/components/ui/field';
 import { useToast } from '@/components/ui/toast';
@@ -181,7 +182,7 @@ export function ReadingEditor({
       }}
     >
       <p className="text-xs text-ink-muted">
-        Editing <span className="font-medium text-ink">{reading.name}</span> ({reading.kind === 'bracket' ? 'feeler bracket' : reading.kind}, with{' '}
+        Editing <span className="font-medium text-ink">{reading.name}</span> ({readingKindLabels[reading.kind].toLowerCase()}, with{' '}
         {reading.instrumentName}); now <span className="figures">{enteredFigures(reading)}</span>. Escape cancels.
       </p>
       <div className="grid gap-2 sm:grid-cols-2 lg:grid-cols-[minmax(0,14rem)_minmax(0,16rem)_minmax(0,12rem)_minmax(0,1fr)]">

@@ -1,18 +1,19 @@
 import { useEffect, useId, useMemo, useRef, useState, type ReactNode } from 'react';
 import { useFieldArray, useForm, useWatch, type Path } from 'react-hook-form';
-import { useQuery } from '@tanstack/react-query';
+import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import type { Build } from '@shared/builds/build.schema';
-import type { Clip } from '@shared/clips/clip.schema';
-import { calibrationDueOn, calibrationStateOn, zeroCheckedKinds, type Instrument } from '@shared/instruments/instrument.schema';
+import type { Clip, Moment } from '@shared/clips/clip.schema';
+import { calibrationDueOn, calibrationStateOn, zeroCheckedKinds, type Instrument, type InstrumentKind } from '@shared/instruments/instrument.schema';
 import { readingSchema as engineReadingSchema } from '@shared/measure/calc.schema';
 import { decimalsForStep, formatUncertaintyIn, formatValue } from '@shared/measure/format-quantity';
 import { engineInstrumentsMap } from '@shared/measure/instrument-map';
 import { evaluateReading } from '@shared/measure/readings';
 import { materialExpansion, materialNames } from '@shared/measure/thermal';
-import { unitSymbols } from '@shared/measure/units';
-import { keyFromName, MAX_ENTERED_REPEATS, type Reading, type ReadingKind } from '@shared/readings/reading.schema';
+import { unitNames, unitSymbols } from '@shared/measure/units';
+import { keyFromName, MAX_ENTERED_REPEATS, suggestKey, type Reading, type ReadingKind } from '@shared/readings/reading.schema';
 import { normaliseReadingFigures, toEngineReading } from '@shared/readings/reading-figures';
+import { readingKindLabels } from '@shared/readings/reading-words';
 import { Button } from '@/components/ui/button';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { Field, Input, Select, Textarea } from '@/components/ui/field';
@@ -25,8 +26,19 @@ import { formatTime, frameDuration, frameIndexAt } from '@/features/clips/lib/cl
 import { ApiError, errorMessage } from '@/lib/api';
 import { cn } from '@/lib/cn';
 import { useCreateReading } from '../api/reading-mutations';
-import { readingInstrumentsQuery } from '../api/reading-queries';
-import { blankReadingForm, defaultKindFor, figuresOf, formPathOf, readingFormResolver, toReadingInput, type ReadingFormValues } from '../lib/reading-form';
+import { readingInstrumentsQuery, readingQueries } from '../api/reading-queries';
+import {
+  blankReadingForm,
+  defaultKindFor,
+  figuresOf,
+  formPathOf,
+  readClipChoices,
+  readingFormResolver,
+  startingChoices,
+  toReadingInput,
+  writeClipChoices,
+  type ReadingFormValues,
+} from '../lib/reading-form';
 import { CalibrationBadge, instrumentOptionText, WarningIcon } from './reading-badges';
 
 export interface ReadingFormProps {
@@ -40,11 +52,14 @@ export interface ReadingFormProps {
   onClose: () => void;
 }
 
-const kindChoices: { kind: ReadingKind; label: string; hint: string }[] = [
-  { kind: 'direct', label: 'One indication', hint: 'micrometer, depth micrometer, bore gauge' },
-  { kind: 'bracket', label: 'Feeler bracket', hint: 'the blade that enters and the one that does not' },
-  { kind: 'repeated', label: 'Repeated', hint: 'the same size read several times; the mean is used' },
-];
+const kindOrder: readonly ReadingKind[] = ['direct', 'bracket', 'repeated'];
+
+/** What each way of reading means with this kind of instrument: with feeler blades, one indication is a single blade. */
+function kindHint(kind: ReadingKind, instrumentKind: InstrumentKind | undefined): string {
+  if (kind === 'direct') return instrumentKind === 'feeler-blades' ? 'a single blade that enters with a light drag' : 'micrometer, depth micrometer, bore gauge';
+  if (kind === 'bracket') return 'the blade that enters and the one that does not';
+  return 'the same size read several times; the mean is used';
+}
 
 function secondsText(atMs: number): string {
   return (atMs / 1000).toFixed(3);
@@ -81,7 +96,7 @@ export function ReadingForm({ build, clip, at, onSeek, onSaved, onClose }: Readi
         </Button>
       </header>
       <MomentPicker clip={clip} at={at} onSeek={onSeek} onCancelled={onClose}>
-        {(momentId, cancel) =>
+        {(momentId, cancel, moment) =>
           instruments.isPending ? (
             <LoadingState label="Loading your instruments…" className="py-3" />
           ) : !instruments.data ? (
@@ -98,7 +113,15 @@ export function ReadingForm({ build, clip, at, onSeek, onSaved, onClose }: Readi
               come back to this moment: it stays marked.
             </EmptyState>
           ) : (
-            <ReadingFields build={build} instruments={usable} momentId={momentId} onSaved={onSaved} onCancel={cancel} />
+            <ReadingFields
+              build={build}
+              clipId={clip.id}
+              instruments={usable}
+              momentId={momentId}
+              momentLabel={moment?.label ?? ''}
+              onSaved={onSaved}
+              onCancel={cancel}
+            />
           )
         }
       </MomentPicker>
@@ -121,7 +144,7 @@ function MomentPicker({
   at: LogReadingAt;
   onSeek: (atMs: number) => void;
   onCancelled: () => void;
-  children: (momentId: number | null, cancel: () => void) => ReactNode;
+  children: (momentId: number | null, cancel: () => void, moment: Moment | null) => ReactNode;
 }) {
   const moments = useQuery(clipQueries.moments(clip.id));
   const create = useCreateMoment(clip.id);
@@ -266,37 +289,91 @@ function MomentPicker({
           </p>
         )}
       </div>
-      {children(moment?.id ?? null, cancel)}
+      {children(moment?.id ?? null, cancel, moment)}
     </>
   );
 }
 
+/** What the builder chose by hand in this form; those choices are never overwritten. */
+interface ChosenByHand {
+  instrument: boolean;
+  part: boolean;
+  name: boolean;
+}
+
 function ReadingFields({
   build,
+  clipId,
   instruments,
   momentId,
+  momentLabel,
   onSaved,
   onCancel,
 }: {
   build: Build;
+  clipId: number;
   instruments: Instrument[];
   momentId: number | null;
+  /** The label of the moment the reading is tied to ('' = none): offered as the reading's name. */
+  momentLabel: string;
   onSaved: (reading: Reading) => void;
   onCancel: () => void;
 }) {
   const create = useCreateReading(build.id);
+  const readingList = useInfiniteQuery(readingQueries.list(build.id));
+  const buildReadings = useMemo(() => readingList.data?.pages.flatMap((p) => p.items) ?? [], [readingList.data]);
+  const takenKeys = useMemo(() => buildReadings.map((r) => r.key), [buildReadings]);
   const instrumentsRef = useRef(instruments);
   instrumentsRef.current = instruments;
   const resolver = useMemo(() => readingFormResolver(() => instrumentsRef.current), []);
-  const onlyPart = build.parts.length === 1 ? build.parts[0]!.id : null;
-  const form = useForm<ReadingFormValues>({ defaultValues: blankReadingForm(instruments[0], onlyPart), resolver, mode: 'onTouched' });
+  const [remembered] = useState(() => readClipChoices(clipId));
+  const choicesFor = (readings: readonly Reading[]) =>
+    startingChoices({ clipId, instruments, partIds: build.parts.map((p) => p.id), remembered, readings });
+  const label = momentLabel.trim();
+  const [defaultValues] = useState(() => {
+    const start = choicesFor(buildReadings);
+    return blankReadingForm(instruments.find((i) => i.id === start.instrumentId) ?? instruments[0], start.partId, label);
+  });
+  const form = useForm<ReadingFormValues>({ defaultValues, resolver, mode: 'onTouched' });
   const { register, control, formState, setError, handleSubmit, setValue, getValues } = form;
   const repeats = useFieldArray({ control, name: 'values' });
   const watched = useWatch({ control }) as ReadingFormValues;
   const errors = formState.errors;
   const instrument = instruments.find((i) => String(i.id) === watched.instrumentId);
   const [momentMissing, setMomentMissing] = useState(false);
+  // Until the builder picks a way of reading, it follows the instrument.
+  const [kindByHand, setKindByHand] = useState(false);
+  const byHand = useRef<ChosenByHand>({ instrument: false, part: false, name: false });
+  const nameInput = useRef<HTMLInputElement | null>(null);
   const kindLegendId = useId();
+  const kindHintId = useId();
+
+  /** The instrument, and the way of reading it gives unless one was picked by hand. */
+  function chooseInstrument(idText: string) {
+    setValue('instrumentId', idText);
+    if (!kindByHand) setValue('kind', defaultKindFor(instruments.find((i) => String(i.id) === idText)));
+  }
+
+  // Opened before the build's readings were loaded: take the clip's last choices once they are.
+  const readingsAtOpening = useRef(readingList.data !== undefined);
+  useEffect(() => {
+    if (readingsAtOpening.current || !readingList.data || remembered) return;
+    readingsAtOpening.current = true;
+    const next = choicesFor(buildReadings);
+    if (!byHand.current.instrument && next.instrumentId !== null) chooseInstrument(String(next.instrumentId));
+    if (!byHand.current.part) setValue('partId', next.partId === null ? '' : String(next.partId));
+    // Only when the list first arrives; later refetches must not move the builder's choices.
+  }, [readingList.data]);
+
+  // The moment's label names the reading while the name is empty and untouched; typing replaces it.
+  useEffect(() => {
+    if (!label || byHand.current.name || getValues('name').trim()) return;
+    setValue('name', label);
+  }, [label, getValues, setValue]);
+  useEffect(() => {
+    const input = nameInput.current;
+    if (input && document.activeElement === input && input.value && input.value === label) input.select();
+  }, [label]);
 
   const submit = handleSubmit(async (values) => {
     if (momentId === null) {
@@ -306,6 +383,7 @@ function ReadingFields({
     setMomentMissing(false);
     try {
       const reading = await create.mutateAsync(toReadingInput(values, momentId));
+      writeClipChoices(clipId, { instrumentId: reading.instrumentId, partId: reading.partId });
       onSaved(reading);
     } catch (error) {
       const details = error instanceof ApiError ? error.details.filter((d) => d.path) : [];
@@ -317,26 +395,73 @@ function ReadingFields({
     }
   });
 
-  const registerInstrument = register('instrumentId', {
-    onChange: (event: { target: { value: string } }) => {
-      // A feeler set is read by bracketing; switch the kind while nothing has been typed yet.
-      const next = instruments.find((i) => String(i.id) === event.target.value);
-      const v = getValues();
-      if (!v.value && !v.passes && !v.stops && v.values.every((x) => !x.text)) setValue('kind', defaultKindFor(next));
+  const nameField = register('name', {
+    onChange: () => {
+      byHand.current.name = true;
     },
   });
+  const registerInstrument = register('instrumentId', {
+    onChange: (event: { target: { value: string } }) => {
+      byHand.current.instrument = true;
+      chooseInstrument(event.target.value);
+    },
+  });
+  const partField = register('partId', {
+    onChange: () => {
+      byHand.current.part = true;
+    },
+  });
+  const kindField = register('kind', { onChange: () => setKindByHand(true) });
+  const typedName = watched.name?.trim() ?? '';
 
   return (
     <form noValidate onSubmit={submit} className="flex flex-col gap-3" aria-label="Reading">
-      <Field
-        label="Name"
-        required
-        error={errors.name?.message}
-        hint={watched.name?.trim() ? <>Key <span className="figures">{keyFromName(watched.name)}</span>: how clearances and claims name it.</> : 'e.g. “Bore depth, as supplied”.'}
-      >
-        {/* The form opens from R or a button in the player: typing goes straight into the name. */}
-        <Input {...register('name')} autoComplete="off" className="h-8! text-sm" autoFocus />
-      </Field>
+      <div className="flex flex-col gap-1">
+        <Field
+          label="Name"
+          required
+          error={errors.name?.message}
+          hint={
+            typedName ? (
+              <>
+                Key <span className="figures">{suggestKey(typedName, takenKeys)}</span>: how clearances and claims name it.
+              </>
+            ) : (
+              'e.g. “Bore depth, as supplied”.'
+            )
+          }
+        >
+          {/* The form opens from R or a button in the player: typing goes straight into the name. */}
+          <Input
+            {...nameField}
+            ref={(element) => {
+              nameField.ref(element);
+              nameInput.current = element;
+            }}
+            autoComplete="off"
+            className="h-8! text-sm"
+            autoFocus
+          />
+        </Field>
+        {label && typedName !== label && (
+          <p className="flex flex-wrap items-baseline gap-x-2 text-xs text-ink-muted" data-label-suggestion="">
+            <span>
+              The moment is labelled <span className="font-medium text-ink">“{label}”</span>.
+            </span>
+            <button
+              type="button"
+              className="rounded-sm text-accent underline underline-offset-2 hover:text-ink"
+              onClick={() => {
+                byHand.current.name = true;
+                setValue('name', label, { shouldValidate: formState.isSubmitted, shouldDirty: true });
+                nameInput.current?.focus();
+              }}
+            >
+              Use it as the name
+            </button>
+          </p>
+        )}
+      </div>
 
       <Field label="Instrument" required error={errors.instrumentId?.message}>
         <Select {...registerInstrument} size="sm">
@@ -350,7 +475,7 @@ function ReadingFields({
       {instrument && <InstrumentState instrument={instrument} takenOn={watched.takenOn} />}
 
       <Field label="Part" error={errors.partId?.message} hint={build.parts.length === 0 ? 'This build lists no parts; add them with “Edit build”.' : undefined}>
-        <Select {...register('partId')} size="sm">
+        <Select {...partField} size="sm">
           <option value="">Not tied to a part</option>
           {build.parts.map((p) => (
             <option key={p.id} value={p.id}>
@@ -361,23 +486,28 @@ function ReadingFields({
         </Select>
       </Field>
 
-      <fieldset aria-labelledby={kindLegendId} className="flex flex-col gap-1">
+      <fieldset aria-labelledby={kindLegendId} aria-describedby={kindHintId} className="flex flex-col gap-1">
         <legend id={kindLegendId} className="mb-1 text-sm font-medium">
           How it was read
         </legend>
+        <p id={kindHintId} className="-mt-1 mb-0.5 text-xs text-ink-muted">
+          {kindByHand
+            ? 'As you chose; it stays when you change the instrument.'
+            : `Follows the instrument: ${instrument ? (instrument.kind === 'feeler-blades' ? 'feeler blades give a bracket' : 'it shows one indication') : 'choose one'}. Pick another if you read it otherwise.`}
+        </p>
         <div className="flex flex-col gap-1">
-          {kindChoices.map((choice) => (
+          {kindOrder.map((kind) => (
             <label
-              key={choice.kind}
+              key={kind}
               className={cn(
                 'flex cursor-pointer items-baseline gap-2 rounded-md border px-2 py-1 text-sm',
-                watched.kind === choice.kind ? 'border-ink bg-paper-2' : 'border-rule',
+                watched.kind === kind ? 'border-ink bg-paper-2' : 'border-rule',
               )}
             >
-              <input type="radio" value={choice.kind} {...register('kind')} className="translate-y-0.5 accent-(--color-ink)" />
+              <input type="radio" value={kind} {...kindField} className="translate-y-0.5 accent-(--color-ink)" />
               <span>
-                <span className="font-medium">{choice.label}</span>
-                <span className="text-xs text-ink-muted"> · {choice.hint}</span>
+                <span className="font-medium">{readingKindLabels[kind]}</span>
+                <span className="text-xs text-ink-muted"> · {kindHint(kind, instrument?.kind)}</span>
               </span>
             </label>
           ))}
@@ -505,7 +635,7 @@ function FigureFields({
 }) {
   const { register, formState } = form;
   const errors = formState.errors;
-  const unitHint = instrument ? `in ${unitSymbols[instrument.unit]} unless you type a unit` : 'with its unit';
+  const unitHint = instrument ? `in ${unitNames[instrument.unit]} unless you type a unit` : 'with its unit';
   const readBack = useMemo(() => readBackOf(values, instrument), [values, instrument]);
   const fieldHasError = Boolean(errors.value || errors.passes || errors.stops || errors.values);
 
@@ -517,11 +647,12 @@ function FigureFields({
         </Field>
       )}
       {values.kind === 'bracket' && (
-        <div className="grid grid-cols-2 gap-2">
-          <Field label="Thickest blade that enters" required error={errors.passes?.message} hint={unitHint}>
+        // One above the other: the form is a narrow column, and a refusal of the pair reads in one line or two.
+        <div className="flex flex-col gap-2">
+          <Field label="Thickest blade that enters" required error={errors.passes?.message} hint={`As marked on the blade, ${unitHint}.`}>
             <Input {...register('passes')} autoComplete="off" inputMode="decimal" className="figures h-8! text-sm" />
           </Field>
-          <Field label="Thinnest blade that does not" required error={errors.stops?.message} hint="must be thicker">
+          <Field label="Thinnest blade that does not" required error={errors.stops?.message} hint="Thicker than the one that enters.">
             <Input {...register('stops')} autoComplete="off" inputMode="decimal" className="figures h-8! text-sm" />
           </Field>
         </div>

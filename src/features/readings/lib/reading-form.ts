@@ -1,6 +1,6 @@
 import type { FieldErrors, Resolver } from 'react-hook-form';
 import type { Instrument } from '@shared/instruments/instrument.schema';
-import { readingInputSchema, type ReadingInput, type ReadingKind } from '@shared/readings/reading.schema';
+import { readingInputSchema, type Reading, type ReadingInput, type ReadingKind } from '@shared/readings/reading.schema';
 import { normaliseReadingFigures } from '@shared/readings/reading-figures';
 
 /** The reading form as typed: every length is text, so "0.5640" keeps its places. */
@@ -27,15 +27,72 @@ export function localToday(now: Date = new Date()): string {
   return `${now.getFullYear()}-${pad(now.getMonth() + 1)}-${pad(now.getDate())}`;
 }
 
-/** Feeler blades are read by bracketing; everything else shows one indication. */
+/**
+ * What a kind of instrument gives: feeler blades are read by bracketing (the blade that enters
+ * and the one that does not); micrometers, dials, depth gauges and the rest show one indication.
+ */
 export function defaultKindFor(instrument: Pick<Instrument, 'kind'> | undefined): ReadingKind {
   return instrument?.kind === 'feeler-blades' ? 'bracket' : 'direct';
 }
 
-/** A fresh form for a reading taken today with `instrument`. */
-export function blankReadingForm(instrument: Instrument | undefined, partId: number | null): ReadingFormValues {
+/** The instrument and part last used for a reading on one clip, as this browser keeps them. */
+export interface ClipChoices {
+  instrumentId: number;
+  /** null = the reading was not tied to a part. */
+  partId: number | null;
+}
+
+const choicesKey = (clipId: number) => `benchproof.reading-choices.clip.${clipId}`;
+
+/** What this browser remembers for the clip; null when nothing (or storage is off or garbled). */
+export function readClipChoices(clipId: number): ClipChoices | null {
+  try {
+    const raw = window.localStorage.getItem(choicesKey(clipId));
+    if (!raw) return null;
+    const parsed = JSON.parse(raw) as Partial<ClipChoices> | null;
+    if (!parsed || !Number.isInteger(parsed.instrumentId)) return null;
+    return { instrumentId: parsed.instrumentId!, partId: Number.isInteger(parsed.partId) ? parsed.partId! : null };
+  } catch {
+    return null;
+  }
+}
+
+/** Remembers the instrument and part of a reading just saved on the clip. */
+export function writeClipChoices(clipId: number, choices: ClipChoices): void {
+  try {
+    window.localStorage.setItem(choicesKey(clipId), JSON.stringify(choices));
+  } catch {
+    // Storage off or full: the form falls back to the clip's saved readings.
+  }
+}
+
+/**
+ * The instrument and part a new reading on a clip starts with: what was last used on this clip
+ * (this browser's memory, else the clip's latest saved reading), kept only while that instrument
+ * is still usable and that part still in the build; else the first instrument, and the build's
+ * only part when it has exactly one.
+ */
+export function startingChoices(args: {
+  clipId: number;
+  instruments: readonly Pick<Instrument, 'id'>[];
+  partIds: readonly number[];
+  remembered: ClipChoices | null;
+  readings: readonly Pick<Reading, 'id' | 'clipId' | 'instrumentId' | 'partId'>[];
+}): { instrumentId: number | null; partId: number | null } {
+  const { clipId, instruments, partIds, remembered, readings } = args;
+  const latest = readings.filter((r) => r.clipId === clipId).reduce<(typeof readings)[number] | null>((a, r) => (a === null || r.id > a.id ? r : a), null);
+  const last = remembered ?? (latest ? { instrumentId: latest.instrumentId, partId: latest.partId } : null);
+  const usable = (id: number | undefined) => id !== undefined && instruments.some((i) => i.id === id);
+  const instrumentId = last && usable(last.instrumentId) ? last.instrumentId : (instruments[0]?.id ?? null);
+  const onlyPart = partIds.length === 1 ? partIds[0]! : null;
+  const partId = last && (last.partId === null || partIds.includes(last.partId)) ? last.partId : onlyPart;
+  return { instrumentId, partId };
+}
+
+/** A fresh form for a reading taken today with `instrument`, named `name` (the moment's label, say). */
+export function blankReadingForm(instrument: Instrument | undefined, partId: number | null, name = ''): ReadingFormValues {
   return {
-    name: '',
+    name,
     instrumentId: instrument ? String(instrument.id) : '',
     partId: partId === null ? '' : String(partId),
     kind: defaultKindFor(instrument),

@@ -1,7 +1,7 @@
 import type { ReactNode } from 'react';
 import type { EvidenceCheckDto } from '@shared/review/review.schema';
 import type { ReviewSheet } from '@shared/review/review-sheet.schema';
-import { unitNames, unitSymbols } from '@shared/measure/units';
+import { unitLabel, unitSymbols } from '@shared/measure/units';
 import { CalibrationBadge } from '@/features/instruments/components/calibration-badge';
 import { ReadingWarnings, WarningIcon } from '@/features/readings/components/reading-badges';
 import { enteredFigures, estimateText, readingKindWords } from '@/features/readings/lib/reading-text';
@@ -79,7 +79,7 @@ export function ReadingReview({
         </Fact>
         <Fact term="Kind">{readingKindWords[reading.kind]}</Fact>
         <Fact term="Unit">
-          {unitNames[reading.unit]} (<span className="figures">{unitSymbols[reading.unit]}</span>)
+          {unitLabel(reading.unit)}
         </Fact>
         <Fact term="Instrument">
           <span className="inline-flex flex-wrap items-center gap-2">
