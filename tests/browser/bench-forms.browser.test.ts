@@ -190,9 +190,9 @@ describe('the reading and clearance forms at the bench', () => {
       expect(second!.partId).toBe(build.json.build.parts[0]!.id);
 
       // 5. Two feeler clearances without touching the key: both saved, each with its own key.
-      const clearanceForm = page.getByRole('form', { name: 'New clearance' });
+      const clearanceForm = page.getByRole('form', { name: 'New result' });
       const defineGap = async (readingId: number, expectedKey: string) => {
-        await page.getByRole('button', { name: 'New clearance' }).click();
+        await page.getByRole('button', { name: 'New result' }).click();
         await clearanceForm.getByLabel(/A gap from a feeler bracket/).check();
         await clearanceForm.getByLabel('Feeler bracket', { exact: true }).selectOption(String(readingId));
         await expect.poll(() => clearanceForm.getByRole('textbox', { name: 'Name', exact: true }).inputValue()).toBe(label);
@@ -202,17 +202,17 @@ describe('the reading and clearance forms at the bench', () => {
       await defineGap(first!.id, 'outer-rotor-to-body');
       await dismissToasts(page);
       await clearanceForm.screenshot({ path: path.join(shots, 'clearance-form-1280.png') });
-      expect(await axeProblems(page, 'form[aria-label="New clearance"]', 'clearance form, 1280')).toEqual([]);
-      await clearanceForm.getByRole('button', { name: 'Save clearance' }).click();
+      expect(await axeProblems(page, 'form[aria-label="New result"]', 'clearance form, 1280')).toEqual([]);
+      await clearanceForm.getByRole('button', { name: 'Save result' }).click();
       await page.locator('[data-clearance="outer-rotor-to-body"]').waitFor();
       await defineGap(second!.id, 'outer-rotor-to-body-2');
-      await clearanceForm.getByRole('button', { name: 'Save clearance' }).click();
+      await clearanceForm.getByRole('button', { name: 'Save result' }).click();
       await page.locator('[data-clearance="outer-rotor-to-body-2"]').waitFor();
       const saved = await api<{ items: { key: string; name: string }[] }>(page, 'GET', `/api/builds/${buildId}/clearances`);
       expect(saved.json.items.map((c) => c.key).sort()).toEqual(['outer-rotor-to-body', 'outer-rotor-to-body-2']);
 
       // A key typed by hand stays when the name changes; the suggestion follows the name until then.
-      await page.getByRole('button', { name: 'New clearance' }).click();
+      await page.getByRole('button', { name: 'New result' }).click();
       const keyBox = clearanceForm.getByRole('textbox', { name: 'Key', exact: true });
       const nameBox = clearanceForm.getByRole('textbox', { name: 'Name', exact: true });
       await nameBox.fill('Inner rotor tip');
@@ -240,13 +240,13 @@ describe('the reading and clearance forms at the bench', () => {
       await form.getByRole('button', { name: 'Cancel' }).click();
       await form.waitFor({ state: 'detached' });
 
-      await page.getByRole('button', { name: 'New clearance' }).click();
+      await page.getByRole('button', { name: 'New result' }).click();
       await clearanceForm.getByLabel(/A gap from a feeler bracket/).check();
       await clearanceForm.getByLabel('Feeler bracket', { exact: true }).selectOption(String(first!.id));
       await expect.poll(() => clearanceForm.getByRole('textbox', { name: 'Key', exact: true }).inputValue()).toBe('outer-rotor-to-body-3');
       await dismissToasts(page);
       await clearanceForm.screenshot({ path: path.join(shots, 'clearance-form-390.png') });
-      expect(await axeProblems(page, 'form[aria-label="New clearance"]', 'clearance form, 390')).toEqual([]);
+      expect(await axeProblems(page, 'form[aria-label="New result"]', 'clearance form, 390')).toEqual([]);
       await clearanceForm.getByRole('button', { name: 'Cancel' }).click();
     } finally {
       await page.close();

@@ -119,8 +119,8 @@ describe('journey 1: a builder at the bench, from clip to a story sent for revie
       expect(new Set(moments.items.map((r) => r.momentId)).size).toBe(3);
 
       // End float from the template, judged against the demo library's spec.
-      await page.getByRole('button', { name: 'New clearance' }).click();
-      const clearanceForm = page.getByRole('form', { name: 'New clearance' });
+      await page.getByRole('button', { name: 'New result' }).click();
+      const clearanceForm = page.getByRole('form', { name: 'New result' });
       const ids = await page.evaluate(async (id) => (await (await fetch(`/api/builds/${id}/readings`)).json()) as { items: { id: number; key: string }[] }, buildId);
       const idOf = (key: string) => String(ids.items.find((r) => r.key === key)!.id);
       await clearanceForm.getByLabel('Bore depth', { exact: true }).selectOption(idOf('body-depth'));
@@ -130,17 +130,17 @@ describe('journey 1: a builder at the bench, from clip to a story sent for revie
       // 0.5642 − 0.5615 = 0.0027 in, inside 0.0015–0.0040 in (invented demo spec) by the guarded rule.
       const verdict = clearanceForm.locator('[data-clearance-result] [data-verdict]').first();
       await expect.poll(() => verdict.getAttribute('data-verdict')).toBe('conforms');
-      await clearanceForm.getByRole('button', { name: 'Save clearance' }).click();
+      await clearanceForm.getByRole('button', { name: 'Save result' }).click();
       await page.locator('[data-clearance]').first().waitFor();
       const clearances = await page.evaluate(async (id) => (await (await fetch(`/api/builds/${id}/clearances`)).json()) as { items: { key: string }[] }, buildId);
       const clearanceKey = clearances.items[0]!.key;
 
       // A diary entry with two claims, sent for review.
       await page.goto(`${site.url}/builds/${buildId}/stories`);
-      await page.getByRole('button', { name: 'New entry' }).click();
+      await page.getByRole('button', { name: 'New story' }).click();
       await page.getByRole('dialog').getByLabel('Title').fill(`Pump measured (journey ${run})`);
       await page.getByRole('button', { name: 'Create and open the editor' }).click();
-      await page.getByRole('heading', { name: 'Edit diary entry' }).waitFor();
+      await page.getByRole('heading', { name: 'Edit story' }).waitFor();
       const storyId = Number(/\/stories\/(\d+)\/edit/.exec(page.url())?.[1]);
       const text = page.getByLabel('Text (Markdown)');
       await text.click();

@@ -216,19 +216,19 @@ describe('a reader on a published story', () => {
       expect(await page.evaluate(() => window.localStorage.getItem('benchproof.units'))).toBe('metric');
       await page.keyboard.press('Escape');
       await page.waitForURL(`**/stories/${fixture.story.id}`);
-      const index = await page.getByRole('navigation', { name: 'Claims in this entry' }).innerText();
+      const index = await page.getByRole('navigation', { name: 'Claims in this story' }).innerText();
       // 0.0047 in = 0.11938 mm, at U's place (four decimals in mm).
       expect(index).toContain('0.1194 mm ± 0.0020 mm');
       await page.reload();
       await page.getByRole('heading', { level: 1, name: `${TITLE}: end float` }).waitFor();
-      expect(await page.getByRole('navigation', { name: 'Claims in this entry' }).innerText()).toContain('0.1194 mm ± 0.0020 mm');
+      expect(await page.getByRole('navigation', { name: 'Claims in this story' }).innerText()).toContain('0.1194 mm ± 0.0020 mm');
 
       await page.evaluate(() => window.scrollTo(0, 0));
       await page.screenshot({ path: path.join(artifacts, 'public-story-1280.png'), fullPage: true });
 
       // On paper: no interface, the claims numbered, their evidence printed as notes after the text.
       await page.emulateMedia({ media: 'print' });
-      expect(await page.getByRole('navigation', { name: 'Claims in this entry' }).isVisible()).toBe(false);
+      expect(await page.getByRole('navigation', { name: 'Claims in this story' }).isVisible()).toBe(false);
       expect(await page.locator('fieldset').filter({ hasText: 'Units' }).isVisible()).toBe(false);
       const notes = page.getByRole('region', { name: 'Evidence for the claims (printed)' });
       expect(await notes.isVisible()).toBe(true);

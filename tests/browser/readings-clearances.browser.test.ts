@@ -243,8 +243,8 @@ describe('readings and clearances at the bench', () => {
       await history.getByRole('button', { name: 'Close' }).click();
 
       // 4. The end float from the template, against the spec.
-      await page.getByRole('button', { name: 'New clearance' }).click();
-      const clearanceForm = page.getByRole('form', { name: 'New clearance' });
+      await page.getByRole('button', { name: 'New result' }).click();
+      const clearanceForm = page.getByRole('form', { name: 'New result' });
       await expect(clearanceForm.getByLabel(/End float from a depth and a height/).isChecked()).resolves.toBe(true);
       await clearanceForm.getByText('The rotor height is subtracted from the bore depth', { exact: false }).waitFor();
       await clearanceForm.getByLabel('Bore depth', { exact: true }).selectOption(String(bore.id));
@@ -262,8 +262,8 @@ describe('readings and clearances at the bench', () => {
       expect(await verdict.textContent()).toMatch(/guarded rule, k = 1\.9[01]/);
       await clearanceForm.locator('[data-band-picture] svg').waitFor();
       await dismissToasts(page);
-      await page.getByRole('form', { name: 'New clearance' }).screenshot({ path: path.join(artifacts, 'readings-clearances-clearance-form-1280.png') });
-      await clearanceForm.getByRole('button', { name: 'Save clearance' }).click();
+      await page.getByRole('form', { name: 'New result' }).screenshot({ path: path.join(artifacts, 'readings-clearances-clearance-form-1280.png') });
+      await clearanceForm.getByRole('button', { name: 'Save result' }).click();
       const saved = page.locator('[data-clearance="end-float"]');
       await saved.waitFor();
       expect(await saved.textContent()).toContain('bore-depth − rotor-height');
@@ -307,7 +307,7 @@ describe('readings and clearances at the bench', () => {
       await expect.poll(() => page.locator('[data-reading-card]').count()).toBe(3);
       await page.locator('#readings').screenshot({ path: path.join(artifacts, 'readings-clearances-table-390.png') });
       await page.getByRole('button', { name: 'Edit End float' }).click();
-      const editClearance = page.getByRole('form', { name: 'Edit clearance End float' });
+      const editClearance = page.getByRole('form', { name: 'Edit result End float' });
       await editClearance.locator('[data-band-picture] svg').waitFor();
       await dismissToasts(page);
       await editClearance.screenshot({ path: path.join(artifacts, 'readings-clearances-clearance-form-390.png') });

@@ -112,12 +112,12 @@ describe('a builder writing up a session at the bench', () => {
     page.setDefaultTimeout(15_000);
     try {
       await page.goto(`${site.url}/auth/github?login=demo-builder&returnTo=${encodeURIComponent(`/builds/${buildId}/stories`)}`);
-      await page.getByRole('heading', { name: 'Diary', exact: true }).waitFor();
-      await page.getByText('No diary entries yet').waitFor();
-      await page.getByRole('button', { name: 'New entry' }).click();
+      await page.getByRole('heading', { name: 'Stories', exact: true, level: 1 }).waitFor();
+      await page.getByText('No stories yet').waitFor();
+      await page.getByRole('button', { name: 'New story' }).click();
       await page.getByRole('dialog').getByLabel('Title').fill('Oil pump: end float after lapping (test)');
       await page.getByRole('button', { name: 'Create and open the editor' }).click();
-      await page.getByRole('heading', { name: 'Edit diary entry' }).waitFor();
+      await page.getByRole('heading', { name: 'Edit story' }).waitFor();
       const storyId = Number(/\/stories\/(\d+)\/edit/.exec(page.url())?.[1]);
       expect(storyId).toBeGreaterThan(0);
 
@@ -198,7 +198,7 @@ describe('a builder writing up a session at the bench', () => {
 
       // Reload: the text comes back from the server.
       await page.reload();
-      await page.getByRole('heading', { name: 'Edit diary entry' }).waitFor();
+      await page.getByRole('heading', { name: 'Edit story' }).waitFor();
       expect(await page.getByLabel('Title').inputValue()).toBe('Oil pump: end float after lapping (test)');
       expect(await text.inputValue()).toContain('(clearance:end-float)');
       expect(await page.getByText(/Unsaved changes from/).count()).toBe(0);
@@ -208,7 +208,7 @@ describe('a builder writing up a session at the bench', () => {
       second.setDefaultTimeout(15_000);
       try {
         await second.goto(`${site.url}/stories/${storyId}/edit`);
-        await second.getByRole('heading', { name: 'Edit diary entry' }).waitFor();
+        await second.getByRole('heading', { name: 'Edit story' }).waitFor();
         await second.getByLabel('Title').press('End');
         await second.keyboard.insertText(' — second tab');
         await waitSaved(second);
@@ -316,7 +316,7 @@ describe('a builder writing up a session at the bench', () => {
     cut.setDefaultTimeout(15_000);
     try {
       await cut.goto(editor);
-      await cut.getByRole('heading', { name: 'Edit diary entry' }).waitFor();
+      await cut.getByRole('heading', { name: 'Edit story' }).waitFor();
       // Every save is cut off on the way, as on a dropped connection.
       await cut.route(`**/api/stories/${storyId}`, (route) => (route.request().method() === 'PATCH' ? route.abort('internetdisconnected') : route.continue()));
       await cut.getByLabel('Text (Markdown)').click();
@@ -357,7 +357,7 @@ describe('a builder sending an entry whose claim contradicts its figure', () => 
     page.setDefaultTimeout(15_000);
     try {
       await page.goto(`${site.url}/auth/github?login=demo-builder&returnTo=${encodeURIComponent(`/stories/${storyId}/edit`)}`);
-      await page.getByRole('heading', { name: 'Edit diary entry' }).waitFor();
+      await page.getByRole('heading', { name: 'Edit story' }).waitFor();
       const workflow = page.locator('[data-workflow-bar]');
       const sendIt = workflow.getByRole('button', { name: 'Send for review' });
       const gate = page.locator('[data-gate="submit"]');

@@ -134,7 +134,8 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
     }
     if (!(await write({ progress: 92 }))) return superseded();
     const posterOut = path.join(scratch, 'poster.jpg');
-    await makePoster(source, posterOut, Math.min(1, probe.durationS / 2), { container: sourceContainer });
+    // The first frame: the picture the player shows at 0:00.0, before anything plays.
+    await makePoster(source, posterOut, 0, { container: sourceContainer });
     if (!(await stillOurs())) return superseded();
     await deps.storage.putFile(keys.poster, posterOut, { contentType: 'image/jpeg' });
     const stripOut = path.join(scratch, 'thumbnails.jpg');

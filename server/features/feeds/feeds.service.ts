@@ -27,7 +27,7 @@ async function entries(publicUrl: string, builder?: string): Promise<AtomEntry[]
     title: s.title,
     updated: new Date(s.publishedAt),
     alternate: `${publicUrl}/stories/${s.storyId}`,
-    summary: s.summary || `A diary entry of ${s.build.title}.`,
+    summary: s.summary || `A story of ${s.build.title}.`,
     author: { name: s.builder.displayName, uri: `${publicUrl}/builders/${encodeURIComponent(s.builder.login)}` },
     categories: [...new Set([...s.tags.machine, ...s.tags.component, ...s.tags.operation])],
   }));
@@ -38,8 +38,8 @@ export async function siteFeed(publicUrl: string): Promise<string> {
   const list = await entries(publicUrl);
   return atomDocument({
     id: `${tagBase(publicUrl)}stories`,
-    title: 'Benchproof: published build diaries',
-    subtitle: 'Diary entries whose every claim links to its reading, its moment in the clip and its computation, checked by a moderator.',
+    title: 'Benchproof: published build stories',
+    subtitle: 'Stories whose every claim links to its reading, its moment in the clip and its computation, checked by a moderator.',
     updated: list[0]?.updated ?? SITE_EPOCH,
     self: `${publicUrl}${SITE_FEED_PATH}`,
     alternate: `${publicUrl}/`,
@@ -56,7 +56,7 @@ export async function builderFeed(publicUrl: string, login: string): Promise<str
   const profile = `${publicUrl}/builders/${encodeURIComponent(user.login)}`;
   return atomDocument({
     id: `${tagBase(publicUrl)}builder/${user.id}`,
-    title: `${user.displayName}${user.shop ? `, ${user.shop}` : ''}: build diary on Benchproof`,
+    title: `${user.displayName}${user.shop ? `, ${user.shop}` : ''}: build stories on Benchproof`,
     updated: list[0]?.updated ?? user.createdAt,
     self: `${publicUrl}${builderFeedPath(user.login)}`,
     alternate: profile,

@@ -100,6 +100,23 @@ describe('a builder uploading clips', () => {
     await builder.get(ready.thumbnailsUrl!).expect(200).expect('content-type', 'image/jpeg');
   });
 
+  it('the poster is the first frame, the picture the player shows at 0:00.0 before it plays', async () => {
+    const clip = clipSchema.parse((await upload(mp4, 'poster.mp4').expect(201)).body.clip);
+    const ready = await waitForClip(clip.id, (c) => c.status === 'ready');
+    const poster = await builder.get(ready.posterUrl!).buffer(true).parse((r, cb) => {
+      const chunks: Buffer[] = [];
+      r.on('data', (c: Buffer) => chunks.push(c));
+      r.on('end', () => cb(null, Buffer.concat(chunks)));
+    }).expect(200).expect('content-type', 'image/jpeg');
+    const first = path.join(work, 'direct-first.jpg');
+    execFileSync(ffmpegPath(), ['-v', 'error', '-y', '-i', mp4, '-frames:v', '1', '-q:v', '2', first]);
+    const atOne = path.join(work, 'direct-1.0.jpg');
+    execFileSync(ffmpegPath(), ['-v', 'error', '-y', '-i', mp4, '-ss', '1', '-frames:v', '1', '-q:v', '2', atOne]);
+    const mine = await grayPixels(poster.body as Buffer);
+    expect(meanAbsDiff(mine, await grayPixels(first))).toBeLessThan(3);
+    expect(meanAbsDiff(mine, await grayPixels(atOne))).toBeGreaterThan(5);
+  });
+
   it('a Matroska MPEG-4 Part 2 file gets an H.264 web copy with the moov atom at the front', async () => {
     const clip = clipSchema.parse((await upload(mkv).expect(201)).body.clip);
     const ready = await waitForClip(clip.id, (c) => c.status !== 'uploaded' && c.status !== 'processing', 120_000);

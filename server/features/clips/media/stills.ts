@@ -52,15 +52,19 @@ export function extractFrameArgs(input: string, atS: number, output: string, win
 
 /**
  * The poster: the frame at `atS` (or the first frame when there is none there), at most
- * `maxWidth` wide with square pixels and upright, as a JPEG. Temp name then rename.
+ * `maxWidth` wide with square pixels and upright, as a JPEG. At 0 it is the first frame the
+ * file decodes to, read without any seek: the picture a player shows before it plays. Temp
+ * name then rename.
  */
 export async function makePoster(input: string, output: string, atS: number, options: StillOptions & { maxWidth?: number } = {}): Promise<void> {
   const maxWidth = options.maxWidth ?? 1280;
   const scale = ['-vf', `scale=w='min(${maxWidth},trunc(iw*sar/2)*2)':h='trunc(ow/dar/2)*2',setsar=1`];
   const format = await inputFormatArgs(input, options.container, 'make the poster');
   await writeAtomically(output, async (scratch) => {
-    await runFfmpeg(frameArgs(['-ss', secs(atS)], format, input, scale, scratch), what(atS, options, 'make the poster'));
-    if ((await sizeOf(scratch)) > 0) return;
+    if (atS > 0) {
+      await runFfmpeg(frameArgs(['-ss', secs(atS)], format, input, scale, scratch), what(atS, options, 'make the poster'));
+      if ((await sizeOf(scratch)) > 0) return;
+    }
     await runFfmpeg(frameArgs([], format, input, scale, scratch), what(0, options, 'make the poster'));
     if ((await sizeOf(scratch)) === 0) throw new MediaCommandFailed('Could not make the poster: no picture could be decoded.', '', 0);
   });

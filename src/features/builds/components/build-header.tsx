@@ -27,7 +27,7 @@ export function BuildHeader({ build }: { build: Build }) {
         </div>
         <div className="flex flex-wrap items-center gap-2" data-print="hide">
           <ButtonLink to={`/builds/${build.id}/stories`} size="sm">
-            Diary
+            Stories
           </ButtonLink>
           <Button size="sm" onClick={() => setEditing(true)}>
             Edit build

@@ -1,4 +1,4 @@
-import { useCallback, useEffect, useState } from 'react';
+import { useCallback, useEffect, useRef, useState } from 'react';
 import { useQuery, useSuspenseQuery, type UseQueryResult } from '@tanstack/react-query';
 import { data, useBlocker, useParams, useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { buildIdParamsSchema } from '@shared/builds/build.schema';
@@ -11,6 +11,7 @@ import { ClipPlayer, type LogReadingAt } from '@/features/clips/components/clip-
 import { clipStatusWords } from '@/features/clips/components/clip-status';
 import { ClipTimeline } from '@/features/clips/components/clip-timeline';
 import { UploadPanel } from '@/features/clips/components/upload-panel';
+import { readyUploadedClips } from '@/features/clips/lib/ready-uploads';
 import { ClearancesPanel } from '@/features/clearances/components/clearances-panel';
 import { ReadingForm } from '@/features/readings/components/reading-form';
 import { ReadingsPanel } from '@/features/readings/components/readings-panel';
@@ -20,7 +21,6 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-state
 import { Panel } from '@/components/ui/panel';
 import { useToast } from '@/components/ui/toast';
 import { ApiError, errorMessage } from '@/lib/api';
-import { cn } from '@/lib/cn';
 import { queryClient } from '@/lib/query-client';
 import { clearanceQueries } from '@/features/clearances/api/clearance-queries';
 import { readingQueries } from '@/features/readings/api/reading-queries';
@@ -58,8 +58,9 @@ interface LoggingAt {
 }
 
 /**
- * The build at the bench: its parts, its clips in order, uploads, the player with moment
- * marking and the reading form beside it, the readings table and the clearances.
+ * The build at the bench: its parts; the player with moment marking on the left and, beside it,
+ * the clips in order with the uploads, or the reading form while a reading is logged; under them
+ * the readings table and the clearances. One column on a phone, the player first.
  */
 export function Component() {
   const buildId = buildIdFrom(useParams());
@@ -92,7 +93,7 @@ export function Component() {
     );
   }, [requestedId, firstReady, setParams]);
 
-  const select = useCallback(
+  const show = useCallback(
     (clipId: number) => {
       setSeekRequest(null);
       setParams(
@@ -103,10 +104,17 @@ export function Component() {
         },
         { replace: true },
       );
-      // Into the player, so M works at once and small screens scroll to it.
-      setFocusRequest((n) => n + 1);
     },
     [setParams],
+  );
+
+  const select = useCallback(
+    (clipId: number) => {
+      show(clipId);
+      // Into the player, so the shortcuts work at once and small screens scroll to it.
+      setFocusRequest((n) => n + 1);
+    },
+    [show],
   );
 
   const seekTo = useCallback((clipId: number, atMs: number) => {
@@ -137,6 +145,20 @@ export function Component() {
 
   const formOpen = logging !== null && selected !== null && logging.clipId === selected.id;
 
+  // A file uploaded here opens in the player once the server has made it ready (the latest one,
+  // when several finish together). Never under an open reading form: it waits until that closes.
+  // Focus stays where it is; the toast says what changed.
+  const opened = useRef(new Set<number>());
+  useEffect(() => {
+    if (formOpen) return;
+    const ready = readyUploadedClips(uploads.items, clipList, opened.current);
+    const latest = ready.at(-1);
+    if (!latest) return;
+    for (const clip of ready) opened.current.add(clip.id);
+    if (latest.id !== selected?.id) show(latest.id);
+    toast({ tone: 'info', title: 'Clip ready', description: `“${latest.title}” is open in the player.` });
+  }, [formOpen, uploads.items, clipList, selected?.id, show, toast]);
+
   const onDeleted = useCallback(
     (clipId: number) => {
       void invalidateBuilds();
@@ -164,63 +186,29 @@ export function Component() {
       </p>
       <BuildHeader build={build} />
       <nav aria-label="Sections of this build" className="-mt-2 mb-4 flex flex-wrap gap-x-4 gap-y-1 text-sm" data-print="hide">
-        <a href="#workbench">Clips and player</a>
+        <a href="#workbench">Player</a>
+        {!formOpen && <a href="#clips">Clips</a>}
         <a href="#readings">Readings</a>
-        <a href="#clearances">Clearances</a>
+        <a href="#clearances">Results</a>
       </nav>
 
-      <div
-        id="workbench"
-        className={cn(
-          'grid scroll-mt-4 items-start gap-5',
-          // While a reading is logged the form takes the clips' place, beside the player.
-          formOpen ? 'lg:grid-cols-[minmax(0,1fr)_minmax(0,23rem)]' : 'lg:grid-cols-[minmax(0,23rem)_minmax(0,1fr)]',
-        )}
-      >
-        {!formOpen && (
-          <Panel
-            title="Clips"
-            description="In the order a reader will see them. Drag a card, or use Up and Down."
-            className="lg:sticky lg:top-4"
-          >
-            <div className="flex flex-col gap-4">
-              <UploadPanel
-                items={uploads.items}
-                clips={clipList}
-                onAdd={uploads.add}
-                onPause={uploads.pause}
-                onResume={uploads.resume}
-                onCancel={uploads.cancel}
-                onRetry={uploads.retry}
-                onDismiss={uploads.dismiss}
-                onOpen={select}
-                unfinished={uploads.unfinished}
-                onDiscardUnfinished={uploads.discard}
-              />
-              <ClipsBody
-                buildId={buildId}
-                query={clips}
-                selectedId={selected?.id ?? null}
-                onSelect={select}
-                onDeleted={onDeleted}
-              />
-            </div>
-          </Panel>
-        )}
+      <div id="workbench" className="grid scroll-mt-4 items-start gap-5 lg:grid-cols-[minmax(0,1fr)_minmax(0,23rem)]">
+        <div className="min-w-0">
+          <PlayerArea
+            buildId={buildId}
+            clips={clipList}
+            selected={selected}
+            requestedId={requestedId}
+            loading={clips.isPending}
+            focusRequest={focusRequest}
+            onLogReading={(at) => selected && setLogging((current) => ({ clipId: selected.id, at, seq: (current?.seq ?? 0) + 1 }))}
+            seekRequest={seekRequest && seekRequest.clipId === selected?.id ? seekRequest : null}
+          />
+        </div>
 
-        <PlayerArea
-          buildId={buildId}
-          clips={clipList}
-          selected={selected}
-          requestedId={requestedId}
-          loading={clips.isPending}
-          focusRequest={focusRequest}
-          onLogReading={(at) => selected && setLogging((current) => ({ clipId: selected.id, at, seq: (current?.seq ?? 0) + 1 }))}
-          seekRequest={seekRequest && seekRequest.clipId === selected?.id ? seekRequest : null}
-        />
-
-        {formOpen && (
-          <div>
+        <div id={formOpen ? undefined : 'clips'} className="min-w-0 scroll-mt-4">
+          {formOpen ? (
+            // While a reading is logged the form takes the clips' place, beside the player.
             <ReadingForm
               key={logging.seq}
               build={build}
@@ -233,15 +221,41 @@ export function Component() {
                 closeForm();
               }}
             />
-          </div>
-        )}
+          ) : (
+            <Panel title="Clips" description="In the order a reader will see them. Drag a card, or use Up and Down.">
+              <div className="flex flex-col gap-4">
+                <UploadPanel
+                  items={uploads.items}
+                  clips={clipList}
+                  onAdd={uploads.add}
+                  onPause={uploads.pause}
+                  onResume={uploads.resume}
+                  onCancel={uploads.cancel}
+                  onRetry={uploads.retry}
+                  onDismiss={uploads.dismiss}
+                  onOpen={select}
+                  unfinished={uploads.unfinished}
+                  onDiscardUnfinished={uploads.discard}
+                />
+                <ClipsBody
+                  buildId={buildId}
+                  query={clips}
+                  selectedId={selected?.id ?? null}
+                  onSelect={select}
+                  onDeleted={onDeleted}
+                />
+              </div>
+            </Panel>
+          )}
+        </div>
       </div>
 
       <div className="mt-6 flex flex-col gap-6">
-        <div id="readings" className="scroll-mt-4">
+        {/* The whole width: the table scrolls sideways inside its own box, its first columns always in view. */}
+        <div id="readings" className="min-w-0 scroll-mt-4">
           <ReadingsPanel build={build} onOpen={openReading} />
         </div>
-        <div id="clearances" className="scroll-mt-4">
+        <div id="clearances" className="min-w-0 scroll-mt-4">
           <ClearancesPanel build={build} />
         </div>
       </div>
@@ -350,7 +364,7 @@ function PlayerArea({
     return (
       <EmptyState title="Nothing to play yet">
         {clips.length === 0
-          ? 'Add a clip on the left. When it is ready it opens here, with frame steps and a button to mark the moment of each reading.'
+          ? 'Add a clip under “Clips”. When it is ready it opens here, with frame steps and a button to mark the moment of each reading.'
           : inProgress > 0
             ? `${inProgress} ${inProgress === 1 ? 'clip is' : 'clips are'} still being processed. The first one ready opens here.`
             : 'None of the clips could be processed. Upload the files again, or another copy of them.'}

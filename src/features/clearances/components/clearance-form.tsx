@@ -128,7 +128,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
             },
           })
         : await create.mutateAsync(input);
-      toast({ tone: 'success', title: clearance ? 'Clearance saved' : 'Clearance defined', description: `${saved.name}: ${saved.result?.display ?? 'not worked out'}` });
+      toast({ tone: 'success', title: clearance ? 'Result saved' : 'Result worked out', description: `${saved.name}: ${saved.result?.display ?? 'not worked out'}` });
       onDone(saved);
     } catch (error) {
       if (error instanceof ApiError && error.code === EDIT_CONFLICT) {
@@ -174,7 +174,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
   );
 
   return (
-    <form noValidate onSubmit={submit} aria-label={clearance ? `Edit clearance ${clearance.name}` : 'New clearance'} className="grid gap-5 lg:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
+    <form noValidate onSubmit={submit} aria-label={clearance ? `Edit result ${clearance.name}` : 'New result'} className="grid gap-5 lg:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
       <div className="flex min-w-0 flex-col gap-4">
         <fieldset aria-labelledby={templateLegendId} className="flex flex-col gap-1.5">
           <legend id={templateLegendId} className="mb-1 text-sm font-medium">
@@ -352,7 +352,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
         )}
         <div className="flex flex-wrap gap-2">
           <Button type="submit" variant="primary" loading={formState.isSubmitting} loadingText="Saving…">
-            {clearance ? 'Save changes' : 'Save clearance'}
+            {clearance ? 'Save changes' : 'Save result'}
           </Button>
           <Button variant="quiet" onClick={() => onDone(null)}>
             Cancel

@@ -21,7 +21,7 @@ import { expressionOf, specLine } from '../lib/clearance-view';
 import { ClearanceForm } from './clearance-form';
 import { ClearanceResultView, ClearanceVerdicts, specSourceWords } from './clearance-result-view';
 
-/** The build's clearances, each worked out from its readings now, and the form to define one. */
+/** The build's results (clearances, material removed…), each worked out from its readings now, and the form to define one. */
 export function ClearancesPanel({ build }: { build: Build }) {
   const clearances = useInfiniteQuery(clearanceQueries.list(build.id));
   const readings = useInfiniteQuery(readingQueries.list(build.id));
@@ -36,12 +36,12 @@ export function ClearancesPanel({ build }: { build: Build }) {
 
   return (
     <Panel
-      title="Clearances"
-      description="Sums of readings (a depth less a height), with their uncertainty and, against a spec, a verdict."
+      title="Results from readings"
+      description="Clearances, material removed and other figures worked out from the readings (a depth less a height, a sum, a formula), each with its uncertainty and, against a spec, a verdict."
       actions={
         editing !== 'new' && (
           <Button size="sm" variant="primary" onClick={() => setEditing('new')}>
-            New clearance
+            New result
           </Button>
         )
       }
@@ -49,7 +49,7 @@ export function ClearancesPanel({ build }: { build: Build }) {
       <div className="flex flex-col gap-4">
         {editing === 'new' && (
           <div className="rounded-md border border-ink p-3">
-            <h3 className="mb-3 text-md font-semibold">New clearance</h3>
+            <h3 className="mb-3 text-md font-semibold">New result</h3>
             <ClearanceForm build={build} readings={readingItems} onDone={() => setEditing(null)} />
           </div>
         )}
@@ -60,10 +60,10 @@ export function ClearancesPanel({ build }: { build: Build }) {
           </p>
         )}
         {clearances.isPending ? (
-          <LoadingState label="Loading the clearances…" className="py-4" />
+          <LoadingState label="Loading the results…" className="py-4" />
         ) : !clearances.data ? (
           <ErrorState
-            title="The clearances could not be loaded"
+            title="The results could not be loaded"
             error={clearances.error}
             onRetry={() => void clearances.refetch()}
             retrying={clearances.isRefetching}
@@ -71,21 +71,21 @@ export function ClearancesPanel({ build }: { build: Build }) {
         ) : items.length === 0 ? (
           editing !== 'new' && (
             <EmptyState
-              title="No clearances yet"
+              title="No results yet"
               action={
                 <Button variant="primary" onClick={() => setEditing('new')}>
-                  Define a clearance
+                  Work out a result
                 </Button>
               }
             >
               {readingItems.length === 0
-                ? 'Log the readings first (say a bore depth and a rotor height), then define the clearance from them with a template.'
+                ? 'Log the readings first (say a bore depth and a rotor height), then work out the result (a clearance, material removed…) from them with a template.'
                 : 'Choose a template (end float, a feeler gap, a bearing clearance…), pick the readings for it and attach the spec it must meet.'}
             </EmptyState>
           )
         ) : (
           <>
-            <ol className="flex flex-col divide-y divide-rule rounded-md border border-rule" aria-label="Clearances of this build">
+            <ol className="flex flex-col divide-y divide-rule rounded-md border border-rule" aria-label="Results of this build">
               {items.map((c) =>
                 editing === c.id ? (
                   <li key={c.id} className="p-3">
@@ -105,20 +105,20 @@ export function ClearancesPanel({ build }: { build: Build }) {
                 ),
               )}
             </ol>
-            <LoadMore query={clearances} shown={items.length} what="clearances" />
+            <LoadMore query={clearances} shown={items.length} what="results" />
           </>
         )}
       </div>
       <DeleteDialog
         target={deleting}
         onClose={() => setDeleting(null)}
-        what="clearance"
-        description="Only the clearance goes; its readings stay. A clearance a story cites cannot be deleted."
+        what="result"
+        description="Only the result goes; its readings stay. A result a story cites cannot be deleted."
         pending={remove.isPending}
         remove={(id, callbacks) => remove.mutate(id, callbacks)}
         onDeleted={(target) => {
           setRefusal(null);
-          toast({ tone: 'success', title: 'Clearance deleted', description: `“${target.name}” is gone; its readings stay.` });
+          toast({ tone: 'success', title: 'Result deleted', description: `“${target.name}” is gone; its readings stay.` });
         }}
         onRefused={(target, e) => setRefusal({ id: target.id, text: `“${target.name}” was not deleted: ${errorMessage(e)}` })}
       />

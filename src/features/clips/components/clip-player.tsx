@@ -9,8 +9,10 @@ import { cn } from '@/lib/cn';
 import { useCreateMoment } from '../api/clip-mutations';
 import { clipQueries } from '../api/clip-queries';
 import { formatFrameRate, formatResolution, formatTime, frameDuration, frameIndexAt, spokenTime } from '../lib/clip-format';
+import { isShortcut, keyLabel, usePlayerShortcuts } from '../lib/player-shortcuts';
 import { MomentsList } from './moments-list';
 import { ScrubStrip } from './scrub-strip';
+import { ShortcutSettings } from './shortcut-settings';
 import { TrimEditor } from './trim-editor';
 
 /** Seconds "play from before" starts ahead of a moment. */
@@ -34,16 +36,19 @@ export interface ClipPlayerProps {
 }
 
 /**
- * A ready clip at the bench: the native player plus our own controls for
- * exact work (frame steps, jumps, a thumbnail scrub strip), the trimmed range,
- * marking moments (button or M while the player has focus) and logging a
- * reading at the current time (button or R).
+ * A ready clip at the bench: the picture with one set of controls, ours, for exact work (play,
+ * frame steps, jumps, a thumbnail scrub strip, sound), the trimmed range, marking moments
+ * (button, or a single key while the player has focus) and logging a reading at the current
+ * time (button or its key). The keys can be turned off or changed (`ShortcutSettings`).
+ * Nothing here starts playback except Play, Space on the picture and "Play from": clicking the
+ * picture only gives it focus, and marking pauses.
  */
 export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seekRequest = null }: ClipPlayerProps) {
   const videoRef = useRef<HTMLVideoElement>(null);
-  const regionRef = useRef<HTMLElement>(null);
+  const frameRef = useRef<HTMLDivElement>(null);
   const [time, setTime] = useState(clip.trimInS ?? 0);
   const [playing, setPlaying] = useState(false);
+  const [muted, setMuted] = useState(false);
   const [mediaDuration, setMediaDuration] = useState<number | null>(null);
   const [announcement, setAnnouncement] = useState('');
   const [hasFocus, setHasFocus] = useState(false);
@@ -54,6 +59,9 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
   const { toast } = useToast();
   const createMoment = useCreateMoment(clip.id);
   const moments = useQuery(clipQueries.moments(clip.id));
+  const [shortcuts, setShortcuts] = usePlayerShortcuts();
+  const markKey = keyLabel(shortcuts.mark);
+  const readingKey = keyLabel(shortcuts.reading);
 
   const fps = clip.probe?.frameRate ?? 1 / frameDuration(clip);
   const frame = frameDuration(clip);
@@ -61,8 +69,9 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
   const from = clip.trimInS ?? 0;
   const to = clip.trimOutS ?? duration;
 
+  // Onto the picture: the shortcuts, Space and the arrows all work from there at once.
   useEffect(() => {
-    if (focusRequest > 0) regionRef.current?.focus({ preventScroll: false });
+    if (focusRequest > 0) frameRef.current?.focus({ preventScroll: false });
   }, [focusRequest]);
 
   // A seek asked for before the video knows its length waits for loadedmetadata.
@@ -195,28 +204,52 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
   }
 
   function onRegionKeyDown(event: KeyboardEvent<HTMLElement>) {
-    const key = event.key.toLowerCase();
-    if (key !== 'm' && !(key === 'r' && onLogReading)) return;
-    if (event.ctrlKey || event.metaKey || event.altKey) return;
+    if (!shortcuts.enabled) return;
+    const isMark = isShortcut(event, shortcuts.mark);
+    const isReading = !!onLogReading && isShortcut(event, shortcuts.reading);
+    if (!isMark && !isReading) return;
     const target = event.target as HTMLElement;
+    // Keys from dialogs opened here (portals, outside this element) and from boxes being typed in are theirs.
+    if (!event.currentTarget.contains(target)) return;
     if (target.closest('input, textarea, select, [contenteditable="true"]')) return;
     event.preventDefault();
-    if (key === 'm') mark();
+    if (isMark) mark();
     else logReading();
   }
 
+  /** Keys on the picture itself: Space plays or pauses, the arrows step a frame. */
+  function onFrameKeyDown(event: KeyboardEvent<HTMLDivElement>) {
+    if (event.ctrlKey || event.metaKey || event.altKey || event.target !== event.currentTarget) return;
+    if (event.key === ' ') togglePlay();
+    else if (event.key === 'ArrowLeft') stepFrames(-1);
+    else if (event.key === 'ArrowRight') stepFrames(1);
+    else return;
+    event.preventDefault();
+  }
+
+  function toggleSound() {
+    const video = videoRef.current;
+    if (!video) return;
+    video.muted = !video.muted;
+    setMuted(video.muted);
+  }
+
+  const keysHint = !shortcuts.enabled
+    ? 'Single-key shortcuts are off: use the buttons. Turn them on under “Keyboard shortcuts”.'
+    : hasFocus
+      ? `Press ${markKey} to mark the moment at the current time${onLogReading ? `, ${readingKey} to log a reading there` : ''} (not while typing in a box). Marking pauses; it never starts playback.`
+      : `Shortcut: click the picture or tab into the player, then press ${markKey} to mark the current time${onLogReading ? ` or ${readingKey} to log a reading at it` : ''}. Clicking the picture does not play it.`;
+
   return (
     <section
-      ref={regionRef}
       aria-labelledby={titleId}
       aria-describedby={shortcutId}
-      tabIndex={-1}
       onKeyDown={onRegionKeyDown}
       onFocus={() => setHasFocus(true)}
       onBlur={(event) => {
         if (!event.currentTarget.contains(event.relatedTarget as Node | null)) setHasFocus(false);
       }}
-      className={cn('flex flex-col gap-3 rounded-lg border bg-paper p-3 outline-none', hasFocus ? 'border-ink' : 'border-rule')}
+      className={cn('flex flex-col gap-3 rounded-lg border bg-paper p-3', hasFocus ? 'border-ink' : 'border-rule')}
     >
       <header className="flex flex-wrap items-baseline justify-between gap-x-3 gap-y-1">
         <h2 id={titleId} className="text-md font-semibold">
@@ -230,38 +263,50 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
         )}
       </header>
 
-      <video
-        ref={videoRef}
-        key={clip.id}
-        controls
-        playsInline
-        preload="metadata"
-        poster={clip.posterUrl ?? undefined}
-        className="aspect-video max-h-[60vh] w-full rounded-sm bg-ink"
-        onLoadedMetadata={(event) => {
-          const video = event.currentTarget;
-          if (Number.isFinite(video.duration)) setMediaDuration(video.duration);
-          if (pendingSeek.current !== null) {
-            video.currentTime = pendingSeek.current;
-            setTime(pendingSeek.current);
-            pendingSeek.current = null;
-          } else if (clip.trimInS != null) video.currentTime = clip.trimInS;
-        }}
-        onPlay={onPlay}
-        onPause={() => {
-          setPlaying(false);
-          setTime(videoRef.current?.currentTime ?? 0);
-        }}
-        onEnded={() => setPlaying(false)}
-        onSeeked={(event) => setTime(event.currentTarget.currentTime)}
-        onTimeUpdate={(event) => {
-          if (!playing) setTime(event.currentTarget.currentTime);
-        }}
+      {/* The picture takes focus when clicked (so the shortcuts work at once) and never plays on a click. */}
+      <div
+        ref={frameRef}
+        role="group"
+        tabIndex={0}
+        aria-label={`Picture of ${clip.title}: Space plays or pauses, the left and right arrows step one frame`}
+        aria-describedby={shortcutId}
+        onKeyDown={onFrameKeyDown}
+        data-player-frame=""
+        className="rounded-sm focus:outline-2 focus:outline-offset-2 focus:outline-accent"
       >
-        {clip.videoUrl && <source src={clip.videoUrl} />}
-        <track kind="chapters" src={clip.chaptersUrl} label="Chapters" default />
-        Your browser cannot play this video. <a href={clip.videoUrl ?? '#'}>Download it</a> instead.
-      </video>
+        <video
+          ref={videoRef}
+          key={clip.id}
+          playsInline
+          preload="metadata"
+          poster={clip.posterUrl ?? undefined}
+          className="block aspect-video max-h-[60vh] w-full rounded-sm bg-ink"
+          onLoadedMetadata={(event) => {
+            const video = event.currentTarget;
+            if (Number.isFinite(video.duration)) setMediaDuration(video.duration);
+            if (pendingSeek.current !== null) {
+              video.currentTime = pendingSeek.current;
+              setTime(pendingSeek.current);
+              pendingSeek.current = null;
+            } else if (clip.trimInS != null) video.currentTime = clip.trimInS;
+          }}
+          onPlay={onPlay}
+          onPause={() => {
+            setPlaying(false);
+            setTime(videoRef.current?.currentTime ?? 0);
+          }}
+          onEnded={() => setPlaying(false)}
+          onSeeked={(event) => setTime(event.currentTarget.currentTime)}
+          onTimeUpdate={(event) => {
+            if (!playing) setTime(event.currentTarget.currentTime);
+          }}
+          onVolumeChange={(event) => setMuted(event.currentTarget.muted)}
+        >
+          {clip.videoUrl && <source src={clip.videoUrl} />}
+          <track kind="chapters" src={clip.chaptersUrl} label="Chapters" default />
+          Your browser cannot play this video. <a href={clip.videoUrl ?? '#'}>Download it</a> instead.
+        </video>
+      </div>
 
       <div className="flex flex-wrap items-center gap-1" role="group" aria-label="Player controls">
         <Button size="sm" variant="primary" onClick={togglePlay} className="w-20" aria-label={playing ? 'Pause' : 'Play'}>
@@ -286,13 +331,9 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
         <Button size="sm" onClick={() => jump(5)} aria-label="Forward 5 seconds">
           +5 s
         </Button>
-        <p className="ml-auto flex items-baseline gap-2 pl-2">
-          <span className="sr-only">Current time</span>
-          <span className="figures text-lg text-ink">{formatTime(time)}</span>
-          <span className="figures text-xs text-ink-muted">
-            / {formatTime(duration)} · frame {frameIndexAt(time, fps) + 1}
-          </span>
-        </p>
+        <Button size="sm" variant="quiet" onClick={toggleSound} aria-pressed={muted} className="ml-auto aria-pressed:border-ink aria-pressed:bg-paper-3">
+          Mute
+        </Button>
         {/* Read out only after explicit steps and marks, never while playing. */}
         <span className="sr-only" aria-live="polite">
           {announcement}
@@ -300,6 +341,20 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
       </div>
 
       <div className="flex flex-col gap-1">
+        <div className="flex flex-wrap items-baseline justify-between gap-x-3">
+          <p className="flex items-baseline gap-2">
+            <span className="sr-only">Current time</span>
+            <span className="figures text-lg text-ink">{formatTime(time)}</span>
+            <span className="figures text-xs text-ink-muted">
+              / {formatTime(duration)} · frame {frameIndexAt(time, fps) + 1}
+            </span>
+          </p>
+          <p className="figures text-2xs text-ink-muted">
+            {clip.trimInS != null || clip.trimOutS != null
+              ? `Shown ${formatTime(from)}–${formatTime(to)} (greyed outside)`
+              : 'Whole clip shown'}
+          </p>
+        </div>
         <ScrubStrip
           clip={clip}
           duration={duration}
@@ -312,18 +367,13 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
             seek(seconds, explicit);
           }}
         />
-        <p className="figures flex justify-between text-2xs text-ink-muted">
+        <p className="figures flex justify-between text-2xs text-ink-muted" aria-hidden="true">
           <span>{formatTime(0)}</span>
-          <span>
-            {clip.trimInS != null || clip.trimOutS != null
-              ? `Shown ${formatTime(from)}–${formatTime(to)} (greyed outside)`
-              : 'Whole clip shown'}
-          </span>
           <span>{formatTime(duration)}</span>
         </p>
       </div>
 
-      <div className="grid gap-3 border-t border-rule pt-3 md:grid-cols-[minmax(0,1fr)_auto]">
+      <div className="flex flex-col gap-2 border-t border-rule pt-3">
         <form
           className="flex flex-wrap items-end gap-2"
           onSubmit={(event) => {
@@ -331,7 +381,7 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
             mark();
           }}
         >
-          <label className="flex min-w-48 flex-1 flex-col gap-1 text-sm font-medium">
+          <label className="flex min-w-[min(100%,16rem)] flex-1 flex-col gap-1 text-sm font-medium">
             <span>
               Label for the moment <span className="font-normal text-ink-muted">(optional)</span>
             </span>
@@ -343,27 +393,40 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
               className="h-9 text-sm"
             />
           </label>
-          <Button type="submit" variant="primary" loading={createMoment.isPending} loadingText="Marking…" className="h-9" aria-keyshortcuts="m">
-            Mark this moment
-            <kbd aria-hidden="true" className="figures rounded-sm border border-paper/40 px-1 text-2xs">
-              M
-            </kbd>
-          </Button>
-          {onLogReading && (
-            <Button className="h-9" onClick={logReading} aria-keyshortcuts="r">
-              Log a reading
-              <kbd aria-hidden="true" className="figures rounded-sm border border-line px-1 text-2xs">
-                R
-              </kbd>
+          <span className="flex flex-wrap gap-2">
+            <Button
+              type="submit"
+              variant="primary"
+              loading={createMoment.isPending}
+              loadingText="Marking…"
+              className="h-9"
+              aria-keyshortcuts={shortcuts.enabled ? shortcuts.mark : undefined}
+            >
+              Mark this moment
+              {shortcuts.enabled && (
+                <kbd aria-hidden="true" className="figures rounded-sm border border-paper/40 px-1 text-2xs">
+                  {markKey}
+                </kbd>
+              )}
             </Button>
-          )}
-          <p id={shortcutId} className="w-full text-xs text-ink-muted" aria-live="off">
-            {hasFocus
-              ? `Press M to mark the moment at the current time${onLogReading ? ', R to log a reading there' : ''} (not while typing in a box).`
-              : `Shortcut: click the player or tab into it, then press M to mark the current time${onLogReading ? ' or R to log a reading at it' : ''}.`}
-          </p>
+            {onLogReading && (
+              <Button className="h-9" onClick={logReading} aria-keyshortcuts={shortcuts.enabled ? shortcuts.reading : undefined}>
+                Log a reading
+                {shortcuts.enabled && (
+                  <kbd aria-hidden="true" className="figures rounded-sm border border-line px-1 text-2xs">
+                    {readingKey}
+                  </kbd>
+                )}
+              </Button>
+            )}
+          </span>
         </form>
-        <TrimEditor key={`${clip.trimInS}-${clip.trimOutS}`} buildId={buildId} clip={clip} duration={duration} currentTime={time} />
+        <div className="flex flex-wrap items-start justify-between gap-x-3 gap-y-1">
+          <p id={shortcutId} className="min-w-0 flex-1 basis-64 text-xs text-ink-muted" aria-live="off">
+            {keysHint}
+          </p>
+          <ShortcutSettings settings={shortcuts} onSave={setShortcuts} withReading={!!onLogReading} className="-my-1 h-7 px-2 text-xs" />
+        </div>
       </div>
 
       <MomentsList
@@ -385,6 +448,8 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
           })
         }
       />
+
+      <TrimEditor key={`${clip.trimInS}-${clip.trimOutS}`} buildId={buildId} clip={clip} duration={duration} currentTime={time} />
     </section>
   );
 }

@@ -226,7 +226,19 @@ function ClipCard({
             ) : (
               <h3 className="min-w-0 flex-1 font-medium break-words">
                 <span className="sr-only">Clip {index + 1} of {count}: </span>
-                {clip.title}
+                {ready ? (
+                  // The title opens the clip too: it is where the eye and the pointer go first.
+                  <button
+                    type="button"
+                    onClick={onSelect}
+                    className="rounded-sm text-left font-medium break-words text-ink underline decoration-line decoration-1 underline-offset-2 hover:text-accent-strong hover:decoration-accent"
+                  >
+                    {clip.title}
+                    <span className="sr-only"> (open in the player)</span>
+                  </button>
+                ) : (
+                  clip.title
+                )}
               </h3>
             )}
           </div>

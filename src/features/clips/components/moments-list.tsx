@@ -146,12 +146,13 @@ function MomentRow({
   }
 
   return (
-    <li className="grid grid-cols-[auto_minmax(0,1fr)] gap-x-3 gap-y-1 px-2 py-2 sm:grid-cols-[auto_auto_minmax(0,1fr)_auto] sm:items-center">
+    // The still on the left; the time and a label box as wide as the row allows, the actions under them.
+    <li className="grid grid-cols-[5rem_minmax(0,1fr)] gap-x-3 gap-y-1.5 px-2 py-2 sm:grid-cols-[6rem_minmax(0,1fr)]">
       <a
         href={moment.frameUrl}
         target="_blank"
         rel="noreferrer"
-        className="row-span-2 block w-24 shrink-0 overflow-hidden rounded-sm border border-rule bg-paper-3 sm:row-span-1"
+        className="row-span-2 block self-start overflow-hidden rounded-sm border border-rule bg-paper-3"
       >
         <img
           src={moment.frameUrl}
@@ -161,41 +162,43 @@ function MomentRow({
         />
         <span className="sr-only"> (opens full size in a new tab)</span>
       </a>
-      <button
-        type="button"
-        onClick={() => onSeek(seconds)}
-        className="figures justify-self-start rounded-sm px-1 text-sm text-accent underline decoration-1 underline-offset-2 hover:text-accent-strong"
-        aria-label={`Go to ${name}`}
-      >
-        {time}
-        <span className="text-2xs text-ink-muted no-underline"> f{frameIndexAt(seconds, fps) + 1}</span>
-      </button>
-      <form
-        className="col-start-2 flex min-w-0 items-center gap-1 sm:col-start-auto"
-        onSubmit={(event) => {
-          event.preventDefault();
-          saveLabel();
-        }}
-      >
-        <Input
-          aria-label={`Label of moment ${index + 1} at ${time}`}
-          value={label}
-          maxLength={160}
-          placeholder="No label"
-          onChange={(event) => setLabel(event.target.value)}
-          onBlur={saveLabel}
-          onKeyDown={(event) => {
-            if (event.key === 'Escape') setLabel(moment.label);
+      <div className="flex min-w-0 flex-wrap items-center gap-x-2 gap-y-1">
+        <button
+          type="button"
+          onClick={() => onSeek(seconds)}
+          className="figures shrink-0 rounded-sm px-1 text-sm whitespace-nowrap text-accent underline decoration-1 underline-offset-2 hover:text-accent-strong"
+          aria-label={`Go to ${name}`}
+        >
+          {time}
+          <span className="text-2xs text-ink-muted no-underline"> f{frameIndexAt(seconds, fps) + 1}</span>
+        </button>
+        <form
+          className="flex min-w-[min(100%,12rem)] flex-1 items-center gap-1"
+          onSubmit={(event) => {
+            event.preventDefault();
+            saveLabel();
           }}
-          className="h-8 min-w-0 text-sm"
-        />
-        {label.trim() !== moment.label && (
-          <Button type="submit" size="sm" variant="secondary" className="h-8" loading={update.isPending}>
-            Save
-          </Button>
-        )}
-      </form>
-      <div className="col-span-2 flex flex-wrap items-center gap-1 sm:col-span-1" role="group" aria-label={`Actions for ${name}`}>
+        >
+          <Input
+            aria-label={`Label of moment ${index + 1} at ${time}`}
+            value={label}
+            maxLength={160}
+            placeholder="No label"
+            onChange={(event) => setLabel(event.target.value)}
+            onBlur={saveLabel}
+            onKeyDown={(event) => {
+              if (event.key === 'Escape') setLabel(moment.label);
+            }}
+            className="h-8 min-w-0 flex-1 text-sm"
+          />
+          {label.trim() !== moment.label && (
+            <Button type="submit" size="sm" variant="secondary" className="h-8" loading={update.isPending}>
+              Save
+            </Button>
+          )}
+        </form>
+      </div>
+      <div className="-ml-1 flex flex-wrap items-center gap-x-1" role="group" aria-label={`Actions for ${name}`}>
         <Button size="sm" variant="quiet" className="h-7 px-2" onClick={() => nudge(-1)} disabled={update.isPending} aria-label={`Nudge ${name} one frame earlier`}>
           −1 f
         </Button>

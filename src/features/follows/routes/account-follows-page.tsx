@@ -34,7 +34,7 @@ export function Component() {
     <>
       <PageHeader
         title="Follows, e-mail and units"
-        description="Builders you follow, whether each one’s new entries reach you by e-mail, the weekly digest, and the units new figures start in."
+        description="Builders you follow, whether each one’s new stories reach you by e-mail, the weekly digest, and the units new figures start in."
       />
       <div className="flex max-w-3xl flex-col gap-10">
         <MailAddress />

@@ -60,7 +60,7 @@ export function ClaimPanel({
             <ClaimEvidence claim={claim} system={system} />
           </Suspense>
         ) : (
-          <EmptyState title="This claim is not in the published entry">
+          <EmptyState title="This claim is not in the published story">
             The address names “{claimKey}”, which the current revision does not claim. It may have been reworded in a newer revision. Close
             this and pick an underlined claim in the text.
           </EmptyState>

@@ -10,8 +10,8 @@ import { readingResolutionPm, systemFigure } from '../lib/figures';
 export function ClaimsIndex({ story, system, onOpen }: { story: PublicStory; system: UnitSystem; onOpen: (index: number) => void }) {
   if (story.claims.length === 0) return null;
   return (
-    <nav aria-label="Claims in this entry" className="sticky top-4 hidden rounded-lg border border-rule p-4 lg:block" data-print="hide">
-      <h2 className="text-sm font-semibold">Claims in this entry</h2>
+    <nav aria-label="Claims in this story" className="sticky top-4 hidden rounded-lg border border-rule p-4 lg:block" data-print="hide">
+      <h2 className="text-sm font-semibold">Claims in this story</h2>
       <p className="mt-1 text-xs text-ink-muted">Underlined in the text. Open one to see its reading, its clip and how it was worked out.</p>
       <ol className="mt-3 flex flex-col gap-2">
         {story.claims.map((claim, index) => {

@@ -47,7 +47,7 @@ export function Component() {
     <>
       <ShareMeta title={build.title} description={build.subject} path={`/public/builds/${build.id}`} imagePath={build.entries[0]?.coverUrl} type="website" />
       <header className="mb-8 max-w-3xl">
-        <p className="text-xs font-medium tracking-wide text-ink-muted uppercase">Build diary</p>
+        <p className="text-xs font-medium tracking-wide text-ink-muted uppercase">Build stories</p>
         <h1 className="mt-1 font-serif text-2xl leading-tight font-bold tracking-tight">{build.title}</h1>
         <p className="mt-2 font-serif text-story text-ink-muted">{build.subject}</p>
         <p className="mt-3 text-sm">
@@ -62,10 +62,10 @@ export function Component() {
       <div className="grid gap-10 lg:grid-cols-[minmax(0,1fr)_20rem]">
         <section aria-labelledby="entries-heading">
           <h2 id="entries-heading" className="mb-3 text-lg font-semibold">
-            Diary entries
+            Stories
           </h2>
           {build.entries.length === 0 ? (
-            <EmptyState title="No public entries">This build has no published entry at the moment.</EmptyState>
+            <EmptyState title="No public stories">This build has no published story at the moment.</EmptyState>
           ) : (
             <ol className="relative flex flex-col gap-5 border-l-2 border-rule pl-5">
               {build.entries.map((entry, index) => (
@@ -101,12 +101,12 @@ export function Component() {
             <h2 id="clearances-heading" className="text-lg font-semibold">
               Every checked clearance
             </h2>
-            <p className="text-sm text-ink-muted">The first and the latest figure of each clearance across the entries, as published and checked.</p>
+            <p className="text-sm text-ink-muted">The first and the latest figure of each clearance across the stories, as published and checked.</p>
           </div>
           <UnitsSwitch choice={units} />
         </div>
         {build.clearances.length === 0 ? (
-          <EmptyState title="No clearances published">The public entries of this build claim readings only, no clearances.</EmptyState>
+          <EmptyState title="No clearances published">The public stories of this build claim readings only, no clearances.</EmptyState>
         ) : (
           <ClearanceSummaryTable clearances={build.clearances} entries={build.entries} system={units.system} />
         )}
@@ -116,7 +116,7 @@ export function Component() {
               {changed.map((c) => (
                 <BeforeAfterChart
                   key={c.key}
-                  title={`${c.name}: entry by entry`}
+                  title={`${c.name}: story by story`}
                   band={null}
                   system={units.system}
                   points={c.entries.map((e) => ({
@@ -177,7 +177,7 @@ function EntryRef({ figure, entries }: { figure: PublicClearanceFigure; entries:
   return (
     <span className="block font-sans text-2xs">
       <Link to={`/stories/${figure.storyId}`} title={figure.storyTitle}>
-        entry {number > 0 ? number : '?'}
+        story {number > 0 ? number : '?'}
         <span className="sr-only">: {figure.storyTitle}</span>
       </Link>
     </span>
@@ -201,7 +201,7 @@ function ClearanceSummaryTable({
           <Th numeric>First</Th>
           <Th numeric>Latest</Th>
           <Th>Latest verdict</Th>
-          <Th>Entries</Th>
+          <Th>Stories</Th>
         </Tr>
       </THead>
       <TBody>

@@ -91,7 +91,7 @@ export function Component() {
                   </h3>
                   <p className="line-clamp-2 text-sm text-ink-muted">{build.subject}</p>
                   <p className="mt-1 text-xs text-ink-muted">
-                    {build.entryCount === 1 ? '1 entry' : `${build.entryCount} entries`} · latest {instantDay(build.latestPublishedAt)}
+                    {build.entryCount === 1 ? '1 story' : `${build.entryCount} stories`} · latest {instantDay(build.latestPublishedAt)}
                   </p>
                 </div>
               </li>
@@ -111,18 +111,18 @@ function BuilderStories({ login, name }: { login: string; name: string }) {
   return (
     <section aria-labelledby="entries-heading" className="flex flex-col gap-4">
       <h2 id="entries-heading" className="text-lg font-semibold">
-        Entries by {name}
+        Stories by {name}
       </h2>
       {stories.isPending ? (
-        <LoadingState label="Loading entries…" />
+        <LoadingState label="Loading stories…" />
       ) : stories.isError ? (
-        <ErrorState title="The entries could not be loaded" error={stories.error} onRetry={() => void stories.refetch()} retrying={stories.isRefetching} />
+        <ErrorState title="The stories could not be loaded" error={stories.error} onRetry={() => void stories.refetch()} retrying={stories.isRefetching} />
       ) : items.length === 0 ? (
-        <EmptyState title="No published entries yet">Follow to get an e-mail when the first one is published.</EmptyState>
+        <EmptyState title="No published stories yet">Follow to get an e-mail when the first one is published.</EmptyState>
       ) : (
         <>
           <StoryGrid stories={items} />
-          <LoadMore query={stories} shown={items.length} what="entries" />
+          <LoadMore query={stories} shown={items.length} what="stories" />
         </>
       )}
     </section>

@@ -318,7 +318,7 @@ function StoryFooter({ story, checked }: { story: PublicStory; checked: ReturnTy
           </>
         )}
         <p className="mt-4 flex flex-wrap gap-x-4 gap-y-1" data-print="hide">
-          <Link to={`/public/builds/${story.build.id}`}>All entries of {story.build.title}</Link>
+          <Link to={`/public/builds/${story.build.id}`}>All stories of {story.build.title}</Link>
           <a href={story.feedUrl}>{story.builder.displayName}’s feed (Atom)</a>
         </p>
       </section>

@@ -257,7 +257,7 @@ function SheetFigures({ sheet }: { sheet: PartSheet }) {
       </section>
       <p className="flex flex-wrap gap-x-4 text-sm">
         <a href={sheet.pdfUrl}>Print a current sheet (PDF)</a>
-        <Link to={`/public/builds/${sheet.build.id}`}>The build’s diary</Link>
+        <Link to={`/public/builds/${sheet.build.id}`}>The build’s stories</Link>
       </p>
       <p className="max-w-prose text-xs text-ink-muted">{sheet.caution}</p>
     </div>

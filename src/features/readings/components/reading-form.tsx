@@ -24,6 +24,8 @@ import type { LogReadingAt } from '@/features/clips/components/clip-player';
 import { nudgedAtMs } from '@/features/clips/components/moments-list';
 import { formatTime, frameDuration, frameIndexAt } from '@/features/clips/lib/clip-format';
 import { ApiError, errorMessage } from '@/lib/api';
+import { useDefaultUnits } from '@/features/auth/lib/use-default-units';
+import { usePlayerShortcuts } from '@/features/clips/lib/player-shortcuts';
 import { cn } from '@/lib/cn';
 import { useCreateReading } from '../api/reading-mutations';
 import { readingInstrumentsQuery, readingQueries } from '../api/reading-queries';
@@ -35,6 +37,7 @@ import {
   readClipChoices,
   readingFormResolver,
   startingChoices,
+  temperatureOf,
   toReadingInput,
   writeClipChoices,
   type ReadingFormValues,
@@ -76,6 +79,7 @@ function detailFor(error: unknown, path: string): string | null {
  * part, and the figures as shown, read back live by the same code the server checks them with.
  */
 export function ReadingForm({ build, clip, at, onSeek, onSaved, onClose }: ReadingFormProps) {
+  const [shortcuts] = usePlayerShortcuts();
   const instruments = useQuery(readingInstrumentsQuery);
   const usable = useMemo(() => (instruments.data ?? []).filter((i) => !i.retired), [instruments.data]);
   const headingId = useId();
@@ -88,7 +92,10 @@ export function ReadingForm({ build, clip, at, onSeek, onSaved, onClose }: Readi
             Log a reading
           </h2>
           <p className="text-xs text-ink-muted">
-            In <span className="font-medium text-ink">{clip.title}</span>. Press R in the player to start another at the current time.
+            In <span className="font-medium text-ink">{clip.title}</span>.{' '}
+            {shortcuts.enabled
+              ? `Press ${shortcuts.reading.toUpperCase()} in the player to start another at the current time.`
+              : 'Press “Log a reading” in the player to start another at the current time.'}
           </p>
         </div>
         <Button size="sm" variant="quiet" onClick={onClose} aria-label="Close the reading form">
@@ -330,9 +337,12 @@ function ReadingFields({
   const choicesFor = (readings: readonly Reading[]) =>
     startingChoices({ clipId, instruments, partIds: build.parts.map((p) => p.id), remembered, readings });
   const label = momentLabel.trim();
+  // The account's scale; not chosen, °F goes with inches and °C with millimetres.
+  const units = useDefaultUnits();
+  const temperatureScale = units.temperatureScale ?? (units.system === 'imperial' ? 'degF' : 'degC');
   const [defaultValues] = useState(() => {
     const start = choicesFor(buildReadings);
-    return blankReadingForm(instruments.find((i) => i.id === start.instrumentId) ?? instruments[0], start.partId, label);
+    return blankReadingForm(instruments.find((i) => i.id === start.instrumentId) ?? instruments[0], start.partId, label, temperatureScale);
   });
   const form = useForm<ReadingFormValues>({ defaultValues, resolver, mode: 'onTouched' });
   const { register, control, formState, setError, handleSubmit, setValue, getValues } = form;
@@ -517,7 +527,7 @@ function ReadingFields({
       <FigureFields form={form} repeats={repeats} instrument={instrument} values={watched} />
 
       <div className="grid grid-cols-2 gap-2">
-        <Field label="Temperature, °C" error={errors.temperatureC?.message} hint="Of the part; optional.">
+        <Field label={`Temperature, ${watched.temperatureScale === 'degF' ? '°F' : '°C'}`} error={errors.temperatureC?.message} hint="Of the part; optional. Corrected to 20 °C with the material.">
           <Input {...register('temperatureC')} inputMode="decimal" className="figures h-8! text-sm" />
         </Field>
         <Field label="Material" error={errors.material?.message} hint="To correct to 20 °C.">
@@ -722,7 +732,8 @@ function readBackOf(values: ReadingFormValues, instrument: Instrument | undefine
         ? `reads as ${f.passes} ${symbol} enters, ${f.stops} ${symbol} does not`
         : `reads as ${f.values?.length ?? 0} values in ${symbol}: ${(f.values ?? []).join(', ')}`;
   const zero = instrument.latestZeroCheck && instrument.latestZeroCheck.checkedOn === values.takenOn ? instrument.latestZeroCheck : null;
-  const temperature = values.temperatureC.trim() ? Number(values.temperatureC) : null;
+  const celsius = temperatureOf(values.temperatureC, values.temperatureScale);
+  const temperature = typeof celsius === 'number' ? celsius : null;
   const built = toEngineReading(
     { ...f, kind: values.kind, temperatureC: Number.isFinite(temperature) ? temperature : null, material: values.material || null },
     instrument,

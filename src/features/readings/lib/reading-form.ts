@@ -1,6 +1,8 @@
 import type { FieldErrors, Resolver } from 'react-hook-form';
 import type { Instrument } from '@shared/instruments/instrument.schema';
 import { readingInputSchema, type Reading, type ReadingInput, type ReadingKind } from '@shared/readings/reading.schema';
+import { TEMPERATURE_RANGE_C } from '@shared/measure/calc.schema';
+import type { TemperatureScale } from '@shared/measure/quantities';
 import { normaliseReadingFigures } from '@shared/readings/reading-figures';
 
 /** The reading form as typed: every length is text, so "0.5640" keeps its places. */
@@ -15,7 +17,10 @@ export interface ReadingFormValues {
   passes: string;
   stops: string;
   values: { text: string }[];
+  /** The part's temperature as typed, in `temperatureScale`; sent in °C. */
   temperatureC: string;
+  /** The scale the temperature box is in: the account's choice (°F in an inch shop). */
+  temperatureScale: TemperatureScale;
   material: string;
   note: string;
   takenOn: string;
@@ -90,7 +95,7 @@ export function startingChoices(args: {
 }
 
 /** A fresh form for a reading taken today with `instrument`, named `name` (the moment's label, say). */
-export function blankReadingForm(instrument: Instrument | undefined, partId: number | null, name = ''): ReadingFormValues {
+export function blankReadingForm(instrument: Instrument | undefined, partId: number | null, name = '', temperatureScale: TemperatureScale = 'degC'): ReadingFormValues {
   return {
     name,
     instrumentId: instrument ? String(instrument.id) : '',
@@ -101,6 +106,7 @@ export function blankReadingForm(instrument: Instrument | undefined, partId: num
     stops: '',
     values: [{ text: '' }, { text: '' }, { text: '' }],
     temperatureC: '',
+    temperatureScale,
     material: '',
     note: '',
     takenOn: localToday(),
@@ -115,11 +121,23 @@ export function figuresOf(values: Pick<ReadingFormValues, 'kind' | 'value' | 'pa
 }
 
 /** A temperature box: '' = none; anything else must be a number (else it is sent as text and refused by name). */
-function temperatureOf(text: string): number | null | string {
+/**
+ * The temperature typed, in °C as the API takes it: °F is converted, t/°C = (t/°F − 32) × 5/9
+ * (NIST SP 811 B.8), to a thousandth of a degree, finer than any bench thermometer reads.
+ */
+export function temperatureOf(text: string, scale: TemperatureScale = 'degC'): number | null | string {
   const trimmed = text.trim().replace(/^[−–]/, '-');
   if (!trimmed) return null;
   const n = Number(trimmed);
-  return Number.isFinite(n) ? n : trimmed;
+  if (!Number.isFinite(n)) return trimmed;
+  return scale === 'degF' ? Math.round(((n - 32) * 5 * 1000) / 9) / 1000 : n;
+}
+
+/** The range the API takes, in the scale the box is in, for its messages. */
+function temperatureRangeText(scale: TemperatureScale): string {
+  if (scale === 'degC') return `${TEMPERATURE_RANGE_C.min} to ${TEMPERATURE_RANGE_C.max} °C`;
+  const f = (c: number) => Math.round((c * 9) / 5 + 32);
+  return `${f(TEMPERATURE_RANGE_C.min)} to ${f(TEMPERATURE_RANGE_C.max)} °F`;
 }
 
 /** The body of POST /api/builds/:buildId/readings for what was typed at `momentId`. */
@@ -131,7 +149,7 @@ export function toReadingInput(values: ReadingFormValues, momentId: number): Rea
     name: values.name,
     ...figuresOf(values),
     // A non-number is passed through so the schema names the field; the type only admits numbers.
-    temperatureC: temperatureOf(values.temperatureC) as number | null,
+    temperatureC: temperatureOf(values.temperatureC, values.temperatureScale) as number | null,
     material: values.material || null,
     note: values.note,
     takenOn: values.takenOn,
@@ -175,7 +193,12 @@ export function readingFormIssues(values: ReadingFormValues, instruments: readon
   // momentId 1 stands in for the moment, which the form checks on its own.
   const parsed = readingInputSchema.safeParse(toReadingInput(values, 1));
   if (!parsed.success) {
-    for (const issue of parsed.error.issues) add(formPathOf(issue.path.map(String).join('.'), values) || 'root', issue.message);
+    for (const issue of parsed.error.issues) {
+      const path = issue.path.map(String).join('.');
+      // The box may be in °F: say the range in its scale.
+      const message = path === 'temperatureC' ? `enter a temperature from ${temperatureRangeText(values.temperatureScale)}, or leave it empty` : issue.message;
+      add(formPathOf(path, values) || 'root', message);
+    }
   }
   const instrument = instruments.find((i) => String(i.id) === values.instrumentId);
   if (instrument) {

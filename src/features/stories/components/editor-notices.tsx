@@ -63,7 +63,7 @@ export function ConflictNotice({
       }
     >
       <p>
-        This entry was saved in another tab or on another device after you opened it here. Nothing was overwritten: your text stays in this editor
+        This story was saved in another tab or on another device after you opened it here. Nothing was overwritten: your text stays in this editor
         and on this device, and autosave waits until you choose.
       </p>
       {error != null && (
@@ -125,7 +125,7 @@ export function RestoreOffer({ at, olderBase, onRestore, onDiscard }: { at: stri
     >
       <p>
         They were not saved before this page was last closed or lost its connection. Restore puts them into the editor, where they save as usual.
-        {olderBase && ' The entry has been saved since (in another tab or on another device); restoring replaces that version once it saves.'}
+        {olderBase && ' The story has been saved since (in another tab or on another device); restoring replaces that version once it saves.'}
       </p>
     </Notice>
   );

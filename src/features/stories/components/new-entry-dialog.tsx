@@ -49,7 +49,7 @@ export function NewEntryDialog({ buildId, open, onOpenChange }: { buildId: numbe
         onOpenChange(next);
       }}
     >
-      <DialogContent title="New diary entry" description="Name the session; the rest is written in the editor, which saves as you type.">
+      <DialogContent title="New story" description="Name the session; the rest is written in the editor, which saves as you type.">
         <form noValidate onSubmit={submit} className="flex flex-col gap-4">
           <Field label="Title" required error={errors.title?.message} hint="e.g. “Oil pump: rotors lapped, end float remeasured”">
             <Input {...register('title')} autoComplete="off" autoFocus />

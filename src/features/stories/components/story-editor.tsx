@@ -346,7 +346,7 @@ export function StoryEditor({ story }: { story: Story }) {
         }}
         onBlur={() => void autosave.flush()}
         className="flex flex-col gap-4"
-        aria-label="Diary entry"
+        aria-label="Story"
       >
         <Field label="Title" required error={errors.title?.message}>
           <Input {...register('title')} autoComplete="off" />
@@ -433,14 +433,14 @@ export function StoryEditor({ story }: { story: Story }) {
     <div onKeyDown={onEditorKeyDown}>
       <p className="mb-2 text-sm" data-print="hide">
         <ButtonLink to={`/builds/${buildId}/stories`} variant="quiet" size="sm" className="-ml-2.5">
-          ← Diary of {story.buildTitle}
+          ← Stories of {story.buildTitle}
         </ButtonLink>
       </p>
       <header className="mb-4 flex flex-wrap items-end justify-between gap-3 border-b border-rule pb-3">
-        <title>{`${values.title?.trim() || 'Untitled entry'} · Diary · Benchproof`}</title>
+        <title>{`${values.title?.trim() || 'Untitled story'} · Stories · Benchproof`}</title>
         <div className="min-w-0">
-          <p className="text-xs font-medium tracking-wide text-ink-muted uppercase">Diary entry · {story.buildTitle}</p>
-          <h1 className="text-xl font-semibold tracking-tight">Edit diary entry</h1>
+          <p className="text-xs font-medium tracking-wide text-ink-muted uppercase">Story · {story.buildTitle}</p>
+          <h1 className="text-xl font-semibold tracking-tight">Edit story</h1>
         </div>
         <div className="flex flex-wrap items-center gap-2">
           <Badge>{storyStateWords[story.state]}</Badge>
@@ -568,7 +568,7 @@ export function StoryEditor({ story }: { story: Story }) {
         open={blocker.state === 'blocked'}
         onOpenChange={(open) => !open && blocker.reset?.()}
         title="Leave with unsaved changes?"
-        description="Your latest changes have not reached the server. They stay on this device and are offered when you open this entry again."
+        description="Your latest changes have not reached the server. They stay on this device and are offered when you open this story again."
         confirmLabel="Leave"
         cancelLabel="Stay here"
         onConfirm={() => blocker.proceed?.()}

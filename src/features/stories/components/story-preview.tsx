@@ -59,7 +59,7 @@ export function StoryPreview({ content, lookup, banner }: { content: PreviewCont
           </p>
         )}
         <h2 id={headingId} className="font-serif text-xl font-bold text-balance">
-          {content.title.trim() || <span className="text-ink-muted">Untitled entry</span>}
+          {content.title.trim() || <span className="text-ink-muted">Untitled story</span>}
         </h2>
         {content.summary.trim() && <p className="mt-2 font-serif text-md text-ink-muted">{content.summary}</p>}
         {tags.length > 0 && (

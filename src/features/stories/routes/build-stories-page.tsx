@@ -48,7 +48,7 @@ function byWorkDate(a: Entry, b: Entry): number {
 
 const dateFormat = new Intl.DateTimeFormat(undefined, { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' });
 
-/** /builds/:buildId/stories — the build's diary: its entries in the order of the work. */
+/** /builds/:buildId/stories — the build's stories in the order of the work. */
 export function Component() {
   const buildId = buildIdFrom(useParams());
   const { data: build } = useSuspenseQuery(buildQueries.detail(buildId));
@@ -57,27 +57,27 @@ export function Component() {
   const entries = (list.data?.pages.flatMap((page) => page.items) ?? []).slice().sort(byWorkDate);
 
   let body;
-  if (list.isPending) body = <LoadingState label="Loading the diary…" />;
+  if (list.isPending) body = <LoadingState label="Loading the stories…" />;
   else if (list.isError && !list.data)
-    body = <ErrorState title="The diary could not be loaded" error={list.error} onRetry={() => void list.refetch()} retrying={list.isRefetching} />;
+    body = <ErrorState title="The stories could not be loaded" error={list.error} onRetry={() => void list.refetch()} retrying={list.isRefetching} />;
   else if (entries.length === 0)
     body = (
       <EmptyState
-        title="No diary entries yet"
+        title="No stories yet"
         action={
           <Button variant="primary" onClick={() => setCreating(true)}>
-            New entry
+            New story
           </Button>
         }
       >
-        Write up each session at the bench: what you did, what you measured, and claims that link each figure to its reading or clearance. Entries
+        Write up each session at the bench: what you did, what you measured, and claims that link each figure to its reading or clearance. Stories
         stay drafts until you send them for review.
       </EmptyState>
     );
   else
     body = (
       <div className="flex flex-col gap-3">
-        <Table caption="Diary entries in order of work date" captionHidden maxHeight="none">
+        <Table caption="Stories in order of work date" captionHidden maxHeight="none">
           <THead>
             <Tr>
               <Th>Work date</Th>
@@ -110,7 +110,7 @@ export function Component() {
             ))}
           </TBody>
         </Table>
-        <LoadMore query={list} shown={entries.length} what="entries" />
+        <LoadMore query={list} shown={entries.length} what="stories" />
       </div>
     );
 
@@ -123,13 +123,13 @@ export function Component() {
       </p>
       <PageHeader
         eyebrow={build.title}
-        title="Diary"
-        documentTitle={`Diary · ${build.title}`}
-        description="The build’s entries in the order the work was done. Open one to write; it saves as you type."
+        title="Stories"
+        documentTitle={`Stories · ${build.title}`}
+        description="The build’s stories in the order the work was done. Open one to write; it saves as you type."
         actions={
           entries.length > 0 && (
             <Button variant="primary" onClick={() => setCreating(true)}>
-              New entry
+              New story
             </Button>
           )
         }

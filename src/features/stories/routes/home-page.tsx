@@ -32,7 +32,7 @@ export function Component() {
     <>
       <ShareMeta
         title="Build stories you can check"
-        description="Engine builders’ diary entries whose every clearance links to its reading, the clip it was taken in and the spec it was judged against."
+        description="Engine builders’ stories whose every clearance links to its reading, the clip it was taken in and the spec it was judged against."
         path="/"
         type="website"
         feed={{ title: 'Benchproof: newest stories', href: SITE_FEED_PATH }}
