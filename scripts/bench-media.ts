@@ -87,7 +87,7 @@ async function main() {
       steps.probe = tProbe;
       const [plan, tPlan] = await timed(() => planWebCopy(probe, probe.container, file));
       steps.plan = tPlan;
-      [, steps.poster] = await timed(() => makePoster(file, path.join(dir, `poster-${path.basename(file)}.jpg`), Math.min(1, probe.durationS / 2)));
+      [, steps.poster] = await timed(() => makePoster(file, path.join(dir, `poster-${path.basename(file)}.jpg`), 0));
       const count = Math.max(1, Math.min(60, Math.ceil(probe.durationS)));
       [, steps.strip] = await timed(() => makeThumbnailStrip(file, path.join(dir, `strip-${path.basename(file)}.jpg`), { count, tileWidth: 160 }));
       const total = Object.values(steps).reduce((a, b) => a + b, 0);
