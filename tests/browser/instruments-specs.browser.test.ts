@@ -149,7 +149,8 @@ describe('a builder keeps an instruments register and a spec library', () => {
       await page.getByRole('heading', { name: `${name} is in use` }).waitFor();
       await page.getByRole('button', { name: 'Retire it' }).click();
       await row.waitFor({ state: 'detached' });
-      expect((await Instrument.findByPk(stored!.id))?.retired).toBe(true);
+      // The row leaves with the answer; the stored flag is read until it shows, not at once.
+      await expect.poll(async () => (await Instrument.findByPk(stored!.id))?.retired).toBe(true);
       await page.getByLabel('Show retired instruments (1)').check();
       await table.getByRole('row').filter({ hasText: name }).getByText('Retired').waitFor();
     } finally {

@@ -57,6 +57,12 @@ class ClipFileStore extends FileStore {
   }
 }
 
+// The folder is made (synchronously) before the store is built. @tus/file-store's constructor
+// makes it again asynchronously and throws from the callback when that fails, which no caller can
+// catch: a server stopped at once, its media folder removed, would crash the process. Ours does
+// nothing. (The method is private in the package's types, so it is replaced on the prototype.)
+Object.defineProperty(ClipFileStore.prototype, 'checkOrCreateDirectory', { value: () => undefined });
+
 function localUploadStore(directory: string, expireMs: number): UploadStore {
   fs.mkdirSync(directory, { recursive: true });
   const datastore = new ClipFileStore({ directory, expirationPeriodInMilliseconds: expireMs });
