@@ -71,7 +71,7 @@ export function Component() {
                     type="button"
                     aria-expanded={open}
                     onClick={() => setParams(open ? {} : { message: m.id }, { replace: true })}
-                    className="grid w-full gap-x-4 px-3 py-2 text-left text-sm hover:bg-paper-2 sm:grid-cols-[9.5rem_minmax(0,14rem)_minmax(0,1fr)_auto]"
+                    className="grid w-full gap-x-4 px-3 py-2 text-left text-sm hover:bg-paper-2 sm:grid-cols-[11.5rem_minmax(0,14rem)_minmax(0,1fr)_auto]"
                     data-outbox-row={m.subject}
                   >
                     <time dateTime={m.receivedAt} className="figures text-xs text-ink-muted sm:pt-0.5">

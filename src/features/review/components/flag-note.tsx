@@ -37,7 +37,7 @@ export function FlagNote({ flag, className }: { flag: BuildFlag; className?: str
         <AnswerForm checkId={flag.id} subjectName={flag.subjectName} />
       ) : (
         <Button size="sm" variant="secondary" className="mt-2" onClick={() => setAnswering(true)}>
-          Answer the flag on {flag.subjectName}
+          Answer the flag<span className="sr-only"> on {flag.subjectName}</span>
         </Button>
       )}
     </div>
