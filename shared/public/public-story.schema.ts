@@ -6,7 +6,7 @@
  * a publication and has not been withdrawn; a newer revision in review leaves the old one public.
  */
 import { z } from 'zod';
-import { dbIdText, instantIdCursor, textWithoutNul } from '../http/db-values.schema';
+import { DB_INTEGER_MAX, dbIdText, instantIdCursor, textWithoutNul } from '../http/db-values.schema';
 import { bandUmSchema, coverageResultFields } from '../clearances/clearance.schema';
 import { calibrationStates } from '../instruments/instrument.schema';
 import { calcInstrumentSchema, readingSchema as engineReadingSchema, unitSchema } from '../measure/calc.schema';
@@ -24,18 +24,62 @@ export const unitsQuerySchema = z.enum(unitSystems, { error: 'units must be "imp
 /** The verdict filter of the public list: stories with at least one clearance out of spec. */
 export const publicVerdictFilters = ['out-of-spec'] as const;
 
-/** Query of `GET /api/public/stories` and `GET /api/public/stories/following`: newest published first. */
-export const publicStoryListQuerySchema = z.object({
-  before: publicCursorSchema.optional(),
-  limit: z.coerce.number().int().min(1, 'limit is at least 1').max(50, 'limit is at most 50').default(20),
-  /** A tag in any group (machine, component or operation), matched exactly. */
-  tag: textWithoutNul.trim().min(1).max(40, 'a tag is at most 40 characters').optional(),
-  /** A builder's login. */
-  builder: textWithoutNul.trim().min(1).max(64).optional(),
-  verdict: z.enum(publicVerdictFilters, { error: 'verdict must be "out-of-spec"' }).optional(),
-  /** Words in the title or summary (case-insensitive; % and _ are taken literally). */
-  q: textWithoutNul.trim().min(1).max(100, 'search for at most 100 characters').optional(),
-});
+const searchCursorPattern = /^([ws])_((?:0|[1-9]\d*)(?:\.\d+)?(?:e[-+]?\d{1,3})?)_([1-9]\d{0,9})$/;
+
+/** A search cursor's parts: how the page was matched, the last item's rank and publication id. */
+export interface SearchCursor {
+  match: 'words' | 'similar';
+  rank: number;
+  publicationId: number;
+}
+
+/**
+ * Reads a cursor of a searched list (`<w|s>_<rank>_<publication id>`), or null when it is not one.
+ * The server alone writes them (`searchCursorText`); clients pass them back untouched.
+ */
+export function readSearchCursor(text: string): SearchCursor | null {
+  const m = searchCursorPattern.exec(text);
+  if (!m) return null;
+  const rank = Number(m[2]);
+  const publicationId = Number(m[3]);
+  if (!Number.isFinite(rank) || publicationId > DB_INTEGER_MAX) return null;
+  return { match: m[1] === 'w' ? 'words' : 'similar', rank, publicationId };
+}
+
+/** The cursor after an item of a searched list. */
+export function searchCursorText(c: SearchCursor): string {
+  return `${c.match === 'words' ? 'w' : 's'}_${String(c.rank)}_${c.publicationId}`;
+}
+
+const badCursor = 'before must be a cursor from a previous page';
+
+/**
+ * Query of `GET /api/public/stories` and `GET /api/public/stories/following`: newest published
+ * first, or, with `q`, best match first. `before` is the `nextBefore` of the previous page of the
+ * same list: a time-and-id cursor without `q`, a rank-and-id cursor with it (anything else is 400).
+ */
+export const publicStoryListQuerySchema = z
+  .object({
+    before: z.string().optional(),
+    limit: z.coerce.number().int().min(1, 'limit is at least 1').max(50, 'limit is at most 50').default(20),
+    /** A tag in any group (machine, component or operation), matched exactly. */
+    tag: textWithoutNul.trim().min(1).max(40, 'a tag is at most 40 characters').optional(),
+    /** A builder's login. */
+    builder: textWithoutNul.trim().min(1).max(64).optional(),
+    verdict: z.enum(publicVerdictFilters, { error: 'verdict must be "out-of-spec"' }).optional(),
+    /**
+     * Words to find (websearch syntax: "a phrase", or, -word) in everything a published story says:
+     * title, summary, claims, reading and clearance names, parts and serials, tags, text, builder.
+     * Figures and serials match whole (`0.0047`, `VP-0417`). When no story has the words, titles and
+     * summaries containing the text, and titles that look like it, are listed instead.
+     */
+    q: textWithoutNul.trim().min(1).max(100, 'search for at most 100 characters').optional(),
+  })
+  .superRefine((v, ctx) => {
+    if (v.before === undefined) return;
+    const ok = v.q === undefined ? publicCursorSchema.safeParse(v.before).success : readSearchCursor(v.before) !== null;
+    if (!ok) ctx.addIssue({ code: 'custom', path: ['before'], message: badCursor });
+  });
 export type PublicStoryListQuery = z.infer<typeof publicStoryListQuerySchema>;
 
 /** A builder as the public sees them. */
@@ -64,6 +108,14 @@ export const publicStoryListItemSchema = z.object({
   claimCount: z.number().int().nonnegative(),
   /** Some clearance in its evidence is out of spec (verdict `does-not-conform`). */
   outOfSpec: z.boolean(),
+  /**
+   * With `q`: words of the story around what matched, plain text with each match between
+   * SNIPPET_MARK_START and SNIPPET_MARK_END (shared/public/search-snippet.ts); show as text. Null
+   * without `q` or when the story was found by a similar title rather than by its words.
+   */
+  snippet: z.string().nullable(),
+  /** With `q`: how well it matched (higher first); null without `q`. */
+  rank: z.number().nullable(),
 });
 export type PublicStoryListItem = z.infer<typeof publicStoryListItemSchema>;
 
@@ -71,6 +123,11 @@ export type PublicStoryListItem = z.infer<typeof publicStoryListItemSchema>;
 export const publicStoryListResponseSchema = z.object({
   items: z.array(publicStoryListItemSchema),
   nextBefore: z.string().nullable(),
+  /**
+   * How `q` was matched: `words` (full text, best first), `similar` (no story has the words: titles
+   * and summaries containing the text, and titles like it); null without `q`.
+   */
+  searchMatch: z.enum(['words', 'similar']).nullable(),
 });
 export type PublicStoryListResponse = z.infer<typeof publicStoryListResponseSchema>;
 

@@ -1,4 +1,5 @@
 import fs from 'node:fs';
+import os from 'node:os';
 import path from 'node:path';
 import AxeBuilder from '@axe-core/playwright';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -7,6 +8,9 @@ import { repoRoot } from '../../scripts/lib/bootstrap';
 import { Build } from '../../server/features/builds/build.model';
 import { User } from '../../server/features/users/user.model';
 import { startBrowserApp } from '../support/browser-app';
+import { makeTestClip } from '../support/clips';
+import { sessionFor } from '../support/matrix-fixtures';
+import { checkSubject, makeReviewFixture, move, publishThroughReview } from '../support/review-fixtures';
 
 /*
  * axe-core (through @axe-core/playwright) on each main page, as the role that uses it. The suite
@@ -17,15 +21,43 @@ let site: Awaited<ReturnType<typeof startBrowserApp>>;
 let browser: Awaited<ReturnType<typeof launchBrowser>>;
 const artifacts = path.join(repoRoot, 'tests/artifacts');
 
+let work: string;
+
 beforeAll(async () => {
-  site = await startBrowserApp();
+  site = await startBrowserApp({ jobs: true });
   browser = await launchBrowser();
   fs.mkdirSync(artifacts, { recursive: true });
-}, 240_000);
+  work = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-axe-'));
+  const clipFile = await makeTestClip({ seconds: 2, format: 'mp4-h264', dir: work, name: 'axe-pump' });
+  const owner = await sessionFor(site, 'owner');
+  const moderator = await sessionFor(site, 'moderator');
+  // Sent back with a flag and a reason.
+  const back = await makeReviewFixture(owner, { clipFile, title: 'Axe check: sent back (test)' });
+  expect((await move(owner, back.story.id, 'submit')).status).toBe(200);
+  await moderator.agent.post(`/api/review/stories/${back.story.id}/claim`).set('x-csrf-token', moderator.token).expect(200);
+  expect((await checkSubject(moderator, back.story.id, 'reading', back.readings.height.id, 'flagged', 'the thimble is not in the still')).status).toBe(201);
+  expect((await move(moderator, back.story.id, 'request-changes', { reason: 'Show the thimble at the rotor height.' })).status).toBe(200);
+  stories['changes-requested'] = back.story.id;
+  // In review, not yet taken.
+  const waiting = await makeReviewFixture(owner, { clipFile, title: 'Axe check: in review (test)' });
+  expect((await move(owner, waiting.story.id, 'submit')).status).toBe(200);
+  stories['in-review'] = waiting.story.id;
+  // Published.
+  const shown = await makeReviewFixture(owner, { clipFile, title: 'Axe check: published (test)' });
+  await publishThroughReview(owner, moderator, shown);
+  stories.published = shown.story.id;
+}, 300_000);
 afterAll(async () => {
   await browser?.dispose();
   await site?.close();
+  if (work) fs.rmSync(work, { recursive: true, force: true });
 });
+
+/** Stories made through the API in the states the hand-offs need (invented test data). */
+const stories = { 'changes-requested': 0, 'in-review': 0, published: 0 };
+async function demoStoryId(state: keyof typeof stories) {
+  return stories[state];
+}
 
 async function demoBuildId() {
   const owner = await User.findOne({ where: { login: 'demo-builder' } });
@@ -44,6 +76,12 @@ const pages: { as: string | null; path: string | (() => Promise<string>); ready:
   { as: 'demo-moderator', path: '/review', ready: 'main h1' },
   { as: 'demo-admin', path: '/admin/users', ready: 'main h1' },
   { as: 'demo-admin', path: '/admin/outbox', ready: 'main h1' },
+  // The hand-offs: the editor of a story sent back (reason and flags first), the review screen
+  // for its builder and for a moderator, and a published story as a reader sees it.
+  { as: 'demo-builder', path: async () => `/stories/${await demoStoryId('changes-requested')}/edit`, ready: 'main h1' },
+  { as: 'demo-builder', path: async () => `/review/stories/${await demoStoryId('changes-requested')}`, ready: 'main h1' },
+  { as: 'demo-moderator', path: async () => `/review/stories/${await demoStoryId('in-review')}`, ready: 'main h1' },
+  { as: null, path: async () => `/stories/${await demoStoryId('published')}`, ready: 'main h1' },
 ];
 
 describe('the axe harness', () => {
@@ -60,7 +98,7 @@ describe('the axe harness', () => {
 });
 
 describe('main pages pass axe-core with no serious or critical violations', () => {
-  it.each(pages.map((p) => [`${p.as ?? 'anonymous'} ${typeof p.path === 'string' ? p.path : '(a demo build)'}`, p] as const))('%s', async (_name, p) => {
+  it.each(pages.map((p, i) => [`${p.as ?? 'anonymous'} ${typeof p.path === 'string' ? p.path : `(a demo page, #${i + 1})`}`, p] as const))('%s', async (_name, p) => {
     await browser.clearCookies();
     const page = await browser.newPage();
     page.setDefaultTimeout(15_000);

@@ -10,6 +10,8 @@ import type {
   PublicStoryListResponse,
 } from '@shared/public/public-story.schema';
 import { builderFeedPath } from '@shared/public/feed-paths';
+import { readSearchCursor, searchCursorText, type SearchCursor } from '@shared/public/public-story.schema';
+import { SNIPPET_MARK_END, SNIPPET_MARK_START } from '@shared/public/search-snippet';
 import { STANDING_NOTE } from '@shared/stories/cautions';
 import { claimTargetsFrom } from '@shared/stories/claims';
 import { renderStory } from '@shared/stories/render';
@@ -62,19 +64,34 @@ interface ListRow {
 
 const OUT_OF_SPEC = JSON.stringify([{ result: { verdict: 'does-not-conform' } }]);
 
+/** The columns of a list item, over `stories s`, `story_publications p`, `builds b`, `users u`. */
+const LIST_COLUMNS = `s.id AS story_id, p.id AS publication_id, p.number, p.title, p.summary, p.tags,
+            to_char(p.work_date, 'YYYY-MM-DD') AS work_date, p.cover_moment_id, p.published_at,
+            to_char(p.published_at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.US"Z"') AS cursor_at,
+            jsonb_array_length(COALESCE(p.evidence->'claims', '[]'::jsonb)) AS claim_count,
+            COALESCE((p.evidence->'clearances') @> CAST(:oos AS jsonb), false) AS out_of_spec,
+            b.id AS build_id, b.title AS build_title, u.id AS builder_id, u.login, u.display_name, u.shop`;
+
+const LIST_FROM = `stories s
+       JOIN story_publications p ON p.id = s.published_publication_id
+       JOIN builds b ON b.id = s.build_id
+       JOIN users u ON u.id = b.owner_id`;
+
 /**
- * Published stories, newest publication first, by keyset on (publishedAt, publication id).
- * `followerId` narrows to builders that account follows.
+ * Weights of ts_rank_cd, in its order {D, C, B, A}: the story's text, the builder, the summary and
+ * what the claims name, the title (the weights the search_full_text migration gives each field).
  */
-export async function listPublicStories(q: PublicStoryListQuery, opts: { followerId?: number } = {}): Promise<PublicStoryListResponse> {
+const SEARCH_WEIGHTS = '{0.05, 0.2, 0.4, 1.0}';
+/**
+ * ts_headline options: up to two passages of 8–24 words around the matches, the marks of
+ * shared/public/search-snippet.ts. A passage is cut from the summary, the text and the names.
+ */
+const HEADLINE_OPTIONS = `StartSel=${SNIPPET_MARK_START}, StopSel=${SNIPPET_MARK_END}, MaxFragments=2, MaxWords=24, MinWords=8, FragmentDelimiter=" … "`;
+
+/** The conditions every list shares (public now, and the filters other than `q`). */
+function listFilters(q: PublicStoryListQuery, opts: { followerId?: number }) {
   const where = [PUBLIC_STORY_SQL];
-  const replacements: Record<string, unknown> = { limit: q.limit + 1, oos: OUT_OF_SPEC };
-  if (q.before) {
-    const cut = q.before.lastIndexOf('_');
-    where.push('(p.published_at, p.id) < (CAST(:beforeAt AS timestamptz), :beforeId)');
-    replacements.beforeAt = q.before.slice(0, cut);
-    replacements.beforeId = Number(q.before.slice(cut + 1));
-  }
+  const replacements: Record<string, unknown> = { oos: OUT_OF_SPEC };
   if (q.tag) {
     // Containment per group, so the GIN index on tags can answer it.
     where.push('(p.tags @> CAST(:tagMachine AS jsonb) OR p.tags @> CAST(:tagComponent AS jsonb) OR p.tags @> CAST(:tagOperation AS jsonb))');
@@ -87,33 +104,112 @@ export async function listPublicStories(q: PublicStoryListQuery, opts: { followe
     replacements.builder = q.builder;
   }
   if (q.verdict === 'out-of-spec') where.push(`(p.evidence->'clearances') @> CAST(:oos AS jsonb)`);
-  if (q.q) {
-    where.push(`(p.title ILIKE :q OR p.summary ILIKE :q)`);
-    replacements.q = `%${escapeLike(q.q)}%`;
-  }
   if (opts.followerId !== undefined) {
     where.push('b.owner_id IN (SELECT f.builder_id FROM follows f WHERE f.follower_id = :followerId)');
     replacements.followerId = opts.followerId;
   }
+  return { where, replacements };
+}
+
+/**
+ * Published stories, newest publication first, by keyset on (publishedAt, publication id); with
+ * `q`, best match first (`searchPublicStories`). `followerId` narrows to builders that account follows.
+ */
+export async function listPublicStories(q: PublicStoryListQuery, opts: { followerId?: number } = {}): Promise<PublicStoryListResponse> {
+  if (q.q) return searchPublicStories(q as PublicStoryListQuery & { q: string }, opts);
+  const { where, replacements } = listFilters(q, opts);
+  replacements.limit = q.limit + 1;
+  if (q.before) {
+    const cut = q.before.lastIndexOf('_');
+    where.push('(p.published_at, p.id) < (CAST(:beforeAt AS timestamptz), :beforeId)');
+    replacements.beforeAt = q.before.slice(0, cut);
+    replacements.beforeId = Number(q.before.slice(cut + 1));
+  }
   const rows = await sql().query<ListRow>(
-    `SELECT s.id AS story_id, p.id AS publication_id, p.number, p.title, p.summary, p.tags,
-            to_char(p.work_date, 'YYYY-MM-DD') AS work_date, p.cover_moment_id, p.published_at,
-            to_char(p.published_at AT TIME ZONE 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.US"Z"') AS cursor_at,
-            jsonb_array_length(COALESCE(p.evidence->'claims', '[]'::jsonb)) AS claim_count,
-            COALESCE((p.evidence->'clearances') @> CAST(:oos AS jsonb), false) AS out_of_spec,
-            b.id AS build_id, b.title AS build_title, u.id AS builder_id, u.login, u.display_name, u.shop
-       FROM stories s
-       JOIN story_publications p ON p.id = s.published_publication_id
-       JOIN builds b ON b.id = s.build_id
-       JOIN users u ON u.id = b.owner_id
+    `SELECT ${LIST_COLUMNS}
+       FROM ${LIST_FROM}
       WHERE ${where.join(' AND ')}
       ORDER BY p.published_at DESC, p.id DESC
       LIMIT :limit`,
     { type: QueryTypes.SELECT, replacements },
   );
   const page = rows.slice(0, q.limit);
+  const last = page[page.length - 1];
+  return {
+    items: await listItems(page, () => ({ snippet: null, rank: null })),
+    nextBefore: rows.length > q.limit && last ? `${last.cursor_at}_${last.publication_id}` : null,
+    searchMatch: null,
+  };
+}
+
+/**
+ * A searched list. Full text first: the story_search document of each public publication against
+ * the reader's words (`benchproof_search_query`), ranked by ts_rank_cd with SEARCH_WEIGHTS, by
+ * keyset on (rank, publication id), with a ts_headline snippet per item of the page. When no story
+ * has the words, the titles and summaries that contain the text (ILIKE, % and _ taken literally)
+ * and the titles like it (pg_trgm word similarity) are listed instead, most similar first; both
+ * kinds of page use the trigram indexes. The cursor says which kind the next page continues.
+ */
+async function searchPublicStories(q: PublicStoryListQuery & { q: string }, opts: { followerId?: number }): Promise<PublicStoryListResponse> {
+  const cursor = q.before ? readSearchCursor(q.before) : null;
+  if (cursor?.match !== 'similar') {
+    const words = await searchPage(q, opts, 'words', cursor);
+    if (words.items.length > 0 || cursor) return words;
+  }
+  return searchPage(q, opts, 'similar', cursor);
+}
+
+async function searchPage(
+  q: PublicStoryListQuery & { q: string },
+  opts: { followerId?: number },
+  match: 'words' | 'similar',
+  cursor: SearchCursor | null,
+): Promise<PublicStoryListResponse> {
+  const { where, replacements } = listFilters(q, opts);
+  Object.assign(replacements, { limit: q.limit + 1, q: q.q, like: `%${escapeLike(q.q)}%`, weights: SEARCH_WEIGHTS });
+  const rankSql =
+    match === 'words'
+      ? `ts_rank_cd(CAST(:weights AS float4[]), d.document, (SELECT query FROM search))::float8`
+      : `word_similarity(:q, p.title)::float8`;
+  if (match === 'words') where.push('d.document @@ (SELECT query FROM search)');
+  else where.push('(p.title ILIKE :like OR p.summary ILIKE :like OR :q <% p.title)');
+  const after = cursor?.match === match ? 'WHERE (m.rank, m.publication_id) < (CAST(:afterRank AS float8), :afterId)' : '';
+  if (after) Object.assign(replacements, { afterRank: String(cursor!.rank), afterId: cursor!.publicationId });
+  // The search query is worked out once (a materialised CTE read by scalar subqueries), and the
+  // page is chosen over the narrow join before the list's columns and snippets are made for it.
+  const rows = await sql().query<ListRow & { rank: number; snippet: string | null }>(
+    `WITH search AS MATERIALIZED (SELECT benchproof_search_query(:q) AS query),
+     matched AS (
+       SELECT m.publication_id, m.rank FROM (
+         SELECT p.id AS publication_id, ${rankSql} AS rank
+           FROM ${LIST_FROM}
+           ${match === 'words' ? 'JOIN story_search d ON d.publication_id = p.id' : ''}
+          WHERE ${where.join(' AND ')}
+       ) m
+       ${after}
+       ORDER BY m.rank DESC, m.publication_id DESC
+       LIMIT :limit
+     )
+     SELECT ${LIST_COLUMNS}, matched.rank,
+            ${match === 'words' ? `ts_headline('benchproof_search', d.snippet_source, (SELECT query FROM search), :headline)` : 'NULL'} AS snippet
+       FROM matched
+       JOIN ${LIST_FROM} ON p.id = matched.publication_id
+       JOIN story_search d ON d.publication_id = p.id
+      ORDER BY matched.rank DESC, matched.publication_id DESC`,
+    { type: QueryTypes.SELECT, replacements: { ...replacements, headline: HEADLINE_OPTIONS } },
+  );
+  const page = rows.slice(0, q.limit);
+  const last = page[page.length - 1];
+  return {
+    items: await listItems(page, (r) => ({ snippet: r.snippet, rank: Number(r.rank) })),
+    nextBefore: rows.length > q.limit && last ? searchCursorText({ match, rank: Number(last.rank), publicationId: last.publication_id }) : null,
+    searchMatch: match,
+  };
+}
+
+async function listItems<R extends ListRow>(page: R[], search: (r: R) => { snippet: string | null; rank: number | null }): Promise<PublicStoryListItem[]> {
   const covers = await coverUrls(page.map((r) => r.cover_moment_id));
-  const items: PublicStoryListItem[] = page.map((r) => ({
+  return page.map((r) => ({
     storyId: r.story_id,
     revision: r.number,
     title: r.title,
@@ -126,9 +222,8 @@ export async function listPublicStories(q: PublicStoryListQuery, opts: { followe
     build: { id: r.build_id, title: r.build_title },
     claimCount: Number(r.claim_count),
     outOfSpec: Boolean(r.out_of_spec),
+    ...search(r),
   }));
-  const last = page[page.length - 1];
-  return { items, nextBefore: rows.length > q.limit && last ? `${last.cursor_at}_${last.publication_id}` : null };
 }
 
 /** Public evidence stills of cover moments, by moment id. */
