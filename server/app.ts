@@ -23,7 +23,7 @@ import { specsRouter } from './features/specs/specs.routes';
 import { unsubscribeRouter } from './features/follows/unsubscribe.routes';
 import { followsRouter, meFollowsRouter } from './features/follows/follows.routes';
 import { publicRouter } from './features/public/public.routes';
-import { feedsRouter } from './features/feeds/feeds.routes';
+import { crawlerRouter, feedsRouter } from './features/feeds/feeds.routes';
 import { sheetsApiRouter, sheetsPdfRouter } from './features/sheets/sheets.routes';
 import { questionsRouter, storyQuestionsRouter } from './features/questions/questions.routes';
 import { outboxRouter } from './features/outbox/outbox.routes';
@@ -138,6 +138,7 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
   mount(app, '/api/builders', followsRouter());
   mount(app, '/api/me', meFollowsRouter());
   mount(app, '/feeds', feedsRouter(config));
+  mount(app, '/', crawlerRouter(config));
   mount(app, '/api/public', sheetsApiRouter(config));
   mount(app, '/sheets', sheetsPdfRouter(config));
   mount(app, '/api/public/stories', storyQuestionsRouter());

@@ -42,7 +42,7 @@ function routesOf(prefix: string, router: Router) {
     for (const method of Object.keys(layer.route.methods)) {
       out.push({
         method: method.toUpperCase(),
-        path: (prefix + (layer.route.path === '/' ? '' : layer.route.path)) || '/',
+        path: (prefix.replace(/\/$/, '') + (layer.route.path === '/' ? '' : layer.route.path)) || '/',
         declared: isAccessCheck(first),
       });
     }

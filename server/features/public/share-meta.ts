@@ -14,7 +14,7 @@ export async function storyShareTags(storyId: number, publicUrl: string): Promis
   if (page === null) return null;
   const story = await cachedPublicStory(page, null);
   const url = `${publicUrl}/stories/${storyId}`;
-  const description = story.summary || `A build diary entry by ${story.builder.displayName}, every claim linked to its reading and clip.`;
+  const description = story.summary || `A build story by ${story.builder.displayName}, every claim linked to its reading and clip.`;
   const tags = [
     ['property', 'og:site_name', 'Benchproof'],
     ['property', 'og:type', 'article'],
@@ -27,5 +27,29 @@ export async function storyShareTags(storyId: number, publicUrl: string): Promis
     ['name', 'twitter:description', description],
     ...(story.coverUrl ? [['name', 'twitter:image', `${publicUrl}${story.coverUrl}`]] : []),
   ];
-  return [`<link rel="canonical" href="${attr(url)}" data-share="server">`, ...tags.map(([k, n, v]) => `<meta ${k}="${attr(n!)}" content="${attr(v!)}" data-share="server">`)].join('');
+  // schema.org Article as JSON-LD, for search engines (https://schema.org/Article).
+  const article = {
+    '@context': 'https://schema.org',
+    '@type': 'Article',
+    headline: story.title,
+    description,
+    url,
+    mainEntityOfPage: url,
+    datePublished: story.publishedAt,
+    ...(story.workDate && { dateCreated: story.workDate }),
+    ...(story.coverUrl && { image: `${publicUrl}${story.coverUrl}` }),
+    author: { '@type': 'Person', name: story.builder.displayName, url: `${publicUrl}/builders/${encodeURIComponent(story.builder.login)}` },
+    publisher: { '@type': 'Organization', name: 'Benchproof', url: publicUrl },
+    keywords: [...story.tags.machine, ...story.tags.component, ...story.tags.operation].join(', ') || undefined,
+  };
+  return [
+    `<link rel="canonical" href="${attr(url)}" data-share="server">`,
+    ...tags.map(([k, n, v]) => `<meta ${k}="${attr(n!)}" content="${attr(v!)}" data-share="server">`),
+    `<script type="application/ld+json" data-share="server">${jsonForScript(article)}</script>`,
+  ].join('');
+}
+
+/** JSON inside a script element: `<` escaped, so no text in it can close the element or open a comment. */
+export function jsonForScript(value: unknown): string {
+  return JSON.stringify(value).replace(/</g, '\\u003c').replace(/\u2028/g, '\\u2028').replace(/\u2029/g, '\\u2029');
 }

@@ -24,6 +24,9 @@ let owner: Session;
 let published: ReviewFixture;
 let draft: ReviewFixture;
 let dollars: ReviewFixture;
+let scripted: ReviewFixture;
+/** A title that would close a script element or open a comment if written into the page raw. */
+const SCRIPT_TITLE = 'Pump </script><script>alert(1)</script> <!-- (invented, test)';
 /** Every special pattern of a string replacement (ECMAScript GetSubstitution): $$ $& $` $' $1 $<name>. */
 const DOLLAR_TITLE = "Pump $$ $& $` $' $1 $<x> (invented, test)";
 
@@ -41,6 +44,8 @@ beforeAll(async () => {
   draft = await makeReviewFixture(owner, { clipFile, title: 'Invented pump, still a draft (test)' });
   dollars = await makeReviewFixture(owner, { clipFile, title: DOLLAR_TITLE });
   await publishThroughReview(owner, await sessionFor(t, 'moderator'), dollars);
+  scripted = await makeReviewFixture(owner, { clipFile, title: SCRIPT_TITLE });
+  await publishThroughReview(owner, await sessionFor(t, 'moderator'), scripted);
 }, 240_000);
 afterAll(async () => {
   await t?.close();
@@ -73,5 +78,39 @@ describe('share tags in the served HTML', () => {
     const res = await request(t.app).get(`/stories/${draft.story.id}`).expect(200);
     expect(meta(res.text, 'og:title')).toBeNull();
     expect(res.text).not.toContain(draft.story.title);
+  });
+
+  /** The schema.org data of a page: every JSON-LD script, parsed. */
+  const jsonLd = (html: string) =>
+    [...new JSDOM(html).window.document.querySelectorAll('script[type="application/ld+json"]')].map((el) => JSON.parse(el.textContent ?? '') as Record<string, unknown>);
+
+  it('a public story carries schema.org Article data: headline, author, dates and its address', async () => {
+    const res = await request(t.app).get(`/stories/${published.story.id}`).expect(200);
+    const [article, ...more] = jsonLd(res.text);
+    expect(more).toEqual([]);
+    expect(article).toMatchObject({
+      '@context': 'https://schema.org',
+      '@type': 'Article',
+      headline: published.story.title,
+      url: `${t.config.publicUrl}/stories/${published.story.id}`,
+      author: { '@type': 'Person', name: 'Ines Calloway' },
+      publisher: { '@type': 'Organization', name: 'Benchproof' },
+    });
+    expect(Date.parse(String(article!.datePublished))).not.toBeNaN();
+    expect(res.text).toContain(`<link rel="canonical" href="${t.config.publicUrl}/stories/${published.story.id}"`);
+  });
+
+  // OWASP ASVS 5.0 V1.2 (output encoding for the context): JSON in a script element.
+  it('a title that would close the script element stays inside it, as data', async () => {
+    const res = await request(t.app).get(`/stories/${scripted.story.id}`).expect(200);
+    expect(res.text.match(/<script/g)).toHaveLength(1);
+    expect(res.text).not.toContain('<!--');
+    expect(jsonLd(res.text)[0]).toMatchObject({ headline: scripted.story.title });
+    expect(scripted.story.title).toContain('</script>');
+  });
+
+  it('a draft has no schema.org data', async () => {
+    const res = await request(t.app).get(`/stories/${draft.story.id}`).expect(200);
+    expect(jsonLd(res.text)).toEqual([]);
   });
 });

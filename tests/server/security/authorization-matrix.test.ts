@@ -207,6 +207,9 @@ const TABLE: Record<string, Expected> = {
   // Atom feeds of the whole site and of the owner.
   'GET /feeds/stories.atom':                 { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
   'GET /feeds/builders/:login.atom':         { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  // For search engines: the public pages and what crawlers may visit, the same to everyone.
+  'GET /sitemap.xml':                        { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /robots.txt':                         { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
 
   // A reader's own things: anyone signed in, about themselves only.
   'GET /api/public/stories/following':       { anonymous: 401, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
