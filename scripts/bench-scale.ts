@@ -3,8 +3,9 @@
 // builds, clips, moments, readings, clearances, stories and publications around it in bulk (each
 // generated row a copy of the real one with its ids, keys and figures changed), and measures the
 // public routes with autocannon at 1,000 stories, 10,000 stories, and 10,000 stories with 200,000
-// readings. Prints figures, the plan of the slowest route's query and the plans of the two searches
-// (a common word and a rare one); asserts nothing.
+// readings. Prints figures, the plan of the slowest route's query and the plans of the searches
+// (full text: a common word, a rare word, a phrase, a part's serial; and a partial word, which
+// finds nothing by its words and falls back to the trigram indexes); asserts nothing.
 // Uses its own throwaway cluster (.data/postgres-scale), never the demo or test data.
 import crypto from 'node:crypto';
 import http from 'node:http';
@@ -61,6 +62,13 @@ const WORDS = ['thrust', 'washer', 'journal', 'shim', 'feeler', 'bearing', 'gall
 // find those few among all the rest, which is where a scan in published order costs the most.
 const RARE = 'wyvern';
 const rareInSummary = (i: number) => i % 5000 === 2500;
+// Every generated build has one part with its own serial, so a serial is in its build's 10 stories.
+const serialOf = (b: number) => `SB-${String(b).padStart(4, '0')}`;
+const SERIAL = serialOf(41);
+// In every story's text and its clearances' names ("So the end float is …", "End float 1").
+const PHRASE = '"end float"';
+// No story has it as a word: the full-text search finds nothing and the trigram fallback answers.
+const PARTIAL = 'thrus';
 
 try {
   // ---------------------------------------------------------------------------------------------
@@ -174,6 +182,11 @@ try {
       builds.push({ id: BASE + b, owner_id: ids.user(b % BUILDERS), title: `Generated build ${b} (invented)`, subject: `${pick(MACHINES, b)} rebuild` });
     }
     await cloneRows('builds', build.id, builds);
+    await sequelize.query(
+      `INSERT INTO parts (build_id, name, serial, position, created_at, updated_at)
+       SELECT b.id, 'Crankshaft (invented)', x.serial, 0, now(), now() FROM jsonb_to_recordset(CAST(:rows AS jsonb)) AS x(id integer, serial text) JOIN builds b ON b.id = x.id`,
+      { replacements: { rows: JSON.stringify(builds.map((b) => ({ id: b.id, serial: serialOf(Number(b.id) - BASE) }))) } },
+    );
     await cloneRows(
       'clips',
       clip.id,
@@ -282,10 +295,16 @@ try {
   }
   // A route's main query: the list query, else the longest one it ran.
   const mainOf = (logged: string[]) => logged.find((t) => t.includes('ORDER BY p.published_at')) ?? [...logged].sort((a, b) => b.length - a.length)[0];
+  // A search runs one query, or two when its words find nothing (full text, then the trigram fallback).
+  const searchesOf = (logged: string[]) => logged.filter((t) => t.includes('benchproof_search_query'));
   type Plan = { executionMs: number; seqScans: string[] };
   type PlanNode = { 'Node Type': string; 'Relation Name'?: string; Plans?: PlanNode[] };
   // The server's own time for the query, free of HTTP and of whatever else the machine is doing.
-  async function planOf(sqlText: string | undefined): Promise<Plan | null> {
+  async function planOf(sqlText: string | string[] | undefined): Promise<Plan | null> {
+    if (Array.isArray(sqlText)) {
+      const plans = (await Promise.all(sqlText.map((t) => planOf(t)))).filter((p): p is Plan => p !== null);
+      return plans.length ? { executionMs: plans.reduce((a, p) => a + p.executionMs, 0), seqScans: plans.flatMap((p) => p.seqScans) } : null;
+    }
     if (!sqlText) return null;
     const [r] = await q<{ 'QUERY PLAN': [{ 'Execution Time': number; Plan: PlanNode }] }>(`EXPLAIN (ANALYZE, FORMAT JSON) ${sqlText}`);
     const top = r!['QUERY PLAN'][0];
@@ -320,16 +339,21 @@ try {
     const sample = await getJson<{ claims: { state: string; verdict: string | null }[] }>(`/api/public/stories/${ids.story(3)}`);
     const oos = await getJson<{ items: { outOfSpec: boolean }[] }>('/api/public/stories?verdict=out-of-spec');
     const rare = await getJson<Page>(`/api/public/stories?q=${RARE}&limit=50`);
+    const serial = await getJson<Page>(`/api/public/stories?q=${SERIAL}&limit=50`);
     console.log(
       `  (story ${ids.story(3)}: ${sample.claims.map((c) => `${c.state}${c.verdict ? `/${c.verdict}` : ''}`).join(' ')}; ` +
         `?verdict=out-of-spec page: ${oos.items.filter((i) => i.outOfSpec).length} of ${oos.items.length} out of spec; ` +
-        `?q=${RARE} finds ${rare.items.length}${rare.nextBefore ? '+' : ''}: stories ${rare.items.map((i) => i.storyId).join(', ')})`,
+        `?q=${RARE} finds ${rare.items.length}${rare.nextBefore ? '+' : ''}: stories ${rare.items.map((i) => i.storyId).join(', ')}; ` +
+        `?q=${SERIAL} finds ${serial.items.length}${serial.nextBefore ? '+' : ''})`,
     );
     const targets: [string, string][] = [
       ['home', '/api/public/stories'],
       [`browse ?tag=${COMPONENTS[1]}`, `/api/public/stories?tag=${COMPONENTS[1]}`],
-      [`search ?q=${WORDS[0]}`, `/api/public/stories?q=${WORDS[0]}`],
+      [`search ?q=${WORDS[0]} (common word)`, `/api/public/stories?q=${WORDS[0]}`],
       [`search ?q=${RARE} (rare word)`, `/api/public/stories?q=${RARE}`],
+      [`search ?q=${PHRASE} (phrase)`, `/api/public/stories?q=${encodeURIComponent(PHRASE)}`],
+      [`search ?q=${SERIAL} (serial)`, `/api/public/stories?q=${SERIAL}`],
+      [`search ?q=${PARTIAL} (partial word)`, `/api/public/stories?q=${PARTIAL}`],
       ['?verdict=out-of-spec', '/api/public/stories?verdict=out-of-spec'],
       ['deep page (after page 50)', `/api/public/stories?before=${encodeURIComponent(before ?? '')}`],
       [`story ${middle} (middle)`, `/api/public/stories/${middle}`],
@@ -339,7 +363,8 @@ try {
     const results: { name: string; path: string; r: autocannon.Result }[] = [];
     for (const [name, p] of targets) {
       await getJson(p); // fills the page cache the way a first reader would
-      const plan = await planOf(mainOf(await queriesOf(p)));
+      const logged = await queriesOf(p);
+      const plan = await planOf(searchesOf(logged).length ? searchesOf(logged) : mainOf(logged));
       const r = await autocannon({ url: base + p, connections: CONNECTIONS, duration: SECONDS });
       results.push({ name, path: p, r });
       console.log(row(name, r, plan));
@@ -373,18 +398,20 @@ try {
     console.log('(no query was logged)');
   }
 
-  // The two searches' main queries at full size, whichever was slowest: a common word fills its
-  // page early in published order, a rare one must be found among everything.
-  for (const word of [RARE, WORDS[0]!]) {
-    const searched = mainOf(await queriesOf(`/api/public/stories?q=${word}`));
-    console.log(`\nSearch ?q=${word}${word === RARE ? ' (rare word)' : ' (common word)'} at full size. Its main query and EXPLAIN (ANALYZE, BUFFERS):`);
-    if (!searched) {
+  // The searches' queries at full size: a common word and a phrase rank every story that has them,
+  // a rare word and a serial are a few found among everything, a partial word takes the fallback.
+  for (const [word, what] of [[RARE, 'rare word'], [WORDS[0]!, 'common word'], [PHRASE, 'phrase'], [SERIAL, 'serial'], [PARTIAL, 'partial word']] as const) {
+    const searched = searchesOf(await queriesOf(`/api/public/stories?q=${encodeURIComponent(word)}`));
+    console.log(`\nSearch ?q=${word} (${what}) at full size. Its queries and EXPLAIN (ANALYZE, BUFFERS):`);
+    if (searched.length === 0) {
       console.log('(no query was logged)');
       continue;
     }
-    console.log(searched.replace(/\s+/g, ' '));
-    const plan = await q<{ 'QUERY PLAN': string }>(`EXPLAIN (ANALYZE, BUFFERS) ${searched}`);
-    console.log(plan.map((p) => p['QUERY PLAN']).join('\n'));
+    for (const text of searched) {
+      console.log(text.replace(/\s+/g, ' '));
+      const plan = await q<{ 'QUERY PLAN': string }>(`EXPLAIN (ANALYZE, BUFFERS) ${text}`);
+      console.log(plan.map((p) => p['QUERY PLAN']).join('\n'));
+    }
   }
 
   await new Promise<void>((r) => server.close(() => r()));

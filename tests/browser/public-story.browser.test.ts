@@ -278,11 +278,11 @@ describe('a reader on a published story', () => {
       await expectAccessible(page, 'home');
 
       // Search by words narrows the list; a search for nothing says so and what to try.
-      await page.getByLabel('Words in the title or summary').fill('reader test');
+      await page.getByLabel('Words, figures or serials').fill('reader test');
       await page.getByRole('button', { name: 'Search', exact: true }).click();
       await page.waitForURL(/\?q=reader\+test/);
       await card.waitFor();
-      await page.getByLabel('Words in the title or summary').fill('no such words anywhere');
+      await page.getByLabel('Words, figures or serials').fill('no such words anywhere');
       await page.getByRole('button', { name: 'Search', exact: true }).click();
       await page.getByRole('heading', { name: 'No published story matches' }).waitFor();
 

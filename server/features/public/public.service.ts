@@ -175,15 +175,21 @@ async function searchPage(
   else where.push('(p.title ILIKE :like OR p.summary ILIKE :like OR :q <% p.title)');
   const after = cursor?.match === match ? 'WHERE (m.rank, m.publication_id) < (CAST(:afterRank AS float8), :afterId)' : '';
   if (after) Object.assign(replacements, { afterRank: String(cursor!.rank), afterId: cursor!.publicationId });
+  // Only the tables the conditions need: a common word ranks every story that has it, and each
+  // join is paid per match (at 10k matches the joins to builds and users cost more than the rank).
+  const rankFrom = [
+    match === 'words' ? 'story_search d JOIN stories s ON s.published_publication_id = d.publication_id' : 'stories s',
+    ...(match === 'similar' || q.tag || q.verdict ? ['JOIN story_publications p ON p.id = s.published_publication_id'] : []),
+    ...(q.builder || opts.followerId !== undefined ? ['JOIN builds b ON b.id = s.build_id', 'JOIN users u ON u.id = b.owner_id'] : []),
+  ].join('\n           ');
   // The search query is worked out once (a materialised CTE read by scalar subqueries), and the
   // page is chosen over the narrow join before the list's columns and snippets are made for it.
   const rows = await sql().query<ListRow & { rank: number; snippet: string | null }>(
     `WITH search AS MATERIALIZED (SELECT benchproof_search_query(:q) AS query),
      matched AS (
        SELECT m.publication_id, m.rank FROM (
-         SELECT p.id AS publication_id, ${rankSql} AS rank
-           FROM ${LIST_FROM}
-           ${match === 'words' ? 'JOIN story_search d ON d.publication_id = p.id' : ''}
+         SELECT s.published_publication_id AS publication_id, ${rankSql} AS rank
+           FROM ${rankFrom}
           WHERE ${where.join(' AND ')}
        ) m
        ${after}
@@ -193,8 +199,11 @@ async function searchPage(
      SELECT ${LIST_COLUMNS}, matched.rank,
             ${match === 'words' ? `ts_headline('benchproof_search', d.snippet_source, (SELECT query FROM search), :headline)` : 'NULL'} AS snippet
        FROM matched
-       JOIN ${LIST_FROM} ON p.id = matched.publication_id
-       JOIN story_search d ON d.publication_id = p.id
+       JOIN story_publications p ON p.id = matched.publication_id
+       JOIN stories s ON s.published_publication_id = p.id
+       JOIN builds b ON b.id = s.build_id
+       JOIN users u ON u.id = b.owner_id
+       LEFT JOIN story_search d ON d.publication_id = p.id
       ORDER BY matched.rank DESC, matched.publication_id DESC`,
     { type: QueryTypes.SELECT, replacements: { ...replacements, headline: HEADLINE_OPTIONS } },
   );

@@ -363,7 +363,8 @@ describe('the public story list', () => {
     expect(oos.every((i) => i.outOfSpec)).toBe(true);
     expect(oos.some((i) => i.storyId === f.published.story.id)).toBe(false);
     expect((await q({ q: 'Public test: published' }).expect(200)).body.items.map((i: { storyId: number }) => i.storyId)).toEqual([f.published.story.id]);
-    expect((await q({ q: 'Public%published' }).expect(200)).body.items).toEqual([]);
+    // As a wildcard, % would match "Public test: published"; here it is a character no title has.
+    expect((await q({ q: 'P%d' }).expect(200)).body.items).toEqual([]);
     expect((await q({ tag: 'no-such-tag-anywhere' }).expect(200)).body.items).toEqual([]);
     const bad = await q({ verdict: 'sometimes' });
     expect(bad.status).toBe(400);

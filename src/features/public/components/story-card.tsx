@@ -2,8 +2,12 @@ import { Link } from 'react-router-dom';
 import type { PublicStoryListItem } from '@shared/public/public-story.schema';
 import { VerdictBadge } from '@/components/ui/badge';
 import { dateTimeAttr, dayText, instantDay } from '../lib/dates';
+import { SearchSnippet } from './search-snippet';
 
-/** A published story in a list: cover still, title, builder, date, tags, and an out-of-spec marker (shape and words). */
+/**
+ * A published story in a list: cover still, title, builder, date, tags, an out-of-spec marker
+ * (shape and words), and in search results the words around what matched.
+ */
 export function StoryCard({ story, headingLevel = 3 }: { story: PublicStoryListItem; headingLevel?: 2 | 3 }) {
   const Heading = headingLevel === 2 ? 'h2' : 'h3';
   const tags = [...story.tags.machine, ...story.tags.component, ...story.tags.operation];
@@ -28,6 +32,7 @@ export function StoryCard({ story, headingLevel = 3 }: { story: PublicStoryListI
           </Link>
         </Heading>
         {story.summary && <p className="line-clamp-3 text-sm text-ink-muted">{story.summary}</p>}
+        {story.snippet && <SearchSnippet snippet={story.snippet} />}
         <p className="mt-auto pt-1 text-xs text-ink-muted">
           <span className="font-medium text-ink">{story.builder.displayName}</span>
           {story.builder.shop && `, ${story.builder.shop}`} ·{' '}

@@ -112,8 +112,8 @@ function BrowseForm({ filters }: { filters: StoryFilters }) {
 
   return (
     <form role="search" aria-label="Browse stories" onSubmit={submit} className="grid gap-3 rounded-lg border border-rule bg-paper-2/40 p-4 sm:grid-cols-[2fr_1fr_1fr_auto] sm:items-end">
-      <Field label="Words in the title or summary">
-        <Input type="search" value={draft.q} onChange={(e) => setDraft({ ...draft, q: e.target.value })} placeholder="end float, ring gap…" />
+      <Field label="Words, figures or serials" hint={'In the story, its claims, parts and builder; "quotes" for a phrase'}>
+        <Input type="search" value={draft.q} onChange={(e) => setDraft({ ...draft, q: e.target.value })} placeholder="end float, 0.0047, ring gap…" />
       </Field>
       <Field label="Tag" hint="Machine, part or operation">
         <Input value={draft.tag} onChange={(e) => setDraft({ ...draft, tag: e.target.value })} placeholder="oil pump" />
@@ -178,8 +178,15 @@ function StoryList({ filters, signedOut }: { filters: StoryFilters; signedOut: b
       </EmptyState>
     );
   }
+  const searchMatch = stories.data?.pages[0]?.searchMatch ?? null;
   return (
     <>
+      {searchMatch === 'words' && <p className="text-sm text-ink-muted">Best match first.</p>}
+      {searchMatch === 'similar' && (
+        <p className="text-sm text-ink-muted" role="status">
+          No story has all of those words. These stories have titles like them, or the text in their title or summary.
+        </p>
+      )}
       <StoryGrid stories={items} />
       <LoadMore query={stories} shown={items.length} what="stories" />
     </>
