@@ -96,7 +96,8 @@ export async function up({ context: q }: { context: QueryInterface }) {
         || benchproof_search_field(concat_ws(E'\\n', p.summary, claims.words, names.words, parts.words, tags.words), 'B')
         || benchproof_search_field(concat_ws(E'\\n', u.display_name, u.login, u.shop), 'C')
         || benchproof_search_field(benchproof_plain_text(p.body), 'D'),
-           translate(concat_ws(E'\\n', p.summary, benchproof_plain_text(p.body), names.words, parts.words), E'\\uE000\\uE001', '')
+           -- The summary is on the card already; names and parts read as lists, not run together.
+           translate(concat_ws('. ', benchproof_plain_text(p.body), replace(names.words, E'\\n', '; '), replace(parts.words, E'\\n', '; ')), E'\\uE000\\uE001', '')
       FROM story_publications p
       JOIN stories s ON s.id = p.story_id
       JOIN builds b ON b.id = s.build_id
