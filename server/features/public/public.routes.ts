@@ -27,6 +27,12 @@ import {
 
 /** Published pages change only with a new publication: shared caches may keep them a minute. */
 const PUBLIC_PAGE_CACHE = 'public, max-age=60, stale-while-revalidate=300';
+/**
+ * Public lists and build pages: a browser asks again after 30 s, a shared cache (a CDN in front)
+ * keeps them a minute and may serve a stale copy for five more while it fetches the new one. The
+ * body's ETag (Express's, on every JSON answer) turns a repeat into a 304.
+ */
+const PUBLIC_LIST_CACHE = 'public, max-age=30, s-maxage=60, stale-while-revalidate=300';
 
 /**
  * The public side under /api/public: published stories, builds, builders and the media their
@@ -36,7 +42,7 @@ export function publicRouter(deps: { storage: Storage; stillsPerClip: number }) 
   const router = Router();
 
   router.get('/stories', access.public, validate({ query: publicStoryListQuerySchema }), async (_req, res) => {
-    res.set('Cache-Control', 'public, max-age=30');
+    res.set('Cache-Control', PUBLIC_LIST_CACHE);
     res.json(await listPublicStories(validQuery<PublicStoryListQuery>(res)));
   });
 
@@ -65,7 +71,7 @@ export function publicRouter(deps: { storage: Storage; stillsPerClip: number }) 
   });
 
   router.get('/builds/:buildId', access.public, validate({ params: publicBuildParamsSchema }), async (req, res) => {
-    res.set('Cache-Control', 'public, max-age=60');
+    res.set('Cache-Control', PUBLIC_LIST_CACHE);
     res.json(await publicBuild(Number(req.params.buildId)));
   });
 

@@ -336,6 +336,21 @@ describe('caching of a published story', () => {
     expect(after.body.revision).toBe(2);
     expect(after.body.html).toContain('Checked again after a night on the plate.');
   }, 120_000);
+
+  it('the public list may be kept by a shared cache, answers 304 to its own ETag, and changes with a new publication', async () => {
+    const first = await request(t.app).get('/api/public/stories?limit=50').expect(200);
+    // RFC 9111 §5.2.2: s-maxage for shared caches; RFC 5861: stale-while-revalidate.
+    expect(first.headers['cache-control']).toBe('public, max-age=30, s-maxage=60, stale-while-revalidate=300');
+    const etag = first.headers.etag!;
+    expect(etag).toBeTruthy();
+    await request(t.app).get('/api/public/stories?limit=50').set('If-None-Match', etag).expect(304);
+    const x = await makeReviewFixture(owner, { clipFile: await makeTestClip({ seconds: 2, format: 'mp4-h264', dir: work, name: 'list-etag' }), title: 'Public test: new on the list' });
+    await publishThroughReview(owner, moderator, x);
+    const after = await request(t.app).get('/api/public/stories?limit=50').set('If-None-Match', etag);
+    expect(after.status).toBe(200);
+    expect(after.headers.etag).not.toBe(etag);
+    expect(publicStoryListResponseSchema.parse(after.body).items.map((i) => i.storyId)).toContain(x.story.id);
+  }, 120_000);
 });
 
 describe('the public story list', () => {
