@@ -55,9 +55,6 @@ afterAll(async () => {
 
 /** Stories made through the API in the states the hand-offs need (invented test data). */
 const stories = { 'changes-requested': 0, 'in-review': 0, published: 0 };
-async function demoStoryId(state: keyof typeof stories) {
-  return stories[state];
-}
 
 async function demoBuildId() {
   const owner = await User.findOne({ where: { login: 'demo-builder' } });
@@ -78,10 +75,10 @@ const pages: { as: string | null; path: string | (() => Promise<string>); ready:
   { as: 'demo-admin', path: '/admin/outbox', ready: 'main h1' },
   // The hand-offs: the editor of a story sent back (reason and flags first), the review screen
   // for its builder and for a moderator, and a published story as a reader sees it.
-  { as: 'demo-builder', path: async () => `/stories/${await demoStoryId('changes-requested')}/edit`, ready: 'main h1' },
-  { as: 'demo-builder', path: async () => `/review/stories/${await demoStoryId('changes-requested')}`, ready: 'main h1' },
-  { as: 'demo-moderator', path: async () => `/review/stories/${await demoStoryId('in-review')}`, ready: 'main h1' },
-  { as: null, path: async () => `/stories/${await demoStoryId('published')}`, ready: 'main h1' },
+  { as: 'demo-builder', path: async () => `/stories/${stories['changes-requested']}/edit`, ready: 'main h1' },
+  { as: 'demo-builder', path: async () => `/review/stories/${stories['changes-requested']}`, ready: 'main h1' },
+  { as: 'demo-moderator', path: async () => `/review/stories/${stories['in-review']}`, ready: 'main h1' },
+  { as: null, path: async () => `/stories/${stories.published}`, ready: 'main h1' },
 ];
 
 describe('the axe harness', () => {

@@ -26,7 +26,7 @@ import { Clearance } from '../clearances/clearance.model';
 import { clearanceDtosForBuild } from '../clearances/clearances.service';
 import { Follow } from '../follows/follow.model';
 import { evidenceOf as publishedEvidenceOf } from '../public/publication';
-import { changesRequestedOf } from '../stories/stories.service';
+import { changesRequestedFor } from '../stories/stories.service';
 import { claimBlockers } from '@shared/review/claim-problems';
 import { signUnsubscribe } from '../follows/unsubscribe-token';
 import { Reading } from '../readings/reading.model';
@@ -721,7 +721,7 @@ export async function reviewSheet(storyId: number, user: User, deps: ReviewDeps)
       submittedAt: story.submittedAt?.toISOString() ?? null,
       hasPublicRevision: isPublicNow(story),
       publishedPublicationId: story.publishedPublicationId,
-      changesRequested: changesRequestedOf(story, new Map(story.changesRequestedBy != null ? [[story.changesRequestedBy, (await User.findByPk(story.changesRequestedBy))?.displayName ?? '']] : [])),
+      changesRequested: await changesRequestedFor(story),
     },
     claim: claim && claim.expiresAt > now ? { moderatorId: claim.moderatorId, moderatorName: holder?.displayName ?? '', expiresAt: claim.expiresAt.toISOString() } : null,
     readings: e.citedReadings.map((r) => ({

@@ -67,6 +67,11 @@ async function requesterNames(stories: Story[]): Promise<Map<number, string>> {
   return new Map(people.map((p) => [p.id, p.displayName]));
 }
 
+/** The moderator's request for changes on one story, with the moderator's name looked up. */
+export async function changesRequestedFor(story: Story): Promise<StoryDto['changesRequested']> {
+  return changesRequestedOf(story, await requesterNames([story]));
+}
+
 /** The moderator's request for changes while the story is back with its builder, else null. */
 export function changesRequestedOf(story: Story, names: Map<number, string>): StoryDto['changesRequested'] {
   if (story.state !== 'changes-requested' || story.changesRequestedReason == null) return null;

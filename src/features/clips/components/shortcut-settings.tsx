@@ -65,8 +65,6 @@ function ShortcutForm({ settings, withReading, onSave }: { settings: PlayerShort
   }
 
   // The last character typed wins, so pressing a key in a box that holds one replaces it.
-  const lastChar = (text: string) => [...text].at(-1)?.toUpperCase() ?? '';
-
   return (
     <DialogContent
       title="Keyboard shortcuts in the player"
@@ -96,30 +94,8 @@ function ShortcutForm({ settings, withReading, onSave }: { settings: PlayerShort
           </label>
         </div>
         <div className="grid grid-cols-1 gap-3 sm:grid-cols-2">
-          <Field label="Mark this moment" hint="One letter or digit." error={tried && enabled ? markProblem : null}>
-            <Input
-              value={mark}
-              disabled={!enabled}
-              autoComplete="off"
-              autoCapitalize="characters"
-              spellCheck={false}
-              onChange={(event) => setMark(lastChar(event.target.value))}
-              className="figures w-20 text-center uppercase"
-            />
-          </Field>
-          {withReading && (
-            <Field label="Log a reading" hint="One letter or digit." error={tried && enabled ? readingProblem : null}>
-              <Input
-                value={reading}
-                disabled={!enabled}
-                autoComplete="off"
-                autoCapitalize="characters"
-                spellCheck={false}
-                onChange={(event) => setReading(lastChar(event.target.value))}
-                className="figures w-20 text-center uppercase"
-              />
-            </Field>
-          )}
+          <KeyField label="Mark this moment" value={mark} onChange={setMark} disabled={!enabled} error={tried && enabled ? markProblem : null} />
+          {withReading && <KeyField label="Log a reading" value={reading} onChange={setReading} disabled={!enabled} error={tried && enabled ? readingProblem : null} />}
         </div>
         <p className="text-xs text-ink-muted">
           Space plays or pauses and the left and right arrows step one frame while the picture has focus; those stay on.{' '}
@@ -138,5 +114,25 @@ function ShortcutForm({ settings, withReading, onSave }: { settings: PlayerShort
         </p>
       </form>
     </DialogContent>
+  );
+}
+
+/** The last character typed, as the key it names. */
+const lastChar = (text: string) => [...text].at(-1)?.toUpperCase() ?? '';
+
+/** One remappable key: a single letter or digit, the last one typed. */
+function KeyField({ label, value, onChange, disabled, error }: { label: string; value: string; onChange: (key: string) => void; disabled: boolean; error: string | null }) {
+  return (
+    <Field label={label} hint="One letter or digit." error={error}>
+      <Input
+        value={value}
+        disabled={disabled}
+        autoComplete="off"
+        autoCapitalize="characters"
+        spellCheck={false}
+        onChange={(event) => onChange(lastChar(event.target.value))}
+        className="figures w-20 text-center uppercase"
+      />
+    </Field>
   );
 }
