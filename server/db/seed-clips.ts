@@ -33,7 +33,8 @@ export async function seedDemoClips(deps: { config: Config; storage: Storage; qu
     if (!build || (await Clip.count({ where: { buildId: build.id } })) > 0) continue;
     for (const spec of demo.clips) {
       const file = path.join(deps.storage.scratchDir(), `demo-${crypto.randomUUID()}.mp4`);
-      const text = (s: string) => s.replace(/[\\':%]/g, (c) => `\\${c}`);
+      // Inside drawtext's single quotes an apostrophe cannot be escaped: it is drawn as ’ instead.
+      const text = (s: string) => s.replace(/'/g, '’').replace(/[\\:%]/g, (c) => `\\${c}`);
       const filters = font
         ? [
             `drawtext=fontfile=${font}:text='${text(spec.caption)}':x=16:y=h-44:fontsize=20:fontcolor=white:box=1:boxcolor=black@0.7:boxborderw=8`,

@@ -48,8 +48,10 @@ const diaryFileSchema = z.object({
         z.object({
           key: z.string(),
           name: z.string(),
-          template: clearanceInputSchema.shape.template,
-          terms: z.array(z.object({ reading: z.string(), sign: z.union([z.literal(1), z.literal(-1)]) })),
+          template: z.string().nullable(),
+          /** A formula over the terms' symbols; a signed sum when absent. */
+          formula: z.string().optional(),
+          terms: z.array(z.object({ reading: z.string(), sign: z.union([z.literal(1), z.literal(-1)]).default(1), symbol: z.string().optional() })),
           spec: z.string(),
         }),
       ),
@@ -141,7 +143,8 @@ export async function seedDemoDiary(deps: { config: Pick<Config, 'publicUrl' | '
           key: c.key,
           name: c.name,
           template: c.template,
-          terms: c.terms.map((t) => ({ readingId: readingIds.get(t.reading)!, sign: t.sign })),
+          terms: c.terms.map((t) => ({ readingId: readingIds.get(t.reading)!, sign: t.sign, ...(t.symbol !== undefined && { symbol: t.symbol }) })),
+          ...(c.formula !== undefined && { formula: c.formula }),
           specVersionId: version?.id ?? null,
         }),
       );

@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Transaction } from 'sequelize';
 import { demoInstrumentsFileSchema, type DemoInstrument } from '@shared/instruments/demo-instruments.schema';
-import { lengthTextIn } from '@shared/measure/length-text';
+import { figureTextIn } from '@shared/measure/quantity-text';
 import { demoSpecsFileSchema, type DemoSpec } from '@shared/specs/demo-specs.schema';
 import { Instrument } from '../features/instruments/instrument.model';
 import { Spec, SpecVersion } from '../features/specs/spec.model';
@@ -36,7 +36,7 @@ async function ownerOf(login: string, file: string, transaction: Transaction): P
 
 /** Decimal text in `unit` as the API stores it; the content file is checked, so a failure is a bug in it. */
 function stored(text: string, unit: Instrument['unit'], what: string): string {
-  const parsed = lengthTextIn(text, unit);
+  const parsed = figureTextIn(text, unit);
   if (!parsed.ok) throw new Error(`content/instruments.json: ${what}: ${parsed.message}`);
   return parsed.text;
 }

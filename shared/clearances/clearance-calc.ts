@@ -1,21 +1,30 @@
 /**
- * A clearance worked out from its readings and judged against its spec version: the same code
- * in the browser's live calculator and on the server, so both show the same figures and working.
+ * A result worked out from its readings and judged against its spec version: the same code in
+ * the browser's live calculator and on the server, so both show the same figures and working.
  */
 import { evaluateCalc, resultText } from '../measure/calc';
 import { calcRequestSchema, type Reading as EngineReading } from '../measure/calc.schema';
 import { specSchema as engineSpecSchema } from '../measure/spec.schema';
-import type { LengthUnit } from '../measure/units';
+import { isLengthUnit } from '../measure/units';
 import { Fraction } from '../measure/exact';
-import { factorNumber, fromBase, toBase } from '../measure/quantities';
+import { factorNumber, fromBase, toBase, type AnyUnit } from '../measure/quantities';
 import { toEngineSpec, type SpecVersion } from '../specs/spec-library.schema';
 import type { ClearanceResult } from './clearance.schema';
 
-/** One reading in the sum: its key (as claims name it), the engine's reading and its sign. */
+/**
+ * One reading of the result: the name the model uses for it (its key in a sum, its symbol in a
+ * formula), the engine's reading and, in a sum, its sign.
+ */
 export interface ClearanceTermInput {
   key: string;
   engine: EngineReading;
   sign: 1 | -1;
+}
+
+/** A formula over the terms' names, with its constants. */
+export interface ResultFormula {
+  text: string;
+  constants: Record<string, { value: string | number; unit: AnyUnit }>;
 }
 
 /**
@@ -30,6 +39,10 @@ export function computeClearance(input: {
   spec: SpecVersion | null;
   coverageFactor: number | null;
   instruments?: Record<string, unknown>;
+  /** A formula over the terms' names; a signed sum when absent or null. */
+  formula?: ResultFormula | null;
+  /** The unit to state the result in; the spec's, else the model's natural one, when absent. */
+  resultUnit?: AnyUnit | null;
 }): { ok: true; result: ClearanceResult } | { ok: false; problems: string[] } {
   const problems: string[] = [];
   if (input.terms.length === 0) return { ok: false, problems: ['pick at least one reading'] };
@@ -48,22 +61,27 @@ export function computeClearance(input: {
   const request = calcRequestSchema.safeParse({
     readings,
     ...(input.instruments && Object.keys(input.instruments).length > 0 && { instruments: input.instruments }),
-    terms: input.terms.map((t) => ({ reading: t.key, sign: t.sign })),
-    ...(engineSpec && {
-      spec: {
-        unit: engineSpec.unit,
-        ...(engineSpec.min !== undefined && { min: engineSpec.min }),
-        ...(engineSpec.max !== undefined && { max: engineSpec.max }),
-        ...(engineSpec.preferred && {
-          preferred: {
-            ...(engineSpec.preferred.min !== undefined && { min: engineSpec.preferred.min }),
-            ...(engineSpec.preferred.max !== undefined && { max: engineSpec.preferred.max }),
-          },
-        }),
-        ...(engineSpec.reject !== undefined && { reject: engineSpec.reject }),
-        rule: engineSpec.rule,
-      },
-    }),
+    ...(input.formula
+      ? { formula: input.formula.text, ...(Object.keys(input.formula.constants).length > 0 && { constants: input.formula.constants }) }
+      : { terms: input.terms.map((t) => ({ reading: t.key, sign: t.sign })) }),
+    ...(input.resultUnit && { resultUnit: input.resultUnit }),
+    // The stored decimal texts, so a limit keeps every digit it was written with.
+    ...(engineSpec &&
+      input.spec && {
+        spec: {
+          unit: engineSpec.unit,
+          ...(input.spec.min !== null && { min: input.spec.min }),
+          ...(input.spec.max !== null && { max: input.spec.max }),
+          ...((input.spec.preferredMin !== null || input.spec.preferredMax !== null) && {
+            preferred: {
+              ...(input.spec.preferredMin !== null && { min: input.spec.preferredMin }),
+              ...(input.spec.preferredMax !== null && { max: input.spec.preferredMax }),
+            },
+          }),
+          ...(input.spec.reject !== null && { reject: input.spec.reject }),
+          rule: engineSpec.rule,
+        },
+      }),
     ...(input.coverageFactor !== null && { coverageFactor: input.coverageFactor }),
   });
   if (!request.success) {
@@ -87,27 +105,36 @@ export function computeClearance(input: {
           : 'the readings could not be worked out';
     return { ok: false, problems: [message] };
   }
-  if (evaluation.quantity !== 'length' || evaluation.valuePm === null) return { ok: false, problems: ['a clearance is a length'] };
-  const unit = evaluation.unit as LengthUnit;
-  const umPerUnit = factorNumber(unit) / 1e-6;
-  const toUm = fromBase(toBase(new Fraction(1), unit), 'um');
+  const unit = evaluation.unit;
+  const isLength = evaluation.quantity === 'length' && evaluation.valuePm !== null && isLengthUnit(unit);
+  const umPerUnit = isLength ? factorNumber(unit) / 1e-6 : 1;
+  const toUm = isLength ? fromBase(toBase(new Fraction(1), unit), 'um') : new Fraction(1);
   // Exact: a limit in inches is a whole number of picometres, so its µm figure is a plain decimal.
   const um = (x: Fraction | undefined) => (x === undefined ? null : x.mul(toUm).valueOf());
+  const inUnit = (x: Fraction | undefined) => (x === undefined ? null : x.valueOf());
   const band = evaluation.bandExact;
   return {
     ok: true,
     result: {
+      quantity: evaluation.quantity,
       unit,
-      valueUm: Number(evaluation.valuePm) / 1e6,
-      standardUncertaintyUm: evaluation.standardUncertaintyUm ?? 0,
-      expandedUncertaintyUm: evaluation.expandedUncertaintyUm ?? 0,
+      valueUm: isLength ? Number(evaluation.valuePm) / 1e6 : null,
+      standardUncertaintyUm: isLength ? (evaluation.standardUncertaintyUm ?? 0) : null,
+      expandedUncertaintyUm: isLength ? (evaluation.expandedUncertaintyUm ?? 0) : null,
+      value: evaluation.value.valueOf(),
+      standardUncertainty: evaluation.standardUncertainty,
+      expandedUncertainty: evaluation.expandedUncertainty,
+      interval: [evaluation.interval[0], evaluation.interval[1]],
+      bandInUnit: band
+        ? { min: inUnit(band.min), max: inUnit(band.max), preferredMin: inUnit(band.preferredMin), preferredMax: inUnit(band.preferredMax), reject: inUnit(band.reject) }
+        : null,
       coverageFactor: evaluation.coverageFactor,
       display: resultText(evaluation),
       verdict: evaluation.judgement?.verdict ?? null,
       preferredVerdict: evaluation.preferredJudgement?.verdict ?? null,
       rejectVerdict: evaluation.rejectJudgement?.verdict ?? null,
       rule: engineSpec ? engineSpec.rule : null,
-      band: band
+      band: band && isLength
         ? {
             minUm: um(band.min),
             maxUm: um(band.max),
@@ -121,7 +148,7 @@ export function computeClearance(input: {
       coverageProbability: evaluation.coverageProbability,
       fixedCoverageFactor: input.coverageFactor !== null,
       effectiveDegreesOfFreedom: Number.isFinite(evaluation.effectiveDegreesOfFreedom) ? evaluation.effectiveDegreesOfFreedom : null,
-      intervalUm: [evaluation.interval[0] * umPerUnit, evaluation.interval[1] * umPerUnit],
+      ...(isLength && { intervalUm: [evaluation.interval[0] * umPerUnit, evaluation.interval[1] * umPerUnit] as [number, number] }),
       probabilityOfConformance: evaluation.probabilityOfConformance,
       budget: evaluation.budget.map((line) => ({ ...line })),
       warnings: [...evaluation.warnings],

@@ -4,8 +4,9 @@
  */
 import { z } from 'zod';
 import { dbIdText, dbPositiveInteger, textWithoutNul } from '../http/db-values.schema';
-import { unitSchema } from '../measure/calc.schema';
-import { lengthTextIn, lengthTextSchema } from '../measure/length-text';
+import { quantityOf, type AnyUnit, type QuantityKind } from '../measure/quantities';
+import { figureTextIn } from '../measure/quantity-text';
+import { readingUnitSchema, type ReadingUnit } from '../measure/record-units';
 
 /** Kinds of bench instrument. */
 export const instrumentKinds = [
@@ -18,6 +19,13 @@ export const instrumentKinds = [
   'caliper',
   'plastic-gauge',
   'straight-edge',
+  'burette',
+  'degree-wheel',
+  'torque-wrench',
+  'pressure-gauge',
+  'thermometer',
+  'scale',
+  'timer',
   'other',
 ] as const;
 export type InstrumentKind = (typeof instrumentKinds)[number];
@@ -33,8 +41,43 @@ export const instrumentKindNames: Readonly<Record<InstrumentKind, string>> = {
   caliper: 'Vernier or digital caliper',
   'plastic-gauge': 'Plastic gauge strip',
   'straight-edge': 'Straight edge with blades',
+  burette: 'Burette (cc’ing)',
+  'degree-wheel': 'Degree wheel',
+  'torque-wrench': 'Torque wrench or gauge',
+  'pressure-gauge': 'Pressure gauge',
+  thermometer: 'Thermometer',
+  scale: 'Scale (weighing)',
+  timer: 'Timer',
   other: 'Other',
 };
+
+/** What each kind measures; null for "other", which may read anything. */
+export const instrumentKindQuantity: Readonly<Record<InstrumentKind, QuantityKind | null>> = {
+  'feeler-blades': 'length',
+  'outside-micrometer': 'length',
+  'depth-micrometer': 'length',
+  'inside-micrometer': 'length',
+  'dial-bore-gauge': 'length',
+  'dial-test-indicator': 'length',
+  caliper: 'length',
+  'plastic-gauge': 'length',
+  'straight-edge': 'length',
+  burette: 'volume',
+  'degree-wheel': 'angle',
+  'torque-wrench': 'torque',
+  'pressure-gauge': 'pressure',
+  thermometer: 'temperature',
+  scale: 'mass',
+  timer: 'time',
+  other: null,
+};
+
+/** The refusal when a kind's unit is of another quantity, or null when they fit. */
+export function kindUnitProblem(kind: InstrumentKind, unit: AnyUnit): string | null {
+  const quantity = instrumentKindQuantity[kind];
+  if (quantity === null || quantityOf(unit) === quantity) return null;
+  return `a ${instrumentKindNames[kind].toLowerCase()} reads ${quantity === 'angle' ? 'angles' : quantity}: choose a unit of ${quantity}`;
+}
 
 /**
  * Kinds whose zero drifts and is checked on a setting standard before use (common practice, no
@@ -47,7 +90,12 @@ export const zeroCheckedKinds: ReadonlySet<InstrumentKind> = new Set([
   'dial-bore-gauge',
   'dial-test-indicator',
   'caliper',
+  'pressure-gauge',
+  'scale',
 ]);
+
+/** Text of a figure typed into a form (a resolution, an uncertainty, a setting standard's size). */
+export const figureTextSchema = z.string({ error: 'enter a figure' }).trim().min(1, 'enter a figure').max(64, 'that is too long for a figure');
 
 /** A calendar date, YYYY-MM-DD. */
 export const isoDateSchema = z
@@ -64,18 +112,19 @@ const instrumentFields = {
   name: textWithoutNul.trim().min(1, 'name the instrument').max(120, 'at most 120 characters'),
   kind: z.enum(instrumentKinds, { error: `kind must be one of ${instrumentKinds.join(', ')}` }),
   serial: textWithoutNul.trim().max(80, 'at most 80 characters'),
-  unit: unitSchema,
+  /** What it shows readings in: a length, or a volume, angle, torque, pressure, temperature, time or mass unit. */
+  unit: readingUnitSchema,
   /** One step of the scale or display, as text in `unit` ("0.0001"). */
-  resolution: lengthTextSchema,
+  resolution: figureTextSchema,
   /** Stated standard uncertainty in `unit` (certificate or maker); null = from the resolution only. */
-  statedUncertainty: lengthTextSchema.nullable(),
+  statedUncertainty: figureTextSchema.nullable(),
   /** A calibration certificate's expanded uncertainty U in `unit`, with its coverage factor k (u = U/k, GUM 4.3.3). */
-  calibrationUncertainty: lengthTextSchema.nullable(),
+  calibrationUncertainty: figureTextSchema.nullable(),
   calibrationCoverageFactor: coverageFactorSchema.nullable(),
   /** The maker's maximum permissible error ±MPE in `unit` (rectangular, u = MPE/√3, GUM 4.3.7). */
-  maxPermissibleError: lengthTextSchema.nullable(),
+  maxPermissibleError: figureTextSchema.nullable(),
   /** The setting standard's expanded uncertainty U in `unit`, with its k. */
-  settingStandardUncertainty: lengthTextSchema.nullable(),
+  settingStandardUncertainty: figureTextSchema.nullable(),
   settingStandardCoverageFactor: coverageFactorSchema.nullable(),
   calibrationIntervalDays: z.number().int('whole days').min(1, 'at least 1 day').max(3650, 'at most 10 years').nullable(),
   lastCalibratedOn: isoDateSchema.nullable(),
@@ -89,6 +138,7 @@ const nonNegativeLengths = ['calibrationUncertainty', 'maxPermissibleError', 'se
 
 function refineLengths(
   v: {
+    kind?: InstrumentKind;
     unit?: string;
     resolution?: string;
     statedUncertainty?: string | null;
@@ -110,25 +160,37 @@ function refineLengths(
     const hasK = v[k] != null;
     if (hasU !== hasK) ctx.addIssue({ code: 'custom', path: [hasU ? k : u], message: `${what} needs both its expanded uncertainty U and its k` });
   }
-  const unit = unitSchema.safeParse(v.unit);
+  const unit = readingUnitSchema.safeParse(v.unit);
   if (!unit.success) return;
+  if (v.kind !== undefined) {
+    const problem = kindUnitProblem(v.kind, unit.data);
+    if (problem) ctx.addIssue({ code: 'custom', path: ['unit'], message: problem });
+  }
   for (const field of nonNegativeLengths) {
     const text = v[field];
     if (text == null) continue;
-    const parsed = lengthTextIn(text, unit.data);
+    const parsed = stepIn(text, unit.data);
     if (!parsed.ok) ctx.addIssue({ code: 'custom', path: [field], message: parsed.message });
-    else if (parsed.length.pm < 0n) ctx.addIssue({ code: 'custom', path: [field], message: 'it cannot be negative' });
+    else if (parsed.sign < 0) ctx.addIssue({ code: 'custom', path: [field], message: 'it cannot be negative' });
   }
   if (v.resolution !== undefined) {
-    const r = lengthTextIn(v.resolution, unit.data);
+    const r = stepIn(v.resolution, unit.data);
     if (!r.ok) ctx.addIssue({ code: 'custom', path: ['resolution'], message: r.message });
-    else if (r.length.pm <= 0n) ctx.addIssue({ code: 'custom', path: ['resolution'], message: 'resolution must be greater than 0' });
+    else if (r.sign <= 0) ctx.addIssue({ code: 'custom', path: ['resolution'], message: 'resolution must be greater than 0' });
   }
   if (v.statedUncertainty != null) {
-    const u = lengthTextIn(v.statedUncertainty, unit.data);
+    const u = stepIn(v.statedUncertainty, unit.data);
     if (!u.ok) ctx.addIssue({ code: 'custom', path: ['statedUncertainty'], message: u.message });
-    else if (u.length.pm < 0n) ctx.addIssue({ code: 'custom', path: ['statedUncertainty'], message: 'uncertainty cannot be negative' });
+    else if (u.sign < 0) ctx.addIssue({ code: 'custom', path: ['statedUncertainty'], message: 'uncertainty cannot be negative' });
   }
+}
+
+/** A step or uncertainty typed in `unit`: its decimal text and sign, or the refusal. */
+export function stepIn(text: string, unit: ReadingUnit): { ok: true; text: string; sign: number } | { ok: false; message: string } {
+  const parsed = figureTextIn(text, unit);
+  if (!parsed.ok) return parsed;
+  const v = parsed.figure.value;
+  return { ok: true, text: parsed.text, sign: v.n === 0n ? 0 : Number(v.s) };
 }
 
 /** Body of `POST /api/instruments`. */
@@ -177,7 +239,7 @@ export const zeroCheckSchema = z.object({
   id: z.number().int().positive(),
   instrumentId: z.number().int().positive(),
   checkedOn: z.string(),
-  unit: unitSchema,
+  unit: readingUnitSchema,
   standardSize: z.string(),
   shown: z.string(),
   offset: z.string(),
@@ -188,11 +250,11 @@ export const zeroCheckSchema = z.object({
 });
 export type ZeroCheck = z.infer<typeof zeroCheckSchema>;
 
-/** Body of `POST /api/instruments/:instrumentId/zero-checks`; lengths in the instrument's unit. */
+/** Body of `POST /api/instruments/:instrumentId/zero-checks`; figures in the instrument's unit. */
 export const zeroCheckInputSchema = z.strictObject({
   checkedOn: isoDateSchema,
-  standardSize: lengthTextSchema,
-  shown: lengthTextSchema,
+  standardSize: figureTextSchema,
+  shown: figureTextSchema,
   momentId: dbPositiveInteger.nullable().default(null),
   note: textWithoutNul.trim().max(1000).default(''),
 });
@@ -205,7 +267,7 @@ export const instrumentSchema = z.object({
   name: z.string(),
   kind: z.enum(instrumentKinds),
   serial: z.string(),
-  unit: unitSchema,
+  unit: readingUnitSchema,
   resolution: z.string(),
   statedUncertainty: z.string().nullable(),
   /** Added with the register's accuracy fields; absent from older answers. */

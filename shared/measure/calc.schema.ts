@@ -108,14 +108,33 @@ const expansionUncertaintyField = (field: string) =>
 
 const instrumentName = z.string({ error: 'instrument must name an instrument' }).max(40, 'instrument must be at most 40 characters');
 
+/**
+ * Where a reading's instrument is, thermally. Left out: at its own temperature (the instrument
+ * entry's `temperatureC`, else 20 °C), measured apart from the part's. `same-as-part`: it sits at
+ * the part's temperature (GUM H.1: one thermometer for the bench), so the part's `temperatureC`
+ * serves both and only their difference is uncertain.
+ */
+export const instrumentTemperatures = ['same-as-part'] as const;
+
 /** The thermal fields a direct or repeated reading may carry (ISO 1: lengths are stated at 20 °C). */
 const thermalFields = {
   temperatureC: temperatureField('temperatureC').optional(),
-  /** Standard uncertainty of the part's temperature, K. */
+  /** Standard uncertainty of the part's temperature, K (with `same-as-part`: of the common temperature, GUM H.1's u(θ)). */
   temperatureUncertaintyC: temperatureUncertaintyField('temperatureUncertaintyC').optional(),
   expansionPerK: expansionField('expansionPerK').optional(),
   /** Standard uncertainty of the part's expansion coefficient, per K. */
   expansionUncertaintyPerK: expansionUncertaintyField('expansionUncertaintyPerK').optional(),
+  /** `same-as-part`: the instrument sits at the part's temperature (see `instrumentTemperatures`). */
+  instrumentTemperature: z.enum(instrumentTemperatures, { error: 'instrumentTemperature must be "same-as-part", or left out for the instrument\'s own temperature' }).optional(),
+  /** With `same-as-part`: standard uncertainty of the difference between the part's and the instrument's temperatures, K (GUM H.1's u(δθ)). */
+  temperatureDifferenceUncertaintyC: temperatureUncertaintyField('temperatureDifferenceUncertaintyC').optional(),
+  /**
+   * With `same-as-part`: standard uncertainty of the difference between the part's and the
+   * instrument's expansion coefficients, per K (GUM H.1's u(δα)), when it is known better than the
+   * two coefficients are (one material). Left out, u(δα) comes from `expansionUncertaintyPerK` and
+   * the instrument's `expansionUncertaintyPerK`.
+   */
+  expansionDifferenceUncertaintyPerK: expansionUncertaintyField('expansionDifferenceUncertaintyPerK').optional(),
   material: z
     .string({ error: 'material must be text' })
     .max(40, 'material must be at most 40 characters')
@@ -125,10 +144,17 @@ const thermalFields = {
     .optional(),
 };
 
-function checkThermal(
-  reading: { unit: AnyUnit; temperatureC?: number | undefined; expansionPerK?: number | undefined; material?: string | undefined },
-  ctx: Ctx,
-) {
+interface ThermalInput {
+  unit: AnyUnit;
+  temperatureC?: number | undefined;
+  expansionPerK?: number | undefined;
+  material?: string | undefined;
+  instrumentTemperature?: (typeof instrumentTemperatures)[number] | undefined;
+  temperatureDifferenceUncertaintyC?: number | undefined;
+  expansionDifferenceUncertaintyPerK?: number | undefined;
+}
+
+function checkThermal(reading: ThermalInput, ctx: Ctx) {
   const isLength = quantityOf(reading.unit) === 'length';
   if (!isLength && (reading.expansionPerK !== undefined || reading.material !== undefined)) {
     ctx.addIssue({
@@ -144,6 +170,19 @@ function checkThermal(
       message: 'temperatureC needs a material or an expansionPerK to correct to 20 °C',
     });
   }
+  if (reading.instrumentTemperature === 'same-as-part') {
+    if (!isLength) {
+      ctx.addIssue({ code: 'custom', path: ['instrumentTemperature'], message: 'instrumentTemperature matters for lengths only (it enters the correction to 20 °C)' });
+    } else if (reading.temperatureC === undefined) {
+      ctx.addIssue({ code: 'custom', path: ['instrumentTemperature'], message: 'instrumentTemperature "same-as-part" needs the part\'s temperatureC' });
+    }
+  } else {
+    for (const field of ['temperatureDifferenceUncertaintyC', 'expansionDifferenceUncertaintyPerK'] as const) {
+      if (reading[field] !== undefined) {
+        ctx.addIssue({ code: 'custom', path: [field], message: `${field} applies when the instrument sits at the part's temperature: send instrumentTemperature "same-as-part" with it` });
+      }
+    }
+  }
 }
 
 /** What a direct or repeated reading from an indicating instrument may carry besides its figures. */
@@ -157,7 +196,7 @@ const indicatingFields = {
   ...thermalFields,
 };
 
-type IndicatingFields = { unit: AnyUnit; resolution?: Figure | undefined; uncertainty?: Figure | undefined; zeroOffset?: Figure | undefined; zeroResolution?: Figure | undefined; temperatureC?: number | undefined; expansionPerK?: number | undefined; material?: string | undefined };
+type IndicatingFields = ThermalInput & { resolution?: Figure | undefined; uncertainty?: Figure | undefined; zeroOffset?: Figure | undefined; zeroResolution?: Figure | undefined };
 
 function checkIndicating(reading: IndicatingFields, ctx: Ctx) {
   checkFigure(ctx, ['resolution'], reading.resolution, reading.unit, positiveResolution);
@@ -279,7 +318,7 @@ export const calcInstrumentSchema = z
     maxPermissibleError: z.strictObject({ value: figureSchema('maxPermissibleError.value'), unit: anyUnitSchema }).optional(),
     /** The setting standard (gauge block, setting rod) the instrument was zeroed on: U with its k. */
     settingStandard: expandedWithK('settingStandard').optional(),
-    /** The instrument's own temperature, °C (GUM H.1): 20 °C when not given. */
+    /** The instrument's own temperature, °C (GUM H.1): 20 °C when not given; set aside (with its u) for a reading whose instrumentTemperature is "same-as-part". */
     temperatureC: temperatureField('temperatureC').optional(),
     temperatureUncertaintyC: temperatureUncertaintyField('temperatureUncertaintyC').optional(),
     /** The instrument's expansion coefficient, per K: carbon steel's when not given. */

@@ -8,7 +8,8 @@
  * instrument brings: its calibration (normal, U/k), its maximum permissible error (rectangular,
  * MPE/√3) and its setting standard (normal, U/k), each shared by every reading taken with it.
  * A length measured away from 20 °C is corrected to 20 °C (ISO 1) with the part's and the
- * instrument's temperatures and expansions (GUM H.1), and u(t), u(α) enter as components.
+ * instrument's temperatures and expansions, and u(t), u(α) enter as components; or, when the
+ * instrument sits at the part's temperature, with GUM H.1's θ, δθ and δα (`sameTemperature`).
  */
 import type { BladeReading, BracketReading, CalcInstrument, DirectReading, Reading, RepeatedReading } from './calc.schema';
 import type { Component } from './components';
@@ -17,7 +18,7 @@ import { Fraction, fractionOfDecimal } from './exact';
 import { figureIsText, figureToDecimal, type Figure } from './figures';
 import { decimalsForStep, formatUncertaintyIn, formatValue, plainNumber, withUnit } from './format-quantity';
 import { factorNumber, quantityOf, unitTable, type AnyUnit, type QuantityKind } from './quantities';
-import { lookupMaterial, materialExpansion, REFERENCE_TEMPERATURE_C } from './thermal';
+import { lookupMaterial, materialExpansion, REFERENCE_TEMPERATURE_C, sameTemperatureSecondOrder, sameTemperatureSensitivities } from './thermal';
 import { picometresPerUnit, type LengthUnit } from './units';
 
 /** A reading reduced to what a result needs, plus how it was worked out. */
@@ -56,6 +57,9 @@ export class UnvalidatedReadingError extends Error {
 }
 
 const SQRT3 = Math.sqrt(3);
+
+/** An expansion coefficient for the working: "11.5×10⁻⁶/K". */
+const alphaText = (a: number) => `${plainNumber(a * 1e6)}×10⁻⁶/K`;
 
 function decimalOf(figure: Figure, field: string): ExactDecimal {
   const decimal = figureToDecimal(figure);
@@ -253,6 +257,7 @@ function thermal(
   const alpha = reading.expansionPerK ?? (material ? materialExpansion[material].expansionPerK : undefined);
   if (alpha === undefined) throw new UnvalidatedReadingError('temperatureC needs a material or expansionPerK; validate with readingSchema first');
   const source = reading.expansionPerK !== undefined ? 'as given' : `${material ? materialExpansion[material].label : ''}, typical handbook figure (Callister, Table B.6)`;
+  if (reading.instrumentTemperature === 'same-as-part') return sameTemperature(ctx, reading, value, step, instrumentName, instrument, alpha, source);
   const t = reading.temperatureC;
   const ts = instrument?.temperatureC ?? REFERENCE_TEMPERATURE_C;
   const alphaS = instrument?.expansionPerK ?? materialExpansion.steel.expansionPerK;
@@ -261,7 +266,6 @@ function thermal(
   const factor = (1 + alphaS * dts) / (1 + alpha * dt);
   // 10¹⁵·factor is a safe integer for the schema's ranges; the estimate is rounded once, to 10⁻¹² of its unit.
   const corrected = value.mul(new Fraction(BigInt(Math.round(factor * 1e15)), 10n ** 15n)).round(12);
-  const alphaText = (a: number) => `${plainNumber(a * 1e6)}×10⁻⁶/K`;
   const instrumentText =
     instrument?.temperatureC !== undefined
       ? `${instrumentName ?? 'the instrument'} at ${plainNumber(ts)} °C with α_s = ${alphaText(alphaS)}${instrument.expansionPerK === undefined ? ' (carbon steel, typical handbook figure, Callister Table B.6)' : ''}`
@@ -294,6 +298,111 @@ function thermal(
       ? `${ctx.key}: the uncertainties of the temperatures and expansion coefficients given enter the budget through ∂L20/∂t and ∂L20/∂α (GUM H.1.3).`
       : `${ctx.key}: no uncertainty was given for the temperatures or expansion coefficients, so none is included for them.`,
   );
+  return { value: corrected, scale: factor };
+}
+
+/**
+ * The correction to 20 °C with the instrument at the part's temperature, as GUM H.1 models a
+ * comparison on one bench: the inputs are θ = t − 20 °C (u(θ) is the part's temperature
+ * uncertainty), δθ = t − t_s = 0 with u(δθ), and δα = α − α_s with u(δα). The estimate is
+ * L20 = L·(1 + α_sθ)/(1 + αθ); to first order the correction is −L(δα·θ + α_s·δθ) (H.1.2). The
+ * budget is first-order (H.1.6); H.1.7's second-order terms are stated in the working.
+ *
+ * u(δα), unless given, is split into the part's u(α) (this reading's own line) and the instrument's
+ * u(α_s), which stays one input shared by every reading taken with it (the same id as with its own
+ * temperature), so a difference of two readings with one instrument still cancels it.
+ */
+function sameTemperature(
+  ctx: Context,
+  reading: DirectReading | RepeatedReading,
+  value: Fraction,
+  step: Fraction,
+  instrumentName: string | undefined,
+  instrument: CalcInstrument | undefined,
+  alpha: number,
+  alphaSource: string,
+): { value: Fraction; scale: number } {
+  const t = reading.temperatureC as number;
+  const theta = t - REFERENCE_TEMPERATURE_C;
+  const alphaS = instrument?.expansionPerK ?? materialExpansion.steel.expansionPerK;
+  const deltaAlpha = alpha - alphaS;
+  const factor = (1 + alphaS * theta) / (1 + alpha * theta);
+  const corrected = value.mul(new Fraction(BigInt(Math.round(factor * 1e15)), 10n ** 15n)).round(12);
+  const name = instrumentName ?? 'the instrument';
+  const alphaSSource = instrument?.expansionPerK === undefined ? ' (carbon steel, typical handbook figure, Callister Table B.6)' : '';
+  ctx.steps.push(
+    `${ctx.key}: part at ${plainNumber(t)} °C with α = ${alphaText(alpha)} (${alphaSource}); ${name} sits at the part's temperature, α_s = ${alphaText(alphaS)}${alphaSSource}. GUM H.1's inputs: θ = t − 20 °C = ${plainNumber(theta)} K, δθ = t − t_s = 0 K, δα = α − α_s = ${alphaText(deltaAlpha)}.`,
+    `${ctx.key}: corrected to 20 °C (ISO 1, GUM H.1): L20 = L·(1 + α_s·θ)/(1 + α·θ) = ${at(value, ctx.unit, step)} × ${factor.toFixed(9)} = ${at(corrected, ctx.unit, step)}; to first order the correction is −L(δα·θ + α_s·δθ) (GUM H.1.2).`,
+  );
+  if (instrument?.temperatureC !== undefined || instrument?.temperatureUncertaintyC !== undefined) {
+    ctx.steps.push(`${ctx.key}: ${name}'s own temperature and its uncertainty are set aside for this reading: it is taken to be at the part's temperature.`);
+  }
+
+  const L = corrected.valueOf() * factorNumber(ctx.unit); // base units (m)
+  const c = sameTemperatureSensitivities(L, alpha, alphaS, t);
+  const uTheta = reading.temperatureUncertaintyC ?? 0;
+  const uDeltaTheta = reading.temperatureDifferenceUncertaintyC ?? 0;
+  const uAlpha = reading.expansionUncertaintyPerK ?? 0;
+  const uAlphaS = instrument?.expansionUncertaintyPerK ?? 0;
+  const givenDeltaAlpha = reading.expansionDifferenceUncertaintyPerK;
+  const uDeltaAlpha = givenDeltaAlpha ?? Math.hypot(uAlpha, uAlphaS);
+  const own = (id: string, source: string, u: number, unit: string, effect: number) => {
+    if (!(u > 0)) return;
+    ctx.components.push({ id: `${ctx.key}:${id}`, source, distribution: 'normal', standardUncertainty: u, divisor: 1, degreesOfFreedom: Infinity, unit, effects: [{ reading: ctx.key, effect }] });
+  };
+  own(
+    'common-temperature',
+    `${ctx.key}: temperature of the part and ${name} together, θ = ${plainNumber(theta)} K from 20 °C, u(θ) = ${plainNumber(uTheta)} K`,
+    uTheta,
+    'K',
+    c.commonTemperature,
+  );
+  own('temperature-difference', `${ctx.key}: how far ${name}'s temperature may be from the part's, δθ, u(δθ) = ${plainNumber(uDeltaTheta)} K`, uDeltaTheta, 'K', c.temperatureDifference);
+  own(
+    'expansion-difference',
+    givenDeltaAlpha !== undefined
+      ? `${ctx.key}: part and ${name} expanding differently, δα = α − α_s, u(δα) = ${alphaText(givenDeltaAlpha)}`
+      : `${ctx.key}: part and ${name} expanding differently, δα = α − α_s: the part's coefficient, u(α) = ${alphaText(uAlpha)}`,
+    givenDeltaAlpha ?? uAlpha,
+    '1/K',
+    c.expansionDifference,
+  );
+  if (uAlphaS > 0) {
+    // The instrument's α_s is one input whichever temperature its readings were taken at: the id and
+    // the words are those of the instrument's own-temperature model, so the two merge.
+    ctx.components.push({
+      id: instrumentName ? `instrument:${instrumentName}:instrument-expansion` : `${ctx.key}:instrument-expansion`,
+      source: `expansion coefficient of ${name}`,
+      distribution: 'normal',
+      standardUncertainty: uAlphaS,
+      divisor: 1,
+      degreesOfFreedom: Infinity,
+      unit: '1/K',
+      ...(instrumentName && { instrument: instrumentName }),
+      effects: [{ reading: ctx.key, effect: givenDeltaAlpha !== undefined ? c.instrumentExpansionDifferenceHeld : c.instrumentExpansion }],
+    });
+  }
+
+  const perUnit = factorNumber(ctx.unit);
+  const inUnit = (x: number) => uText(Math.abs(x) / perUnit, ctx.unit);
+  const lines: string[] = [];
+  if (uTheta > 0) lines.push(`θ: c_θ = −L·δα = ${withUnit(plainNumber(c.commonTemperature / perUnit, 4), ctx.unit)}/K, contributes ${inUnit(c.commonTemperature * uTheta)}`);
+  if (uDeltaTheta > 0) lines.push(`δθ: c_δθ = −L·α_s = ${withUnit(plainNumber(c.temperatureDifference / perUnit, 4), ctx.unit)}/K, contributes ${inUnit(c.temperatureDifference * uDeltaTheta)}`);
+  if (uDeltaAlpha > 0) lines.push(`δα: c_δα = −L·θ, u(δα) = ${givenDeltaAlpha !== undefined ? `${alphaText(givenDeltaAlpha)} as given` : `√(u(α)² + u(α_s)²) = ${alphaText(uDeltaAlpha)}`}, contributes ${inUnit(c.expansionDifference * uDeltaAlpha)}`);
+  ctx.steps.push(
+    lines.length > 0
+      ? `${ctx.key}: the temperature terms enter the budget with H.1.3's sensitivities (exact at δθ = 0): ${lines.join('; ')}.${givenDeltaAlpha === undefined && uAlphaS > 0 && instrumentName ? ` The share of u(δα) from ${name}'s coefficient is its own line, shared by every reading taken with ${name}.` : ''}`
+      : `${ctx.key}: no uncertainty was given for the temperature, the difference between the part's and ${name}'s, or the expansion coefficients, so none is included for them.`,
+  );
+  if (uTheta > 0 && uDeltaTheta === 0) {
+    ctx.steps.push(`${ctx.key}: no u(δθ) given: the part and ${name} are taken to be at exactly one temperature.`);
+  }
+  const second = sameTemperatureSecondOrder(L, { theta: uTheta, temperatureDifference: uDeltaTheta, expansionDifference: uDeltaAlpha, instrumentExpansion: uAlphaS });
+  if (second > 0) {
+    ctx.steps.push(
+      `${ctx.key}: second-order terms (GUM H.1.7), left out of the budget as in H.1.6: L·√(u²(δα)·u²(θ) + u²(α_s)·u²(δθ)) = ${inUnit(second)}; added in quadrature they would raise this reading's u.`,
+    );
+  }
   return { value: corrected, scale: factor };
 }
 

@@ -15,7 +15,9 @@ import {
   type Judgement,
   type RejectSide,
 } from './spec';
-import { unitSchema } from './calc.schema';
+import { anyUnitSchema } from './calc.schema';
+import { quantityOf } from './quantities';
+import type { LengthUnit } from './units';
 
 /** Where a spec's figures come from. */
 export const specSourceKinds = ['manual', 'standard', 'common-practice'] as const;
@@ -36,10 +38,10 @@ export const specSourceSchema = z.strictObject({
 const optionalLength = (field: string) =>
   z.number({ error: `${field} must be a finite number` }).optional();
 
-/** A stored spec. Lengths are in `unit`. */
+/** A stored spec. Figures are in `unit`: a length, any other quantity, or "1" for a ratio. */
 export const specSchema = z
   .strictObject({
-    unit: unitSchema,
+    unit: anyUnitSchema,
     min: optionalLength('min'),
     max: optionalLength('max'),
     preferred: z.strictObject({ min: optionalLength('preferred.min'), max: optionalLength('preferred.max') }).optional(),
@@ -51,7 +53,11 @@ export const specSchema = z
   .superRefine((spec, ctx) => {
     const check = (path: (string | number)[], value: number | undefined) => {
       if (value === undefined) return;
-      const problem = lengthFieldProblem(path.join('.'), value, spec.unit);
+      if (quantityOf(spec.unit) !== 'length') {
+        if (!Number.isFinite(value) || Math.abs(value) > 1e9) ctx.addIssue({ code: 'custom', path, message: `${path.join('.')} is too large` });
+        return;
+      }
+      const problem = lengthFieldProblem(path.join('.'), value, spec.unit as LengthUnit);
       if (problem) ctx.addIssue({ code: 'custom', path, message: problem.message });
     };
     check(['min'], spec.min);
@@ -100,7 +106,8 @@ export function rejectSideOf(spec: Pick<Spec, 'min' | 'max' | 'reject'>): Reject
 }
 
 function pm(value: number | undefined, spec: Spec): bigint | undefined {
-  return value === undefined ? undefined : (lengthNumberToPicometres(value, spec.unit) ?? undefined);
+  if (value === undefined || quantityOf(spec.unit) !== 'length') return undefined;
+  return lengthNumberToPicometres(value, spec.unit as LengthUnit) ?? undefined;
 }
 
 function band(minPm: bigint | undefined, maxPm: bigint | undefined): BandPm {

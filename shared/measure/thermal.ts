@@ -4,8 +4,9 @@
  *
  * We use the exact form L20 = L_t / (1 + α (t − 20)), not the first-order L_t (1 − α (t − 20)):
  * both agree to α²Δt² (under 10⁻⁷ relative for metals within ±30 K), and the exact form inverts
- * L_t = L20 (1 + α Δt) precisely. The correction is for the part; it assumes the instrument is at
- * 20 °C or is itself corrected. The uncertainty of α and of t is not included.
+ * L_t = L20 (1 + α Δt) precisely. `correctToReference` corrects the part alone (the instrument at
+ * 20 °C); the engine (`readings.ts`) also takes the instrument's temperature and expansion, either
+ * its own or, as GUM H.1 models the bench, the part's (`sameTemperatureSensitivities`).
  */
 import { divideRounded } from './decimal';
 
@@ -85,4 +86,48 @@ export function correctToReference(pm: bigint, expansionPerK: number, temperatur
   // Within 1 ± 0.03 for the ranges the schema allows, so 10¹⁵ · denominator is a safe integer.
   const scaledDenominator = BigInt(Math.round(denominator * 1e15)) * 1000n;
   return divideRounded(pm * SCALE, scaledDenominator, 'half-even');
+}
+
+/**
+ * ∂L20/∂x for a part and an instrument at one temperature, in GUM H.1's variables (JCGM 100:2008
+ * H.1.2): θ = t − 20 °C (their common deviation), δθ = t − t_s (their difference, 0 here) and
+ * δα = α − α_s, with L20 = L·(1 + α_s(θ − δθ))/(1 + αθ) and L the indication. Each is the exact
+ * derivative at δθ = 0, in the units of `lengthAt20` per unit of the input; to first order they are
+ * H.1.3's c_θ = −l·δα, c_δθ = −l·α_s and c_δα = −l·θ.
+ */
+export interface SameTemperatureSensitivities {
+  /** ∂L20/∂θ = −L20·δα/((1 + α_sθ)(1 + αθ)), per K. */
+  readonly commonTemperature: number;
+  /** ∂L20/∂δθ = −L20·α_s/(1 + α_sθ), per K. */
+  readonly temperatureDifference: number;
+  /** ∂L20/∂δα with α_s held, the same as ∂L20/∂α: −L20·θ/(1 + αθ), per (1/K). */
+  readonly expansionDifference: number;
+  /** ∂L20/∂α_s with the part's α held (δα moves the other way): L20·θ/(1 + α_sθ), per (1/K). */
+  readonly instrumentExpansion: number;
+  /** ∂L20/∂α_s with δα held (H.1's c_αs, zero to first order at δθ = 0): L20·θ²·δα/((1 + α_sθ)(1 + αθ)), per (1/K). */
+  readonly instrumentExpansionDifferenceHeld: number;
+}
+
+/** The sensitivities of a length corrected to 20 °C with the instrument at the part's temperature (see `SameTemperatureSensitivities`). */
+export function sameTemperatureSensitivities(lengthAt20: number, expansionPerK: number, instrumentExpansionPerK: number, temperatureC: number): SameTemperatureSensitivities {
+  const theta = temperatureC - REFERENCE_TEMPERATURE_C;
+  const deltaAlpha = expansionPerK - instrumentExpansionPerK;
+  const part = 1 + expansionPerK * theta;
+  const instrument = 1 + instrumentExpansionPerK * theta;
+  return {
+    commonTemperature: (-lengthAt20 * deltaAlpha) / (instrument * part),
+    temperatureDifference: (-lengthAt20 * instrumentExpansionPerK) / instrument,
+    expansionDifference: (-lengthAt20 * theta) / part,
+    instrumentExpansion: (lengthAt20 * theta) / instrument,
+    instrumentExpansionDifferenceHeld: (lengthAt20 * theta * theta * deltaAlpha) / (instrument * part),
+  };
+}
+
+/**
+ * The second-order terms GUM H.1.7 finds worth a look when θ or δα, and δθ, are estimated near
+ * zero: L·√(u²(δα)·u²(θ) + u²(α_s)·u²(δθ)) (GUM eq. 10's note, the products of two inputs). The
+ * engine states it in the working and keeps the budget first-order, as H.1.6 does.
+ */
+export function sameTemperatureSecondOrder(length: number, u: { theta: number; temperatureDifference: number; expansionDifference: number; instrumentExpansion: number }): number {
+  return Math.abs(length) * Math.hypot(u.expansionDifference * u.theta, u.instrumentExpansion * u.temperatureDifference);
 }

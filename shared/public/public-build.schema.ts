@@ -3,7 +3,8 @@
  */
 import { z } from 'zod';
 import { dbIdText } from '../http/db-values.schema';
-import { unitSchema } from '../measure/calc.schema';
+import { anyUnitSchema } from '../measure/calc.schema';
+import { quantityKinds } from '../measure/quantities';
 import { decisionRules, verdicts } from '../measure/spec';
 import { publicBuilderRefSchema, publicPartSchema } from './public-story.schema';
 
@@ -28,8 +29,12 @@ export const publicClearanceFigureSchema = z.object({
   revision: z.number().int().positive(),
   storyTitle: z.string(),
   workDate: z.string().nullable(),
-  valueUm: z.number(),
-  expandedUncertaintyUm: z.number().nonnegative(),
+  /** Lengths only (null for any other quantity): the value and U in µm. */
+  valueUm: z.number().nullable(),
+  expandedUncertaintyUm: z.number().nonnegative().nullable(),
+  /** The value and U in the summary's unit, for every quantity (absent from older pages). */
+  value: z.number().optional(),
+  expandedUncertainty: z.number().nonnegative().optional(),
   /** "0.0047 in ± 0.00031 in (k = 2)". */
   display: z.string(),
   verdict: z.enum(verdicts).nullable(),
@@ -46,7 +51,9 @@ export type PublicClearanceFigure = z.infer<typeof publicClearanceFigureSchema>;
 export const publicClearanceSummarySchema = z.object({
   key: z.string(),
   name: z.string(),
-  unit: unitSchema,
+  /** What it is; results of other quantities than a length carry their figures in `unit`. */
+  quantity: z.enum(quantityKinds).default('length'),
+  unit: anyUnitSchema,
   first: publicClearanceFigureSchema,
   latest: publicClearanceFigureSchema,
   entries: z.array(publicClearanceFigureSchema),

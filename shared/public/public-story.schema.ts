@@ -7,10 +7,12 @@
  */
 import { z } from 'zod';
 import { DB_INTEGER_MAX, dbIdText, instantIdCursor, textWithoutNul } from '../http/db-values.schema';
-import { bandUmSchema, coverageResultFields } from '../clearances/clearance.schema';
+import { bandInUnitSchema, bandUmSchema, coverageResultFields } from '../clearances/clearance.schema';
 import { calibrationStates } from '../instruments/instrument.schema';
-import { calcInstrumentSchema, readingSchema as engineReadingSchema, unitSchema } from '../measure/calc.schema';
+import { anyUnitSchema, calcInstrumentSchema, readingSchema as engineReadingSchema } from '../measure/calc.schema';
 import { unitSystems } from '../measure/format';
+import { quantityKinds } from '../measure/quantities';
+import { readingUnitSchema } from '../measure/record-units';
 import { decisionRules, verdicts } from '../measure/spec';
 import { readingKinds, readingWarningSchema } from '../readings/reading.schema';
 import { storyTagsSchema } from '../stories/story.schema';
@@ -158,27 +160,40 @@ export const publicMomentSchema = z.object({
   posterUrl: z.string(),
 });
 
-/** A reading as judged: the texts as entered, the instrument, and the engine's working. */
+/**
+ * A reading as judged: the texts as entered, the instrument, and the engine's working. Any
+ * quantity: a length carries its figures in µm as well (`valueUm`…), every reading its estimate
+ * and uncertainties in its own unit (`estimate`…). Publications made before other quantities
+ * could be stored are lengths with the µm figures only; they still parse (`quantity` defaults to
+ * length, the figures in the unit are then absent).
+ */
 export const publicReadingSchema = z.object({
   id: z.number().int().positive(),
   key: z.string(),
   name: z.string(),
   kind: z.enum(readingKinds),
-  unit: unitSchema,
+  /** What it measures. */
+  quantity: z.enum(quantityKinds).default('length'),
+  unit: readingUnitSchema,
   /** The texts exactly as the builder typed them. */
   entered: z.record(z.string(), z.union([z.string(), z.array(z.string())])),
   value: z.string().nullable(),
   passes: z.string().nullable(),
   stops: z.string().nullable(),
   values: z.array(z.string()).nullable(),
-  /** "0.5642 in ± 0.00012 in (k = 2)". */
+  /** "0.5642 in ± 0.00012 in (k = 2)", "35 lbf·ft ± 1.2 lbf·ft (k = 2)". */
   display: z.string(),
   /** The same figure in the reader's system when `units` asks for the other one; null otherwise. */
   converted: z.string().nullable(),
-  valueUm: z.number(),
-  standardUncertaintyUm: z.number().nonnegative(),
+  /** Lengths only (null for any other quantity): the estimate, u and U in µm. */
+  valueUm: z.number().nullable(),
+  standardUncertaintyUm: z.number().nonnegative().nullable(),
   /** U = 2u, as claims are checked (GUM 6.2.1, 6.3.3). */
-  expandedUncertaintyUm: z.number().nonnegative(),
+  expandedUncertaintyUm: z.number().nonnegative().nullable(),
+  /** The estimate, u and U = 2u in `unit`, for every quantity (absent from older publications' pages). */
+  estimate: z.number().optional(),
+  standardUncertainty: z.number().nonnegative().optional(),
+  expandedUncertainty: z.number().nonnegative().optional(),
   steps: z.array(z.string()),
   takenOn: z.string(),
   temperatureC: z.number().nullable(),
@@ -190,7 +205,7 @@ export const publicReadingSchema = z.object({
     /** On the day of the reading, from the warnings recorded when it was judged. */
     calibration: z.enum(calibrationStates),
   }),
-  zeroCheck: z.object({ offset: z.string(), unit: unitSchema }).nullable(),
+  zeroCheck: z.object({ offset: z.string(), unit: readingUnitSchema }).nullable(),
   warnings: z.array(readingWarningSchema),
   moment: publicMomentSchema,
   checked: publicCheckSchema,
@@ -204,29 +219,58 @@ export const publicReadingSchema = z.object({
 });
 export type PublicReading = z.infer<typeof publicReadingSchema>;
 
-/** A clearance as judged: value, U, verdict by its rule against a cited spec version, and the working. */
+/**
+ * A result ("clearance") as judged: value, U, verdict by its rule against a cited spec version,
+ * and the working. A signed sum of readings or a formula over them, of any quantity: a length
+ * carries its figures in µm (`valueUm`…, `band`), every result its figures in `unit` (`value`…,
+ * `bandInUnit`). Older publications (lengths, µm only) still parse.
+ */
 export const publicClearanceSchema = z.object({
   id: z.number().int().positive(),
   key: z.string(),
   name: z.string(),
-  unit: unitSchema,
-  valueUm: z.number(),
-  standardUncertaintyUm: z.number().nonnegative(),
-  expandedUncertaintyUm: z.number().nonnegative(),
+  /** What it is; a ratio's unit is "1". */
+  quantity: z.enum(quantityKinds).default('length'),
+  unit: anyUnitSchema,
+  /** Lengths only (null for any other quantity): value, u and U in µm. */
+  valueUm: z.number().nullable(),
+  standardUncertaintyUm: z.number().nonnegative().nullable(),
+  expandedUncertaintyUm: z.number().nonnegative().nullable(),
+  /** Value, u, U and the coverage interval in `unit` (absent from older publications' pages). */
+  value: z.number().optional(),
+  standardUncertainty: z.number().nonnegative().optional(),
+  expandedUncertainty: z.number().nonnegative().optional(),
+  interval: z.tuple([z.number(), z.number()]).optional(),
   coverageFactor: z.number(),
-  /** "0.0047 in ± 0.00031 in (k = 2)". */
+  /** "0.0047 in ± 0.00031 in (k = 2)", "10.19 ± 0.11 (95 %, k = 2.03)". */
   display: z.string(),
   converted: z.string().nullable(),
   verdict: z.enum(verdicts).nullable(),
   preferredVerdict: z.enum(verdicts).nullable(),
   rejectVerdict: z.enum(verdicts).nullable(),
   rule: z.enum(decisionRules).nullable(),
-  /** The spec's limits in µm, for the band picture. */
+  /** The spec's limits in µm, for the band picture of a length. */
   band: bandUmSchema.nullable(),
+  /** The spec's limits in `unit`, for the band picture of any quantity. */
+  bandInUnit: bandInUnitSchema.nullable().optional(),
   spec: z
     .object({ name: z.string(), version: z.number().int().positive(), sourceKind: z.string(), sourceText: z.string() })
     .nullable(),
-  terms: z.array(z.object({ readingId: z.number().int().positive(), readingKey: z.string(), readingName: z.string(), sign: z.union([z.literal(1), z.literal(-1)]) })),
+  /** A formula's term symbols are the names the formula uses; a sum's terms carry their signs. */
+  terms: z.array(
+    z.object({
+      readingId: z.number().int().positive(),
+      readingKey: z.string(),
+      readingName: z.string(),
+      sign: z.union([z.literal(1), z.literal(-1)]),
+      symbol: z.string().nullable().optional(),
+    }),
+  ),
+  /** The formula over the terms' symbols and the constants; null (or absent) for a signed sum. */
+  formula: z.string().nullable().optional(),
+  constants: z.record(z.string(), z.object({ value: z.union([z.string(), z.number()]), unit: anyUnitSchema })).optional(),
+  /** The unit the builder asked the result in; null for the spec's or the natural one. */
+  resultUnit: anyUnitSchema.nullable().optional(),
   steps: z.array(z.string()),
   checked: publicCheckSchema,
   /** The second engine's figures; absent from clearances judged before it. */

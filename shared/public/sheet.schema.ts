@@ -4,10 +4,12 @@
  * that reads the same figures from the database again and says whether they are still current.
  */
 import { z } from 'zod';
-import { bandUmSchema } from '../clearances/clearance.schema';
+import { bandInUnitSchema, bandUmSchema } from '../clearances/clearance.schema';
 import { dbIdText } from '../http/db-values.schema';
 import { calibrationStates } from '../instruments/instrument.schema';
-import { unitSchema } from '../measure/calc.schema';
+import { anyUnitSchema } from '../measure/calc.schema';
+import { quantityKinds } from '../measure/quantities';
+import { readingUnitSchema } from '../measure/record-units';
 import { decisionRules, verdicts } from '../measure/spec';
 import { readingWarningSchema } from '../readings/reading.schema';
 import { publicBuilderRefSchema } from './public-story.schema';
@@ -42,7 +44,7 @@ export const sheetPublicationSchema = z.object({
 export const sheetReadingSchema = z.object({
   key: z.string(),
   name: z.string(),
-  /** As judged (after a zero offset), in the reading's unit: "3.5 thou". */
+  /** As judged (after a zero offset), in the reading's unit: "3.5 thou", "35 lbf·ft". */
   display: z.string(),
   /** The figures as read off the instrument, before any zero offset: "0.5595 in", "blade 0.003 enters, 0.004 does not (in)". */
   read: z.string(),
@@ -56,8 +58,8 @@ export const sheetReadingSchema = z.object({
   /** The instrument's serial from the builder's register ('' when none is recorded). */
   instrumentSerial: z.string(),
   takenOn: z.string(),
-  /** The zero check of that instrument on that day whose offset was taken off: "+0.0001 in". */
-  zeroOffset: z.object({ offset: z.string(), unit: unitSchema, text: z.string() }).nullable(),
+  /** The zero check of that instrument on that day whose offset was taken off: "+0.0001 in", "−0.5 psi". */
+  zeroOffset: z.object({ offset: z.string(), unit: readingUnitSchema, text: z.string() }).nullable(),
   /** The instrument is zero-checked, yet no check was recorded on the day (the reading says so). */
   zeroCheckMissing: z.boolean(),
   checkedBy: z.string(),
@@ -69,11 +71,17 @@ export type SheetReading = z.infer<typeof sheetReadingSchema>;
 export const sheetClearanceSchema = z.object({
   key: z.string(),
   name: z.string(),
-  unit: unitSchema,
-  valueUm: z.number(),
-  expandedUncertaintyUm: z.number().nonnegative(),
+  /** What it is; a ratio's unit is "1". Sheets printed before other quantities are lengths. */
+  quantity: z.enum(quantityKinds).default('length'),
+  unit: anyUnitSchema,
+  /** Lengths only (null for any other quantity): the value and U in µm. */
+  valueUm: z.number().nullable(),
+  expandedUncertaintyUm: z.number().nonnegative().nullable(),
+  /** The value and U in `unit`, for every quantity. */
+  value: z.number().optional(),
+  expandedUncertainty: z.number().nonnegative().optional(),
   coverageFactor: z.number(),
-  /** "0.0047 in ± 0.00031 in (k = 2)". */
+  /** "0.0047 in ± 0.00031 in (k = 2)", "10.19 ± 0.11 (95 %, k = 2.03)". */
   display: z.string(),
   verdict: z.enum(verdicts).nullable(),
   /** "within spec", "out of spec", "too close to call" (or "no spec"). */
@@ -84,9 +92,11 @@ export const sheetClearanceSchema = z.object({
   rule: z.enum(decisionRules).nullable(),
   ruleText: z.string().nullable(),
   spec: z.object({ name: z.string(), version: z.number().int().positive(), sourceKind: z.string(), sourceText: z.string() }).nullable(),
-  /** The spec's limits in µm, as judged. */
+  /** The spec's limits in µm, as judged (lengths only). */
   band: bandUmSchema.nullable(),
-  /** The limits written out in the clearance's unit: "0.0015–0.0040 in"; null where the spec has none. */
+  /** The spec's limits in `unit`, as judged (any quantity). */
+  bandInUnit: bandInUnitSchema.nullable().optional(),
+  /** The limits written out in the clearance's unit: "0.0015–0.0040 in", "9.5–10.5"; null where the spec has none. */
   limits: z.object({ band: z.string().nullable(), preferred: z.string().nullable(), reject: z.string().nullable() }),
   /** The preferred band and reject limit in plain words: "Outside the preferred band 0.0020–0.0030 in.". */
   limitFacts: z.array(z.string()),

@@ -6,8 +6,11 @@
  * the verification page is a reader's first load.
  */
 import { formatLimit, formatLimitSpan, limitDecimals } from '../measure/format';
+import { convertedDecimalsIn, formatValue, withUnit } from '../measure/format-quantity';
+import { convertNumber, type AnyUnit } from '../measure/quantities';
 import type { Verdict } from '../measure/spec';
 import { micrometresToPicometres, type LengthUnit } from '../measure/units';
+import { decimalsOfNumber } from './quantity-figures';
 
 /** A spec's limits in µm, as a clearance result carries them (`bandUmSchema`). */
 export interface SpecLimitsUm {
@@ -47,6 +50,39 @@ export function specLimitTexts(limits: SpecLimitsUm, writtenIn: LengthUnit, show
     band: min === null && max === null ? null : formatLimitSpan(min, max, shownIn, decimals),
     preferred: hasPreferred ? formatLimitSpan(preferredMin, preferredMax, shownIn, decimals) : null,
     reject: reject === null ? null : formatLimit(reject, shownIn, decimals),
+  };
+}
+
+/** A spec's limits in a result's own unit, as a result of any quantity carries them (`bandInUnitSchema`). */
+export interface SpecLimitsInUnit {
+  min: number | null;
+  max: number | null;
+  preferredMin: number | null;
+  preferredMax: number | null;
+  reject: number | null;
+}
+
+/**
+ * The limits of a spec of any quantity, given in `writtenIn` (the result's unit), shown in
+ * `shownIn`: every limit at the places the finest of them needs, converted by NIST SP 811 B.7.2
+ * (`convertedDecimalsIn`): "9.5–10.5" (a ratio), "at most 180 psi", "1241–1379 kPa".
+ */
+export function specLimitTextsIn(limits: SpecLimitsInUnit, writtenIn: AnyUnit, shownIn: AnyUnit = writtenIn): SpecLimitTexts {
+  const hasPreferred = limits.preferredMin !== null || limits.preferredMax !== null;
+  const preferredMin = hasPreferred ? (limits.preferredMin ?? limits.min) : null;
+  const preferredMax = hasPreferred ? (limits.preferredMax ?? limits.max) : null;
+  const all = [limits.min, limits.max, preferredMin, preferredMax, limits.reject].filter((v): v is number => v !== null);
+  const written = Math.max(0, ...all.map(decimalsOfNumber));
+  const decimals = convertedDecimalsIn(written, writtenIn, shownIn);
+  const number = (v: number) => formatValue(writtenIn === shownIn ? v : convertNumber(v, writtenIn, shownIn), '1', decimals);
+  const text = (v: number) => withUnit(number(v), shownIn);
+  // "9.5–10.5", "1241–1379 kPa": the symbol once, after the span.
+  const span = (min: number | null, max: number | null): string =>
+    min !== null && max !== null ? withUnit(`${number(min)}–${number(max)}`, shownIn) : min !== null ? `at least ${text(min)}` : `at most ${text(max!)}`;
+  return {
+    band: limits.min === null && limits.max === null ? null : span(limits.min, limits.max),
+    preferred: hasPreferred && (preferredMin !== null || preferredMax !== null) ? span(preferredMin, preferredMax) : null,
+    reject: limits.reject === null ? null : text(limits.reject),
   };
 }
 

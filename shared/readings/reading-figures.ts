@@ -7,16 +7,22 @@ import type { InstrumentKind } from '../instruments/instrument.schema';
 import { readingSchema as engineReadingSchema, type CalcInstrument, type Reading as EngineReading } from '../measure/calc.schema';
 import type { EngineInstrument } from '../measure/instrument-map';
 import { formatNumber } from '../measure/format';
+import { Fraction, fractionOfDecimal, fractionToExactText, fractionToFixed } from '../measure/exact';
 import { picometresToExactText } from '../measure/length-text';
-import { parseLength, type EnteredLength } from '../measure/parse';
 import { parseDecimalText } from '../measure/decimal';
-import { decimalToPicometres, maxExactDecimals, picometresPerUnit, type LengthUnit, unitSymbols } from '../measure/units';
+import { convertExact, quantityOf, unitTable, type AnyUnit } from '../measure/quantities';
+import { parseFigureText, typedUnitOfFigure, MAX_OTHER_DECIMALS, type EnteredFigure } from '../measure/quantity-text';
+import { nonNegativeQuantities, type ReadingUnit } from '../measure/record-units';
+import { decimalToPicometres, isLengthUnit, maxExactDecimals, picometresPerUnit, type LengthUnit } from '../measure/units';
 import type { ReadingKind, ReadingWarning } from './reading.schema';
 import { bracketOrderMessage, engineMessageInFormWords, missingFigureMessages, mixedUnitsMessage, notOfKindMessage, TOO_FEW_VALUES_MESSAGE } from './reading-words';
 
+/** A unit's symbol as a refusal shows it. */
+const symbolOf = (unit: AnyUnit) => unitTable[unit].symbol || 'no unit';
+
 /** A reading's figures as stored: decimal text in `unit`, and the texts exactly as typed. */
 export interface ReadingFigures {
-  unit: LengthUnit;
+  unit: ReadingUnit;
   value: string | null;
   passes: string | null;
   stops: string | null;
@@ -41,10 +47,9 @@ const fieldsOfKind: Readonly<Record<ReadingKind, readonly FigureField[]>> = {
   repeated: ['values'],
 };
 
-/** True when the text carries a unit of its own (parsing it without a default unit succeeds). */
-function typedUnitOf(text: string): LengthUnit | null {
-  const alone = parseLength(text);
-  return alone.ok ? alone.length.unit : null;
+/** The unit typed in the text, if any (parsing it without a default unit succeeds). */
+function typedUnitOf(text: string): AnyUnit | null {
+  return typedUnitOfFigure(text);
 }
 
 /**
@@ -56,8 +61,8 @@ function typedUnitOf(text: string): LengthUnit | null {
  * refuses. Messages use the form's words; paths keep the API's field names.
  */
 export function normaliseReadingFigures(
-  input: { kind: ReadingKind; unit?: LengthUnit; value?: string; passes?: string; stops?: string; values?: string[] },
-  instrument: { unit: LengthUnit; kind: InstrumentKind },
+  input: { kind: ReadingKind; unit?: ReadingUnit; value?: string; passes?: string; stops?: string; values?: string[] },
+  instrument: { unit: ReadingUnit; kind: InstrumentKind },
 ): FiguresResult {
   const problems: { path: string; message: string }[] = [];
   const texts: { path: string; field: FigureField; text: string }[] = [];
@@ -78,58 +83,70 @@ export function normaliseReadingFigures(
     }
   }
 
+  // What the instrument measures: every figure of its readings is of that quantity.
+  const quantity = quantityOf(instrument.unit);
+  if (input.kind === 'bracket' && quantity !== 'length') {
+    problems.push({ path: 'kind', message: 'a feeler bracket measures a gap: this instrument does not read a length, so log one indication or repeated values' });
+  }
   // First pass: which units were typed. Unreadable texts are reported here, once.
-  const fallback = input.unit ?? instrument.unit;
-  let typed: { unit: LengthUnit; path: string } | null = null;
+  const fallback: ReadingUnit = input.unit !== undefined && quantityOf(input.unit) === quantity ? input.unit : instrument.unit;
+  if (input.unit !== undefined && quantityOf(input.unit) !== quantity) {
+    problems.push({ path: 'unit', message: `${unitTable[input.unit].name} is not what this instrument reads: it reads ${quantity} (${symbolOf(instrument.unit)})` });
+  }
+  let typed: { unit: ReadingUnit; path: string } | null = null;
   const readable: typeof texts = [];
   for (const t of texts) {
-    const parsed = parseLength(t.text, { defaultUnit: fallback });
+    const parsed = parseFigureText(t.text, { defaultUnit: fallback, quantity });
     if (!parsed.ok) {
       problems.push({ path: t.path, message: parsed.message });
       continue;
     }
-    const own = typedUnitOf(t.text);
+    const own = typedUnitOf(t.text) as ReadingUnit | null;
     if (own !== null) {
       if (typed === null) typed = { unit: own, path: t.path };
       else if (typed.unit !== own) {
-        problems.push({ path: t.path, message: mixedUnitsMessage(input.kind, unitSymbols[own], typed.path, unitSymbols[typed.unit]) });
+        problems.push({ path: t.path, message: mixedUnitsMessage(input.kind, symbolOf(own), typed.path, symbolOf(typed.unit)) });
         continue;
       }
     }
     readable.push(t);
   }
-  const unit: LengthUnit = typed?.unit ?? fallback;
+  const unit: ReadingUnit = typed?.unit ?? fallback;
 
   // Second pass: every text read in the reading's unit (a text without a unit takes it).
-  const lengths = new Map<string, EnteredLength>();
+  const lengths = new Map<string, EnteredFigure>();
   for (const t of readable) {
-    const parsed = parseLength(t.text, { defaultUnit: unit });
+    const parsed = parseFigureText(t.text, { defaultUnit: unit, quantity });
     if (!parsed.ok) {
       problems.push({ path: t.path, message: parsed.message });
       continue;
     }
-    const length = parsed.length;
-    if (length.pm < 0n) {
+    const figure = parsed.figure;
+    if (figure.value.s < 0n && figure.value.n !== 0n) {
       if (input.kind === 'bracket') {
         problems.push({ path: t.path, message: 'a feeler blade cannot be thinner than nothing; enter its thickness as marked' });
         continue;
       }
-      if (!deviationKinds.has(instrument.kind)) {
+      if (quantity === 'length' && !deviationKinds.has(instrument.kind)) {
         problems.push({
           path: t.path,
           message: 'a length cannot be negative: enter it without the minus sign (only a dial test indicator or a dial bore gauge reads below zero)',
         });
         continue;
       }
+      if (quantity !== 'length' && nonNegativeQuantities.has(quantity)) {
+        problems.push({ path: t.path, message: `a ${quantity} cannot be negative: enter it without the minus sign` });
+        continue;
+      }
     }
-    lengths.set(t.path, length);
+    lengths.set(t.path, figure);
   }
 
   if (input.kind === 'bracket') {
     const passes = lengths.get('passes');
     const stops = lengths.get('stops');
-    if (passes && stops && stops.pm <= passes.pm) {
-      problems.push({ path: 'stops', message: bracketOrderMessage(`${passes.text} ${unitSymbols[unit]}`, `${stops.text} ${unitSymbols[unit]}`) });
+    if (passes && stops && stops.value.lte(passes.value)) {
+      problems.push({ path: 'stops', message: bracketOrderMessage(`${passes.text} ${symbolOf(unit)}`, `${stops.text} ${symbolOf(unit)}`) });
     }
   }
   if (problems.length) return { ok: false, problems };
@@ -161,7 +178,8 @@ function bareEngineReading(kind: ReadingKind, f: Pick<ReadingFigures, 'unit' | '
     case 'direct':
       return { kind, value: f.value ?? '', unit: f.unit };
     case 'bracket':
-      return { kind, passes: f.passes ?? '', stops: f.stops ?? '', unit: f.unit };
+      // Only lengths come here: a bracket of another quantity is refused before.
+      return { kind, passes: f.passes ?? '', stops: f.stops ?? '', unit: f.unit as LengthUnit };
     case 'repeated':
       return { kind, values: f.values ?? [], unit: f.unit };
   }
@@ -174,28 +192,41 @@ function pmOfText(text: string, unit: LengthUnit): bigint | null {
 }
 
 /**
- * A length moved into `unit`: exact when it can be, else rounded (half away from zero) to the
- * unit's finest exact place, and never to zero for a step that must be positive.
+ * A step or offset (a difference: no °C/°F offset) moved into `unit`: exact when it can be, else
+ * rounded (half away from zero) to the unit's finest exact place (lengths) or to 12 places, and
+ * never to zero for a step that must be positive. Null across quantities or for unreadable text.
  */
 function convertInto(
   text: string,
-  from: LengthUnit,
-  to: LengthUnit,
+  from: AnyUnit,
+  to: AnyUnit,
   opts: { positive?: boolean } = {},
 ): { text: string; exact: boolean; shownFrom: string; shownTo: string } | null {
-  const pm = pmOfText(text, from);
-  if (pm === null) return null;
-  const exactText = picometresToExactText(pm, to);
-  const places = maxExactDecimals[to];
-  let out = exactText ?? formatNumber(pm, to, places).replace('−', '-');
-  if (opts.positive && pmOfText(out, to) === 0n) out = formatNumber(picometresPerUnit[to] / 10n ** BigInt(places), to, places);
-  return { text: out, exact: exactText !== null, shownFrom: `${text.trim()} ${unitSymbols[from]}`, shownTo: `${out} ${unitSymbols[to]}` };
+  if (quantityOf(from) !== quantityOf(to)) return null;
+  const shown = (t: string, u: AnyUnit) => `${t} ${symbolOf(u)}`;
+  if (isLengthUnit(from) && isLengthUnit(to)) {
+    const pm = pmOfText(text, from);
+    if (pm === null) return null;
+    const exactText = picometresToExactText(pm, to);
+    const places = maxExactDecimals[to];
+    let out = exactText ?? formatNumber(pm, to, places).replace('−', '-');
+    if (opts.positive && pmOfText(out, to) === 0n) out = formatNumber(picometresPerUnit[to] / 10n ** BigInt(places), to, places);
+    return { text: out, exact: exactText !== null, shownFrom: shown(text.trim(), from), shownTo: shown(out, to) };
+  }
+  const decimal = parseDecimalText(text.trim());
+  if (!decimal) return null;
+  const value = from === to ? fractionOfDecimal(decimal) : convertExact(fractionOfDecimal(decimal), from, to, { difference: true });
+  const exactText = fractionToExactText(value);
+  const fits = exactText !== null && (exactText.split('.')[1]?.length ?? 0) <= MAX_OTHER_DECIMALS;
+  let out = fits ? exactText : fractionToFixed(value, MAX_OTHER_DECIMALS, { minus: '-' }).replace(/0+$/, '').replace(/\.$/, '');
+  if (opts.positive && new Fraction(out).n === 0n) out = `0.${'0'.repeat(MAX_OTHER_DECIMALS - 1)}1`;
+  return { text: out, exact: fits, shownFrom: shown(text.trim(), from), shownTo: shown(out, to) };
 }
 
 /** What the register holds of an instrument that the engine needs. */
 export interface RegisterInstrument {
   id?: number;
-  unit: LengthUnit;
+  unit: ReadingUnit;
   kind: InstrumentKind;
   resolution: string;
   statedUncertainty: string | null;
@@ -236,7 +267,7 @@ export function engineInstrumentOf(instrument: RegisterInstrument): EngineInstru
 export function engineReadingProblems(engine: EngineReading): { path: string; message: string }[] {
   const result = engineReadingSchema.safeParse(engine);
   if (result.success) return [];
-  const bracket = engine.kind === 'bracket' ? { passes: String(engine.passes), stops: String(engine.stops), unit: unitSymbols[engine.unit] } : undefined;
+  const bracket = engine.kind === 'bracket' ? { passes: String(engine.passes), stops: String(engine.stops), unit: symbolOf(engine.unit) } : undefined;
   return result.error.issues.map((issue) => ({
     path: fieldPathOf(issue.path),
     message: engineMessageInFormWords(issue.path.map(String).join('.'), issue.message, bracket),
@@ -252,25 +283,25 @@ export function engineReadingProblems(engine: EngineReading): { path: string; me
 export function toEngineReading(
   stored: ReadingFigures & { kind: ReadingKind; temperatureC: number | null; material: string | null },
   instrument: RegisterInstrument,
-  zero: { offset: string; unit: LengthUnit } | null,
+  zero: { offset: string; unit: ReadingUnit } | null,
 ): { engine: EngineReading; warnings: ReadingWarning[]; instrument: EngineInstrument | null } {
   const shared = engineInstrumentOf(instrument);
   const withInstrument = (engine: EngineReading): EngineReading => (shared ? { ...engine, instrument: shared.name } : engine);
   const warnings: ReadingWarning[] = [];
   const unit = stored.unit;
-  const take = (what: string, text: string, from: LengthUnit, positive = false): string | undefined => {
+  const take = (what: string, text: string, from: AnyUnit, positive = false): string | undefined => {
     const c = convertInto(text, from, unit, { positive });
     if (!c) return undefined;
     if (!c.exact) {
       warnings.push({
         code: 'resolution-converted',
-        message: `The ${what} ${c.shownFrom} has no exact value in ${unitSymbols[unit]} (this reading's unit); it was rounded to ${c.shownTo}.`,
+        message: `The ${what} ${c.shownFrom} has no exact value in ${symbolOf(unit)} (this reading's unit); it was rounded to ${c.shownTo}.`,
       });
     }
     return c.text;
   };
 
-  if (stored.kind === 'bracket') {
+  if (stored.kind === 'bracket' && isLengthUnit(unit)) {
     return { engine: withInstrument({ kind: 'bracket', passes: stored.passes ?? '', stops: stored.stops ?? '', unit }), warnings, instrument: shared };
   }
   const resolution = take("instrument's resolution", instrument.resolution, instrument.unit, true);
@@ -283,10 +314,12 @@ export function toEngineReading(
     ...(zeroOffset !== undefined && { zeroOffset }),
   };
   // The temperature goes with every kind that can be corrected, repeated readings included.
-  const thermal = {
-    ...(stored.temperatureC !== null && stored.material !== null && { temperatureC: stored.temperatureC }),
-    ...(stored.material !== null && { material: stored.material }),
-  };
+  const thermal = isLengthUnit(unit)
+    ? {
+        ...(stored.temperatureC !== null && stored.material !== null && { temperatureC: stored.temperatureC }),
+        ...(stored.material !== null && { material: stored.material }),
+      }
+    : {};
   if (stored.kind === 'direct') {
     return { engine: withInstrument({ kind: 'direct', value: stored.value ?? '', unit, ...extras, ...thermal }), warnings, instrument: shared };
   }

@@ -4,7 +4,9 @@
  */
 import { z } from 'zod';
 import { dbIdText, dbPositiveInteger, textWithoutNul } from '../http/db-values.schema';
-import { calcInstrumentSchema, readingKeySchema, readingSchema as engineReadingSchema, TEMPERATURE_RANGE_C, unitSchema } from '../measure/calc.schema';
+import { calcInstrumentSchema, readingKeySchema, readingSchema as engineReadingSchema, TEMPERATURE_RANGE_C } from '../measure/calc.schema';
+import { quantityKinds } from '../measure/quantities';
+import { readingUnitSchema } from '../measure/record-units';
 import { materialNames } from '../measure/thermal';
 import { isoDateSchema } from '../instruments/instrument.schema';
 import { missingFigureMessages, notOfKindMessage, TOO_FEW_VALUES_MESSAGE } from './reading-words';
@@ -20,13 +22,13 @@ export type ReviewState = (typeof reviewStates)[number];
 /** Most values in one repeated reading entered by hand. */
 export const MAX_ENTERED_REPEATS = 50;
 
-/** A length as typed, refused in the words of its box when empty ("enter the thickest blade that enters"). */
+/** A figure as typed, refused in the words of its box when empty ("enter the thickest blade that enters"). */
 function figureText(missing: string) {
   return z
     .string({ error: missing })
     .trim()
     .min(1, missing)
-    .max(64, 'that is too long for a length: enter the number and its unit, e.g. 0.0035 in');
+    .max(64, 'that is too long for a figure: enter the number and its unit, e.g. 0.0035 in or 64.2 cc');
 }
 
 const readingFields = {
@@ -40,7 +42,7 @@ const readingFields = {
     error: 'choose how it was read: “One indication”, “Feeler bracket” or “Repeated” (kind "direct", "bracket" or "repeated")',
   }),
   /** Unit for texts typed without one; defaults to the instrument's. A unit typed in the text wins. */
-  unit: unitSchema,
+  unit: readingUnitSchema,
   /** direct: the indication as shown ("0.5642", "0.5642 in", "564.2 thou"). */
   value: figureText(missingFigureMessages.value),
   /** bracket: the thickest blade that enters. */
@@ -138,10 +140,19 @@ export const readingWarningCodes = ['calibration-overdue', 'no-calibration-recor
 export const readingWarningSchema = z.object({ code: z.enum(readingWarningCodes), message: z.string() });
 export type ReadingWarning = z.infer<typeof readingWarningSchema>;
 
-/** What the engine made of a reading: estimate and standard uncertainty (µm), display text and working. */
+/**
+ * What the engine made of a reading: estimate and standard uncertainty in the reading's unit
+ * (and in µm for a length), display text and working.
+ */
 export const readingResultSchema = z.object({
-  valueUm: z.number(),
-  standardUncertaintyUm: z.number().nonnegative(),
+  /** What the reading measures; lengths only before other quantities could be stored. */
+  quantity: z.enum(quantityKinds).default('length'),
+  /** Lengths only (null otherwise): the estimate and u in µm. */
+  valueUm: z.number().nullable(),
+  standardUncertaintyUm: z.number().nonnegative().nullable(),
+  /** The estimate and its standard uncertainty in the reading's unit. */
+  value: z.number().optional(),
+  standardUncertainty: z.number().nonnegative().optional(),
   /** "0.5642 in" at the reading's display step. */
   display: z.string(),
   steps: z.array(z.string()),
@@ -164,7 +175,7 @@ export const readingSchema = z.object({
   key: z.string(),
   name: z.string(),
   kind: z.enum(readingKinds),
-  unit: unitSchema,
+  unit: readingUnitSchema,
   value: z.string().nullable(),
   passes: z.string().nullable(),
   stops: z.string().nullable(),
@@ -177,7 +188,7 @@ export const readingSchema = z.object({
   takenOn: z.string(),
   reviewState: z.enum(reviewStates),
   /** The zero check of that instrument on that day whose offset was applied, if any. */
-  zeroCheck: z.object({ id: z.number().int().positive(), offset: z.string(), unit: unitSchema }).nullable(),
+  zeroCheck: z.object({ id: z.number().int().positive(), offset: z.string(), unit: readingUnitSchema }).nullable(),
   /** The engine's input for this reading (instrument resolution, stated uncertainty, zero offset filled in). */
   engine: engineReadingSchema,
   /** The instrument entry `engine.instrument` names, when the register gives it a calibration, MPE or setting standard. */
@@ -239,6 +250,8 @@ export const readingCsvColumns = [
   'warnings',
   'note',
   'logged_by',
+  /** In the reading's unit, for every quantity (the µm column is for lengths only). */
+  'standard_uncertainty',
 ] as const;
 
 /** A key from a reading's name: "Bore depth, as supplied" → "bore-depth-as-supplied". */

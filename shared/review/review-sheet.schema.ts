@@ -5,6 +5,8 @@
  */
 import { z } from 'zod';
 import { clearanceSchema } from '../clearances/clearance.schema';
+import { anyUnitSchema } from '../measure/calc.schema';
+import { quantityKinds } from '../measure/quantities';
 import { verdicts } from '../measure/spec';
 import { readingSchema } from '../readings/reading.schema';
 import { changesRequestedSchema, storyStates } from '../stories/story.schema';
@@ -14,7 +16,7 @@ import { evidenceCheckSchema, publishBlockerSchema } from './review.schema';
 export const claimStatusSchema = z.discriminatedUnion('state', [
   z.object({ state: z.literal('ok') }),
   z.object({ state: z.literal('unknown-target'), message: z.string() }),
-  z.object({ state: z.literal('number-disagrees'), message: z.string(), statedUm: z.number() }),
+  z.object({ state: z.literal('number-disagrees'), message: z.string(), statedUm: z.number().nullable() }),
   z.object({ state: z.literal('verdict-disagrees'), message: z.string() }),
 ]);
 
@@ -46,9 +48,15 @@ export const asPublishedSchema = z.object({
   revision: z.number().int().positive(),
   verdict: z.enum(verdicts).nullable(),
   display: z.string(),
-  valueUm: z.number(),
-  expandedUncertaintyUm: z.number().nonnegative(),
+  /** Lengths only (null for any other quantity, which the sheet reads by `display` and the figures below). */
+  valueUm: z.number().nullable(),
+  expandedUncertaintyUm: z.number().nonnegative().nullable(),
   method: z.enum(['gum', 'monte-carlo']).nullable(),
+  /** The value and U in the published result's unit; absent from sheets made before. */
+  quantity: z.enum(quantityKinds).optional(),
+  unit: anyUnitSchema.optional(),
+  value: z.number().optional(),
+  expandedUncertainty: z.number().nonnegative().optional(),
 });
 export type AsPublished = z.infer<typeof asPublishedSchema>;
 

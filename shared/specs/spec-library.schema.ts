@@ -5,26 +5,29 @@
  */
 import { z } from 'zod';
 import { dbIdText, dbPositiveInteger, textWithoutNul } from '../http/db-values.schema';
-import { unitSchema } from '../measure/calc.schema';
-import { lengthTextIn, lengthTextSchema } from '../measure/length-text';
+import { figureTextIn } from '../measure/quantity-text';
+import { specUnitSchema } from '../measure/record-units';
 import { decisionRules, DEFAULT_DECISION_RULE } from '../measure/spec';
 import { specSchema as engineSpecSchema, specSourceSchema, type Spec as EngineSpec } from '../measure/spec.schema';
 
-/** The figures of one version, as typed. */
+/** A limit as typed. */
+const limitText = z.string({ error: 'enter a figure' }).trim().min(1, 'enter a figure').max(64, 'that is too long for a figure');
+
+/** The figures of one version, as typed: a length, another quantity, or a ratio (unit "1"). */
 const versionFields = {
-  unit: unitSchema,
-  min: lengthTextSchema.nullable().default(null),
-  max: lengthTextSchema.nullable().default(null),
-  preferredMin: lengthTextSchema.nullable().default(null),
-  preferredMax: lengthTextSchema.nullable().default(null),
-  reject: lengthTextSchema.nullable().default(null),
+  unit: specUnitSchema,
+  min: limitText.nullable().default(null),
+  max: limitText.nullable().default(null),
+  preferredMin: limitText.nullable().default(null),
+  preferredMax: limitText.nullable().default(null),
+  reject: limitText.nullable().default(null),
   rule: z.enum(decisionRules, { error: 'rule must be "guarded" or "simple"' }).default(DEFAULT_DECISION_RULE),
   source: specSourceSchema,
   note: z.string().trim().max(2000, 'at most 2000 characters').default(''),
 };
 
 type VersionFigures = {
-  unit: z.infer<typeof unitSchema>;
+  unit: z.infer<typeof specUnitSchema>;
   min: string | null;
   max: string | null;
   preferredMin: string | null;
@@ -58,8 +61,8 @@ function refineFigures(v: VersionFigures, ctx: z.RefinementCtx) {
 const figureFields = ['min', 'max', 'preferredMin', 'preferredMax', 'reject'] as const;
 
 /**
- * The figures with each length as plain decimal text in the unit ("0.003 in" → "0.003"), as
- * they are stored; or the fields that are not lengths in the unit.
+ * The figures as plain decimal text in the unit ("0.003 in" → "0.003", "10.2:1" → "10.2"), as
+ * they are stored; or the fields that are not figures in the unit.
  */
 export function normaliseSpecFigures<T extends VersionFigures>(
   v: T,
@@ -69,7 +72,7 @@ export function normaliseSpecFigures<T extends VersionFigures>(
   for (const field of figureFields) {
     const text = v[field];
     if (text === null) continue;
-    const parsed = lengthTextIn(text, v.unit);
+    const parsed = figureTextIn(text, v.unit);
     if (parsed.ok) figures[field] = parsed.text;
     else problems.push([field, parsed.message]);
   }
@@ -108,7 +111,7 @@ export const specVersionSchema = z.object({
   id: z.number().int().positive(),
   specId: z.number().int().positive(),
   version: z.number().int().positive(),
-  unit: unitSchema,
+  unit: specUnitSchema,
   min: z.string().nullable(),
   max: z.string().nullable(),
   preferredMin: z.string().nullable(),

@@ -4,7 +4,7 @@
  */
 
 /** The kinds of caution a builder can put in a story. */
-export const cautionKinds = ['machining', 'solvents', 'running-engine', 'lifting', 'pressure', 'electrical', 'hot-parts'] as const;
+export const cautionKinds = ['machining', 'solvents', 'running-engine', 'lifting', 'pressure', 'electrical', 'hot-parts', 'fasteners'] as const;
 
 /** A kind of caution. */
 export type CautionKind = (typeof cautionKinds)[number];
@@ -43,6 +43,10 @@ export const cautionTexts: Readonly<Record<CautionKind, { title: string; text: s
   'hot-parts': {
     title: 'Hot parts',
     text: 'Engines, exhausts and heated parts stay hot long after they look cool. Use heat-resistant gloves and tongs, and let parts cool before measuring them (a hot part also measures large).',
+  },
+  fasteners: {
+    title: 'Torquing fasteners',
+    text: 'Torque to the manufacturer’s figures, in their sequence and stages, on threads prepared as the manual says (clean, oiled or dry). A wrench out of calibration, a skipped stage or a reused stretch bolt can strip a thread, warp a head or let a joint leak.',
   },
 };
 

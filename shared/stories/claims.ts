@@ -9,13 +9,20 @@
  */
 import markdownIt, { type Env, type MarkdownIt, type StateCore, type StateInline, type Token } from 'markdown-it';
 import container from 'markdown-it-container';
-import type { Clearance as ClearanceDto } from '../clearances/clearance.schema';
+
 import type { Reading as ReadingDto } from '../readings/reading.schema';
 import { readingKeySchema } from '../measure/calc.schema';
 import { formatNumber, formatUncertainty, symbolFor } from '../measure/format';
 import { verdictWords, type Verdict } from '../measure/spec';
 import { micrometresToPicometres, picometresPerUnit, type LengthUnit } from '../measure/units';
+import { convertExact, quantityOf, unitTable, type AnyUnit, type QuantityKind } from '../measure/quantities';
+import { Fraction, fractionOfDecimal, fractionToFixed } from '../measure/exact';
+import { parseDecimalText } from '../measure/decimal';
+import { formatUncertaintyIn } from '../measure/format-quantity';
+import { otherUnitAliases } from '../measure/quantity-text';
 import { findStatedLengths, type StatedLength } from './number-words';
+import type { Clearance as ClearanceDto } from '../clearances/clearance.schema';
+import { resultFigures } from '../clearances/result-figures';
 
 /** The kinds of evidence a claim can link to. */
 export const claimKinds = ['reading', 'clearance'] as const;
@@ -50,7 +57,12 @@ export interface ClaimTarget {
   kind: ClaimKind;
   key: string;
   name: string;
-  unit: LengthUnit;
+  /** What the figure measures; its figures are in `unit` (and in µm for a length). */
+  quantity: QuantityKind;
+  unit: AnyUnit;
+  value: number;
+  expandedUncertainty: number;
+  /** Lengths: the value and U in µm (0 for any other quantity, never read for one). */
   valueUm: number;
   expandedUncertaintyUm: number;
   display: string;
@@ -65,7 +77,7 @@ export interface ClaimTarget {
 export type ClaimStatus =
   | { state: 'ok' }
   | { state: 'unknown-target'; message: string }
-  | { state: 'number-disagrees'; message: string; statedUm: number }
+  | { state: 'number-disagrees'; message: string; statedUm: number | null }
   | { state: 'verdict-disagrees'; message: string };
 
 /** The map key of a target: `reading:bore-depth`. */
@@ -341,15 +353,23 @@ export function claimTargetsFrom(readings: readonly ReadingDto[], clearances: re
   const targets = new Map<string, ClaimTarget>();
   for (const reading of readings) {
     // A reading is quoted at k = 2, like a clearance's default (GUM 6.2.1, 6.3.3).
-    const expanded = 2 * reading.result.standardUncertaintyUm;
+    const quantity = reading.result.quantity ?? 'length';
+    const isLength = quantity === 'length' && reading.result.valueUm !== null;
+    const expandedUm = 2 * (reading.result.standardUncertaintyUm ?? 0);
+    const expanded = isLength
+      ? expandedUm / (Number(picometresPerUnit[reading.unit as LengthUnit]) / 1e6)
+      : 2 * (reading.result.standardUncertainty ?? 0);
     targets.set(claimTargetKey('reading', reading.key), {
       kind: 'reading',
       key: reading.key,
       name: reading.name,
+      quantity,
       unit: reading.unit,
-      valueUm: reading.result.valueUm,
-      expandedUncertaintyUm: expanded,
-      display: `${reading.result.display} ± ${formatUncertainty(expanded, reading.unit)} (k = 2)`,
+      value: isLength ? (reading.result.valueUm ?? 0) / (Number(picometresPerUnit[reading.unit as LengthUnit]) / 1e6) : (reading.result.value ?? 0),
+      expandedUncertainty: expanded,
+      valueUm: reading.result.valueUm ?? 0,
+      expandedUncertaintyUm: isLength ? expandedUm : 0,
+      display: `${reading.result.display} ± ${isLength ? formatUncertainty(expandedUm, reading.unit as LengthUnit) : formatUncertaintyIn(expanded, reading.unit)} (k = 2)`,
       verdict: null,
       momentId: reading.momentId,
       clipId: reading.clipId,
@@ -360,13 +380,17 @@ export function claimTargetsFrom(readings: readonly ReadingDto[], clearances: re
   for (const clearance of clearances) {
     const result = clearance.result;
     if (!result) continue;
+    const figures = resultFigures(result);
     targets.set(claimTargetKey('clearance', clearance.key), {
       kind: 'clearance',
       key: clearance.key,
       name: clearance.name,
+      quantity: figures.quantity ?? 'length',
       unit: result.unit,
-      valueUm: result.valueUm,
-      expandedUncertaintyUm: result.expandedUncertaintyUm,
+      value: figures.value,
+      expandedUncertainty: figures.expandedUncertainty,
+      valueUm: result.valueUm ?? 0,
+      expandedUncertaintyUm: result.expandedUncertaintyUm ?? 0,
       display: result.display,
       verdict: result.verdict,
       momentId: null,
@@ -433,6 +457,11 @@ export function checkClaim(claim: ClaimRef, targets: ReadonlyMap<string, ClaimTa
   if (!target) {
     return { state: 'unknown-target', message: `This build has no ${kindWords[claim.kind]} "${claim.key}" that can be worked out.` };
   }
+  if (target.quantity !== 'length') {
+    const problem = checkStatedFigures(claim.text, target);
+    if (problem) return problem;
+    return checkStatedVerdicts(claim.text, target);
+  }
   const valuePm = micrometresToPicometres(target.valueUm);
   const expandedPm = micrometresToPicometres(target.expandedUncertaintyUm);
   for (const stated of findStatedLengths(claim.text)) {
@@ -447,7 +476,11 @@ export function checkClaim(claim: ClaimRef, targets: ReadonlyMap<string, ClaimTa
       };
     }
   }
-  for (const stated of findStatedVerdicts(claim.text)) {
+  return checkStatedVerdicts(claim.text, target);
+}
+
+function checkStatedVerdicts(text: string, target: ClaimTarget): ClaimStatus {
+  for (const stated of findStatedVerdicts(text)) {
     if (target.verdict === null) {
       return {
         state: 'verdict-disagrees',
@@ -462,4 +495,71 @@ export function checkClaim(claim: ClaimRef, targets: ReadonlyMap<string, ClaimTa
     }
   }
   return { state: 'ok' };
+}
+
+/** A figure of another quantity stated in a claim: "64.2 cc", "35 lb-ft", "10.2:1". */
+export interface StatedFigure {
+  readonly text: string;
+  readonly index: number;
+  readonly unit: AnyUnit;
+  readonly value: Fraction;
+  /** One step of its last digit, in `unit`: the statement means value ± step / 2. */
+  readonly step: Fraction;
+}
+
+const escapeRegExp = (s: string) => s.replace(/[.*+?^${}()|[\]\\]/g, '\\$&');
+
+/** Each quantity's unit spellings as one pattern, longest first so "lb-ft" wins over "lb". */
+function unitPattern(quantity: QuantityKind): RegExp | null {
+  const spellings = (Object.entries(otherUnitAliases) as [AnyUnit, readonly string[]][])
+    .filter(([unit]) => quantityOf(unit) === quantity)
+    .flatMap(([unit, aliases]) => aliases.map((a) => ({ unit, a })))
+    .sort((x, y) => y.a.length - x.a.length);
+  if (spellings.length === 0) return null;
+  const alternatives = spellings.map(({ a }) => escapeRegExp(a)).join('|');
+  // After the unit: not a letter (so "5 s" is seconds but "5 seconds" still matches whole).
+  return new RegExp(`(?<![\\w.])([+-−]?\\d+(?:\\.\\d+)?)\\s?(${alternatives})(?![\\p{L}\\d])`, 'giu');
+}
+
+/** Every figure of `quantity` that `text` states in digits with one of its units, in the order written. */
+export function findStatedFigures(text: string, quantity: QuantityKind): StatedFigure[] {
+  const pattern = unitPattern(quantity);
+  if (!pattern) return [];
+  const found: StatedFigure[] = [];
+  for (const match of text.matchAll(pattern)) {
+    const numberText = (match[1] ?? '').replace('−', '-');
+    const spelled = (match[2] ?? '').toLowerCase();
+    const unit = (Object.entries(otherUnitAliases) as [AnyUnit, readonly string[]][]).find(([, aliases]) => aliases.includes(spelled))?.[0];
+    const decimal = parseDecimalText(numberText);
+    if (!unit || !decimal) continue;
+    found.push({ text: match[0], index: match.index ?? 0, unit, value: fractionOfDecimal(decimal), step: new Fraction(1n, 10n ** BigInt(decimal.scale)) });
+  }
+  return found;
+}
+
+/**
+ * The figures a claim states of its target's quantity, each against value ± U: the stated
+ * figure means the interval its own rounding implies, converted exactly into the target's unit
+ * (NIST SP 811 B.8); it disagrees when that interval and value ± U do not overlap. The same rule
+ * as for lengths (common practice, no published source).
+ */
+function checkStatedFigures(text: string, target: ClaimTarget): ClaimStatus | null {
+  for (const stated of findStatedFigures(text, target.quantity)) {
+    const half = stated.step.div(2);
+    const low = convertExact(stated.value.sub(half), stated.unit, target.unit).valueOf();
+    const high = convertExact(stated.value.add(half), stated.unit, target.unit).valueOf();
+    const [lo, hi] = low <= high ? [low, high] : [high, low];
+    const slack = 1e-12 * Math.max(1, Math.abs(target.value));
+    if (hi + slack < target.value - target.expandedUncertainty || lo - slack > target.value + target.expandedUncertainty) {
+      const decimals = stated.step.d.toString().length;
+      const symbol = unitTable[stated.unit].symbol;
+      const range = `${fractionToFixed(stated.value.sub(half), decimals)}–${fractionToFixed(stated.value.add(half), decimals)}${symbol ? ` ${symbol}` : ''}`;
+      return {
+        state: 'number-disagrees',
+        statedUm: null,
+        message: `“${stated.text}” means ${range}; the ${kindWords[target.kind]} is ${target.display}, and the two do not overlap.`,
+      };
+    }
+  }
+  return null;
 }

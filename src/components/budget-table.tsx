@@ -53,6 +53,17 @@ const readerDistributionWords: Record<BudgetLine['distribution'], string> = {
   'student-t': 'Student’s t (few degrees of freedom)',
 };
 
+/** For builders, one reading's line: the distribution and what the stated figure was divided by. */
+function readingDistributionText(line: BudgetLine): string {
+  const how = line.divisor === null ? 'Type A' : line.divisor === 1 ? '' : `÷ ${divisorText(line.divisor)}`;
+  const own = line.instrument ? ' · the instrument’s own, shared by its readings' : '';
+  return `${distributionWords[line.distribution]}${how ? `, ${how}` : ''}${own}`;
+}
+
+function dofCell(nu: number | null): string {
+  return nu === null ? '∞' : plainNumber(nu, 3);
+}
+
 function isShared(line: BudgetLine): boolean {
   return Boolean(line.instrument) && line.reading.includes(',');
 }
@@ -87,15 +98,24 @@ function SharedNote() {
  * sensitivity, its contribution to the result and its share of the variance. Lines an instrument
  * shares between readings are marked. `variant="reader"` keeps three columns (source, what it
  * adds, share) for the narrow reader's panel; the builder's variant is the dense table.
+ * `variant="reading"` is the narrow table for one reading's own components (the reading form):
+ * source with its distribution and divisor, u in the reading's unit (|c·u|), ν and share, so it
+ * fits a 23rem column without scrolling sideways.
  */
 export function BudgetTable({
   budget,
   unit,
   variant = 'builder',
+  caption,
+  captionShown = false,
 }: {
   budget: readonly BudgetLine[];
   unit: AnyUnit;
-  variant?: 'builder' | 'reader';
+  variant?: 'builder' | 'reader' | 'reading';
+  /** Names the table for screen readers (each variant has its own default). */
+  caption?: string;
+  /** Shows the caption above the table instead of keeping it for screen readers. */
+  captionShown?: boolean;
 }) {
   if (budget.length === 0) {
     return <p className="text-sm text-ink-muted">No uncertainty components: every input is exact.</p>;
@@ -103,16 +123,34 @@ export function BudgetTable({
   const resultSymbol = unitSymbol(unit);
   const sorted = [...budget].sort((a, b) => b.share - a.share);
   const anyShared = sorted.some(isShared);
-  if (variant === 'reader') {
+  if (variant === 'reader' || variant === 'reading') {
+    const forReading = variant === 'reading';
     return (
       <div className="space-y-2">
-        <Table caption="What the uncertainty is made of, largest share first" captionHidden maxHeight="none" className="text-xs">
+        <Table
+          caption={caption ?? (forReading ? 'What this reading’s standard uncertainty is made of, largest share first' : 'What the uncertainty is made of, largest share first')}
+          captionHidden={!captionShown}
+          maxHeight="none"
+          className="text-xs"
+        >
           <THead>
             <Tr>
               <Th className="px-2.5">Source</Th>
               <Th numeric className="px-2.5 whitespace-nowrap">
-                Adds{resultSymbol && <span className="normal-case"> ({resultSymbol})</span>}
+                {forReading ? (
+                  <abbr title="standard uncertainty" className="normal-case no-underline">
+                    u
+                  </abbr>
+                ) : (
+                  'Adds'
+                )}
+                {resultSymbol && <span className="normal-case"> ({resultSymbol})</span>}
               </Th>
+              {forReading && (
+                <Th numeric className="px-2.5">
+                  <abbr title="degrees of freedom" className="normal-case no-underline">ν</abbr>
+                </Th>
+              )}
               <Th numeric className="px-2.5">Share</Th>
             </Tr>
           </THead>
@@ -128,7 +166,7 @@ export function BudgetTable({
                       <span className="min-w-0 grow">
                         <span className="block text-sm leading-snug text-ink">{line.source}</span>
                         <span className="block text-ink-muted">
-                          {readerDistributionWords[line.distribution]}
+                          {forReading ? readingDistributionText(line) : readerDistributionWords[line.distribution]}
                           {shared && ` · shared by ${line.reading}, counted once`}
                         </span>
                         <span className="mt-1.5 block h-1.5 w-full overflow-hidden rounded-sm bg-rule/60" aria-hidden="true">
@@ -140,6 +178,11 @@ export function BudgetTable({
                   <Td numeric className="px-2.5 py-2 align-top whitespace-nowrap">
                     {twoDigits(Math.abs(line.contribution))}
                   </Td>
+                  {forReading && (
+                    <Td numeric className="px-2.5 py-2 align-top whitespace-nowrap">
+                      {dofCell(line.degreesOfFreedom)}
+                    </Td>
+                  )}
                   <Td numeric className="px-2.5 py-2 align-top whitespace-nowrap">
                     {pct < 0.1 && pct > 0 ? '< 0.1' : pct.toFixed(1)} %
                   </Td>
@@ -154,7 +197,7 @@ export function BudgetTable({
   }
   return (
     <div className="space-y-2">
-      <Table caption="Uncertainty budget, largest share first" captionHidden maxHeight="28rem" className="text-xs sm:text-sm">
+      <Table caption={caption ?? 'Uncertainty budget, largest share first'} captionHidden={!captionShown} maxHeight="28rem" className="text-xs sm:text-sm">
         <THead>
           <Tr>
             <Th>Source</Th>
@@ -206,7 +249,7 @@ export function BudgetTable({
                 <Td numeric className="whitespace-nowrap">
                   {twoDigits(Math.abs(line.contribution))}
                 </Td>
-                <Td numeric>{line.degreesOfFreedom === null ? '∞' : plainNumber(line.degreesOfFreedom, 3)}</Td>
+                <Td numeric>{dofCell(line.degreesOfFreedom)}</Td>
                 <Td>
                   <ShareCell share={line.share} />
                 </Td>

@@ -68,6 +68,35 @@ async function axeProblems(page: Page, selector: string, what: string): Promise<
 
 const checked = (control: Locator) => control.isChecked();
 
+/** Whether an element's content fits its width (a table frame that does not scroll sideways). */
+const fitsItsBox = (frame: Locator) => frame.evaluate((el) => el.scrollWidth <= el.clientWidth);
+
+/**
+ * The micrometer's reading of 0.0040 in, as its budget table: the calibration, u = U/k =
+ * 0.0002 in / 2 = 0.00010 in, normal (GUM 4.3.3), and the resolution, u = 0.0001 in/(2√3) =
+ * 0.000029 in, rectangular (GUM F.2.2.1); u² = 1.0000e-8 + 0.0833e-8 in², so the shares are
+ * 1/1.0833 = 92.3 % and 7.7 %, and u = 0.00010 in (GUM eq. 10).
+ */
+async function expectMicrometerBudget(form: Locator) {
+  const table = form.getByRole('table', { name: 'What u = 0.00010 in is made of, largest share first' });
+  await table.waitFor();
+  expect(await table.locator('thead th[scope="col"]').allTextContents()).toEqual(['Source', 'u (in)', 'ν', 'Share']);
+  const rows = table.locator('tbody tr');
+  await expect.poll(() => rows.count()).toBe(2);
+  const row = async (i: number) => ({
+    // The row's header: the source in words, then its distribution and divisor on a line of their own.
+    source: (await rows.nth(i).locator('th[scope="row"]').innerText()).split('\n').map((t) => t.trim()).filter(Boolean),
+    cells: (await rows.nth(i).locator('td').allTextContents()).map((t) => t.trim()),
+  });
+  const calibration = await row(0);
+  expect(calibration.source[0]).toMatch(/^Calibration of Bench test micrometer 0–1 in \(U = 0\.00020 in\b.*, k = 2\)$/);
+  expect(calibration.source[1]).toBe('normal, ÷ 2 · the instrument’s own, shared by its readings');
+  expect(calibration.cells).toEqual(['0.00010', '∞', '92.3 %']);
+  const resolution = await row(1);
+  expect(resolution.source).toEqual(['Resolution 0.0001 in', 'rectangular, ÷ √3']);
+  expect(resolution.cells).toEqual(['0.000029', '∞', '7.7 %']);
+}
+
 describe('the reading and clearance forms at the bench', () => {
   it('follow what was chosen, suggest free keys, and refuse in the words on the screen', async () => {
     const clip = await makeTestClip({ seconds: 4, format: 'mp4-h264', dir: work, name: 'rotor-gaps' });
@@ -97,7 +126,16 @@ describe('the reading and clearance forms at the bench', () => {
         expect(r.status).toBe(201);
         return r.json.instrument.id;
       };
-      const mic = await instrument({ name: 'Bench test micrometer 0–1 in', kind: 'outside-micrometer', serial: 'BT-01', unit: 'in', resolution: '0.0001' });
+      // Calibrated to U = 0.0002 in at k = 2, so its budget has a line of its own beside the resolution.
+      const mic = await instrument({
+        name: 'Bench test micrometer 0–1 in',
+        kind: 'outside-micrometer',
+        serial: 'BT-01',
+        unit: 'in',
+        resolution: '0.0001',
+        calibrationUncertainty: '0.0002',
+        calibrationCoverageFactor: 2,
+      });
       const blades = await instrument({ name: 'Bench test feeler set', kind: 'feeler-blades', serial: 'BT-02', unit: 'in', resolution: '0.0005' });
 
       await page.goto(`${site.url}/builds/${buildId}`);
@@ -136,6 +174,12 @@ describe('the reading and clearance forms at the bench', () => {
       await expect.poll(() => checked(direct)).toBe(true);
       // A value typed for the micrometer does not hold the kind back.
       await form.getByLabel('Value as shown').fill('0.0040');
+      // Read back live, with what its u is made of as a table, one row per component.
+      await form.getByText('reads as 0.0040 in; estimate 0.0040 in, u = 0.00010 in', { exact: true }).waitFor();
+      await expectMicrometerBudget(form);
+      await dismissToasts(page);
+      await form.screenshot({ path: path.join(shots, 'reading-budget-1280.png') });
+      expect(await fitsItsBox(form.locator('[data-reading-budget] [data-table-frame]'))).toBe(true);
       await instrumentBox.selectOption(String(blades));
       await expect.poll(() => checked(bracket)).toBe(true);
       // With feeler blades, one indication is offered as a single blade.
@@ -237,6 +281,16 @@ describe('the reading and clearance forms at the bench', () => {
       await page.screenshot({ path: path.join(shots, 'reading-form-refused-390.png'), fullPage: false });
       await form.screenshot({ path: path.join(shots, 'reading-form-only-390.png') });
       expect(await axeProblems(page, '[data-reading-form]', 'reading form, 390')).toEqual([]);
+      // The micrometer's budget on a phone: the table fits the form, and the page does not scroll sideways.
+      await form.getByLabel('Instrument').selectOption(String(mic));
+      await form.getByLabel('Value as shown').fill('0.0040');
+      await expectMicrometerBudget(form);
+      expect(await fitsItsBox(form.locator('[data-reading-budget] [data-table-frame]'))).toBe(true);
+      expect(await page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth)).toBe(true);
+      await dismissToasts(page);
+      await form.locator('[data-reading-budget]').scrollIntoViewIfNeeded();
+      await form.screenshot({ path: path.join(shots, 'reading-budget-390.png') });
+      expect(await axeProblems(page, '[data-reading-form]', 'reading form with its budget, 390')).toEqual([]);
       await form.getByRole('button', { name: 'Cancel' }).click();
       await form.waitFor({ state: 'detached' });
 

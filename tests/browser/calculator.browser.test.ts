@@ -5,12 +5,14 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { launchBrowser } from '../../scripts/lib/chromium';
 import { repoRoot } from '../../scripts/lib/bootstrap';
 import { startBrowserApp } from '../support/browser-app';
+import { freshAccount } from '../support/test-app';
 
 /*
  * The public calculator (/calculator) at the margins a builder meets: a feeler-blade bracket as
  * wide as the spec, two readings that cannot decide, one micrometer on both sides of a
  * difference, a formula whose units do not add up, the server's second opinion, and the page on
- * a phone. Anonymous: the calculator needs no sign-in.
+ * a phone. Anonymous: the calculator needs no sign-in; the last test signs in to type
+ * temperatures in the builder's °F.
  */
 
 let site: Awaited<ReturnType<typeof startBrowserApp>>;
@@ -210,6 +212,71 @@ describe('the calculator at the margin, as a builder uses it', () => {
       await page.screenshot({ path: shot('piston-1280'), fullPage: true });
     } finally {
       await page.close();
+    }
+  }, 60_000);
+
+  it('takes temperatures in the signed-in builder’s °F, sends them in °C, and puts the instrument at the part’s temperature', async () => {
+    const account = freshAccount(site, 'calc-degf');
+    await browser.clearCookies();
+    const page = await browser.newPage();
+    page.setDefaultTimeout(15_000);
+    try {
+      await page.goto(`${site.url}/auth/github?login=${account.login}&returnTo=%2Fcalculator`);
+      await page.getByRole('heading', { name: 'Measurement calculator', level: 1 }).waitFor();
+      // °F as the account's scale, saved as the account page saves it.
+      const saved = await page.evaluate(async () => {
+        const { token } = (await (await fetch('/api/csrf-token')).json()) as { token: string };
+        const r = await fetch('/api/me/preferences', { method: 'PATCH', headers: { 'content-type': 'application/json', 'x-csrf-token': token }, body: JSON.stringify({ temperatureScale: 'degF' }) });
+        return r.status;
+      });
+      expect(saved).toBe(200);
+      await page.reload();
+      await page.getByRole('heading', { name: 'Measurement calculator', level: 1 }).waitFor();
+      await page.getByRole('button', { name: 'End float: bore depth − component height', exact: true }).click();
+      await expect.poll(() => summary(page)).toMatch(/ in ± .* in: .* \(guarded rule\)\.$/);
+
+      const row = reading(page, 1);
+      await row.getByText('Zero check, stated uncertainty, temperature').click();
+      // t/°C = (t/°F − 32)/1.8 (NIST SP 811 B.8): 86 °F = 30 °C; a difference of 0.9 °F = 0.5 K, 0.36 °F = 0.2 K.
+      await row.getByLabel('Temperature when read, °F', { exact: true }).fill('86');
+      await row.getByLabel('Its standard uncertainty u(t), °F', { exact: true }).fill('0.9');
+      await row.getByLabel('Part material').selectOption('cast-iron');
+      await row.getByLabel('The instrument’s temperature').selectOption('same-as-part');
+      await row.getByLabel('How far apart they may be, u(δθ), °F', { exact: true }).fill('0.36');
+      const instruments = page.getByRole('region', { name: 'Instruments', exact: true });
+      await instruments.getByRole('button', { name: 'Add an instrument' }).click();
+      await instruments.getByLabel('Its temperature, °F', { exact: true }).waitFor();
+      await instruments.getByRole('button', { name: 'Remove instrument 1' }).click();
+
+      // The budget has GUM H.1's lines for the reading, in kelvin.
+      const table = budgetPanel(page).getByRole('table', { name: 'Uncertainty budget, largest share first' });
+      await expect
+        .poll(async () => (await table.locator('tbody th[scope=row]').allInnerTexts()).join('\n'))
+        .toMatch(/bore-depth: temperature of the part and the instrument together, θ = 10 K from 20 °C, u\(θ\) = 0\.5 K/);
+      const sources = (await table.locator('tbody th[scope=row]').allInnerTexts()).join('\n');
+      expect(sources).toMatch(/bore-depth: how far the instrument's temperature may be from the part's, δθ, u\(δθ\) = 0\.2 K/);
+      expect(sources).not.toMatch(/bore-depth: part temperature, u\(t\)/);
+
+      // What goes to the server is in °C and kelvin.
+      await expect.poll(() => summary(page)).toMatch(/ in ± .* in: .* \(guarded rule\)\.$/);
+      const answered = page.waitForResponse((r) => r.url().endsWith('/api/calc') && r.request().method() === 'POST');
+      await resultPanel(page).getByRole('button', { name: 'Check on the server' }).click();
+      const response = await answered;
+      expect(response.status()).toBe(200);
+      const sent = response.request().postDataJSON() as { readings: Record<string, Record<string, unknown>> };
+      expect(sent.readings['bore-depth']).toMatchObject({
+        temperatureC: 30,
+        temperatureUncertaintyC: 0.5,
+        material: 'cast-iron',
+        instrumentTemperature: 'same-as-part',
+        temperatureDifferenceUncertaintyC: 0.2,
+      });
+      await resultPanel(page).getByRole('status').filter({ hasText: 'The server agrees:' }).waitFor();
+      await budgetPanel(page).scrollIntoViewIfNeeded();
+      await page.screenshot({ path: shot('degf-same-temperature-1280'), fullPage: true });
+    } finally {
+      await page.close();
+      await browser.clearCookies();
     }
   }, 60_000);
 });

@@ -24,6 +24,38 @@ export interface ReviewFixture {
   clearance: ClearanceDto;
   spec: { specId: number; versionId: number };
   story: StoryDto;
+  /** With `quantities: true`: readings and results of other quantities than a length (`makeQuantityEvidence`). */
+  quantities?: QuantityEvidence;
+}
+
+/**
+ * Evidence of other quantities on the fixture's build (figures invented): a head bolt torqued to
+ * 35 lbf·ft with a torque wrench, judged as a result against 30–40 lbf·ft; and a chamber of 60.2 cc
+ * and a dish of 4.0 cc cc'd with a burette, in a static compression ratio
+ * (swept + chamber + dish) / (chamber + dish) with a swept volume of 589.0 cc, = 653.2 / 64.2 ≈ 10.17,
+ * against a ratio spec of 9.5–10.5 by the guarded rule.
+ */
+export interface QuantityEvidence {
+  instruments: { torque: number; burette: number };
+  readings: { torque: ReadingDto; chamber: ReadingDto; dish: ReadingDto };
+  clearances: { torque: ClearanceDto; ratio: ClearanceDto };
+  specs: { torque: { specId: number; versionId: number }; ratio: { specId: number; versionId: number } };
+}
+
+/** Keys of the quantity evidence's readings and results. */
+export const quantityKeys = { torque: 'head-bolt-torque', torqueResult: 'head-bolt-torque-check', chamber: 'chamber-volume', dish: 'dish-volume', ratio: 'compression-ratio' } as const;
+
+/**
+ * Claims on the quantity evidence whose words agree with their figures: the torque reading as
+ * typed, the torque result's verdict, and the compression ratio (10.2:1 means 10.15–10.25, which
+ * overlaps 10.17 ± U).
+ */
+export function quantityClaims(opts: { torqueWords?: string; ratioWords?: string } = {}): string {
+  return [
+    `The head went on and each bolt was [${opts.torqueWords ?? 'torqued to 35 lbf·ft'}](reading:${quantityKeys.torque}) in three passes; [the torque is within spec](clearance:${quantityKeys.torqueResult}).`,
+    '',
+    `[${opts.ratioWords ?? 'The compression ratio works out to 10.2:1, within spec'}](clearance:${quantityKeys.ratio}) from the cc'd chamber and dish.`,
+  ].join('\n');
 }
 
 /** Keys the fixture's claims use. */
@@ -65,7 +97,7 @@ async function created<T>(what: string, res: { status: number; body: unknown }, 
  * reading, a spec with a cited source, an end-float clearance against it, and a draft story with
  * two claims (`body`, default `fixtureBody()`). Needs a test app started with `jobs: true`.
  */
-export async function makeReviewFixture(owner: Session, opts: { clipFile: string; title?: string; body?: string }): Promise<ReviewFixture> {
+export async function makeReviewFixture(owner: Session, opts: { clipFile: string; title?: string; body?: string; quantities?: boolean }): Promise<ReviewFixture> {
   const title = opts.title ?? 'Invented flat-twin oil pump (review test)';
   const build = await created('build', await send(owner, 'post', '/api/builds', { title, subject: 'an invented engine, for tests', parts: [{ name: 'Oil pump (invented)', serial: 'TP-0417' }] }), (b) => (b as { build: { id: number; parts: { id: number }[] } }).build);
   const clipId = await uploadClip(owner, build.id, opts.clipFile);
@@ -111,12 +143,76 @@ export async function makeReviewFixture(owner: Session, opts: { clipFile: string
     }),
     (b) => clearanceResponseSchema.parse(b).clearance,
   );
+  const quantities = opts.quantities ? await makeQuantityEvidence(owner, { buildId: build.id, partId: build.parts[0]!.id, momentIds }) : undefined;
   const story = await created(
     'story',
-    await send(owner, 'post', `/api/builds/${build.id}/stories`, { title: `${title}: end float`, summary: 'End float of the invented pump, as supplied.', body: opts.body ?? fixtureBody() }),
+    await send(owner, 'post', `/api/builds/${build.id}/stories`, {
+      title: `${title}: end float`,
+      summary: 'End float of the invented pump, as supplied.',
+      body: opts.body ?? fixtureBody(quantities ? { extra: quantityClaims() } : {}),
+    }),
     (b) => storyResponseSchema.parse(b).story,
   );
-  return { buildId: build.id, partId: build.parts[0]!.id, clipId, momentIds, instruments, readings: { depth, height }, clearance, spec: { specId: spec.id, versionId: spec.latest.id }, story };
+  return {
+    buildId: build.id,
+    partId: build.parts[0]!.id,
+    clipId,
+    momentIds,
+    instruments,
+    readings: { depth, height },
+    clearance,
+    spec: { specId: spec.id, versionId: spec.latest.id },
+    story,
+    ...(quantities && { quantities }),
+  };
+}
+
+/**
+ * Makes the `QuantityEvidence` on a build of `owner`'s, through the API: a torque wrench in lbf·ft
+ * and a burette in cc, their readings on the part at the fixture's moments, a torque spec and a
+ * ratio spec, the torque result (the reading alone, judged) and the compression-ratio formula.
+ */
+export async function makeQuantityEvidence(owner: Session, on: { buildId: number; partId: number; momentIds: [number, number] }): Promise<QuantityEvidence> {
+  const instrument = async (body: Record<string, unknown>) =>
+    created('instrument', await send(owner, 'post', '/api/instruments', { lastCalibratedOn: '2026-01-05', calibrationIntervalDays: 3650, serial: 'INV-TEST-Q', ...body }), (b) => (b as { instrument: { id: number } }).instrument.id);
+  const instruments = {
+    torque: await instrument({ name: 'Click torque wrench 20–100 lbf·ft (test)', kind: 'torque-wrench', unit: 'lbf_ft', resolution: '1', statedUncertainty: '0.5' }),
+    burette: await instrument({ name: 'Burette 100 cc (test)', kind: 'burette', unit: 'cc', resolution: '0.1', statedUncertainty: '0.2' }),
+  };
+  const reading = async (body: Record<string, unknown>) =>
+    created('reading', await send(owner, 'post', `/api/builds/${on.buildId}/readings`, { takenOn: '2026-11-20', kind: 'direct', partId: on.partId, ...body }), (b) => readingResponseSchema.parse(b).reading);
+  const readings = {
+    torque: await reading({ momentId: on.momentIds[0], instrumentId: instruments.torque, key: quantityKeys.torque, name: 'Head bolt torque', unit: 'lbf_ft', value: '35' }),
+    chamber: await reading({ momentId: on.momentIds[1], instrumentId: instruments.burette, key: quantityKeys.chamber, name: 'Chamber volume', unit: 'cc', value: '60.2' }),
+    dish: await reading({ momentId: on.momentIds[1], instrumentId: instruments.burette, key: quantityKeys.dish, name: 'Dish volume', unit: 'cc', value: '4.0' }),
+  };
+  const spec = async (body: Record<string, unknown>) =>
+    created('spec', await send(owner, 'post', '/api/specs', { rule: 'guarded', ...body }), (b) => {
+      const s = (b as { spec: { id: number; latest: { id: number } } }).spec;
+      return { specId: s.id, versionId: s.latest.id };
+    });
+  const specs = {
+    torque: await spec({ name: 'Head bolt torque (invented, test)', appliesTo: 'Invented flat-twin head', unit: 'lbf_ft', min: '30', max: '40', source: { kind: 'manual', text: 'Invented workshop manual, section 5 (test figures)' } }),
+    ratio: await spec({ name: 'Static compression ratio (invented, test)', appliesTo: 'Invented flat-twin', unit: '1', min: '9.5', max: '10.5', source: { kind: 'manual', text: 'Invented workshop manual, section 1 (test figures)' } }),
+  };
+  const clearance = async (body: Record<string, unknown>) =>
+    created('clearance', await send(owner, 'post', `/api/builds/${on.buildId}/clearances`, body), (b) => clearanceResponseSchema.parse(b).clearance);
+  const clearances = {
+    torque: await clearance({ key: quantityKeys.torqueResult, name: 'Head bolt torque against the manual', template: 'custom', terms: [{ readingId: readings.torque.id, sign: 1 }], specVersionId: specs.torque.versionId }),
+    ratio: await clearance({
+      key: quantityKeys.ratio,
+      name: 'Static compression ratio',
+      template: null,
+      formula: '(swept + chamber + dish) / (chamber + dish)',
+      constants: { swept: { value: '589.0', unit: 'cc' } },
+      terms: [
+        { readingId: readings.chamber.id, symbol: 'chamber' },
+        { readingId: readings.dish.id, symbol: 'dish' },
+      ],
+      specVersionId: specs.ratio.versionId,
+    }),
+  };
+  return { instruments, readings, clearances, specs };
 }
 
 /**
@@ -149,11 +245,21 @@ export function checkSubject(moderator: Session, storyId: number, subjectType: '
   return send(moderator, 'post', '/api/review/checks', { storyId, subjectType, subjectId, state, ...(comment && { comment }) });
 }
 
-/** Claims the story and marks both readings and the clearance checked, as `moderator`. */
+/** Claims the story and marks both readings and the clearance checked (and the quantity evidence, when made), as `moderator`. */
 export async function claimAndCheckAll(moderator: Session, f: ReviewFixture, storyId = f.story.id): Promise<void> {
   const claim = await send(moderator, 'post', `/api/review/stories/${storyId}/claim`);
   if (claim.status !== 200) throw new Error(`claim answered ${claim.status}: ${JSON.stringify(claim.body)}`);
-  for (const [type, id] of [['reading', f.readings.depth.id], ['reading', f.readings.height.id], ['clearance', f.clearance.id]] as const) {
+  const q = f.quantities;
+  const extra = q
+    ? ([
+        ['reading', q.readings.torque.id],
+        ['reading', q.readings.chamber.id],
+        ['reading', q.readings.dish.id],
+        ['clearance', q.clearances.torque.id],
+        ['clearance', q.clearances.ratio.id],
+      ] as const)
+    : [];
+  for (const [type, id] of [['reading', f.readings.depth.id], ['reading', f.readings.height.id], ['clearance', f.clearance.id], ...extra] as const) {
     const res = await checkSubject(moderator, storyId, type, id);
     if (res.status !== 201) throw new Error(`check of ${type} ${id} answered ${res.status}: ${JSON.stringify(res.body)}`);
   }

@@ -2,6 +2,8 @@ import { engineInstrumentsMap } from '@shared/measure/instrument-map';
 import { Op, type Transaction } from 'sequelize';
 import type { z } from 'zod';
 import { computeClearance } from '@shared/clearances/clearance-calc';
+import { compileFormula } from '@shared/measure/formula';
+import { dimensionOf, quantityDimensions, quantityOf } from '@shared/measure/quantities';
 import type { Clearance as ClearanceDto, ClearancePatch, clearanceInputSchema, clearanceListQuerySchema } from '@shared/clearances/clearance.schema';
 import { AppError, badRequest, notFound } from '../../http/errors';
 import { editConflict, updateWithLock } from '../../http/optimistic-lock';
@@ -47,9 +49,12 @@ async function toDtos(rows: Clearance[], transaction?: Transaction): Promise<Cle
     const coverageFactor = c.coverageFactor === null ? null : Number(c.coverageFactor);
     const termReadings = own.map((t) => ({ term: t, reading: readingById.get(t.readingId)! }));
     const computed = computeClearance({
-      terms: termReadings.map(({ term, reading }) => ({ key: reading.key, engine: reading.engine, sign: term.sign })),
+      // In a formula each reading goes by the name the formula uses (kept when its key changes).
+      terms: termReadings.map(({ term, reading }) => ({ key: c.formula !== null ? (term.symbol ?? reading.key) : reading.key, engine: reading.engine, sign: term.sign })),
       spec: version ? toSpecVersionDto(version) : null,
       coverageFactor,
+      formula: c.formula === null ? null : { text: c.formula, constants: c.constants ?? {} },
+      resultUnit: c.resultUnit,
       // Readings taken with one instrument share its calibration: a difference cancels it.
       instruments: engineInstrumentsMap(termReadings.map(({ reading }) => reading.engineInstrument)),
     });
@@ -60,7 +65,10 @@ async function toDtos(rows: Clearance[], transaction?: Transaction): Promise<Cle
       key: c.key,
       name: c.name,
       template: c.template,
-      terms: termReadings.map(({ term, reading }) => ({ readingId: reading.id, readingKey: reading.key, readingName: reading.name, sign: term.sign })),
+      terms: termReadings.map(({ term, reading }) => ({ readingId: reading.id, readingKey: reading.key, readingName: reading.name, sign: term.sign, symbol: term.symbol ?? null })),
+      formula: c.formula,
+      constants: c.constants ?? {},
+      resultUnit: c.resultUnit,
       specVersionId: c.specVersionId,
       spec: version
         ? {
@@ -122,23 +130,56 @@ export async function clearanceForOwner(clearanceId: number, user: User | undefi
 }
 
 /** Every term's reading must be a reading of this build; refusals name terms.N.readingId. */
-async function checkTerms(buildId: number, terms: { readingId: number }[], transaction?: Transaction) {
-  const found = await Reading.findAll({ attributes: ['id'], where: { id: terms.map((t) => t.readingId), buildId }, transaction });
+async function checkTerms(buildId: number, terms: { readingId: number }[], transaction?: Transaction): Promise<Reading[]> {
+  const found = await Reading.findAll({ attributes: ['id', 'unit', 'key'], where: { id: terms.map((t) => t.readingId), buildId }, transaction });
   const have = new Set(found.map((r) => r.id));
   const missing = terms.flatMap((t, i) => (have.has(t.readingId) ? [] : [i]));
   const problems = missing.map((i) => ({ path: `terms.${i}.readingId`, message: 'not a reading of this build: pick one of its readings' }));
   if (problems.length) {
     throw badRequest(`Pick readings of this build: term ${missing.map((i) => i + 1).join(', ')} ${missing.length === 1 ? 'is' : 'are'} not one of them.`, problems, 'invalid_request');
   }
+  return found;
 }
 
-function termRows(clearanceId: number, terms: { readingId: number; sign: 1 | -1 }[]) {
-  return terms.map((t, position) => ({ clearanceId, readingId: t.readingId, sign: t.sign, position }));
+/**
+ * A formula must read: its names are the terms' symbols and the constants, its dimensions fit
+ * (a length plus a volume is refused), and the unit chosen for the result is of its quantity.
+ * Refusals name `formula` or `resultUnit`, in the engine's words.
+ */
+function checkFormula(
+  formula: string,
+  terms: { readingId: number; symbol?: string | undefined }[],
+  constants: Record<string, { unit: Parameters<typeof dimensionOf>[0] }>,
+  resultUnit: Parameters<typeof dimensionOf>[0] | null,
+  readings: Reading[],
+) {
+  const unitOf = new Map(readings.map((r) => [r.id, r.unit]));
+  const inputs = [
+    ...terms.map((t) => ({ name: t.symbol ?? '', dimension: dimensionOf(unitOf.get(t.readingId)!) })),
+    ...Object.entries(constants).map(([name, c]) => ({ name, dimension: dimensionOf(c.unit) })),
+  ];
+  const compiled = compileFormula(formula, inputs);
+  if (!compiled.ok) {
+    const message = compiled.problems.map((p) => p.message).join('; ');
+    throw badRequest(`The formula cannot be worked out: ${message}`, compiled.problems.map((p) => ({ path: 'formula', message: p.message })), 'invalid_request');
+  }
+  if (resultUnit !== null) {
+    const want = compiled.formula.dimension;
+    const have = quantityDimensions[quantityOf(resultUnit)];
+    if (want.some((d, i) => d !== have[i])) {
+      throw badRequest('The result unit is of another quantity than the formula gives.', [{ path: 'resultUnit', message: `the formula does not give a ${quantityOf(resultUnit)}: choose a unit of what it gives, or none` }], 'invalid_request');
+    }
+  }
+}
+
+function termRows(clearanceId: number, terms: { readingId: number; sign: 1 | -1; symbol?: string | undefined }[], formula: boolean) {
+  return terms.map((t, position) => ({ clearanceId, readingId: t.readingId, sign: formula ? (1 as const) : t.sign, position, symbol: formula ? (t.symbol ?? null) : null }));
 }
 
 /** Makes a clearance from readings of the build; 201's body. */
 export async function createClearance(build: Build, user: User, input: ClearanceInput): Promise<ClearanceDto> {
-  await checkTerms(build.id, input.terms);
+  const readings = await checkTerms(build.id, input.terms);
+  if (input.formula !== null) checkFormula(input.formula, input.terms, input.constants, input.resultUnit, readings);
   if (input.specVersionId !== null) await specVersionUsableBy(input.specVersionId, user);
   const clearance = await Clearance.sequelize!.transaction(async (transaction) => {
     await Build.findByPk(build.id, { transaction, lock: transaction.LOCK.UPDATE });
@@ -151,12 +192,15 @@ export async function createClearance(build: Build, user: User, input: Clearance
         template: input.template,
         specVersionId: input.specVersionId,
         coverageFactor: input.coverageFactor === null ? null : String(input.coverageFactor),
+        formula: input.formula,
+        constants: input.formula === null ? {} : input.constants,
+        resultUnit: input.resultUnit,
         note: input.note,
         createdBy: user.id,
       },
       { transaction },
     );
-    await ClearanceTerm.bulkCreate(termRows(c.id, input.terms), { transaction });
+    await ClearanceTerm.bulkCreate(termRows(c.id, input.terms, input.formula !== null), { transaction });
     return c;
   });
   return getClearance(clearance);
@@ -170,7 +214,24 @@ export async function createClearance(build: Build, user: User, input: Clearance
 export async function patchClearance(clearance: Clearance, build: Build, user: User, patch: ClearancePatch): Promise<ClearanceDto> {
   if (patch.lockVersion !== clearance.lockVersion) throw editConflict('clearance', clearance);
   const changes: Record<string, unknown> = {};
-  if (patch.terms) await checkTerms(build.id, patch.terms);
+  const formula = patch.formula !== undefined ? patch.formula : clearance.formula;
+  const constants = patch.constants ?? clearance.constants ?? {};
+  const resultUnit = patch.resultUnit !== undefined ? patch.resultUnit : clearance.resultUnit;
+  const before = await ClearanceTerm.findAll({ where: { clearanceId: clearance.id }, order: [['position', 'ASC']] });
+  const terms = patch.terms ?? before.map((t) => ({ readingId: t.readingId, sign: t.sign, symbol: t.symbol ?? undefined }));
+  const readings = await checkTerms(build.id, terms);
+  if (formula !== null && formula !== undefined) {
+    const unnamed = terms.findIndex((t) => t.symbol === undefined);
+    if (unnamed >= 0) throw badRequest('Name each reading as the formula uses it.', [{ path: `terms.${unnamed}.symbol`, message: 'name this reading as the formula uses it' }], 'invalid_request');
+    checkFormula(formula, terms, constants, resultUnit ?? null, readings);
+  }
+  for (const [field, value, stored] of [
+    ['formula', formula ?? null, clearance.formula],
+    ['resultUnit', resultUnit ?? null, clearance.resultUnit],
+  ] as const) {
+    if (value !== stored) changes[field] = value;
+  }
+  if (JSON.stringify(formula === null ? {} : constants) !== JSON.stringify(clearance.constants ?? {})) changes.constants = formula === null ? {} : constants;
   if (patch.specVersionId !== undefined && patch.specVersionId !== clearance.specVersionId) {
     if (patch.specVersionId !== null) await specVersionUsableBy(patch.specVersionId, user);
     changes.specVersionId = patch.specVersionId;
@@ -189,19 +250,19 @@ export async function patchClearance(clearance: Clearance, build: Build, user: U
       if (citing.length) throw citedRefusal(clearance.key, citing, 'change its key');
       await allocateKey(Clearance, build.id, { key: changes.key as string, name: clearance.name }, transaction, 'clearance');
     }
-    let termsChanged = false;
-    if (patch.terms) {
-      const before = await ClearanceTerm.findAll({ where: { clearanceId: clearance.id }, order: [['position', 'ASC']], transaction });
-      termsChanged = JSON.stringify(before.map((t) => [t.readingId, t.sign])) !== JSON.stringify(patch.terms.map((t) => [t.readingId, t.sign]));
-    }
-    if (clearance.reviewState !== 'unchecked' && (termsChanged || changes.specVersionId !== undefined || changes.coverageFactor !== undefined)) {
+    const isFormula = formula !== null && formula !== undefined;
+    const rows = termRows(clearance.id, terms, isFormula);
+    const termsChanged =
+      JSON.stringify(before.map((t) => [t.readingId, t.sign, t.symbol ?? null])) !== JSON.stringify(rows.map((t) => [t.readingId, t.sign, t.symbol]));
+    const modelChanged = changes.formula !== undefined || changes.constants !== undefined || changes.resultUnit !== undefined;
+    if (clearance.reviewState !== 'unchecked' && (termsChanged || modelChanged || changes.specVersionId !== undefined || changes.coverageFactor !== undefined)) {
       changes.reviewState = 'unchecked';
     }
     // The lock first: a stale save must not touch the terms either.
     await updateWithLock(Clearance, clearance, patch.lockVersion, changes, { what: 'clearance', transaction });
-    if (patch.terms && termsChanged) {
+    if (termsChanged) {
       await ClearanceTerm.destroy({ where: { clearanceId: clearance.id }, transaction });
-      await ClearanceTerm.bulkCreate(termRows(clearance.id, patch.terms), { transaction });
+      await ClearanceTerm.bulkCreate(rows, { transaction });
     }
   });
   await clearance.reload();

@@ -8,7 +8,7 @@ import {
   type Sequelize,
 } from 'sequelize';
 import type { InstrumentKind } from '@shared/instruments/instrument.schema';
-import type { LengthUnit } from '@shared/measure/units';
+import type { ReadingUnit } from '@shared/measure/record-units';
 import type { Moment } from '../clips/clip.model';
 import type { User } from '../users/user.model';
 
@@ -19,7 +19,7 @@ export class Instrument extends Model<InferAttributes<Instrument>, InferCreation
   declare name: string;
   declare kind: InstrumentKind;
   declare serial: CreationOptional<string>;
-  declare unit: LengthUnit;
+  declare unit: ReadingUnit;
   declare resolution: string;
   declare statedUncertainty: CreationOptional<string | null>;
   declare calibrationUncertainty: CreationOptional<string | null>;
@@ -42,7 +42,7 @@ export class ZeroCheck extends Model<InferAttributes<ZeroCheck>, InferCreationAt
   declare id: CreationOptional<number>;
   declare instrumentId: ForeignKey<Instrument['id']>;
   declare checkedOn: string;
-  declare unit: LengthUnit;
+  declare unit: ReadingUnit;
   declare standardSize: string;
   declare shown: string;
   declare momentId: ForeignKey<Moment['id']> | null;

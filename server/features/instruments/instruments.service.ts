@@ -2,6 +2,7 @@ import { ForeignKeyConstraintError, Op, literal } from 'sequelize';
 import {
   calibrationDueOn,
   calibrationStateOn,
+  kindUnitProblem,
   zeroCheckedKinds,
   type Instrument as InstrumentDto,
   type InstrumentPatch,
@@ -9,10 +10,10 @@ import {
   type instrumentInputSchema,
   type zeroCheckInputSchema,
 } from '@shared/instruments/instrument.schema';
-import { formatNumber } from '@shared/measure/format';
-import { lengthTextIn } from '@shared/measure/length-text';
-import { parseLength } from '@shared/measure/parse';
-import type { LengthUnit } from '@shared/measure/units';
+import { nonNegativeQuantities, type ReadingUnit } from '@shared/measure/record-units';
+import { quantityOf } from '@shared/measure/quantities';
+import { figureTextIn } from '@shared/measure/quantity-text';
+import { fractionOfDecimal, fractionToFixed, type Fraction } from '@shared/measure/exact';
 import type { z } from 'zod';
 import { badRequest, conflict, forbidden, notFound, unauthorized } from '../../http/errors';
 import { updateWithLock } from '../../http/optimistic-lock';
@@ -54,15 +55,14 @@ export async function instrumentForOwner(instrumentId: number, user: User | unde
 }
 
 /** Exact difference of two decimal texts in `unit`, at the finer of their two places. */
-function exactDifference(minuend: string, subtrahend: string, unit: LengthUnit): string {
-  const a = parseLength(minuend, { defaultUnit: unit });
-  const b = parseLength(subtrahend, { defaultUnit: unit });
-  if (!a.ok || !b.ok || a.length.unit !== unit || b.length.unit !== unit) {
-    throw new Error(`stored zero check figures are not lengths in ${unit}: ${minuend}, ${subtrahend}`);
-  }
+function exactDifference(minuend: string, subtrahend: string, unit: ReadingUnit): string {
+  const a = figureTextIn(minuend, unit);
+  const b = figureTextIn(subtrahend, unit);
+  if (!a.ok || !b.ok) throw new Error(`stored zero check figures are not figures in ${unit}: ${minuend}, ${subtrahend}`);
   // Both texts are exact at the finer place, so the difference is too: no rounding happens.
-  const places = Math.max(a.length.decimal.scale, b.length.decimal.scale);
-  return formatNumber(a.length.pm - b.length.pm, unit, places).replace('−', '-');
+  const places = Math.max(a.figure.decimal.scale, b.figure.decimal.scale);
+  const difference: Fraction = fractionOfDecimal(a.figure.decimal).sub(fractionOfDecimal(b.figure.decimal));
+  return fractionToFixed(difference, places, { minus: '-' });
 }
 
 /** shown − standardSize, exact decimal text in the check's unit ("0.0002", "-0.0001", "0.0000"). */
@@ -161,15 +161,28 @@ export async function listInstruments(owner: User, q: { after?: number; limit: n
   };
 }
 
-/** A length field as stored: decimal text in `unit`, or a 400 naming the field. */
-function storedLength(field: string, text: string, unit: LengthUnit, rule: 'positive' | 'not-negative' | 'any'): string {
-  const parsed = lengthTextIn(text, unit);
+/** A figure as stored: decimal text in `unit`, or a 400 naming the field. */
+/** The register's and the zero check's fields as their forms name them. */
+const figureWords: Readonly<Record<string, string>> = {
+  resolution: 'the resolution',
+  statedUncertainty: 'the stated uncertainty',
+  calibrationUncertainty: 'the calibration’s U',
+  maxPermissibleError: 'the maximum permissible error',
+  settingStandardUncertainty: 'the setting standard’s U',
+  standardSize: 'the setting standard',
+  shown: 'what it showed',
+};
+
+function storedLength(field: string, text: string, unit: ReadingUnit, rule: 'positive' | 'not-negative' | 'any'): string {
+  const parsed = figureTextIn(text, unit);
   if (!parsed.ok) throw badRequest(`${field}: ${parsed.message}`, [{ path: field, message: parsed.message }]);
-  if (rule === 'positive' && parsed.length.pm <= 0n) {
-    throw badRequest(`${field} must be greater than 0.`, [{ path: field, message: `${field} must be greater than 0` }]);
+  const sign = parsed.figure.value.n === 0n ? 0 : Number(parsed.figure.value.s);
+  const words = figureWords[field] ?? field;
+  if (rule === 'positive' && sign <= 0) {
+    throw badRequest(`${field}: ${words} must be greater than 0.`, [{ path: field, message: `${words} must be greater than 0` }]);
   }
-  if (rule === 'not-negative' && parsed.length.pm < 0n) {
-    throw badRequest(`${field} cannot be negative.`, [{ path: field, message: `${field} cannot be negative` }]);
+  if (rule === 'not-negative' && sign < 0) {
+    throw badRequest(`${field}: ${words} cannot be below zero.`, [{ path: field, message: `${words} cannot be below zero` }]);
   }
   return parsed.text;
 }
@@ -203,6 +216,14 @@ export async function createInstrument(owner: User, input: InstrumentInput): Pro
 export async function updateInstrument(instrument: Instrument, patch: InstrumentPatch): Promise<InstrumentDto> {
   const { lockVersion, ...fields } = patch;
   const unit = fields.unit ?? instrument.unit;
+  const kindProblem = kindUnitProblem(fields.kind ?? instrument.kind, unit);
+  if (kindProblem) throw badRequest(`unit: ${kindProblem}`, [{ path: fields.unit !== undefined ? 'unit' : 'kind', message: kindProblem }]);
+  if (quantityOf(unit) !== quantityOf(instrument.unit) && (await instrumentHasRecords(instrument.id))) {
+    throw conflict(
+      `This instrument has readings or zero checks in ${quantityOf(instrument.unit)}; it cannot start reading ${quantityOf(unit)}. Add a new instrument instead.`,
+      'instrument_in_use',
+    );
+  }
   const changes: Record<string, unknown> = {};
   for (const key of ['name', 'kind', 'serial', 'unit', 'calibrationIntervalDays', 'lastCalibratedOn', 'calibratedBy', 'note', 'retired'] as const) {
     if (fields[key] !== undefined) changes[key] = fields[key];
@@ -237,7 +258,7 @@ function accuracyFields(
     settingStandardUncertainty?: string | null;
     settingStandardCoverageFactor?: number | null;
   },
-  unit: LengthUnit,
+  unit: ReadingUnit,
 ): Record<string, string | null> {
   const out: Record<string, string | null> = {};
   for (const field of ['calibrationUncertainty', 'maxPermissibleError', 'settingStandardUncertainty'] as const) {
@@ -249,6 +270,12 @@ function accuracyFields(
     if (k !== undefined) out[field] = k === null ? null : String(k);
   }
   return out;
+}
+
+/** True when readings or zero checks were logged with the instrument. */
+async function instrumentHasRecords(instrumentId: number): Promise<boolean> {
+  const [readings, checks] = await Promise.all([Reading.count({ where: { instrumentId } }), ZeroCheck.count({ where: { instrumentId } })]);
+  return readings > 0 || checks > 0;
 }
 
 function inUse() {
@@ -290,11 +317,14 @@ export async function listZeroChecks(instrument: Instrument, q: { before?: numbe
 type ZeroCheckInput = z.output<typeof zeroCheckInputSchema>;
 
 /**
- * Logs a zero check. Its lengths are in the instrument's unit (a setting standard is read in the
- * unit the instrument shows); a moment, when given, must be on a clip of one of the caller's builds.
+ * Logs a zero check. Its figures are in the instrument's unit (a setting standard is read in the
+ * unit the instrument shows: a gauge block, a known pressure, an ice bath); a moment, when given,
+ * must be on a clip of one of the caller's builds. A standard below zero is refused only for the
+ * quantities that cannot be (a length, a volume, a time, a mass).
  */
 export async function addZeroCheck(instrument: Instrument, user: User, input: ZeroCheckInput): Promise<ZeroCheckDto> {
-  const standardSize = storedLength('standardSize', input.standardSize, instrument.unit, 'not-negative');
+  const signed = !nonNegativeQuantities.has(quantityOf(instrument.unit));
+  const standardSize = storedLength('standardSize', input.standardSize, instrument.unit, signed ? 'any' : 'not-negative');
   const shown = storedLength('shown', input.shown, instrument.unit, 'any');
   if (input.momentId !== null) {
     const moment = await Moment.findOne({

@@ -14,6 +14,8 @@ import { readSearchCursor, searchCursorText, type SearchCursor } from '@shared/p
 import { SNIPPET_MARK_END, SNIPPET_MARK_START } from '@shared/public/search-snippet';
 import { STANDING_NOTE } from '@shared/stories/cautions';
 import { claimTargetsFrom } from '@shared/stories/claims';
+import { resultFigures } from '@shared/clearances/result-figures';
+import { convertNumber, quantityOf } from '@shared/measure/quantities';
 import { renderStory } from '@shared/stories/render';
 import type { StoryTags } from '@shared/stories/story.schema';
 import { notFound } from '../../http/errors';
@@ -433,24 +435,33 @@ export async function publicBuild(buildId: number): Promise<PublicBuild> {
     for (const r of e.readings) if (r.partId !== null) partsWithReadings.add(r.partId);
     for (const c of e.clearances) {
       if (!c.result || !c.checked) continue;
+      const figures = resultFigures(c.result);
+      const known = summaries.get(c.key);
+      // Entries of one key are compared on one scale: in the first entry's unit (a length's µm figures need none).
+      const value = known && known.unit !== c.result.unit && quantityOf(known.unit) === figures.quantity ? convertNumber(figures.value, c.result.unit, known.unit) : figures.value;
+      const expanded =
+        known && known.unit !== c.result.unit && quantityOf(known.unit) === figures.quantity
+          ? convertNumber(figures.expandedUncertainty, c.result.unit, known.unit, { difference: true })
+          : figures.expandedUncertainty;
       const figure: PublicClearanceFigure = {
         storyId: p.storyId,
         revision: p.number,
         storyTitle: p.title,
         workDate: p.workDate,
-        valueUm: c.result.valueUm,
-        expandedUncertaintyUm: c.result.expandedUncertaintyUm,
+        valueUm: figures.quantity === 'length' ? c.result.valueUm : null,
+        expandedUncertaintyUm: figures.quantity === 'length' ? c.result.expandedUncertaintyUm : null,
+        value,
+        expandedUncertainty: expanded,
         display: c.result.display,
         verdict: c.result.verdict,
         rule: c.result.rule,
         spec: c.spec ? { name: c.spec.name, version: c.spec.version, sourceText: c.spec.sourceText } : null,
       };
-      const known = summaries.get(c.key);
       if (known) {
         known.entries.push(figure);
         known.latest = figure;
       } else {
-        summaries.set(c.key, { key: c.key, name: c.name, unit: c.result.unit, first: figure, latest: figure, entries: [figure] });
+        summaries.set(c.key, { key: c.key, name: c.name, quantity: figures.quantity, unit: c.result.unit, first: figure, latest: figure, entries: [figure] });
       }
     }
   }

@@ -1,10 +1,12 @@
 import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import { QueryTypes, type Transaction } from 'sequelize';
 import type { Clearance as ClearanceDto } from '@shared/clearances/clearance.schema';
+import { resultFigures } from '@shared/clearances/result-figures';
 import type { CalibrationState } from '@shared/instruments/instrument.schema';
 import { defaultUnitFor, formatResult, systemOf, type UnitSystem } from '@shared/measure/format';
-import { micrometresToPicometres, type LengthUnit } from '@shared/measure/units';
+import { micrometresToPicometres, picometresPerUnit, type LengthUnit } from '@shared/measure/units';
 import type { PublicBuilderRef, PublicClearance, PublicReading } from '@shared/public/public-story.schema';
+import { convertedQuantityDisplay, firstNumberDecimals } from '@shared/public/quantity-figures';
 import type { Reading as ReadingDto } from '@shared/readings/reading.schema';
 import { claimTargetsFrom, claimTargetKey } from '@shared/stories/claims';
 import { StoryPublication } from '../review/review.model';
@@ -44,10 +46,56 @@ export interface PublishedEvidence {
   clearances: (ClearanceDto & { checked: CheckedRecord })[];
 }
 
-/** The evidence of a publication, with missing lists read as empty (the column is JSON). */
+/** The evidence of a publication, with missing lists read as empty (the column is JSON) and older figures brought up to date. */
 export function evidenceOf(publication: Pick<StoryPublication, 'evidence'>): PublishedEvidence {
   const e = publication.evidence as Partial<PublishedEvidence>;
-  return { buildId: Number(e.buildId), claims: e.claims ?? [], readings: e.readings ?? [], clearances: e.clearances ?? [] };
+  return {
+    buildId: Number(e.buildId),
+    claims: e.claims ?? [],
+    readings: (e.readings ?? []).map(currentReading),
+    clearances: (e.clearances ?? []).map(currentClearance),
+  };
+}
+
+type StoredReading = PublishedEvidence['readings'][number];
+type StoredClearance = PublishedEvidence['clearances'][number];
+
+/** µm in one of a length unit (exact: NIST SP 811 B.8). */
+const umPer = (unit: LengthUnit) => Number(picometresPerUnit[unit]) / 1e6;
+
+/**
+ * A reading as published, in today's shape. Publications made before other quantities could be
+ * stored hold lengths with µm figures only and no `quantity`: they are lengths, and their figures
+ * in the reading's unit follow from the µm ones. The JSON is not parsed, so nothing else adds it.
+ */
+function currentReading(r: StoredReading): StoredReading {
+  const result = r.result as StoredReading['result'] & { quantity?: StoredReading['result']['quantity'] };
+  if (result.quantity !== undefined && result.value !== undefined && result.standardUncertainty !== undefined) return r;
+  const quantity = result.quantity ?? 'length';
+  const isLength = quantity === 'length' && result.valueUm !== null;
+  return {
+    ...r,
+    result: {
+      ...result,
+      quantity,
+      value: result.value ?? (isLength ? result.valueUm! / umPer(r.unit as LengthUnit) : 0),
+      standardUncertainty: result.standardUncertainty ?? (isLength ? (result.standardUncertaintyUm ?? 0) / umPer(r.unit as LengthUnit) : 0),
+    },
+  };
+}
+
+/** A result as published, in today's shape: a signed sum of lengths when it predates formulas and other quantities. */
+function currentClearance(c: StoredClearance): StoredClearance {
+  const stored = c as StoredClearance & Partial<Pick<StoredClearance, 'formula' | 'constants' | 'resultUnit'>>;
+  const result = c.result as (StoredClearance['result'] & { quantity?: NonNullable<StoredClearance['result']>['quantity'] }) | null;
+  return {
+    ...c,
+    formula: stored.formula ?? null,
+    constants: stored.constants ?? {},
+    resultUnit: stored.resultUnit ?? null,
+    terms: c.terms.map((t) => ({ ...t, symbol: (t as Partial<typeof t>).symbol ?? null })),
+    result: result && { ...result, quantity: result.quantity ?? 'length' },
+  };
 }
 
 /**
@@ -107,11 +155,14 @@ export function calibrationFromWarnings(warnings: readonly { code: string }[]): 
 export function publicReading(r: PublishedEvidence['readings'][number], units: UnitSystem | null): PublicReading {
   // The same display and U the claim was checked against.
   const target = claimTargetsFrom([r], []).get(claimTargetKey('reading', r.key))!;
+  const quantity = r.result.quantity;
+  const isLength = quantity === 'length' && r.result.valueUm !== null;
   return {
     id: r.id,
     key: r.key,
     name: r.name,
     kind: r.kind,
+    quantity,
     unit: r.unit,
     entered: r.entered,
     value: r.value,
@@ -119,10 +170,15 @@ export function publicReading(r: PublishedEvidence['readings'][number], units: U
     stops: r.stops,
     values: r.values,
     display: target.display,
-    converted: convertedDisplay(r.result.valueUm, target.expandedUncertaintyUm, 2, r.unit, units),
-    valueUm: r.result.valueUm,
-    standardUncertaintyUm: r.result.standardUncertaintyUm,
-    expandedUncertaintyUm: target.expandedUncertaintyUm,
+    converted: isLength
+      ? convertedDisplay(r.result.valueUm!, target.expandedUncertaintyUm, 2, r.unit as LengthUnit, units)
+      : convertedQuantityDisplay({ unit: r.unit, value: target.value, expandedUncertainty: target.expandedUncertainty, decimals: firstNumberDecimals(r.result.display) }, 2, units),
+    valueUm: isLength ? r.result.valueUm : null,
+    standardUncertaintyUm: isLength ? r.result.standardUncertaintyUm : null,
+    expandedUncertaintyUm: isLength ? target.expandedUncertaintyUm : null,
+    estimate: target.value,
+    standardUncertainty: r.result.standardUncertainty ?? target.expandedUncertainty / 2,
+    expandedUncertainty: target.expandedUncertainty,
     steps: r.result.steps,
     // What the engine was given, so a reader can run it through the public calculator.
     engine: r.engine,
@@ -147,24 +203,38 @@ function publicCheck(c: CheckedRecord) {
 export function publicClearance(c: PublishedEvidence['clearances'][number], units: UnitSystem | null): PublicClearance | null {
   const r = c.result;
   if (!r) return null;
+  const figures = resultFigures(r);
+  const isLength = figures.quantity === 'length' && r.valueUm !== null && r.expandedUncertaintyUm !== null;
   return {
     id: c.id,
     key: c.key,
     name: c.name,
+    quantity: figures.quantity,
     unit: r.unit,
-    valueUm: r.valueUm,
-    standardUncertaintyUm: r.standardUncertaintyUm,
-    expandedUncertaintyUm: r.expandedUncertaintyUm,
+    valueUm: isLength ? r.valueUm : null,
+    standardUncertaintyUm: isLength ? r.standardUncertaintyUm : null,
+    expandedUncertaintyUm: isLength ? r.expandedUncertaintyUm : null,
+    value: figures.value,
+    standardUncertainty: figures.standardUncertainty,
+    expandedUncertainty: figures.expandedUncertainty,
+    interval: figures.interval,
     coverageFactor: r.coverageFactor,
     display: r.display,
-    converted: convertedDisplay(r.valueUm, r.expandedUncertaintyUm, r.coverageFactor, r.unit, units),
+    converted: isLength
+      ? convertedDisplay(r.valueUm!, r.expandedUncertaintyUm!, r.coverageFactor, r.unit as LengthUnit, units)
+      : convertedQuantityDisplay({ unit: r.unit, value: figures.value, expandedUncertainty: figures.expandedUncertainty, decimals: firstNumberDecimals(r.display) }, r.coverageFactor, units),
     verdict: r.verdict,
     preferredVerdict: r.preferredVerdict,
     rejectVerdict: r.rejectVerdict,
     rule: r.rule,
-    band: r.band,
+    band: isLength ? r.band : null,
+    bandInUnit: r.bandInUnit ?? null,
     spec: c.spec ? { name: c.spec.name, version: c.spec.version, sourceKind: c.spec.sourceKind, sourceText: c.spec.sourceText } : null,
-    terms: c.terms,
+    terms: c.terms.map((t) => ({ readingId: t.readingId, readingKey: t.readingKey, readingName: t.readingName, sign: t.sign, symbol: t.symbol })),
+    // What a reader's "Recompute" needs to run a formula again: the formula, its constants and the unit asked for.
+    formula: c.formula,
+    constants: c.constants,
+    resultUnit: c.resultUnit,
     steps: r.steps,
     checked: publicCheck(c.checked),
     ...(r.method !== undefined && {
@@ -172,7 +242,7 @@ export function publicClearance(c: PublishedEvidence['clearances'][number], unit
       coverageProbability: r.coverageProbability,
       fixedCoverageFactor: r.fixedCoverageFactor ?? false,
       effectiveDegreesOfFreedom: r.effectiveDegreesOfFreedom ?? null,
-      intervalUm: r.intervalUm,
+      ...(r.intervalUm && { intervalUm: r.intervalUm }),
       probabilityOfConformance: r.probabilityOfConformance ?? null,
       budget: r.budget,
       warnings: r.warnings,

@@ -9,7 +9,7 @@ import {
   type Sequelize,
 } from 'sequelize';
 import type { ReadingKind, ReviewState } from '@shared/readings/reading.schema';
-import type { LengthUnit } from '@shared/measure/units';
+import type { ReadingUnit } from '@shared/measure/record-units';
 import type { Build, Part } from '../builds/build.model';
 import type { Moment } from '../clips/clip.model';
 import type { Instrument } from '../instruments/instrument.model';
@@ -25,7 +25,7 @@ export class Reading extends Model<InferAttributes<Reading>, InferCreationAttrib
   declare key: string;
   declare name: string;
   declare kind: ReadingKind;
-  declare unit: LengthUnit;
+  declare unit: ReadingUnit;
   declare value: string | null;
   declare passes: string | null;
   declare stops: string | null;

@@ -4,7 +4,8 @@ import { calibrationDueOn, calibrationStateOn, zeroCheckedKinds } from '@shared/
 import type { Reading as EngineReading } from '@shared/measure/calc.schema';
 import { decimalsForStep, formatValue } from '@shared/measure/format-quantity';
 import { evaluateReading } from '@shared/measure/readings';
-import { picometresToMicrometres } from '@shared/measure/units';
+import { picometresToMicrometres, type LengthUnit } from '@shared/measure/units';
+import { quantityOf } from '@shared/measure/quantities';
 import { engineInstrumentsMap } from '@shared/measure/instrument-map';
 import { engineReadingProblems, normaliseReadingFigures, toEngineReading, type ReadingFigures, type RegisterInstrument } from '@shared/readings/reading-figures';
 import {
@@ -198,8 +199,11 @@ export function evaluateStored(
     warnings,
     zeroCheck: zeroOffset,
     result: {
-      valueUm: picometresToMicrometres(evaluated.valuePm ?? 0n),
-      standardUncertaintyUm: evaluated.standardUncertaintyUm ?? 0,
+      quantity: evaluated.quantity,
+      valueUm: evaluated.valuePm === null ? null : picometresToMicrometres(evaluated.valuePm),
+      standardUncertaintyUm: evaluated.valuePm === null ? null : (evaluated.standardUncertaintyUm ?? 0),
+      value: evaluated.estimate.valueOf(),
+      standardUncertainty: evaluated.standardUncertainty,
       display: formatValue(evaluated.estimate, evaluated.unit, decimalsForStep(evaluated.displayStep)),
       steps: [...preface, ...evaluated.steps],
     },
@@ -213,7 +217,7 @@ function registerOf(instrument: Instrument): RegisterInstrument {
 
 function bareEngine(r: Pick<Reading, 'kind' | 'unit' | 'value' | 'passes' | 'stops' | 'repeatedValues'>): EngineReading {
   if (r.kind === 'direct') return { kind: 'direct', value: String(r.value), unit: r.unit };
-  if (r.kind === 'bracket') return { kind: 'bracket', passes: String(r.passes), stops: String(r.stops), unit: r.unit };
+  if (r.kind === 'bracket') return { kind: 'bracket', passes: String(r.passes), stops: String(r.stops), unit: r.unit as LengthUnit };
   return { kind: 'repeated', values: (r.repeatedValues ?? []).map(String), unit: r.unit };
 }
 
@@ -361,14 +365,17 @@ async function partOfBuild(partId: number | null, buildId: number, transaction?:
 }
 
 /** Rules across fields that the engine needs and the body schema cannot see alone. */
-function checkTemperature(kind: ReadingKind, temperatureC: number | null, material: string | null) {
-  if (temperatureC === null) return;
-  if (kind === 'repeated') {
-    throw invalid([
-      { path: 'temperatureC', message: 'a “Repeated” reading is not corrected to 20 °C: leave the temperature empty, or log each value as “One indication” with its temperature' },
-    ]);
+function checkTemperature(kind: ReadingKind, temperatureC: number | null, material: string | null, unit: ReadingFigures['unit']) {
+  if (quantityOf(unit) !== 'length') {
+    if (temperatureC !== null || material !== null) {
+      throw invalid([
+        { path: temperatureC !== null ? 'temperatureC' : 'material', message: 'only a length is corrected to 20 °C: leave the part’s temperature and material empty for this reading' },
+      ]);
+    }
+    return;
   }
-  if (kind === 'direct' && material === null) {
+  if (temperatureC === null) return;
+  if (kind !== 'bracket' && material === null) {
     throw invalid([{ path: 'material', message: 'name the material so the value can be corrected to 20 °C' }]);
   }
 }
@@ -382,7 +389,7 @@ async function figuresFor(
 ): Promise<ReadingFigures> {
   const normal = normaliseReadingFigures(texts, { unit: instrument.unit, kind: instrument.kind });
   if (!normal.ok) throw invalid(normal.problems);
-  checkTemperature(texts.kind, more.temperatureC, more.material);
+  checkTemperature(texts.kind, more.temperatureC, more.material, normal.figures.unit);
   const zero = await ZeroCheck.findOne({ where: { instrumentId: instrument.id, checkedOn: more.takenOn }, order: [['id', 'DESC']], transaction });
   const built = toEngineReading(
     { ...normal.figures, kind: texts.kind, temperatureC: more.temperatureC, material: more.material },

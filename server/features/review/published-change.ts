@@ -1,8 +1,10 @@
 import { clearanceResultSchema, type Clearance as ClearanceDto, type ClearanceResult } from '@shared/clearances/clearance.schema';
+import { resultFigures } from '@shared/clearances/result-figures';
 import { formatResult, formatUncertainty } from '@shared/measure/format';
-import { formatCoverageFactor, plainNumber } from '@shared/measure/format-quantity';
+import { formatCoverageFactor, formatUncertaintyIn, formatValue, plainNumber, uncertaintyDecimals } from '@shared/measure/format-quantity';
+import { convertNumber, quantityOf } from '@shared/measure/quantities';
 import { verdictWords, type Verdict } from '@shared/measure/spec';
-import { micrometresToPicometres } from '@shared/measure/units';
+import { isLengthUnit, micrometresToPicometres } from '@shared/measure/units';
 import type { AsPublished } from '@shared/review/review-sheet.schema';
 import type { PublishedEvidence } from '../public/publication';
 
@@ -19,8 +21,9 @@ export function publishedResult(c: PublishedEvidence['clearances'][number] | und
   return parsed.success ? parsed.data : null;
 }
 
-/** What the sheet shows of the published judgement. */
+/** What the sheet shows of the published judgement: µm figures for a length, and the figures in the result's own unit. */
 export function asPublished(result: ClearanceResult, revision: number): AsPublished {
+  const figures = resultFigures(result);
   return {
     revision,
     verdict: result.verdict,
@@ -28,6 +31,10 @@ export function asPublished(result: ClearanceResult, revision: number): AsPublis
     valueUm: result.valueUm,
     expandedUncertaintyUm: result.expandedUncertaintyUm,
     method: result.method ?? null,
+    quantity: figures.quantity,
+    unit: result.unit,
+    value: figures.value,
+    expandedUncertainty: figures.expandedUncertainty,
   };
 }
 
@@ -66,12 +73,13 @@ export function changeSincePublished(
   if (!now) {
     return `cannot be worked out now; ${then.display}${then.verdict ? `, ${verdictWords[then.verdict]}` : ''} ${when}`;
   }
-  const unit = now.unit;
-  const uNow = formatUncertainty(now.expandedUncertaintyUm, unit);
-  const uThen = formatUncertainty(then.expandedUncertaintyUm, unit);
-  const finer = Math.min(now.expandedUncertaintyUm, then.expandedUncertaintyUm);
-  const vNow = formatResult(micrometresToPicometres(now.valueUm), finer, unit).value;
-  const vThen = formatResult(micrometresToPicometres(then.valueUm), finer, unit).value;
+  const shown = shownFigures(now, then);
+  if (!shown) {
+    // A result that measures something else now than then (its formula changed): say both as judged.
+    const verdicts = now.verdict !== then.verdict ? `${verdictText(now.verdict)} now; ${verdictText(then.verdict)} ${when}. ` : '';
+    return `${verdicts}The result is ${now.display} now, ${then.display} ${verdicts ? 'when published' : when}${opts.edited ? ': a reading it uses, or the result, was edited since' : ''}`;
+  }
+  const { vNow, vThen, uNow, uThen, what, readingWord } = shown;
 
   const clauses: string[] = [];
   let dated = false;
@@ -88,11 +96,51 @@ export function changeSincePublished(
     clauses.push(`${verdictText(now.verdict)} now; ${verdictText(then.verdict)} ${at()}${spec}`);
   }
   if (vNow !== vThen) {
-    clauses.push(`The clearance is ${vNow} now, ${vThen} ${at()}${opts.edited ? ': a reading it sums, or the clearance, was edited since' : ''}`);
+    clauses.push(`${what} is ${vNow} now, ${vThen} ${at()}${opts.edited ? `: ${readingWord}, was edited since` : ''}`);
   }
   if (uNow !== uThen) {
     const cause = uncertaintyCause(now, then);
-    clauses.push(`U is ${uNow} now, ${uThen} ${at()}${cause ? `: ${cause}` : opts.edited && vNow === vThen ? ': a reading it sums, or the clearance, was edited since' : ''}`);
+    clauses.push(`U is ${uNow} now, ${uThen} ${at()}${cause ? `: ${cause}` : opts.edited && vNow === vThen ? `: ${readingWord}, was edited since` : ''}`);
   }
   return clauses.length ? clauses.join('. ') : null;
+}
+
+/**
+ * The value and U of both results as the sheet shows them, in today's unit: a length by its µm
+ * figures (the value at the finer of the two U's places, U to two significant digits), any other
+ * quantity by its figures in its unit (`resultFigures`), the published ones converted when the
+ * unit changed since. Null when the two are not of one quantity.
+ */
+function shownFigures(now: ClearanceResult, then: ClearanceResult): { vNow: string; vThen: string; uNow: string; uThen: string; what: string; readingWord: string } | null {
+  const unit = now.unit;
+  // A result without `quantity` was judged before other quantities could be stored: a length.
+  const lengths = (now.quantity ?? 'length') === 'length' && (then.quantity ?? 'length') === 'length';
+  if (lengths && isLengthUnit(unit) && now.valueUm !== null && then.valueUm !== null) {
+    const eNow = now.expandedUncertaintyUm ?? 0;
+    const eThen = then.expandedUncertaintyUm ?? 0;
+    const finer = Math.min(eNow, eThen);
+    return {
+      uNow: formatUncertainty(eNow, unit),
+      uThen: formatUncertainty(eThen, unit),
+      vNow: formatResult(micrometresToPicometres(now.valueUm), finer, unit).value,
+      vThen: formatResult(micrometresToPicometres(then.valueUm), finer, unit).value,
+      what: 'The clearance',
+      readingWord: 'a reading it sums, or the clearance',
+    };
+  }
+  const fNow = resultFigures(now);
+  const fThen = resultFigures(then);
+  if (quantityOf(then.unit) !== quantityOf(unit)) return null;
+  const thenValue = then.unit === unit ? fThen.value : convertNumber(fThen.value, then.unit, unit);
+  const thenU = then.unit === unit ? fThen.expandedUncertainty : convertNumber(fThen.expandedUncertainty, then.unit, unit, { difference: true });
+  const finer = Math.min(fNow.expandedUncertainty, thenU);
+  const places = finer > 0 ? uncertaintyDecimals(finer) : 6;
+  return {
+    uNow: formatUncertaintyIn(fNow.expandedUncertainty, unit),
+    uThen: formatUncertaintyIn(thenU, unit),
+    vNow: formatValue(fNow.value, unit, places),
+    vThen: formatValue(thenValue, unit, places),
+    what: 'The result',
+    readingWord: 'a reading it uses, or the result',
+  };
 }

@@ -102,6 +102,11 @@ export function instrumentCalibration(i: PartSheet['instruments'][number]): stri
   return `${record}; ${calibrationWords[i.calibration]}${days}.`;
 }
 
+/** "Clearances" when every result on the sheet is a length (a gap), else "Results" (DEVELOPERS.md, Words). */
+export function resultsHeading(clearances: readonly Pick<SheetClearance, 'quantity'>[]): string {
+  return clearances.every((c) => (c.quantity ?? 'length') === 'length') ? 'Clearances' : 'Results';
+}
+
 /** The QR code of a sheet, as PNG: what the PDF embeds. */
 export function sheetQrPng(verifyUrl: string): Promise<Buffer> {
   return QRCode.toBuffer(verifyUrl, { type: 'png', errorCorrectionLevel: 'M', margin: 2, width: 360 });
@@ -174,8 +179,8 @@ export async function sheetPdf(sheet: PartSheet, opts: { generatedAt: Date }): P
   doc.font('sans').fontSize(8).fillColor(MUTED).text(`Scan to check these figures are still the published ones: ${sheet.verifyUrl}`, left, doc.y, { width });
   doc.moveDown(1);
 
-  // Clearances.
-  doc.font('bold').fontSize(12).fillColor(INK).text('Clearances', left, doc.y, { width });
+  // Clearances, or results when some are not gaps (a torque, a compression ratio).
+  doc.font('bold').fontSize(12).fillColor(INK).text(resultsHeading(sheet.clearances), left, doc.y, { width });
   doc.moveDown(0.3);
   for (const c of sheet.clearances) {
     if (doc.y > doc.page.height - doc.page.margins.bottom - 120) doc.addPage();

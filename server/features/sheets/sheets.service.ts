@@ -1,9 +1,12 @@
 import { calibrationDueOn, type CalibrationState } from '@shared/instruments/instrument.schema';
+import { resultFigures } from '@shared/clearances/result-figures';
 import { convertWrittenLength, symbolFor } from '@shared/measure/format';
+import { formatConvertedFigure, withUnit } from '@shared/measure/format-quantity';
+import { quantityOf, type AnyUnit } from '@shared/measure/quantities';
 import { decisionRuleText, verdictWords } from '@shared/measure/spec';
 import type { PartSheet, SheetClearance, SheetReading, VerifySheet } from '@shared/public/sheet.schema';
-import { limitFacts, specLimitTexts } from '@shared/public/spec-limits';
-import type { LengthUnit } from '@shared/measure/units';
+import { limitFacts, specLimitTexts, specLimitTextsIn, type SpecLimitTexts } from '@shared/public/spec-limits';
+import { isLengthUnit } from '@shared/measure/units';
 import { STANDING_NOTE } from '@shared/stories/cautions';
 import { AppError, notFound } from '../../http/errors';
 import { Build, Part } from '../builds/build.model';
@@ -26,36 +29,56 @@ export function verifyUrlFor(publicUrl: string, partId: number, entries: { story
 
 const missing = () => notFound('There is no public inspection sheet for that part.');
 
-/** A zero offset as taken off, with its sign and as written: "+0.0001 in", "−0.002 mm". */
-export function zeroOffsetText(offset: string, unit: LengthUnit): string {
+/** A number as written with its unit's symbol: lengths as format.ts writes them ("3.5 thou"), any other unit as SI spaces it ("35 lbf·ft", "108°", "10.2"). */
+function withSymbol(numberText: string, unit: AnyUnit): string {
+  return isLengthUnit(unit) ? `${numberText} ${symbolFor(unit, numberText)}` : withUnit(numberText, unit);
+}
+
+/** A zero offset as taken off, with its sign and as written: "+0.0001 in", "−0.002 mm", "−0.5 psi", "0 g". */
+export function zeroOffsetText(offset: string, unit: AnyUnit): string {
   const text = offset.trim();
   const negative = text.startsWith('-') || text.startsWith('−');
   const digits = text.replace(/^[+−-]/, '');
   const sign = /[1-9]/.test(digits) ? (negative ? '−' : '+') : '';
-  return `${sign}${digits} ${symbolFor(unit, digits)}`;
+  return withSymbol(`${sign}${digits}`, unit);
 }
 
 type PublishedReading = PublishedEvidence['readings'][number];
 
 /** What the instrument showed, before any zero offset, in the reading's unit. */
 function readText(r: Pick<PublishedReading, 'kind' | 'unit' | 'value' | 'values' | 'passes' | 'stops'>): string {
-  const unit = (text: string) => symbolFor(r.unit, text);
-  if (r.kind === 'bracket') return `blade ${r.passes ?? '?'} enters, ${r.stops ?? '?'} does not (${unit('')})`;
+  if (r.kind === 'bracket') return `blade ${r.passes ?? '?'} enters, ${r.stops ?? '?'} does not (${isLengthUnit(r.unit) ? symbolFor(r.unit, '') : withUnit('', r.unit).trim()})`;
   if (r.kind === 'repeated') {
     const values = r.values ?? [];
-    return `${values.join(', ')} ${unit(values.at(-1) ?? '')}`;
+    // The symbol once, after the last value (and spoken for it: "1 tenth").
+    const last = values.at(-1) ?? '';
+    return isLengthUnit(r.unit) ? `${values.join(', ')} ${symbolFor(r.unit, last)}` : withUnit(values.join(', '), r.unit);
   }
-  return `${r.value ?? '?'} ${unit(r.value ?? '')}`;
+  return withSymbol(r.value ?? '?', r.unit);
+}
+
+/**
+ * A reading's figure in the unit of the result it belongs to, at the places it was written to
+ * (NIST SP 811 B.7.2): "3.5 thou" in a clearance in inches is "0.0035 in". A reading of another
+ * quantity than its result (a chamber's cc in a compression ratio) keeps its own unit.
+ */
+function figureIn(r: PublishedReading, resultUnit: AnyUnit): string {
+  const display = r.result.display;
+  if (r.unit === resultUnit) return display;
+  if (isLengthUnit(r.unit) && isLengthUnit(resultUnit)) return convertWrittenLength(display, r.unit, resultUnit) ?? display;
+  if (quantityOf(r.unit) !== quantityOf(resultUnit)) return display;
+  const number = /^[−-]?\d+(?:\.\d+)?/.exec(display.trim())?.[0];
+  return (number && formatConvertedFigure(number, r.unit, resultUnit)) ?? display;
 }
 
 /** A reading as a sheet prints it, its figure in the unit of the clearance it belongs to. */
-function sheetReading(r: PublishedReading, clearanceUnit: LengthUnit, serials: Map<number, string>): SheetReading {
+function sheetReading(r: PublishedReading, clearanceUnit: AnyUnit, serials: Map<number, string>): SheetReading {
   return {
     key: r.key,
     name: r.name,
     display: r.result.display,
     read: readText(r),
-    figure: r.unit === clearanceUnit ? r.result.display : (convertWrittenLength(r.result.display, r.unit, clearanceUnit) ?? r.result.display),
+    figure: figureIn(r, clearanceUnit),
     instrumentId: r.instrumentId,
     instrumentName: r.instrumentName,
     instrumentSerial: serials.get(r.instrumentId) ?? '',
@@ -114,13 +137,25 @@ export async function partSheet(partId: number, publicUrl: string, storyIds?: nu
       instruments.set(r.instrumentId, known);
     }
     const result = c.result!;
-    const limits = result.band ? specLimitTexts(result.band, result.unit) : { band: null, preferred: null, reject: null };
+    const figures = resultFigures(result);
+    const isLength = figures.quantity === 'length' && isLengthUnit(result.unit);
+    const none: SpecLimitTexts = { band: null, preferred: null, reject: null };
+    const limits = isLength
+      ? result.band && isLengthUnit(result.unit)
+        ? specLimitTexts(result.band, result.unit)
+        : none
+      : result.bandInUnit
+        ? specLimitTextsIn(result.bandInUnit, result.unit)
+        : none;
     clearances.push({
       key: c.key,
       name: c.name,
+      quantity: figures.quantity,
       unit: result.unit,
-      valueUm: result.valueUm,
-      expandedUncertaintyUm: result.expandedUncertaintyUm,
+      valueUm: isLength ? result.valueUm : null,
+      expandedUncertaintyUm: isLength ? result.expandedUncertaintyUm : null,
+      value: figures.value,
+      expandedUncertainty: figures.expandedUncertainty,
       coverageFactor: result.coverageFactor,
       display: result.display,
       verdict: result.verdict,
@@ -130,7 +165,8 @@ export async function partSheet(partId: number, publicUrl: string, storyIds?: nu
       rule: result.rule,
       ruleText: result.rule ? decisionRuleText[result.rule] : null,
       spec: c.spec ? { name: c.spec.name, version: c.spec.version, sourceKind: c.spec.sourceKind, sourceText: c.spec.sourceText } : null,
-      band: result.band,
+      band: isLength ? result.band : null,
+      bandInUnit: result.bandInUnit ?? null,
       limits,
       limitFacts: result.verdict ? limitFacts({ preferredVerdict: result.preferredVerdict ?? null, rejectVerdict: result.rejectVerdict ?? null }, limits) : [],
       checkedBy: c.checked.byName,

@@ -10,7 +10,7 @@ import {
 } from 'sequelize';
 import type { DecisionRule } from '@shared/measure/spec';
 import type { SpecSourceKind } from '@shared/measure/spec.schema';
-import type { LengthUnit } from '@shared/measure/units';
+import type { AnyUnit } from '@shared/measure/quantities';
 import type { User } from '../users/user.model';
 
 /** A spec in the library: its name and who keeps it; the figures are in its versions. */
@@ -32,7 +32,7 @@ export class SpecVersion extends Model<InferAttributes<SpecVersion>, InferCreati
   declare id: CreationOptional<number>;
   declare specId: ForeignKey<Spec['id']>;
   declare version: number;
-  declare unit: LengthUnit;
+  declare unit: AnyUnit;
   declare minValue: string | null;
   declare maxValue: string | null;
   declare preferredMin: string | null;

@@ -249,12 +249,23 @@ describe('refusals name the field', () => {
     expect(fieldOf(await log({ instrumentId: inst.retired, name: 'Retired', kind: 'direct', value: '25.01' }).expect(400))).toBe('instrumentId');
   });
 
-  it('a part of another build, a temperature on a repeated reading, and a missing figure', async () => {
+  it('a part of another build, a temperature without a material, and a missing figure', async () => {
     expect(fieldOf(await log({ instrumentId: inst.mic, partId: 999_999, name: 'No part', kind: 'direct', value: '0.5' }).expect(400))).toBe('partId');
-    expect(
-      fieldOf(await log({ instrumentId: inst.mic, name: 'Warm', kind: 'repeated', values: ['0.5', '0.5'], temperatureC: 30, material: 'steel' }).expect(400)),
-    ).toBe('temperatureC');
+    expect(fieldOf(await log({ instrumentId: inst.mic, name: 'Warm', kind: 'repeated', values: ['0.5', '0.5'], temperatureC: 30 }).expect(400))).toBe('material');
     expect(fieldOf(await log({ instrumentId: inst.blades, name: 'Half', kind: 'bracket', passes: '0.003' }).expect(400))).toBe('stops');
+  });
+});
+
+describe('a repeated reading keeps its temperature', () => {
+  it('is corrected to 20 °C like one indication (ISO 1), the temperature stored and shown', async () => {
+    const warm = await logged({ instrumentId: inst.mic, name: 'Warm repeated', kind: 'repeated', values: ['0.5000', '0.5002'], temperatureC: 30, material: 'steel' });
+    expect(warm.temperatureC).toBe(30);
+    expect(warm.engine).toMatchObject({ kind: 'repeated', temperatureC: 30, material: 'steel' });
+    // Carbon steel, 11.7e-6 /K (the engine's material table); the micrometer at 20 °C, so
+    // L20 = L / (1 + α·(30 − 20) K) (GUM H.1), with L the mean 0.5001 in less the day's zero offset (1 in = 25.4 mm).
+    const offset = warm.zeroCheck ? Number(warm.zeroCheck.offset) : 0;
+    expect(warm.result.valueUm).toBeCloseTo(((0.5001 - offset) * 25_400) / (1 + 11.7e-6 * 10), 6);
+    expect(warm.result.steps.join(' ')).toMatch(/20 °C/);
   });
 });
 

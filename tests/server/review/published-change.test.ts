@@ -8,6 +8,7 @@ import { asPublished, changeSincePublished, publishedResult } from '../../../ser
  */
 
 const now: ClearanceResult = {
+  quantity: 'length',
   unit: 'in',
   valueUm: 119.38,
   standardUncertaintyUm: 1.0,
@@ -80,5 +81,56 @@ describe('what changed since a clearance was published', () => {
   it('reads the published judgement, with a null method before the field existed', () => {
     expect(asPublished(firstEngine(), 1)).toEqual({ revision: 1, verdict: 'conforms', display: '0.004700 in ± 0.000082 in (k = 2)', valueUm: 119.38, expandedUncertaintyUm: 2.0828, method: null });
     expect(publishedResult(undefined)).toBeNull();
+  });
+
+  describe('for a result of another quantity than a length', () => {
+    // Invented figures: a static compression ratio of 10.19 ± 0.11 against 9.5–10.5 by the guarded rule.
+    const ratio: ClearanceResult = {
+      quantity: 'ratio',
+      unit: '1',
+      valueUm: null,
+      standardUncertaintyUm: null,
+      expandedUncertaintyUm: null,
+      value: 10.19,
+      standardUncertainty: 0.055,
+      expandedUncertainty: 0.11,
+      interval: [10.08, 10.3],
+      bandInUnit: { min: 9.5, max: 10.5, preferredMin: null, preferredMax: null, reject: null },
+      coverageFactor: 2,
+      display: '10.19 ± 0.11 (95 %, k = 2)',
+      verdict: 'conforms',
+      preferredVerdict: null,
+      rejectVerdict: null,
+      rule: 'guarded',
+      band: null,
+      steps: [],
+      method: 'gum',
+      coverageProbability: 0.95,
+      fixedCoverageFactor: false,
+      effectiveDegreesOfFreedom: null,
+      probabilityOfConformance: 0.999,
+      budget: [],
+      warnings: [],
+    };
+
+    it('compares value and U in the result’s own unit, and says what moved', () => {
+      const then = { ...ratio, value: 10.42, interval: [10.31, 10.53] as [number, number], verdict: 'undecided' as const, display: '10.42 ± 0.11 (95 %, k = 2)' };
+      expect(changeSincePublished({ result: ratio, spec }, then, 2, { edited: true, specVersionThen: 1 })).toBe(
+        'within spec now; too close to call when published (revision 2). The result is 10.19 now, 10.42 when published: a reading it uses, or the result, was edited since',
+      );
+      expect(changeSincePublished({ result: ratio, spec }, { ...ratio, expandedUncertainty: 0.111 }, 2, unedited)).toBeNull();
+    });
+
+    it('takes a change of unit alone for no change, and converts a published figure to today’s unit', () => {
+      // 35 lbf·ft = 47.45 N·m (NIST SP 811 B.8: 1 lbf·ft = 1.355818 N·m); U 1.2 lbf·ft = 1.63 N·m.
+      const torque = { ...ratio, quantity: 'torque' as const, unit: 'N_m' as const, value: 47.45, expandedUncertainty: 1.6, interval: [45.85, 49.05] as [number, number], bandInUnit: null, display: '47.5 N·m ± 1.6 N·m (95 %, k = 2)' };
+      const asTyped = { ...torque, unit: 'lbf_ft' as const, value: 35, expandedUncertainty: 1.2, interval: [33.8, 36.2] as [number, number], display: '35 lbf·ft ± 1.2 lbf·ft (95 %, k = 2)' };
+      expect(changeSincePublished({ result: torque, spec }, asTyped, 1, unedited)).toBeNull();
+      expect(changeSincePublished({ result: { ...torque, value: 50.2 }, spec }, asTyped, 1, unedited)).toBe('The result is 50.2 N·m now, 47.5 N·m when published (revision 1)');
+    });
+
+    it('sends 0 for the µm figures the review sheet’s schema asks for, and the result’s own display', () => {
+      expect(asPublished(ratio, 3)).toEqual({ revision: 3, verdict: 'conforms', display: '10.19 ± 0.11 (95 %, k = 2)', valueUm: 0, expandedUncertaintyUm: 0, method: 'gum' });
+    });
   });
 });

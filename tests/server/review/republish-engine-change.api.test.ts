@@ -108,7 +108,7 @@ describe('the review sheet of a published story sent for review again', () => {
       expandedUncertaintyUm: uThen,
       method: null,
     });
-    const uNow = formatUncertainty(now.expandedUncertaintyUm, 'in');
+    const uNow = formatUncertainty(now.expandedUncertaintyUm!, 'in');
     expect(uNow).not.toBe('0.00031 in');
     expect(entry!.change).toBe(
       `within spec now; too close to call when published (revision 1). U is ${uNow} now, 0.00031 in when published: the engine now works out a 95 % interval instead of k = 2`,

@@ -58,9 +58,10 @@ describe('GUM H.1: end-gauge calibration', () => {
    * (the first-order terms are multiplied by l_s); the part and the instrument (the standard)
    * both sit at θ = 19.9 °C with α = α_s = 11.5×10⁻⁶/K, so the correction factor is exactly 1.
    * In H.1's variables only δθ and δα have a sensitivity; the request gives their uncertainties
-   * as the part's temperature and expansion uncertainties. u(θ) and u(α_s) are left out: the engine
-   * takes the part's and the instrument's temperatures as independent inputs, so it cannot carry
-   * H.1's common θ (whose first-order sensitivity is zero anyway).
+   * as the part's temperature and expansion uncertainties. u(θ) and u(α_s) are left out: this
+   * request takes the part's and the instrument's temperatures as independent inputs, which cannot
+   * carry H.1's common θ (whose first-order sensitivity is zero anyway). thermal-h1.test.ts enters
+   * the example with the instrument at the part's temperature, which does.
    */
   const h1: CalcRequestInput = {
     readings: {

@@ -13,7 +13,10 @@ function target(kind: ClaimKind, key: string, fields: Partial<ClaimTarget> = {})
     kind,
     key,
     name: key,
+    quantity: 'length',
     unit: 'in',
+    value: 0,
+    expandedUncertainty: 0,
     valueUm: 0,
     expandedUncertaintyUm: 0,
     display: '',
@@ -229,7 +232,7 @@ describe('claim targets from a build’s readings and clearances', () => {
     zeroCheck: null,
     engine: { kind: 'direct', value: 0.5642, unit: 'in', resolution: 0.0001 },
     engineInstrument: null,
-    result: { valueUm: umFromIn(0.5642), standardUncertaintyUm: 1.5, display: '0.5642 in', steps: [] },
+    result: { quantity: 'length', valueUm: umFromIn(0.5642), standardUncertaintyUm: 1.5, display: '0.5642 in', steps: [] },
     warnings: [],
     createdBy: 1,
     createdByName: 'Builder',
@@ -245,6 +248,9 @@ describe('claim targets from a build’s readings and clearances', () => {
     name: key,
     template: null,
     terms: [],
+    formula: null,
+    constants: {},
+    resultUnit: null,
     specVersionId: null,
     spec: null,
     coverageFactor: 2,
@@ -259,6 +265,7 @@ describe('claim targets from a build’s readings and clearances', () => {
 
   it('quotes a reading at k = 2 with its moment, and leaves out clearances that cannot be worked out', () => {
     const worked = clearance('end-float', {
+      quantity: 'length',
       unit: 'in',
       valueUm: umFromIn(0.0047),
       standardUncertaintyUm: 3.81,

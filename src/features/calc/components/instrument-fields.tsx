@@ -3,7 +3,7 @@ import { Button } from '@/components/ui/button';
 import { Field, Input, Select } from '@/components/ui/field';
 import { useDefaultUnits } from '@/features/auth/lib/use-default-units';
 import { blankInstrument, keyFromName, type CalcFormValues } from '../lib/calc-form';
-import { nextReadingUnit, readingQuantities } from '../lib/units-ui';
+import { nextReadingUnit, readingQuantities, temperatureSymbol } from '../lib/units-ui';
 import { UnitSelect } from './unit-select';
 
 const MAX_INSTRUMENTS = 10;
@@ -50,6 +50,7 @@ export function InstrumentFields({ notes }: { notes: readonly string[] }) {
   const rows = useWatch({ control, name: 'instruments' });
   const firstUnit = useWatch({ control, name: 'readings.0.unit' });
   const defaults = useDefaultUnits();
+  const scale = useWatch({ control, name: 'temperatureScale' }) ?? 'degC';
   const figureProps = { inputMode: 'decimal' as const, autoComplete: 'off', className: 'figures', spellCheck: false };
 
   return (
@@ -96,7 +97,11 @@ export function InstrumentFields({ notes }: { notes: readonly string[] }) {
                   <Input {...register(`instruments.${index}.coverageFactor`)} {...figureProps} />
                 </Field>
               )}
-              <Field label="Its temperature, °C" hint="Blank: 20 °C. Used when a length is corrected to 20 °C." error={err('temperatureC')}>
+              <Field
+                label={`Its temperature, ${temperatureSymbol(scale)}`}
+                hint={`Blank: 20 °C${scale === 'degF' ? ' (68 °F)' : ''}. Used when a length is corrected to 20 °C, except for readings taken at the part’s temperature.`}
+                error={err('temperatureC')}
+              >
                 <Input {...register(`instruments.${index}.temperatureC`)} {...figureProps} />
               </Field>
             </div>

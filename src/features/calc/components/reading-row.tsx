@@ -4,7 +4,7 @@ import { materialExpansion, materialNames } from '@shared/measure/thermal';
 import { Button } from '@/components/ui/button';
 import { Field, Input, Select, Textarea } from '@/components/ui/field';
 import type { CalcFormValues, ReadingKind } from '../lib/calc-form';
-import { readingQuantities } from '../lib/units-ui';
+import { readingQuantities, temperatureSymbol } from '../lib/units-ui';
 import { UnitSelect } from './unit-select';
 
 const kindLabels: Record<ReadingKind, string> = {
@@ -42,8 +42,13 @@ export interface ReadingRowProps {
 export function ReadingRow({ index, readingKey, model, instruments, onRemove, canRemove }: ReadingRowProps) {
   const { register, control, formState, setValue } = useFormContext<CalcFormValues>();
   const row = useWatch({ control, name: `readings.${index}` });
+  const scale = useWatch({ control, name: 'temperatureScale' }) ?? 'degC';
+  const degrees = temperatureSymbol(scale);
+  // An uncertainty is a difference: kelvin, or Fahrenheit degrees in a °F shop.
+  const spreadUnit = scale === 'degF' ? '°F' : 'K';
   const err = (name: string) => errorAt(formState.errors, 'readings', index, name);
   const isLength = isAnyUnit(row.unit) && quantityOf(row.unit) === 'length';
+  const sameAsPart = isLength && row.instrumentTemperature === 'same-as-part';
   const unitName = isAnyUnit(row.unit) ? unitTable[row.unit].name : row.unit;
   const feeler = row.kind === 'bracket' || row.kind === 'blade';
   const figureProps = { inputMode: 'decimal' as const, autoComplete: 'off', className: 'figures', spellCheck: false };
@@ -169,13 +174,21 @@ export function ReadingRow({ index, readingKey, model, instruments, onRemove, ca
               <Input {...register(`readings.${index}.uncertainty`)} {...figureProps} />
             </Field>
             <Field
-              label="Temperature when read, °C"
-              hint={isLength ? 'Corrects the length to 20 °C (ISO 1).' : 'Kept with the reading; no correction applies to this quantity.'}
+              label={`Temperature when read, ${degrees}`}
+              hint={
+                isLength
+                  ? `Of the part. Corrects the length to 20 °C${scale === 'degF' ? ' (68 °F)' : ''} (ISO 1).`
+                  : 'Kept with the reading; no correction applies to this quantity.'
+              }
               error={err('temperatureC')}
             >
               <Input {...register(`readings.${index}.temperatureC`)} {...figureProps} />
             </Field>
-            <Field label="Its standard uncertainty u(t), K" hint="Blank: none counted." error={err('temperatureUncertaintyC')}>
+            <Field
+              label={`Its standard uncertainty u(t), ${spreadUnit}`}
+              hint={sameAsPart ? 'Of the temperature part and instrument share. Blank: none counted.' : 'Blank: none counted.'}
+              error={err('temperatureUncertaintyC')}
+            >
               <Input {...register(`readings.${index}.temperatureUncertaintyC`)} {...figureProps} />
             </Field>
             {isLength && (
@@ -194,6 +207,27 @@ export function ReadingRow({ index, readingKey, model, instruments, onRemove, ca
             {isLength && row.material === 'custom' && (
               <Field label="Expansion coefficient, per K" hint="e.g. 11.7e-6" error={err('expansionPerK')}>
                 <Input {...register(`readings.${index}.expansionPerK`)} autoComplete="off" className="figures" spellCheck={false} />
+              </Field>
+            )}
+            {isLength && (
+              <Field
+                label="The instrument’s temperature"
+                hint="Its own: as on the Instruments panel, 20 °C when blank. The part’s: lying beside the part on the bench, it is at the part’s temperature, so one thermometer reading serves both and only how far apart they may be is uncertain (GUM H.1)."
+                error={err('instrumentTemperature')}
+              >
+                <Select {...register(`readings.${index}.instrumentTemperature`)}>
+                  <option value="">its own</option>
+                  <option value="same-as-part">the part’s</option>
+                </Select>
+              </Field>
+            )}
+            {sameAsPart && (
+              <Field
+                label={`How far apart they may be, u(δθ), ${spreadUnit}`}
+                hint="Standard uncertainty of the difference between the part’s and the instrument’s temperatures. Blank: none counted."
+                error={err('temperatureDifferenceUncertaintyC')}
+              >
+                <Input {...register(`readings.${index}.temperatureDifferenceUncertaintyC`)} {...figureProps} />
               </Field>
             )}
           </div>

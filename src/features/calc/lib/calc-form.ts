@@ -1,11 +1,12 @@
 import type { FieldErrors, Resolver } from 'react-hook-form';
-import { calcRequestSchema, type CalcRequest } from '@shared/measure/calc.schema';
+import { calcRequestSchema, TEMPERATURE_RANGE_C, type CalcRequest } from '@shared/measure/calc.schema';
 import { formulaTemplates, type FormulaTemplate } from '@shared/measure/formula-templates';
-import { isAnyUnit, quantityOf, type AnyUnit, type QuantityKind } from '@shared/measure/quantities';
+import { convertNumber, isAnyUnit, quantityOf, type AnyUnit, type QuantityKind, type TemperatureScale } from '@shared/measure/quantities';
 import type { DecisionRule } from '@shared/measure/spec';
 import { lookupMaterial } from '@shared/measure/thermal';
 import type { DefaultUnits } from '@/features/auth/lib/default-units';
-import { startingUnit } from './units-ui';
+import { temperatureOf } from '@/features/readings/lib/reading-form';
+import { startingUnit, temperatureSymbol } from './units-ui';
 
 /** How a reading takes part in a signed sum. */
 export type TermSign = 'plus' | 'minus' | 'none';
@@ -26,8 +27,14 @@ export interface ReadingRow {
   resolution: string;
   uncertainty: string;
   zeroOffset: string;
+  /** The part's temperature as typed, in the form's `temperatureScale`; sent in °C. */
   temperatureC: string;
+  /** u(t) as typed, a difference in the form's scale (°F or K); sent in K. */
   temperatureUncertaintyC: string;
+  /** "same-as-part": the instrument sits at the part's temperature (GUM H.1); "": at its own. */
+  instrumentTemperature: '' | 'same-as-part';
+  /** With "same-as-part": u(δθ), how far the two temperatures may differ, in the form's scale; sent in K. */
+  temperatureDifferenceUncertaintyC: string;
   /** A material key, "custom" (use expansionPerK) or "" (no correction). */
   material: string;
   expansionPerK: string;
@@ -50,6 +57,7 @@ export interface InstrumentRow {
   figure: string;
   coverageFactor: string;
   unit: AnyUnit;
+  /** As typed, in the form's `temperatureScale`; sent in °C. */
   temperatureC: string;
 }
 
@@ -92,6 +100,8 @@ export interface CalcFormValues {
   };
   /** Key of a diameter reading to state a length result per inch / per 25 mm of, or "". */
   diameter: string;
+  /** The scale temperatures are typed in: the signed-in builder's (°C when signed out). */
+  temperatureScale: TemperatureScale;
 }
 
 /** An empty reading row. */
@@ -108,6 +118,8 @@ export function blankReading(n: number, unit: AnyUnit = 'in'): ReadingRow {
     zeroOffset: '',
     temperatureC: '',
     temperatureUncertaintyC: '',
+    instrumentTemperature: '',
+    temperatureDifferenceUncertaintyC: '',
     material: '',
     expansionPerK: '',
     passes: '',
@@ -154,6 +166,7 @@ const base: CalcFormValues = {
   spec: blankSpec,
   coverage: { mode: 'default', probability: '99', factor: '2' },
   diameter: '',
+  temperatureScale: 'degC',
 };
 
 /**
@@ -354,6 +367,18 @@ export function readForm(values: CalcFormValues): ReadForm {
   const set = (target: Record<string, unknown>, key: string, value: unknown) => {
     if (value !== undefined) target[key] = value;
   };
+  // Temperatures are typed in the builder's scale and sent in °C; their uncertainties are differences (°F → K is × 5/9, no offset).
+  const scale = values.temperatureScale ?? 'degC';
+  const degrees = temperatureSymbol(scale);
+  const temperature = (field: string, text: string): number | undefined => {
+    if (plain(field, text, `the temperature in ${degrees}`) === undefined) return undefined;
+    const celsius = temperatureOf(text, scale);
+    return typeof celsius === 'number' ? celsius : undefined;
+  };
+  const temperatureSpread = (field: string, text: string, what: string): number | undefined => {
+    const n = plain(field, text, `${what} in ${scale === 'degF' ? '°F' : 'K'}`);
+    return n === undefined || scale === 'degC' ? n : convertNumber(n, 'degF', 'degC', { difference: true });
+  };
 
   const instruments: Record<string, unknown> = {};
   values.instruments.forEach((row, i) => {
@@ -370,7 +395,7 @@ export function readForm(values: CalcFormValues): ReadForm {
     } else if (f !== undefined) {
       instrument.maxPermissibleError = { value: f, unit: row.unit };
     }
-    set(instrument, 'temperatureC', plain(at('temperatureC'), row.temperatureC, 'the temperature in °C'));
+    set(instrument, 'temperatureC', temperature(at('temperatureC'), row.temperatureC));
     instruments[key] = instrument;
   });
 
@@ -384,11 +409,15 @@ export function readForm(values: CalcFormValues): ReadForm {
     const reading: Record<string, unknown> = { kind: row.kind, unit: u };
     if (row.instrument) reading.instrument = row.instrument;
     const thermalFields = () => {
-      const t = plain(at('temperatureC'), row.temperatureC, 'the temperature in °C');
+      const t = temperature(at('temperatureC'), row.temperatureC);
       if (t === undefined) return;
       reading.temperatureC = t;
-      set(reading, 'temperatureUncertaintyC', plain(at('temperatureUncertaintyC'), row.temperatureUncertaintyC, 'u(t) in K'));
+      set(reading, 'temperatureUncertaintyC', temperatureSpread(at('temperatureUncertaintyC'), row.temperatureUncertaintyC, 'u(t)'));
       if (!isAnyUnit(u) || quantityOf(u) !== 'length') return;
+      if (row.instrumentTemperature === 'same-as-part') {
+        reading.instrumentTemperature = 'same-as-part';
+        set(reading, 'temperatureDifferenceUncertaintyC', temperatureSpread(at('temperatureDifferenceUncertaintyC'), row.temperatureDifferenceUncertaintyC ?? '', 'u(δθ)'));
+      }
       if (row.material === 'custom') {
         const alpha = plain(at('expansionPerK'), row.expansionPerK, 'the coefficient per K (e.g. 11.7e-6)');
         if (alpha !== undefined) reading.expansionPerK = alpha;
@@ -485,7 +514,7 @@ export function readForm(values: CalcFormValues): ReadForm {
 }
 
 const readingFields = [
-  'value', 'resolution', 'uncertainty', 'zeroOffset', 'temperatureC', 'temperatureUncertaintyC', 'expansionPerK', 'material',
+  'value', 'resolution', 'uncertainty', 'zeroOffset', 'temperatureC', 'temperatureUncertaintyC', 'instrumentTemperature', 'temperatureDifferenceUncertaintyC', 'expansionPerK', 'material',
   'passes', 'stops', 'passesFeel', 'stopsFeel', 'thickness', 'spread', 'values', 'unit', 'instrument',
 ];
 
@@ -555,8 +584,18 @@ export function checkForm(values: CalcFormValues): CheckedForm {
   return {
     ok: false,
     read,
-    issues: parsed.error.issues.map((issue) => ({ field: fieldOfIssue(issue.path, read, values), message: issue.message })),
+    issues: parsed.error.issues.map((issue) => {
+      const field = fieldOfIssue(issue.path, read, values);
+      // The schema names its range in °C; a box in °F says it in °F.
+      const outOfRange = values.temperatureScale === 'degF' && field.endsWith('.temperatureC') && /must be at (least|most) -?\d+ °C$/.test(issue.message);
+      return { field, message: outOfRange ? `Enter a temperature from ${fahrenheit(TEMPERATURE_RANGE_C.min)} to ${fahrenheit(TEMPERATURE_RANGE_C.max)} °F.` : issue.message };
+    }),
   };
+}
+
+/** A °C limit in whole °F, for messages (−50 °C = −58 °F, 150 °C = 302 °F). */
+function fahrenheit(celsius: number): number {
+  return Math.round(convertNumber(celsius, 'degC', 'degF'));
 }
 
 /** react-hook-form resolver built on `checkForm`: field errors where they belong, the rest at the root. */

@@ -8,6 +8,7 @@ import {
   type AnyUnit,
   type DefaultUnitSystem,
   type QuantityKind,
+  type TemperatureScale,
 } from '@shared/measure/quantities';
 import { noDefaultUnits, type DefaultUnits } from '@/features/auth/lib/default-units';
 
@@ -71,6 +72,19 @@ export function nextReadingUnit(last: AnyUnit | undefined, defaults: DefaultUnit
   if (quantity === 'temperature' && defaults.temperatureScale) return defaults.temperatureScale;
   if (unitTable[last].system === 'any') return last;
   return systemOfUnit(last) === systemOfUnit(proposed) ? last : proposed;
+}
+
+/**
+ * The scale the calculator's temperature boxes are in: the builder's chosen scale, else °F for
+ * an inch shop and °C otherwise (the rule of `defaultUnitFor`); °C when signed out.
+ */
+export function temperatureScaleFor(defaults: DefaultUnits = noDefaultUnits): TemperatureScale {
+  return defaultUnitFor('temperature', defaults.system ?? 'metric', defaults.temperatureScale ?? undefined) === 'degF' ? 'degF' : 'degC';
+}
+
+/** "°C" or "°F", for labels. */
+export function temperatureSymbol(scale: TemperatureScale): string {
+  return unitTable[scale].symbol;
 }
 
 export { unitsOf };

@@ -35,7 +35,7 @@ import {
 } from '../lib/calc-form';
 import type { CalcOutcome } from '../lib/calc-view';
 import { useLiveCalc, type LiveCalc } from '../lib/use-live-calc';
-import { nextReadingUnit, startingUnit } from '../lib/units-ui';
+import { nextReadingUnit, startingUnit, temperatureScaleFor } from '../lib/units-ui';
 
 const MAX_ROWS = 20;
 
@@ -64,15 +64,23 @@ function summaryOf(state: LiveCalc, formIssues: number): string {
 
 /** The public calculator: readings of any quantity, a signed sum or a formula, a spec, a verdict with its uncertainty budget. */
 export function Component() {
-  const form = useForm<CalcFormValues>({ defaultValues: initialValues, resolver: calcFormResolver, mode: 'onTouched' });
+  // The signed-in builder's default units, for the units the page proposes (examples keep theirs)
+  // and the scale temperatures are typed in.
+  const defaults = useDefaultUnits();
+  const temperatureScale = temperatureScaleFor(defaults);
+  const [startValues] = useState<CalcFormValues>(() => ({ ...initialValues, temperatureScale }));
+  const form = useForm<CalcFormValues>({ defaultValues: startValues, resolver: calcFormResolver, mode: 'onTouched' });
   const { fields, append, remove } = useFieldArray({ control: form.control, name: 'readings' });
   const watched = useWatch({ control: form.control }) as CalcFormValues;
   const values = useDeferredValue(watched);
   const checked = useMemo(() => checkForm(values), [values]);
   const { state: live, retry } = useLiveCalc(checked.ok ? checked.request : null);
   const [lastQuantity, setLastQuantity] = useState<string | null>(null);
-  // The signed-in builder's default units, for the units the page proposes (examples keep theirs).
-  const defaults = useDefaultUnits();
+
+  // The account's answer may arrive after the page: the boxes follow its scale.
+  useEffect(() => {
+    if (form.getValues('temperatureScale') !== temperatureScale) form.setValue('temperatureScale', temperatureScale);
+  }, [temperatureScale, form]);
 
   useEffect(() => {
     if (live.status === 'done') setLastQuantity(live.outcome.response.quantity);
@@ -114,7 +122,7 @@ export function Component() {
       <div className="mb-4 flex flex-wrap items-center gap-2" data-print="hide">
         <span className="text-sm text-ink-muted">Try an example:</span>
         {examples.map((example) => (
-          <Button key={example.id} size="sm" variant="secondary" onClick={() => form.reset(example.values)}>
+          <Button key={example.id} size="sm" variant="secondary" onClick={() => form.reset({ ...example.values, temperatureScale: form.getValues('temperatureScale') })}>
             {example.title}
           </Button>
         ))}

@@ -1,11 +1,14 @@
-import { useDeferredValue, useEffect, useId, useMemo, useRef, useState } from 'react';
+import { useDeferredValue, useEffect, useId, useMemo, useRef, useState, type ReactNode } from 'react';
 import { useFieldArray, useForm, useWatch, type Path, type UseFormReturn } from 'react-hook-form';
 import { useInfiniteQuery, useQuery, useQueryClient } from '@tanstack/react-query';
 import type { Build } from '@shared/builds/build.schema';
 import type { Clearance } from '@shared/clearances/clearance.schema';
 import { computeClearance } from '@shared/clearances/clearance-calc';
 import { engineInstrumentsMap } from '@shared/measure/instrument-map';
-import { clearanceTemplate, clearanceTemplates } from '@shared/clearances/templates';
+import { clearanceTemplates } from '@shared/clearances/templates';
+import { formulaTemplate, formulaTemplates } from '@shared/measure/formula-templates';
+import { quantityOf, unitsOf, type AnyUnit, type QuantityKind } from '@shared/measure/quantities';
+import { figureExamples } from '@shared/measure/quantity-text';
 import type { Reading } from '@shared/readings/reading.schema';
 import { Button } from '@/components/ui/button';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
@@ -13,23 +16,33 @@ import { Field, Input, Select, Textarea } from '@/components/ui/field';
 import { useToast } from '@/components/ui/toast';
 import { EDIT_CONFLICT } from '@/features/readings/api/reading-mutations';
 import { WarningIcon } from '@/features/readings/components/reading-badges';
-import { estimateText } from '@/features/readings/lib/reading-text';
 import { ApiError, errorMessage } from '@/lib/api';
 import { cn } from '@/lib/cn';
 import { useCreateClearance, useUpdateClearance } from '../api/clearance-mutations';
 import { clearanceQueries, clearanceSpecQueries } from '../api/clearance-queries';
 import {
+  OWN_FORMULA,
+  automaticResultUnit,
   blankClearanceForm,
   clearanceFormOf,
   clearanceKeyFor,
   clearanceFormPath,
   clearanceFormResolver,
+  constantText,
+  constantsForTemplate,
+  modeOf,
+  quantityOfReading,
+  resultModel,
   suggestedClearanceName,
+  sumTemplate,
   termsForTemplate,
   toClearanceInput,
+  unitChoiceLabel,
   versionSummary,
+  type ClearanceFormContext,
   type ClearanceFormValues,
 } from '../lib/clearance-form';
+import { estimateText } from '@/features/readings/lib/reading-text';
 import { ClearanceResultView, specSourceWords } from './clearance-result-view';
 
 export interface ClearanceFormProps {
@@ -40,10 +53,31 @@ export interface ClearanceFormProps {
   onDone: (saved: Clearance | null) => void;
 }
 
+/** The ways of making a result, as the picker groups them. */
+const templateGroups: { title: string; choices: { id: string; name: string }[] }[] = [
+  { title: 'Sums and differences of readings', choices: clearanceTemplates.map((t) => ({ id: t.id, name: t.name })) },
+  {
+    title: 'Formulas',
+    choices: [...formulaTemplates.map((t) => ({ id: t.id, name: t.name })), { id: OWN_FORMULA, name: 'Your own formula' }],
+  },
+];
+
+const ownFormulaExplanation =
+  'Write plain arithmetic over names you give the readings you pick: + − × ÷ (or * and /), ^ for a power, brackets, sqrt(…) and pi. ' +
+  'Each reading goes by its key unless you rename it. The engine checks that the units fit (a length cannot be added to a volume) and works out the uncertainty through the formula.';
+
+/** The chosen way's explanation, in words. */
+function explanationOf(id: string): string {
+  if (id === OWN_FORMULA) return ownFormulaExplanation;
+  return formulaTemplate(id)?.explanation ?? sumTemplate(id)?.explanation ?? '';
+}
+
 /**
- * Define or edit a clearance: a template (its explanation in words) whose slots take readings,
- * or custom terms with + and −; a spec version from the library; k. Value, U, verdict, band
- * picture and working update as readings and spec are chosen, by the engine the server runs.
+ * Define or edit a result: a signed-sum template (its explanation in words) whose slots take
+ * readings, custom terms with + and −, a formula template whose slots take readings of their
+ * quantity, or a formula written by hand over names given to the readings; the unit to state it
+ * in; a spec version from the library; k. Value, U, verdict, band picture and working update as
+ * they are chosen, by the engine the server runs, with the formula as the server reads it.
  */
 export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceFormProps) {
   // The build's other clearance keys (the list the panel shows), so a suggested key is free.
@@ -52,13 +86,17 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
     () => (clearanceList.data?.pages.flatMap((p) => p.items) ?? []).filter((c) => c.id !== clearance?.id).map((c) => c.key),
     [clearanceList.data, clearance?.id],
   );
-  const form = useForm<ClearanceFormValues>({
+  const byId = useMemo(() => new Map(readings.map((r) => [String(r.id), r])), [readings]);
+  const context = useMemo<ClearanceFormContext>(() => ({ readings: byId }), [byId]);
+  const form = useForm<ClearanceFormValues, ClearanceFormContext>({
     defaultValues: clearance ? clearanceFormOf(clearance) : blankClearanceForm(takenKeys),
     resolver: clearanceFormResolver,
+    context,
     mode: 'onTouched',
   });
   const { register, control, formState, setError, handleSubmit, setValue, getValues } = form;
   const terms = useFieldArray({ control, name: 'terms' });
+  const constantRows = useFieldArray({ control, name: 'constants' });
   const watched = useWatch({ control }) as ClearanceFormValues;
   const values = useDeferredValue(watched);
   const create = useCreateClearance(build.id);
@@ -69,15 +107,19 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
   const [conflict, setConflict] = useState<'stale' | 'reloaded' | null>(null);
   const [reloading, setReloading] = useState(false);
   const templateLegendId = useId();
+  const explanationId = useId();
   const keyId = useId();
   const errors = formState.errors;
-  const template = clearanceTemplate(watched.template);
-  const byId = useMemo(() => new Map(readings.map((r) => [String(r.id), r])), [readings]);
+  const mode = modeOf(watched.template);
+  const sum = sumTemplate(watched.template);
+  const template = formulaTemplate(watched.template);
+  const slotCount = mode === 'template' ? (template?.slots.length ?? 0) : (sum?.slots.length ?? 0);
   const sortedReadings = useMemo(() => [...readings].sort((a, b) => a.name.localeCompare(b.name)), [readings]);
   // A stored clearance keeps its name and key (stories cite the key); a new one's follow the form until typed.
   const nameByHand = useRef(Boolean(clearance));
   const [keyByHand, setKeyByHand] = useState(Boolean(clearance));
   const suggestedKey = clearanceKeyFor(watched.name ?? '', takenKeys);
+  const readingKeys = useMemo(() => new Set(readings.map((r) => r.key)), [readings]);
 
   useEffect(() => {
     if (!keyByHand && getValues('key') !== suggestedKey) setValue('key', suggestedKey);
@@ -91,27 +133,81 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
   const spec = useQuery({ ...clearanceSpecQueries.detail(Number(values.specId)), enabled: Boolean(values.specId) });
   const version = spec.data?.versions?.find((v) => String(v.id) === values.specVersionId) ?? null;
 
+  // The model as typed now (formula problems show beside the box at once), and as deferred for the engine.
+  const typedModel = useMemo(() => resultModel(watched, byId), [watched, byId]);
+  const model = useMemo(() => resultModel(values, byId), [values, byId]);
+  const quantity = model.quantity;
+  const unitChoices: readonly AnyUnit[] = quantity ? unitsOf(quantity) : [];
+  const chosenUnit = values.resultUnit && quantity && quantityOf(values.resultUnit) === quantity ? values.resultUnit : null;
+  const autoUnit = quantity
+    ? automaticResultUnit(quantity, version?.unit ?? null, [
+        ...values.terms.flatMap((t) => byId.get(t.readingId)?.unit ?? []),
+        ...Object.values(model.formula?.constants ?? {}).map((c) => c.unit),
+      ])
+    : null;
+
+  // A unit of another quantity (the template changed) goes back to the automatic one.
+  useEffect(() => {
+    const unit = getValues('resultUnit');
+    if (unit && quantity && quantityOf(unit) !== quantity) setValue('resultUnit', '');
+  }, [quantity, getValues, setValue]);
+
+  const formulaProblems = typedModel.issues.filter((i) => i.path === 'formula');
+  const waitingFor = (() => {
+    if (model.mode === 'sum') return null;
+    const missing = values.terms.flatMap((t, i) => (byId.has(t.readingId) ? [] : [template?.slots[i]?.label.toLowerCase() ?? `reading ${i + 1}`]));
+    if (missing.length) return `Pick the ${missing.join(', ')} reading${missing.length === 1 ? '' : 's'}`;
+    if (model.mode === 'formula' && !values.formula.trim()) return 'Write the formula';
+    if (model.issues.some((i) => i.path.startsWith('constants.'))) return template ? `Enter ${template.constants.filter((c) => !c.fixed).map((c) => `the ${c.label.toLowerCase()}`).join(' and ')}` : 'Finish the constants';
+    if (model.issues.some((i) => i.path === 'formula')) return 'Put the formula right (the problem is shown under it)';
+    if (model.mode === 'formula' && values.terms.some((t) => byId.has(t.readingId) && !t.symbol.trim())) return 'Name every reading';
+    return null;
+  })();
+
   const live = useMemo(() => {
-    const chosen = values.terms.flatMap((t) => {
-      const r = byId.get(t.readingId);
-      return r ? [{ key: r.key, engine: r.engine, sign: t.sign === '1' ? (1 as const) : (-1 as const) }] : [];
-    });
-    if (chosen.length === 0) return null;
+    if (model.terms.length === 0 || waitingFor) return null;
     const typed = values.coverageFactor.trim().replace(',', '.');
     const k = Number(typed);
     const instruments = engineInstrumentsMap(values.terms.map((t) => byId.get(t.readingId)?.engineInstrument));
-    return computeClearance({ terms: chosen, spec: version, coverageFactor: typed !== '' && Number.isFinite(k) && k >= 1 && k <= 4 ? k : null, instruments });
-  }, [values.terms, values.coverageFactor, byId, version]);
+    return computeClearance({
+      terms: model.terms,
+      spec: version,
+      coverageFactor: typed !== '' && Number.isFinite(k) && k >= 1 && k <= 4 ? k : null,
+      instruments,
+      formula: model.formula,
+      resultUnit: chosenUnit,
+    });
+  }, [model, waitingFor, values.coverageFactor, values.terms, byId, version, chosenUnit]);
 
   function chooseTemplate(id: ClearanceFormValues['template']) {
-    const rows = termsForTemplate(id, getValues('terms'));
+    const before = getValues('template');
+    const previous = formulaTemplate(before);
+    const rows = termsForTemplate(id, getValues('terms'), (readingId) => byId.get(readingId)?.key);
     setValue('terms', rows);
+    // Starting one's own formula from a template carries the template's formula and constants over.
+    if (id === OWN_FORMULA && previous && !getValues('formula').trim()) {
+      setValue('formula', previous.formula);
+      setValue('constants', [
+        ...previous.constants.filter((c) => c.fixed).map((c) => ({ name: c.key, value: constantText(c.fixed!) })),
+        ...getValues('constants'),
+      ]);
+    } else {
+      setValue('constants', constantsForTemplate(id, getValues('constants')));
+    }
     followName(id, rows);
+  }
+
+  /** A reading picked for the formula goes by its key, unless the builder named it otherwise. */
+  function pickedForFormula(index: number) {
+    if (modeOf(getValues('template')) !== 'formula') return;
+    const row = getValues(`terms.${index}`);
+    const key = byId.get(row.readingId)?.key;
+    if (key && (!row.symbol.trim() || readingKeys.has(row.symbol.trim()))) setValue(`terms.${index}.symbol`, key, { shouldValidate: formState.isSubmitted });
   }
 
   const submit = handleSubmit(async (formValues) => {
     // A key left as suggested is not sent: the server derives the same one from the name, free at the moment it saves.
-    const input = toClearanceInput(keyByHand ? formValues : { ...formValues, key: '' });
+    const input = toClearanceInput(keyByHand ? formValues : { ...formValues, key: '' }, byId);
     try {
       const saved = clearance
         ? await update.mutateAsync({
@@ -121,7 +217,10 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
               name: input.name,
               key: input.key ?? clearanceKeyFor(input.name, takenKeys),
               template: input.template ?? null,
-              terms: input.terms,
+              terms: input.terms.map((t) => ({ ...t, sign: t.sign ?? 1 })),
+              formula: input.formula ?? null,
+              constants: input.constants ?? {},
+              resultUnit: input.resultUnit ?? null,
               specVersionId: input.specVersionId ?? null,
               coverageFactor: input.coverageFactor ?? null,
               note: input.note ?? '',
@@ -136,7 +235,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
         return;
       }
       const details = error instanceof ApiError ? error.details.filter((d) => d.path) : [];
-      for (const d of details) setError(clearanceFormPath(d.path ?? '') as Path<ClearanceFormValues>, { message: d.message });
+      for (const d of details) setError(clearanceFormPath(d.path ?? '', formValues.constants) as Path<ClearanceFormValues>, { message: d.message });
       setError('root.server', { message: errorMessage(error) });
     }
   });
@@ -162,50 +261,119 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
     }
   }
 
-  const readingOptions = (
+  const readingOptions = (only?: QuantityKind) => (
     <>
       <option value="">Choose a reading…</option>
-      {sortedReadings.map((r) => (
-        <option key={r.id} value={r.id}>
-          {r.name} · {r.key} · {r.result.display}
-        </option>
-      ))}
+      {sortedReadings
+        .filter((r) => !only || quantityOfReading(r) === only)
+        .map((r) => (
+          <option key={r.id} value={r.id}>
+            {r.name} · {r.key} · {r.result.display}
+          </option>
+        ))}
     </>
   );
+
+  const pickedLine = (index: number, className = 'col-start-2 -mt-1') => {
+    const picked = byId.get(watched.terms[index]?.readingId ?? '');
+    if (!picked) return null;
+    return (
+      <p className={cn('figures text-xs break-words text-ink-muted', className)}>
+        {picked.name}: {estimateText(picked)}
+        {picked.reviewState === 'flagged' && ' · flagged in review'}
+      </p>
+    );
+  };
 
   return (
     <form noValidate onSubmit={submit} aria-label={clearance ? `Edit result ${clearance.name}` : 'New result'} className="grid gap-5 lg:grid-cols-[minmax(0,1fr)_minmax(0,1fr)]">
       <div className="flex min-w-0 flex-col gap-4">
-        <fieldset aria-labelledby={templateLegendId} className="flex flex-col gap-1.5">
+        <fieldset aria-labelledby={templateLegendId} aria-describedby={explanationId} className="flex min-w-0 flex-col gap-2">
           <legend id={templateLegendId} className="mb-1 text-sm font-medium">
             How it is made
           </legend>
-          {clearanceTemplates.map((t) => (
-            <label
-              key={t.id}
-              className={cn('flex cursor-pointer items-start gap-2 rounded-md border px-2.5 py-2', watched.template === t.id ? 'border-ink bg-paper-2' : 'border-rule')}
-            >
-              <input
-                type="radio"
-                value={t.id}
-                {...register('template', { onChange: (e: { target: { value: string } }) => chooseTemplate(e.target.value as ClearanceFormValues['template']) })}
-                className="mt-1 accent-(--color-ink)"
-              />
-              <span className="min-w-0">
-                <span className="text-sm font-medium">{t.name}</span>
-                <span className="block text-xs text-ink-muted">{t.explanation}</span>
-              </span>
-            </label>
+          {templateGroups.map((group) => (
+            <div key={group.title} role="group" aria-label={group.title} className="flex flex-col gap-1">
+              <p className="text-xs font-medium tracking-wide text-ink-muted uppercase">{group.title}</p>
+              <div className="grid gap-1 sm:grid-cols-2">
+                {group.choices.map((t) => (
+                  <label
+                    key={t.id}
+                    className={cn(
+                      'flex min-w-0 cursor-pointer items-start gap-2 rounded-md border px-2.5 py-1.5 text-sm',
+                      watched.template === t.id ? 'border-ink bg-paper-2 font-medium' : 'border-rule',
+                    )}
+                  >
+                    <input
+                      type="radio"
+                      value={t.id}
+                      {...register('template', { onChange: (e: { target: { value: string } }) => chooseTemplate(e.target.value) })}
+                      className="mt-1 accent-(--color-ink)"
+                    />
+                    <span className="min-w-0">{t.name}</span>
+                  </label>
+                ))}
+              </div>
+            </div>
           ))}
+          <p id={explanationId} className="rounded-md bg-paper-2/60 px-2.5 py-2 text-xs text-ink-muted" data-template-explanation="">
+            {explanationOf(watched.template)}
+          </p>
         </fieldset>
 
-        <fieldset className="flex flex-col gap-2">
-          <legend className="mb-1 text-sm font-medium">{template.slots.length ? 'Readings for each slot' : 'Terms (+ adds, − subtracts)'}</legend>
+        <fieldset className="flex min-w-0 flex-col gap-2">
+          <legend className="mb-1 text-sm font-medium">
+            {mode === 'formula' ? 'Readings and the names the formula gives them' : slotCount ? 'Readings for each slot' : 'Terms (+ adds, − subtracts)'}
+          </legend>
           {readings.length === 0 && <p className="text-sm text-ink-muted">No readings logged in this build yet: log them at their moments first.</p>}
           <ol className="flex flex-col gap-2">
             {terms.fields.map((field, index) => {
-              const slot = template.slots[index];
-              const picked = byId.get(watched.terms[index]?.readingId ?? '');
+              if (mode === 'template' && template) {
+                const slot = template.slots[index];
+                if (!slot) return null;
+                const none = !readings.some((r) => quantityOfReading(r) === slot.quantity);
+                return (
+                  <li key={field.id} className="flex min-w-0 flex-col gap-1" data-slot={slot.key}>
+                    <Field
+                      label={slot.label}
+                      hint={
+                        <>
+                          {slot.hint} As <span className="figures text-ink">{slot.key}</span> in the formula.
+                          {none && <span className="block text-verdict-undecided">No {slot.quantity} readings in this build yet: log one first.</span>}
+                        </>
+                      }
+                      error={errors.terms?.[index]?.readingId?.message}
+                    >
+                      <Select size="sm" {...register(`terms.${index}.readingId`, { onChange: () => followName(getValues('template'), getValues('terms')) })}>
+                        {readingOptions(slot.quantity)}
+                      </Select>
+                    </Field>
+                    {pickedLine(index, '')}
+                  </li>
+                );
+              }
+              if (mode === 'formula') {
+                return (
+                  // On a phone the name goes under the reading, so the reading's box keeps its width.
+                  <li key={field.id} className="grid grid-cols-[minmax(0,1fr)_auto] items-start gap-x-2 gap-y-1 sm:grid-cols-[minmax(0,1fr)_minmax(0,9rem)_auto]" data-formula-term="">
+                    <Field label={`Reading ${index + 1}`} error={errors.terms?.[index]?.readingId?.message} className="col-start-1 row-start-1">
+                      <Select size="sm" {...register(`terms.${index}.readingId`, { onChange: () => pickedForFormula(index) })}>
+                        {readingOptions()}
+                      </Select>
+                    </Field>
+                    <Field label={`Name of reading ${index + 1}`} error={errors.terms?.[index]?.symbol?.message} className="col-start-1 row-start-2 sm:col-start-2 sm:row-start-1">
+                      <Input {...register(`terms.${index}.symbol`)} autoComplete="off" spellCheck={false} className="figures h-8! text-sm" />
+                    </Field>
+                    {terms.fields.length > 1 ? (
+                      <Button size="sm" variant="quiet" className="col-start-2 row-start-1 mt-6 px-2 sm:col-start-3" onClick={() => terms.remove(index)} aria-label={`Remove reading ${index + 1}`}>
+                        ✕
+                      </Button>
+                    ) : null}
+                    {pickedLine(index, 'col-start-1 sm:col-span-2')}
+                  </li>
+                );
+              }
+              const slot = sum?.slots[index];
               return (
                 <li key={field.id} className="grid grid-cols-[2.25rem_minmax(0,1fr)_auto] items-start gap-2">
                   {slot ? (
@@ -220,13 +388,9 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
                       </Select>
                     </Field>
                   )}
-                  <Field
-                    label={slot ? slot.label : `Term ${index + 1}`}
-                    hint={slot?.hint}
-                    error={errors.terms?.[index]?.readingId?.message}
-                  >
+                  <Field label={slot ? slot.label : `Term ${index + 1}`} hint={slot?.hint} error={errors.terms?.[index]?.readingId?.message}>
                     <Select size="sm" {...register(`terms.${index}.readingId`, { onChange: () => followName(getValues('template'), getValues('terms')) })}>
-                      {readingOptions}
+                      {readingOptions()}
                     </Select>
                   </Field>
                   {!slot && terms.fields.length > 1 ? (
@@ -236,12 +400,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
                   ) : (
                     <span />
                   )}
-                  {picked && (
-                    <p className="figures col-start-2 -mt-1 text-xs text-ink-muted">
-                      {picked.name}: {estimateText(picked)}
-                      {picked.reviewState === 'flagged' && ' · flagged in review'}
-                    </p>
-                  )}
+                  {pickedLine(index)}
                 </li>
               );
             })}
@@ -252,12 +411,101 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
               <span>{errors.terms.root.message}</span>
             </p>
           )}
-          {template.slots.length === 0 && terms.fields.length < 20 && (
-            <Button size="sm" variant="quiet" className="self-start" onClick={() => terms.append({ readingId: '', sign: '1' })}>
+          {mode === 'sum' && slotCount === 0 && terms.fields.length < 20 && (
+            <Button size="sm" variant="quiet" className="self-start" onClick={() => terms.append({ readingId: '', sign: '1', symbol: '' })}>
               Add a term
             </Button>
           )}
+          {mode === 'formula' && terms.fields.length < 20 && (
+            <Button size="sm" variant="quiet" className="self-start" onClick={() => terms.append({ readingId: '', sign: '1', symbol: '' })}>
+              Add a reading
+            </Button>
+          )}
         </fieldset>
+
+        {mode === 'template' && template && (
+          <div className="flex min-w-0 flex-col gap-2" data-template-formula="">
+            <FormulaText label="Formula">{template.formula}</FormulaText>
+            {template.constants.map((c) => {
+              if (c.fixed) {
+                return (
+                  <p key={c.key} className="text-sm">
+                    <span className="text-ink-muted">{c.label}:</span> <span className="figures">{c.key} = {constantText(c.fixed)}</span>{' '}
+                    <span className="text-xs text-ink-muted">(fixed: {c.hint.replace(/\.$/, '').toLowerCase()})</span>
+                  </p>
+                );
+              }
+              const index = constantRows.fields.findIndex((_, i) => watched.constants[i]?.name === c.key);
+              if (index < 0) return null;
+              return (
+                <Field key={c.key} label={c.label} hint={`${c.hint} As ${c.key} in the formula; e.g. ${figureExamples[c.quantity]}.`} error={typedModel.issues.find((i) => i.path === `constants.${index}.value`)?.message ?? errors.constants?.[index]?.value?.message} required>
+                  <Input {...register(`constants.${index}.value`)} autoComplete="off" inputMode="decimal" className="figures h-8! max-w-60 text-sm" />
+                </Field>
+              );
+            })}
+          </div>
+        )}
+
+        {mode === 'formula' && (
+          <div className="flex min-w-0 flex-col gap-3">
+            <Field
+              label="Formula"
+              required
+              hint="Arithmetic over the names above and the constants below, e.g. (swept + chamber) / chamber or bore - piston."
+              error={formulaProblems.length ? formulaProblems.map((p) => p.message).join('; ') : errors.formula?.message}
+            >
+              <Textarea {...register('formula')} rows={3} spellCheck={false} autoComplete="off" className="figures text-sm" data-formula-box="" />
+            </Field>
+            {typedModel.unused.length > 0 && (
+              <p className="-mt-2 text-xs text-ink-muted">
+                Not used by the formula: <span className="figures">{typedModel.unused.join(', ')}</span>. Remove those readings, or use them.
+              </p>
+            )}
+            <fieldset className="flex min-w-0 flex-col gap-2">
+              <legend className="mb-1 text-sm font-medium">Constants (optional)</legend>
+              <p className="text-xs text-ink-muted">A fixed figure the formula names, with its unit: a target size (3.990 in), half a turn (180°). A number alone has no unit.</p>
+              {constantRows.fields.map((field, index) => (
+                <div key={field.id} className="grid grid-cols-[minmax(0,9rem)_minmax(0,1fr)_auto] items-start gap-2">
+                  <Field label={`Name of constant ${index + 1}`} error={typedModel.issues.find((i) => i.path === `constants.${index}.name`)?.message ?? errors.constants?.[index]?.name?.message}>
+                    <Input {...register(`constants.${index}.name`)} autoComplete="off" spellCheck={false} className="figures h-8! text-sm" />
+                  </Field>
+                  <Field label={`Value of constant ${index + 1}`} error={typedModel.issues.find((i) => i.path === `constants.${index}.value`)?.message ?? errors.constants?.[index]?.value?.message}>
+                    <Input {...register(`constants.${index}.value`)} autoComplete="off" className="figures h-8! text-sm" />
+                  </Field>
+                  <Button size="sm" variant="quiet" className="mt-6 px-2" onClick={() => constantRows.remove(index)} aria-label={`Remove constant ${index + 1}`}>
+                    ✕
+                  </Button>
+                </div>
+              ))}
+              {constantRows.fields.length < 20 && (
+                <Button size="sm" variant="quiet" className="self-start" onClick={() => constantRows.append({ name: '', value: '' })}>
+                  Add a constant
+                </Button>
+              )}
+            </fieldset>
+          </div>
+        )}
+
+        {quantity && unitChoices.length < 2 ? (
+          <p className="text-sm">
+            <span className="font-medium">State the result in:</span> <span className="text-ink-muted">{unitChoiceLabel(unitChoices[0] ?? autoUnit ?? '1')}</span>
+          </p>
+        ) : (
+          <Field
+            label="State the result in"
+            hint={quantity ? 'Automatic takes the spec’s unit when it has one of this quantity, else the readings’.' : 'Pick the readings first: the units offered are those of what the result measures.'}
+            error={errors.resultUnit?.message}
+          >
+            <Select size="sm" {...register('resultUnit')} disabled={!quantity} className="max-w-80">
+              <option value="">{autoUnit ? `Automatic: ${unitChoiceLabel(autoUnit)}` : 'Automatic'}</option>
+              {unitChoices.map((u) => (
+                <option key={u} value={u}>
+                  {unitChoiceLabel(u)}
+                </option>
+              ))}
+            </Select>
+          </Field>
+        )}
 
         <div className="grid gap-3 sm:grid-cols-2">
           <Field label="Name" required error={errors.name?.message}>
@@ -280,7 +528,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
               className="figures h-8! text-sm"
             />
           </Field>
-          <p id={`${keyId}-about`} className="-mt-1.5 text-xs text-ink-muted sm:col-span-2">
+          <p id={`${keyId}-about`} className="-mt-1.5 text-xs break-words text-ink-muted sm:col-span-2">
             Claims name it as <span className="figures text-ink">(clearance:{watched.key?.trim() || suggestedKey})</span>.{' '}
             {keyByHand
               ? `Left empty, it is made from the name: ${suggestedKey}.`
@@ -295,7 +543,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
           <Field
             label="Coverage factor k (optional)"
             error={errors.coverageFactor?.message}
-            hint="Leave empty for a 95 % interval worked out from the readings (Student's t for few readings, Monte Carlo for feeler brackets); type a k only to fix it."
+            hint="Leave empty for a 95 % interval worked out from the readings (Student's t for few readings, Monte Carlo for feeler brackets or a formula that is not linear); type a k only to fix it."
           >
             <Input {...register('coverageFactor')} inputMode="decimal" className="figures h-8! max-w-40 text-sm" />
           </Field>
@@ -308,9 +556,9 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
       <section aria-label="Live result" className="flex min-w-0 flex-col gap-2 lg:sticky lg:top-4 lg:col-start-2 lg:row-span-2 lg:row-start-1 lg:self-start">
         <h3 className="text-sm font-semibold">Result, as you choose</h3>
         {!live ? (
-          <p className="rounded-md border border-dashed border-line px-3 py-4 text-sm text-ink-muted">
-            Pick the readings{template.slots.length ? ` (${template.slots.map((s) => s.label.toLowerCase()).join(', ')})` : ''} and the clearance,
-            its uncertainty and, with a spec, its verdict appear here.
+          <p className="rounded-md border border-dashed border-line px-3 py-4 text-sm text-ink-muted" data-live-waiting="">
+            {waitingFor ? `${waitingFor}, and ` : slotCount && mode === 'sum' ? `Pick the readings (${sum!.slots.map((s) => s.label.toLowerCase()).join(', ')}) and ` : 'Pick the readings and '}
+            the result, its uncertainty and, with a spec, its verdict appear here.
           </p>
         ) : live.ok ? (
           <div aria-live="polite">
@@ -319,7 +567,7 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
         ) : (
           <div role="alert" className="rounded-md border border-danger/50 bg-danger-wash/50 px-3 py-2 text-sm">
             <p className="font-medium">This cannot be worked out yet:</p>
-            <ul className="mt-1 list-disc pl-5">
+            <ul className="mt-1 list-disc pl-5 break-words">
               {live.problems.map((p) => (
                 <li key={p}>{p}</li>
               ))}
@@ -360,6 +608,16 @@ export function ClearanceForm({ build, readings, clearance, onDone }: ClearanceF
         </div>
       </div>
     </form>
+  );
+}
+
+/** A formula shown as written, wrapping where it must so a long one never scrolls the page sideways. */
+function FormulaText({ label, children }: { label: string; children: ReactNode }) {
+  return (
+    <p className="text-sm">
+      <span className="text-ink-muted">{label}:</span>{' '}
+      <code className="figures rounded-sm bg-paper-2 px-1 py-0.5 text-xs break-all">{children}</code>
+    </p>
   );
 }
 

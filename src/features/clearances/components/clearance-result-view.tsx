@@ -1,15 +1,16 @@
 import { useId } from 'react';
-import { formatCoverageFactor } from '@shared/measure/format-quantity';
+import { formatCoverageFactor, formatUncertaintyIn } from '@shared/measure/format-quantity';
 import type { ClearanceResult } from '@shared/clearances/clearance.schema';
+import { resultFigures } from '@shared/clearances/result-figures';
 import type { Reading } from '@shared/readings/reading.schema';
 import { formatUncertainty } from '@shared/measure/format';
 import { decisionRuleText, type Verdict } from '@shared/measure/spec';
 import { BudgetTable } from '@/components/budget-table';
 import { VerdictBadge } from '@/components/ui/badge';
-import { BandPicture } from '@/features/calc/components/band-picture';
+import { BandPicture, ResultBandPicture } from '@/features/calc/components/band-picture';
 import { CalcSteps } from '@/features/calc/components/calc-steps';
 import { cn } from '@/lib/cn';
-import { bandPictureProps } from '../lib/clearance-view';
+import { bandPictureProps, isLengthResult, resultBandPictureProps } from '../lib/clearance-view';
 import { BudgetDisclosure, CoverageLine } from './coverage-facts';
 
 const preferredWords: Record<Verdict, string> = {
@@ -62,9 +63,10 @@ export function VerdictCaution({ className }: { className?: string }) {
 }
 
 /**
- * A worked-out clearance in full: value, u_c and U, the interval with its method and the probability
+ * A worked-out result in full: value, u_c and U, the interval with its method and the probability
  * within spec, the verdict with its rule in words, the band picture, and the budget and the engine's
- * working in disclosures.
+ * working in disclosures. A length goes by its µm figures (as it always has); any other quantity
+ * (a compression ratio, a volume, an angle) by its figures in its own unit.
  */
 export function ClearanceResultView({
   result,
@@ -74,24 +76,31 @@ export function ClearanceResultView({
   noSpecText = 'No spec attached, so no verdict: attach a spec version to judge it.',
 }: {
   result: ClearanceResult;
-  /** The readings summed, so the band picture's scale shows their places. */
+  /** The readings it is made from, so the band picture's scale shows their places. */
   readings?: readonly Pick<Reading, 'unit' | 'result'>[];
   stepsOpen?: boolean;
   /** The budget laid open under a heading (the moderator's view) instead of behind a disclosure. */
   budgetOpen?: boolean;
   noSpecText?: string;
 }) {
-  const picture = bandPictureProps(result, readings);
+  const length = isLengthResult(result);
+  const picture = length ? bandPictureProps(result, readings) : null;
+  const anyPicture = length ? null : resultBandPictureProps(result, readings);
+  const figures = resultFigures(result);
   const budgetId = useId();
   return (
-    <div className="flex flex-col gap-3" data-clearance-result="">
+    <div className="flex flex-col gap-3" data-clearance-result="" data-quantity={result.quantity}>
       <dl className="grid gap-x-4 gap-y-0.5 text-sm sm:grid-cols-[max-content_minmax(0,1fr)] sm:gap-y-1">
-        <dt className="text-ink-muted">Clearance ± U</dt>
-        <dd className="figures text-base font-semibold">{result.display}</dd>
+        <dt className="text-ink-muted">{length ? 'Clearance ± U' : 'Result ± U'}</dt>
+        <dd className="figures text-base font-semibold" data-result-display="">
+          {result.display}
+        </dd>
         <dt className="text-ink-muted">Standard uncertainty u_c</dt>
-        <dd className="figures">{formatUncertainty(result.standardUncertaintyUm, result.unit)}</dd>
+        <dd className="figures">
+          {length ? formatUncertainty(result.standardUncertaintyUm ?? 0, result.unit) : formatUncertaintyIn(figures.standardUncertainty, result.unit)}
+        </dd>
         <dt className="text-ink-muted">Expanded U (k = {formatCoverageFactor(result.coverageFactor)})</dt>
-        <dd className="figures">± {formatUncertainty(result.expandedUncertaintyUm, result.unit)}</dd>
+        <dd className="figures">± {length ? formatUncertainty(result.expandedUncertaintyUm, result.unit) : formatUncertaintyIn(figures.expandedUncertainty, result.unit)}</dd>
       </dl>
       <CoverageLine facts={result} />
       {result.verdict && result.rule ? (
@@ -105,6 +114,11 @@ export function ClearanceResultView({
       {picture && (
         <div className="max-w-xl">
           <BandPicture {...picture} />
+        </div>
+      )}
+      {anyPicture && (
+        <div className="max-w-xl">
+          <ResultBandPicture {...anyPicture} />
         </div>
       )}
       {result.verdict && <VerdictCaution />}

@@ -17,7 +17,7 @@ import { FlagNote } from '@/features/review/components/flag-note';
 import { errorMessage } from '@/lib/api';
 import { useDeleteClearance } from '../api/clearance-mutations';
 import { clearanceQueries } from '../api/clearance-queries';
-import { expressionOf, specLine } from '../lib/clearance-view';
+import { formulaLegend, modelText, specLine } from '../lib/clearance-view';
 import { ClearanceForm } from './clearance-form';
 import { ClearanceResultView, ClearanceVerdicts, specSourceWords } from './clearance-result-view';
 
@@ -80,7 +80,7 @@ export function ClearancesPanel({ build }: { build: Build }) {
             >
               {readingItems.length === 0
                 ? 'Log the readings first (say a bore depth and a rotor height), then work out the result (a clearance, material removed…) from them with a template.'
-                : 'Choose a template (end float, a feeler gap, a bearing clearance…), pick the readings for it and attach the spec it must meet.'}
+                : 'Choose a template (end float, a feeler gap, a bearing clearance, a compression ratio…) or write a formula, pick the readings for it and attach the spec it must meet.'}
             </EmptyState>
           )
         ) : (
@@ -142,6 +142,7 @@ function ClearanceItem({
   onDelete: () => void;
 }) {
   const terms = readings.filter((r) => c.terms.some((t) => t.readingId === r.id));
+  const legend = formulaLegend(c);
   return (
     <li className={refused ? 'bg-danger-wash/30 px-3 py-2.5' : 'px-3 py-2.5'} data-clearance={c.key}>
       <div className="flex flex-wrap items-start justify-between gap-x-4 gap-y-1">
@@ -149,7 +150,20 @@ function ClearanceItem({
           <h3 className="text-sm font-semibold">
             {c.name} <span className="figures font-normal text-ink-muted">{c.key}</span>
           </h3>
-          <p className="figures text-xs text-ink-muted">= {expressionOf(c.terms)}</p>
+          <p className="figures text-xs break-words text-ink-muted" data-model="">
+            = {modelText(c)}
+          </p>
+          {legend.length > 0 && (
+            <p className="text-xs text-ink-muted" data-formula-legend="">
+              where{' '}
+              {legend.map((l, i) => (
+                <span key={l.name}>
+                  {i > 0 && (i === legend.length - 1 ? ' and ' : ', ')}
+                  <span className="figures text-ink">{l.name}</span> is {l.meaning}
+                </span>
+              ))}
+            </p>
+          )}
         </div>
         <div className="flex gap-0.5" role="group" aria-label={`Actions for ${c.name}`}>
           <Button size="sm" variant="quiet" className="h-7 px-2" onClick={onEdit} aria-label={`Edit ${c.name}`}>

@@ -1,20 +1,29 @@
 import type { BudgetLine } from '@shared/measure/calc.schema';
 import { formatResult } from '@shared/measure/format';
-import { formatCoverageFactor, plainNumber } from '@shared/measure/format-quantity';
+import { formatCoverageFactor, formatValue, plainNumber, uncertaintyDecimals } from '@shared/measure/format-quantity';
+import type { AnyUnit, QuantityKind } from '@shared/measure/quantities';
 import type { Verdict } from '@shared/measure/spec';
-import { micrometresToPicometres, type LengthUnit } from '@shared/measure/units';
+import { isLengthUnit, micrometresToPicometres, type LengthUnit } from '@shared/measure/units';
 import { BudgetTable } from '@/components/budget-table';
 import { cn } from '@/lib/cn';
 
 /**
- * What the second engine adds to a clearance (a workspace result or a published one): how the
+ * What the second engine adds to a result (a workspace result or a published one): how the
  * interval was found, its ends, the probability within spec, the budget and the warnings. Every
- * field is optional: a result judged before it has none, and then nothing here is shown.
+ * field is optional: a result judged before it has none, and then nothing here is shown. A
+ * length carries its figures in µm (the length path); any other quantity in its own unit.
  */
-export interface CoverageFacts {
-  unit: LengthUnit;
-  valueUm: number;
-  expandedUncertaintyUm: number;
+export interface ResultFacts {
+  /** Absent on results judged before other quantities could be stored: those are lengths. */
+  quantity?: QuantityKind | undefined;
+  unit: AnyUnit;
+  /** Lengths only (null for any other quantity). */
+  valueUm: number | null;
+  expandedUncertaintyUm: number | null;
+  /** In `unit`, for every quantity (absent on older results). */
+  value?: number | undefined;
+  expandedUncertainty?: number | undefined;
+  interval?: readonly [number, number] | undefined;
   coverageFactor: number;
   verdict: Verdict | null;
   method?: 'gum' | 'monte-carlo' | undefined;
@@ -27,9 +36,31 @@ export interface CoverageFacts {
   warnings?: readonly string[] | undefined;
 }
 
-/** The interval's ends, when the result carries them and has any uncertainty to span. */
-export function intervalOf(facts: CoverageFacts): readonly [number, number] | null {
-  return facts.intervalUm && facts.expandedUncertaintyUm > 0 ? facts.intervalUm : null;
+/** A length result's facts, in µm: what the public pages pass. */
+export interface CoverageFacts extends ResultFacts {
+  unit: LengthUnit;
+  valueUm: number;
+  expandedUncertaintyUm: number;
+}
+
+/** A figure of a result in its own unit at U's decimal place (GUM 7.2.6): "64.20 cc", "9.94". */
+export function figureInUnit(unit: AnyUnit, expandedUncertainty: number): (x: number) => string {
+  const decimals = expandedUncertainty > 0 ? uncertaintyDecimals(expandedUncertainty) : 6;
+  return (x) => formatValue(x, unit, decimals);
+}
+
+/** Does a result go by the length path (µm figures)? */
+function isLengthFacts(facts: Pick<ResultFacts, 'quantity' | 'unit' | 'valueUm'>): boolean {
+  return (facts.quantity ?? 'length') === 'length' && isLengthUnit(facts.unit) && facts.valueUm !== null;
+}
+
+/**
+ * The interval's ends, when the result carries them and has any uncertainty to span: in µm for
+ * a length, in the result's own unit for any other quantity (what `endInUnit` formats).
+ */
+export function intervalOf(facts: ResultFacts): readonly [number, number] | null {
+  if (isLengthFacts(facts)) return facts.intervalUm && (facts.expandedUncertaintyUm ?? 0) > 0 ? facts.intervalUm : null;
+  return facts.interval && (facts.expandedUncertainty ?? 0) > 0 ? facts.interval : null;
 }
 
 /** A probability as people read it, never rounded up to a certainty: "99.6 %", "> 99.99 %", "< 0.01 %". */
@@ -50,17 +81,22 @@ export function dofText(nu: number | null | undefined): string {
 }
 
 /** The probability within spec, when a spec was attached and the engine worked it out. */
-export function conformanceOf(facts: CoverageFacts): number | null {
+export function conformanceOf(facts: ResultFacts): number | null {
   return facts.verdict && typeof facts.probabilityOfConformance === 'number' ? facts.probabilityOfConformance : null;
 }
 
-/** An interval end in the result's own unit, at U's decimal place (GUM 7.2.6): "0.004622 in". */
-export function endInUnit(facts: Pick<CoverageFacts, 'unit' | 'expandedUncertaintyUm'>): (um: number) => string {
-  return (um) => formatResult(micrometresToPicometres(um), facts.expandedUncertaintyUm, facts.unit).value;
+/**
+ * An interval end in the result's own unit, at U's decimal place (GUM 7.2.6): "0.004622 in" from
+ * µm for a length, "10.05" or "64.5 cc" from the figure in its unit for any other quantity.
+ */
+export function endInUnit(facts: Pick<ResultFacts, 'quantity' | 'unit' | 'valueUm' | 'expandedUncertaintyUm' | 'expandedUncertainty'>): (x: number) => string {
+  const unit = facts.unit;
+  if (isLengthFacts(facts) && isLengthUnit(unit)) return (um) => formatResult(micrometresToPicometres(um), facts.expandedUncertaintyUm ?? 0, unit).value;
+  return figureInUnit(unit, facts.expandedUncertainty ?? 0);
 }
 
 /** The method, tersely, for builders: "Monte Carlo, JCGM 101", "GUM, t with ν_eff = 12", "k = 2 chosen". */
-export function methodShort(facts: CoverageFacts): string {
+export function methodShort(facts: ResultFacts): string {
   if (facts.fixedCoverageFactor) {
     const about = facts.coverageProbability !== undefined ? `, about ${coverageText(facts.coverageProbability)}` : '';
     return `k = ${formatCoverageFactor(facts.coverageFactor)} chosen${about}`;
@@ -106,7 +142,7 @@ export function EngineWarnings({
  * The builder's compact line under the figure: "95 % interval a to b (Monte Carlo, JCGM 101) ·
  * Probability within spec: 99.6 %", the warnings, and nothing at all for an older result.
  */
-export function CoverageLine({ facts }: { facts: CoverageFacts }) {
+export function CoverageLine({ facts }: { facts: ResultFacts }) {
   const interval = intervalOf(facts);
   const within = conformanceOf(facts);
   if (!interval && within === null && !facts.warnings?.length) return null;
@@ -137,7 +173,7 @@ export function CoverageLine({ facts }: { facts: CoverageFacts }) {
 }
 
 /** The budget behind a disclosure, in the builder's dense table. */
-export function BudgetDisclosure({ facts, className }: { facts: CoverageFacts; className?: string }) {
+export function BudgetDisclosure({ facts, className }: { facts: ResultFacts; className?: string }) {
   if (!facts.budget) return null;
   const n = facts.budget.length;
   return (

@@ -1,14 +1,15 @@
 import type { ReactNode } from 'react';
-import { useForm, useWatch, type Path } from 'react-hook-form';
-import { instrumentKindNames, instrumentKinds } from '@shared/instruments/instrument.schema';
-import { lengthTextIn } from '@shared/measure/length-text';
-import { lengthUnits, unitNames, unitSymbols, type LengthUnit } from '@shared/measure/units';
+import { useController, useForm, useWatch, type Path } from 'react-hook-form';
+import { instrumentKindNames, instrumentKindQuantity, instrumentKinds, type InstrumentKind } from '@shared/instruments/instrument.schema';
+import { quantityOf, unitTable } from '@shared/measure/quantities';
 import { Button } from '@/components/ui/button';
 import { Field, Input, Select, Textarea } from '@/components/ui/field';
+import { useDefaultUnits } from '@/features/auth/lib/use-default-units';
 import { ApiError, errorMessage } from '@/lib/api';
-import { instrumentFormResolver, type InstrumentFormOutput, type InstrumentFormValues } from '../lib/instrument-form';
-import { resolutionOnlyUncertainty } from '../lib/instrument-format';
-import { LengthInput } from './length-input';
+import { instrumentFormResolver, unitForKind, type InstrumentFormOutput, type InstrumentFormValues } from '../lib/instrument-form';
+import { figureProblem, resolutionOnlyUncertainty } from '../lib/instrument-format';
+import { FigureInput } from './figure-input';
+import { UnitOptions } from './unit-options';
 
 export interface InstrumentFormProps {
   mode: 'create' | 'edit';
@@ -41,15 +42,11 @@ const formFields: ReadonlySet<string> = new Set([
   'retired',
 ]);
 
-/** Live check of a length box against the record's unit, before the form is sent. */
-function liveLengthProblem(text: string, unit: LengthUnit, positive: boolean): string | undefined {
-  if (text.trim() === '') return undefined;
-  const parsed = lengthTextIn(text, unit);
-  if (!parsed.ok) return parsed.message;
-  if (positive && parsed.length.pm <= 0n) return 'resolution must be greater than 0';
-  if (!positive && parsed.length.pm < 0n) return 'uncertainty cannot be negative';
-  return undefined;
-}
+/** The figures that are in the record's unit, checked again when the unit changes. */
+const figureFields = ['resolution', 'statedUncertainty', 'calibrationUncertainty', 'maxPermissibleError', 'settingStandardUncertainty'] as const;
+
+/** Placeholders for a resolution in the units a shop most often records. */
+const resolutionPlaceholders: Partial<Record<InstrumentFormValues['unit'], string>> = { in: '0.0001', mm: '0.001' };
 
 /** Name, kind, serial, unit and resolution, stated uncertainty and calibration of one instrument. */
 export function InstrumentForm({ mode, defaultValues, submitLabel, pendingLabel, onSubmit, conflict, secondaryAction }: InstrumentFormProps) {
@@ -58,15 +55,30 @@ export function InstrumentForm({ mode, defaultValues, submitLabel, pendingLabel,
     defaultValues,
     mode: 'onTouched',
   });
-  const { register, control, formState, setError, handleSubmit } = form;
+  const { register, control, formState, setError, handleSubmit, setValue, getValues, trigger } = form;
   const errors = formState.errors;
-  const unit = useWatch({ control, name: 'unit' });
+  const defaults = useDefaultUnits();
+  const kind = useWatch({ control, name: 'kind' });
+  // Controlled: its options change with the kind, and the value set for the new kind must land on them.
+  const unitField = useController({ control, name: 'unit', rules: { deps: [...figureFields] } }).field;
+  const unit = unitField.value;
   const resolution = useWatch({ control, name: 'resolution' });
   const stated = useWatch({ control, name: 'statedUncertainty' });
-  const symbol = unitSymbols[unit];
+  const symbol = unitTable[unit].symbol;
+  const isLength = quantityOf(unit) === 'length';
   const defaultU = resolutionOnlyUncertainty(resolution, unit);
-  const resolutionError = errors.resolution?.message ?? liveLengthProblem(resolution, unit, true);
-  const statedError = errors.statedUncertainty?.message ?? liveLengthProblem(stated, unit, false);
+  const resolutionError = errors.resolution?.message ?? figureProblem(resolution, unit, true);
+  const statedError = errors.statedUncertainty?.message ?? figureProblem(stated, unit, false);
+  const kindField = register('kind', {
+    // The unit follows the kind: a torque wrench reads torque, in the builder's system.
+    onChange: (event: { target: { value: string } }) => {
+      const next = unitForKind(event.target.value as InstrumentKind, getValues('unit'), defaults);
+      if (next === getValues('unit')) return;
+      setValue('unit', next, { shouldDirty: true });
+      // Re-check what was typed in the old unit only where the builder has been told about it.
+      if (formState.isSubmitted) void trigger([...figureFields, 'unit']);
+    },
+  });
 
   const submit = handleSubmit(async (values) => {
     try {
@@ -93,7 +105,7 @@ export function InstrumentForm({ mode, defaultValues, submitLabel, pendingLabel,
           <Input {...register('name')} autoComplete="off" />
         </Field>
         <Field label="Kind" error={errors.kind?.message}>
-          <Select {...register('kind')}>
+          <Select {...kindField}>
             {instrumentKinds.map((kind) => (
               <option key={kind} value={kind}>
                 {instrumentKindNames[kind]}
@@ -109,23 +121,25 @@ export function InstrumentForm({ mode, defaultValues, submitLabel, pendingLabel,
       <fieldset className="grid gap-3 rounded-md border border-rule p-3 sm:grid-cols-2">
         <legend className="px-1 text-sm font-medium">Scale and uncertainty</legend>
         <Field label="Unit" error={errors.unit?.message} className="sm:col-span-2" hint="The unit the instrument reads in. Its resolution, uncertainty and zero checks are in this unit.">
-          <Select {...register('unit', { deps: ['resolution', 'statedUncertainty', 'calibrationUncertainty', 'maxPermissibleError', 'settingStandardUncertainty'] })}>
-            {lengthUnits.map((u) => (
-              <option key={u} value={u}>
-                {unitNames[u]}
-              </option>
-            ))}
+          <Select
+            name={unitField.name}
+            ref={unitField.ref}
+            value={unit}
+            onChange={(event) => unitField.onChange(event.target.value)}
+            onBlur={unitField.onBlur}
+          >
+            <UnitOptions quantity={instrumentKindQuantity[kind]} extra={unit} />
           </Select>
         </Field>
         <Field label={`Resolution (${symbol})`} required error={resolutionError} hint="One step of the scale or the last digit of the display.">
-          <LengthInput unit={unit} {...register('resolution')} placeholder={unit === 'in' ? '0.0001' : unit === 'mm' ? '0.001' : ''} />
+          <FigureInput unit={unit} {...register('resolution')} placeholder={resolutionPlaceholders[unit] ?? ''} />
         </Field>
         <Field
           label={`Stated uncertainty (${symbol})`}
           error={statedError}
           hint="Standard uncertainty from a calibration certificate or the maker. Optional."
         >
-          <LengthInput unit={unit} {...register('statedUncertainty')} />
+          <FigureInput unit={unit} {...register('statedUncertainty')} />
         </Field>
         <p className="text-xs text-ink-muted sm:col-span-2" data-testid="default-uncertainty">
           Without a stated figure the engine uses the resolution alone: u = resolution / (2√3)
@@ -141,17 +155,21 @@ export function InstrumentForm({ mode, defaultValues, submitLabel, pendingLabel,
           subtracted and adds up when they are summed (GUM 5.2.2). A certificate supersedes the maker&rsquo;s limit.
         </p>
         <Field label={`Calibration U (${symbol})`} error={errors.calibrationUncertainty?.message} hint="Expanded uncertainty from the certificate.">
-          <LengthInput unit={unit} {...register('calibrationUncertainty')} />
+          <FigureInput unit={unit} {...register('calibrationUncertainty')} />
         </Field>
         <Field label="Certificate's k" error={errors.calibrationCoverageFactor?.message} hint="Usually 2.">
           <Input {...register('calibrationCoverageFactor')} inputMode="decimal" className="figures" />
         </Field>
         <Field label={`Maximum permissible error ± (${symbol})`} error={errors.maxPermissibleError?.message} hint="The maker's limit of error; taken as rectangular (÷ √3).">
-          <LengthInput unit={unit} {...register('maxPermissibleError')} />
+          <FigureInput unit={unit} {...register('maxPermissibleError')} />
         </Field>
         <span aria-hidden="true" />
-        <Field label={`Setting standard U (${symbol})`} error={errors.settingStandardUncertainty?.message} hint="The gauge block or setting rod it is zeroed on.">
-          <LengthInput unit={unit} {...register('settingStandardUncertainty')} />
+        <Field
+          label={`Setting standard U (${symbol})`}
+          error={errors.settingStandardUncertainty?.message}
+          hint={isLength ? 'The gauge block or setting rod it is zeroed on.' : 'The reference it is zeroed or checked on (a test gauge, a check weight).'}
+        >
+          <FigureInput unit={unit} {...register('settingStandardUncertainty')} />
         </Field>
         <Field label="Standard's k" error={errors.settingStandardCoverageFactor?.message}>
           <Input {...register('settingStandardCoverageFactor')} inputMode="decimal" className="figures" />

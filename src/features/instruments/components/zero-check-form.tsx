@@ -3,13 +3,13 @@ import { useForm, useWatch, type FieldErrors, type Path, type Resolver } from 'r
 import { zodResolver } from '@hookform/resolvers/zod';
 import type { z } from 'zod';
 import { zeroCheckInputSchema, type Instrument } from '@shared/instruments/instrument.schema';
-import { lengthTextIn } from '@shared/measure/length-text';
-import { unitSymbols, type LengthUnit } from '@shared/measure/units';
+import { quantityOf, unitTable, type AnyUnit } from '@shared/measure/quantities';
+import { figureTextIn } from '@shared/measure/quantity-text';
 import { Button } from '@/components/ui/button';
 import { Field, Input, Textarea } from '@/components/ui/field';
 import { ApiError, errorMessage } from '@/lib/api';
 import { liveOffset, todayLocal } from '../lib/instrument-format';
-import { LengthInput } from './length-input';
+import { FigureInput } from './figure-input';
 
 interface ZeroCheckFormValues {
   checkedOn: string;
@@ -20,16 +20,28 @@ interface ZeroCheckFormValues {
 
 type ZeroCheckOutput = z.output<typeof zeroCheckInputSchema>;
 
-/** The shared schema, plus the unit check the server makes: both lengths in the instrument's unit. */
-function zeroCheckResolver(unit: LengthUnit): Resolver<ZeroCheckFormValues, unknown, ZeroCheckOutput> {
+/**
+ * A zero check's figure as typed, in the instrument's unit (the server's check): the setting
+ * standard cannot be below zero, what the instrument showed may be.
+ */
+function figureProblem(field: 'standardSize' | 'shown', text: string, unit: AnyUnit): string | undefined {
+  if (text.trim() === '') return undefined;
+  const parsed = figureTextIn(text, unit);
+  if (!parsed.ok) return parsed.message;
+  if (field === 'standardSize' && parsed.figure.value.s < 0n && parsed.figure.value.n !== 0n) return 'the setting standard cannot be below zero';
+  return undefined;
+}
+
+/** The shared schema, plus the unit check the server makes: both figures in the instrument's unit. */
+function zeroCheckResolver(unit: AnyUnit): Resolver<ZeroCheckFormValues, unknown, ZeroCheckOutput> {
   const base = zodResolver(zeroCheckInputSchema);
   return async (values, context, options) => {
     const result = await base(values, context, options as never);
     const errors = { ...(result.errors as FieldErrors<ZeroCheckFormValues>) };
     for (const field of ['standardSize', 'shown'] as const) {
-      if (errors[field] || values[field].trim() === '') continue;
-      const parsed = lengthTextIn(values[field], unit);
-      if (!parsed.ok) errors[field] = { type: 'unit', message: parsed.message };
+      if (errors[field]) continue;
+      const problem = figureProblem(field, values[field], unit);
+      if (problem) errors[field] = { type: 'unit', message: problem };
     }
     if (Object.keys(errors).length > 0) return { values: {}, errors };
     return { values: result.values as ZeroCheckOutput, errors: {} };
@@ -47,7 +59,8 @@ export interface ZeroCheckFormProps {
 /** Day, setting standard and what the instrument showed on it; the offset it gives, live. */
 export function ZeroCheckForm({ instrument, onSubmit, secondaryAction }: ZeroCheckFormProps) {
   const unit = instrument.unit;
-  const symbol = unitSymbols[unit];
+  const symbol = unitTable[unit].symbol;
+  const isLength = quantityOf(unit) === 'length';
   const form = useForm<ZeroCheckFormValues, unknown, ZeroCheckOutput>({
     resolver: zeroCheckResolver(unit),
     defaultValues: { checkedOn: todayLocal(), standardSize: '', shown: '', note: '' },
@@ -57,11 +70,7 @@ export function ZeroCheckForm({ instrument, onSubmit, secondaryAction }: ZeroChe
   const errors = formState.errors;
   const [standardSize, shown, checkedOn] = useWatch({ control, name: ['standardSize', 'shown', 'checkedOn'] });
   const offset = liveOffset(standardSize, shown, unit);
-  const live = (text: string) => {
-    if (text.trim() === '') return undefined;
-    const parsed = lengthTextIn(text, unit);
-    return parsed.ok ? undefined : parsed.message;
-  };
+  const live = (field: 'standardSize' | 'shown', text: string) => figureProblem(field, text, unit);
 
   const submit = handleSubmit(async (values) => {
     try {
@@ -84,13 +93,22 @@ export function ZeroCheckForm({ instrument, onSubmit, secondaryAction }: ZeroChe
         <Field
           label={`Setting standard (${symbol})`}
           required
-          error={errors.standardSize?.message ?? live(standardSize)}
-          hint="Its size: 0 with the faces closed, or the rod, ring or block you set on."
+          error={errors.standardSize?.message ?? live('standardSize', standardSize)}
+          hint={
+            isLength
+              ? 'Its size: 0 with the faces closed, or the rod, ring or block you set on.'
+              : 'What it was checked on: 0 with nothing applied (a gauge open to the air, an empty scale), or a test gauge or check weight.'
+          }
         >
-          <LengthInput unit={unit} {...register('standardSize')} />
+          <FigureInput unit={unit} {...register('standardSize')} />
         </Field>
-        <Field label={`It showed (${symbol})`} required error={errors.shown?.message ?? live(shown)} hint="What the instrument read on the standard, as shown.">
-          <LengthInput unit={unit} {...register('shown')} />
+        <Field
+          label={`It showed (${symbol})`}
+          required
+          error={errors.shown?.message ?? live('shown', shown)}
+          hint="What the instrument read on the standard, as shown."
+        >
+          <FigureInput unit={unit} {...register('shown')} />
         </Field>
       </div>
       <p className="rounded-md border border-rule bg-paper-2/60 px-3 py-2 text-sm" aria-live="polite" data-testid="zero-offset">

@@ -3,22 +3,24 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import type { z } from 'zod';
 import {
   instrumentInputSchema,
+  instrumentKindQuantity,
   instrumentPatchSchema,
   type Instrument,
   type InstrumentInput,
   type InstrumentKind,
   type InstrumentPatch,
 } from '@shared/instruments/instrument.schema';
-import { defaultUnitFor } from '@shared/measure/format';
-import type { LengthUnit } from '@shared/measure/units';
-import type { DefaultUnits } from '@/features/auth/lib/default-units';
+import { defaultUnitFor, quantityOf } from '@shared/measure/quantities';
+import type { ReadingUnit } from '@shared/measure/record-units';
+import { noDefaultUnits, type DefaultUnits } from '@/features/auth/lib/default-units';
 
 /** The instrument form as typed: every box is text until the shared schema reads it. */
 export interface InstrumentFormValues {
   name: string;
   kind: InstrumentKind;
   serial: string;
-  unit: LengthUnit;
+  /** What it reads in: a length, or a unit of the quantity its kind measures. */
+  unit: ReadingUnit;
   resolution: string;
   statedUncertainty: string;
   /** A calibration certificate's U and its k; the maker's MPE; the setting standard's U and its k. */
@@ -57,9 +59,25 @@ export const blankInstrument: InstrumentFormValues = {
   lockVersion: null,
 };
 
-/** A new instrument reads in the builder's default length unit (in or mm), else inches. */
-export function newInstrumentUnit(defaults: DefaultUnits): LengthUnit {
-  return defaults.system ? defaultUnitFor(defaults.system) : blankInstrument.unit;
+/**
+ * The unit a new instrument of `kind` starts in: its quantity's unit in the builder's system
+ * (`defaultUnitFor`: in or mm, lbf·ft or N·m, psi or kPa, cc either way, their temperature
+ * scale), else the imperial one; "Other" starts as a length.
+ */
+export function newInstrumentUnit(defaults: DefaultUnits, kind: InstrumentKind = blankInstrument.kind): ReadingUnit {
+  const quantity = instrumentKindQuantity[kind] ?? 'length';
+  // No quantity an instrument reads defaults to the ratio's "1".
+  return defaultUnitFor(quantity, defaults.system ?? 'imperial', defaults.temperatureScale ?? undefined) as ReadingUnit;
+}
+
+/**
+ * The unit to show after the kind changes: the current one while it is of the kind's quantity
+ * (any unit for "Other"), else the new quantity's default in the builder's units.
+ */
+export function unitForKind(kind: InstrumentKind, current: ReadingUnit, defaults: DefaultUnits = noDefaultUnits): ReadingUnit {
+  const quantity = instrumentKindQuantity[kind];
+  if (quantity === null || quantityOf(current) === quantity) return current;
+  return newInstrumentUnit(defaults, kind);
 }
 
 /** The empty form for a new instrument, in the builder's default units. */

@@ -74,7 +74,8 @@ function InstrumentsList({ actions, onAdd }: { actions: InstrumentActions; onAdd
           </Button>
         }
       >
-        Add each micrometer, bore gauge, caliper and blade set you measure with: its unit, its resolution, a stated
+        Add each micrometer, bore gauge, caliper and blade set you measure with, and the burette, degree wheel, torque
+        wrench or gauge you read other figures from: its unit, its resolution, a stated
         uncertainty if its certificate gives one, and when it was last calibrated. Readings are logged against an
         instrument.
       </EmptyState>

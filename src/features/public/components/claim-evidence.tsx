@@ -1,30 +1,42 @@
-import { formatCoverageFactor } from '@shared/measure/format-quantity';
+import { formatCoverageFactor, withUnit } from '@shared/measure/format-quantity';
 import { useState } from 'react';
 import { systemOf, type UnitSystem } from '@shared/measure/format';
 import { decisionRuleText } from '@shared/measure/spec';
-import { limitFacts, specLimitTexts } from '@shared/public/spec-limits';
+import { isLengthUnit } from '@shared/measure/units';
+import { firstNumberDecimals, isLengthQuantity, quantityFigureIn, readerUnitFor } from '@shared/public/quantity-figures';
+import { limitFacts } from '@shared/public/spec-limits';
 import type { PublicClaim, PublicClearance, PublicReading } from '@shared/public/public-story.schema';
 import { VerdictBadge } from '@/components/ui/badge';
 import { Button } from '@/components/ui/button';
-import { BandPicture } from '@/features/calc/components/band-picture';
+import { BandPicture, ResultBandPicture } from '@/features/calc/components/band-picture';
 import { CalcSteps } from '@/features/calc/components/calc-steps';
 import { specSourceWords, VerdictCaution } from '@/features/clearances/components/clearance-result-view';
-import { conformanceOf, intervalOf } from '@/features/clearances/components/coverage-facts';
 import { CalibrationBadge } from '@/features/instruments/components/calibration-badge';
 import { formatTime } from '@/features/clips/lib/clip-format';
 import { dayText, instantDay } from '../lib/dates';
-import { pictureProps, readingResolutionPm, systemDisplayUnits, valueWithU } from '../lib/figures';
+import { limitTextsFor, pictureProps, quantityPictureProps, readingShown, resultShown, systemDisplayUnits, valueWithU } from '../lib/figures';
 import { Figure } from './figure';
 import { MomentClip } from './moment-clip';
 import { Recompute } from './recompute';
-import { CoverageRows, ReaderBudget, ReaderWarnings } from './uncertainty-evidence';
+import { CoverageRows, hasCoverageRows, ReaderBudget, ReaderWarnings } from './uncertainty-evidence';
 
-/** A reading's figures as the builder typed them: "0.5642 in", "passes 0.003, stops 0.004 in". */
+/** A figure typed in `unit`, with its symbol: lengths as before ("0.5642 in", "3 tenths"), any other as SI spaces it ("35 lbf·ft", "108°"). */
+function typedIn(text: string, unit: PublicReading['unit']): string {
+  if (isLengthUnit(unit)) return `${text} ${unit === 'um' ? 'µm' : unit === 'tenth' ? 'tenths' : unit}`;
+  return withUnit(text, unit);
+}
+
+/** A reading's figures as the builder typed them: "0.5642 in", "passes 0.003, stops 0.004 in", "35 lbf·ft". */
 export function enteredText(reading: PublicReading): string {
   const unit = reading.unit === 'um' ? 'µm' : reading.unit === 'tenth' ? 'tenths' : reading.unit;
   if (reading.kind === 'bracket') return `blade ${reading.passes ?? '?'} enters, ${reading.stops ?? '?'} does not (${unit})`;
-  if (reading.kind === 'repeated') return `${(reading.values ?? []).join(', ')} ${unit}`;
-  return `${reading.value ?? '?'} ${unit}`;
+  if (reading.kind === 'repeated') return typedIn((reading.values ?? []).join(', '), reading.unit);
+  return typedIn(reading.value ?? '?', reading.unit);
+}
+
+/** Whether a published result is a length (older publications carry no quantity: they are). */
+function isLengthResult(c: PublicClearance): boolean {
+  return isLengthQuantity(c.quantity) && isLengthUnit(c.unit);
 }
 
 /** The claim's evidence in full: the clearance and its verdict, the band picture, the working, the readings and the clip. */
@@ -68,7 +80,7 @@ export function ClaimEvidence({ claim, system }: { claim: PublicClaim; system: U
             <Recompute
               readings={claim.readings}
               clearance={clearance}
-              published={{ valueUm: lead.valueUm, expandedUm: lead.expandedUncertaintyUm, verdict: clearance?.verdict ?? null }}
+              published={{ shown: clearance ? resultShown(clearance) : readingShown(claim.readings[0]!), verdict: clearance?.verdict ?? null }}
               system={system}
             />
           </div>
@@ -81,11 +93,12 @@ export function ClaimEvidence({ claim, system }: { claim: PublicClaim; system: U
 }
 
 function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; system: UnitSystem }) {
+  const length = isLengthResult(clearance);
   const picture =
-    clearance.band && clearance.verdict && clearance.rule
+    length && clearance.band && clearance.verdict && clearance.rule && isLengthUnit(clearance.unit)
       ? pictureProps({
-          valueUm: clearance.valueUm,
-          expandedUm: clearance.expandedUncertaintyUm,
+          valueUm: clearance.valueUm ?? 0,
+          expandedUm: clearance.expandedUncertaintyUm ?? 0,
           coverageFactor: clearance.coverageFactor,
           band: clearance.band,
           bandUnit: clearance.unit,
@@ -94,26 +107,60 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
           system,
         })
       : null;
-  const expression = clearance.terms.map((t, i) => `${t.sign === -1 ? '− ' : i === 0 ? '' : '+ '}${t.readingName.toLowerCase()}`).join(' ');
-  const otherSystem = systemOf(clearance.unit) !== system;
-  const shownIn = systemDisplayUnits[system].main;
-  const limits = clearance.band ? specLimitTexts(clearance.band, clearance.unit, shownIn) : null;
+  const otherPicture =
+    !length && clearance.bandInUnit && clearance.verdict && clearance.rule && clearance.value !== undefined
+      ? quantityPictureProps({
+          unit: clearance.unit,
+          value: clearance.value,
+          expandedUncertainty: clearance.expandedUncertainty ?? 0,
+          interval: clearance.interval ?? [clearance.value - (clearance.expandedUncertainty ?? 0), clearance.value + (clearance.expandedUncertainty ?? 0)],
+          coverageFactor: clearance.coverageFactor,
+          coverageProbability: clearance.coverageProbability ?? 0.95,
+          band: clearance.bandInUnit,
+          verdict: clearance.verdict,
+          rule: clearance.rule,
+          decimals: firstNumberDecimals(clearance.display),
+          system,
+        })
+      : null;
+  const formula = clearance.formula ?? null;
+  const expression =
+    formula !== null
+      ? `${formula}${clearance.terms.length ? `, where ${clearance.terms.map((t) => `${t.symbol ?? t.readingKey} is ${t.readingName.toLowerCase()}`).join(', ')}` : ''}`
+      : clearance.terms.map((t, i) => `${t.sign === -1 ? '− ' : i === 0 ? '' : '+ '}${t.readingName.toLowerCase()}`).join(' ');
+  // A gap worked out as a signed sum is a clearance; anything else (a ratio, a volume, a formula) is a result.
+  const noun = length && formula === null ? 'clearance' : 'result';
+  const Noun = noun === 'clearance' ? 'Clearance' : 'Result';
+  const shownIn = length ? systemDisplayUnits[system].main : readerUnitFor(clearance.unit, system);
+  const otherSystem = length ? isLengthUnit(clearance.unit) && systemOf(clearance.unit) !== system : shownIn !== clearance.unit;
+  const limits = limitTextsFor(clearance, system);
   // One verdict, against the spec band; the preferred band and the reject limit are facts in words.
   const facts = limits ? limitFacts({ preferredVerdict: clearance.preferredVerdict, rejectVerdict: clearance.rejectVerdict }, limits) : [];
+  // The interval's ends in the reader's unit, at U's place like the figure above.
+  const interval = length
+    ? undefined
+    : clearance.interval && (clearance.expandedUncertainty ?? 0) > 0
+      ? clearance.interval
+      : null;
+  const end = length
+    ? (um: number) => valueWithU(um, clearance.expandedUncertaintyUm ?? 0, systemDisplayUnits[system].main).value
+    : (v: number) => quantityFigureIn({ unit: clearance.unit, value: v, expandedUncertainty: clearance.expandedUncertainty ?? 0, decimals: null }, shownIn).value;
   return (
     <section aria-labelledby="evidence-clearance" className="flex flex-col gap-3">
       <div>
         <h3 id="evidence-clearance" className="text-sm font-semibold">
           {clearance.name}
         </h3>
-        <p className="text-xs text-ink-muted">Clearance = {expression}</p>
+        <p className="text-xs text-ink-muted">
+          {Noun} = {expression}
+        </p>
       </div>
       <dl className="flex flex-col gap-1 text-sm [&_dd]:mb-1.5">
-        <dt className="text-ink-muted">Clearance ± U</dt>
+        <dt className="text-ink-muted">{Noun} ± U</dt>
         <dd>
-          <Figure valueUm={clearance.valueUm} expandedUm={clearance.expandedUncertaintyUm} coverageFactor={clearance.coverageFactor} system={system} size="lg" />
+          <Figure shown={resultShown(clearance)} coverageFactor={clearance.coverageFactor} system={system} size="lg" />
         </dd>
-        {!intervalOf(clearance) && (
+        {!(length ? clearance.intervalUm && (clearance.expandedUncertaintyUm ?? 0) > 0 : interval) && (
           <>
             <dt className="text-ink-muted">Expanded uncertainty</dt>
             <dd className="text-sm">
@@ -155,10 +202,9 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
         <p className="text-sm text-ink-muted">No spec was attached, so there is no verdict.</p>
       )}
 
-      {(intervalOf(clearance) || conformanceOf(clearance) !== null) && (
+      {hasCoverageRows(clearance, interval) && (
         <dl className="flex flex-col gap-1 text-sm [&_dd]:mb-1.5" data-coverage="">
-          {/* The interval's ends in the reader's main unit, at U's place like the figure above. */}
-          <CoverageRows facts={clearance} end={(um) => valueWithU(um, clearance.expandedUncertaintyUm, systemDisplayUnits[system].main).value} />
+          <CoverageRows facts={clearance} end={end} {...(interval !== undefined && { interval })} noun={noun} />
         </dl>
       )}
 
@@ -180,8 +226,9 @@ function ClearanceFigures({ clearance, system }: { clearance: PublicClearance; s
       )}
 
       {picture && <BandPicture {...picture} />}
+      {otherPicture && <ResultBandPicture {...otherPicture} />}
 
-      <ReaderBudget facts={clearance} />
+      <ReaderBudget facts={clearance} noun={noun} />
 
       <details className="rounded-md border border-rule px-3 py-2">
         <summary className="cursor-pointer text-sm font-medium">How it was worked out ({clearance.steps.length} steps)</summary>
@@ -204,14 +251,7 @@ function ReadingHeadline({ reading, system }: { reading: PublicReading; system: 
       <h3 id="evidence-reading" className="text-sm font-semibold">
         {reading.name}
       </h3>
-      <Figure
-        valueUm={reading.valueUm}
-        expandedUm={reading.expandedUncertaintyUm}
-        coverageFactor={2}
-        resolutionPm={readingResolutionPm(reading)}
-        system={system}
-        size="lg"
-      />
+      <Figure shown={readingShown(reading)} coverageFactor={2} system={system} size="lg" />
       <details className="rounded-md border border-rule px-3 py-2">
         <summary className="cursor-pointer text-sm font-medium">How it was worked out ({reading.steps.length} steps)</summary>
         <div className="mt-2">
@@ -255,12 +295,12 @@ function ReadingCard({
           )}
           {reading.name}
         </p>
-        <Figure valueUm={reading.valueUm} expandedUm={reading.expandedUncertaintyUm} resolutionPm={readingResolutionPm(reading)} system={system} size="sm" />
+        <Figure shown={readingShown(reading)} system={system} size="sm" />
         <p className="text-xs text-ink-muted">
           As entered: <span className="figures text-ink">{enteredText(reading)}</span>
           {reading.zeroCheck && (
             <>
-              {' · '}zero offset <span className="figures">{reading.zeroCheck.offset} {reading.zeroCheck.unit}</span> taken off
+              {' · '}zero offset <span className="figures">{typedIn(reading.zeroCheck.offset, reading.zeroCheck.unit)}</span> taken off
             </>
           )}
           {reading.temperatureC !== null && (

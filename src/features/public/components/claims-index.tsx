@@ -1,7 +1,7 @@
 import type { UnitSystem } from '@shared/measure/format';
 import type { PublicStory } from '@shared/public/public-story.schema';
 import { verdictLabel, VerdictMark } from '@/components/ui/badge';
-import { readingResolutionPm, systemFigure } from '../lib/figures';
+import { readingShown, resultShown, shownText } from '../lib/figures';
 
 /**
  * The margin on wide screens while no claim is open: every claim of the entry with its figure,
@@ -15,8 +15,7 @@ export function ClaimsIndex({ story, system, onOpen }: { story: PublicStory; sys
       <p className="mt-1 text-xs text-ink-muted">Underlined in the text. Open one to see its reading, its clip and how it was worked out.</p>
       <ol className="mt-3 flex flex-col gap-2">
         {story.claims.map((claim, index) => {
-          const lead = claim.clearance ?? claim.readings[0];
-          const resolution = !claim.clearance && claim.readings[0] ? readingResolutionPm(claim.readings[0]) : null;
+          const lead = claim.clearance ? resultShown(claim.clearance) : claim.readings[0] ? readingShown(claim.readings[0]) : null;
           return (
             <li key={`${claim.kind}:${claim.key}:${index}`}>
               <button
@@ -28,7 +27,7 @@ export function ClaimsIndex({ story, system, onOpen }: { story: PublicStory; sys
                 {lead && (
                   <span className="flex items-center gap-1.5 text-xs text-ink-muted">
                     {claim.verdict && <VerdictMark verdict={claim.verdict} />}
-                    <span className="figures">{systemFigure(lead.valueUm, lead.expandedUncertaintyUm, system, resolution).main}</span>
+                    <span className="figures">{shownText(lead, system).main}</span>
                     {claim.verdict && <span>· {verdictLabel(claim.verdict).toLowerCase()}</span>}
                   </span>
                 )}

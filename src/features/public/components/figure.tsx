@@ -2,31 +2,27 @@ import { Fragment } from 'react';
 import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import type { UnitSystem } from '@shared/measure/format';
 import { cn } from '@/lib/cn';
-import { systemFigure } from '../lib/figures';
+import { hasUncertainty, shownText, type ShownFigure } from '../lib/figures';
 
 /**
- * A measured figure in the reader's system: value ± U in the main unit, the fine unit beside it
- * below one main unit (in and thou, mm and µm), in the monospace with tabular digits.
+ * A measured figure in the reader's system, in the monospace with tabular digits: a length as
+ * value ± U in the main unit with the fine unit beside it below one main unit (in and thou, mm and
+ * µm); any other quantity in its own unit or its system's usual one (35 lbf·ft reads 47 N·m in metric).
  */
 export function Figure({
-  valueUm,
-  expandedUm,
+  shown,
   system,
   coverageFactor,
-  resolutionPm,
   size = 'md',
   className,
 }: {
-  valueUm: number;
-  expandedUm: number;
+  shown: ShownFigure;
   system: UnitSystem;
   coverageFactor?: number;
-  /** A reading's resolution: the value is shown at it rather than at U's place. */
-  resolutionPm?: bigint | null;
   size?: 'sm' | 'md' | 'lg';
   className?: string;
 }) {
-  const figure = systemFigure(valueUm, expandedUm, system, resolutionPm);
+  const figure = shownText(shown, system);
   return (
     <span className={cn('inline-flex flex-wrap items-baseline gap-x-2', className)} data-figure={system}>
       <span className={cn('figures text-ink', size === 'lg' ? 'text-md font-semibold' : size === 'sm' ? 'text-sm' : 'text-base font-medium')}>
@@ -41,7 +37,7 @@ export function Figure({
             </span>
           </Fragment>
         ))}{' '}
-        {coverageFactor !== undefined && expandedUm > 0 && <span className="font-normal whitespace-nowrap text-ink-muted">(k = {formatCoverageFactor(coverageFactor)})</span>}
+        {coverageFactor !== undefined && hasUncertainty(shown) && <span className="font-normal whitespace-nowrap text-ink-muted">(k = {formatCoverageFactor(coverageFactor)})</span>}
       </span>
       {figure.fine && <span className="figures text-xs text-ink-muted">{figure.fine}</span>}
     </span>

@@ -2,10 +2,10 @@ import { formatCoverageFactor } from '@shared/measure/format-quantity';
 import type { UnitSystem } from '@shared/measure/format';
 import { verdictWords } from '@shared/measure/spec';
 import type { PublicStory } from '@shared/public/public-story.schema';
-import { limitFacts, specLimitTexts } from '@shared/public/spec-limits';
+import { limitFacts } from '@shared/public/spec-limits';
 import { formatTime } from '@/features/clips/lib/clip-format';
 import { instantDay } from '../lib/dates';
-import { bandText, readingResolutionPm, systemDisplayUnits, systemFigure } from '../lib/figures';
+import { limitTextsFor, readingShown, resultShown, shownText } from '../lib/figures';
 
 /**
  * Printed only: each claim's evidence as a numbered note (the numbers match the marks the print
@@ -19,19 +19,19 @@ export function PrintEvidence({ story, system }: { story: PublicStory; system: U
       <ol className="mt-2 list-decimal space-y-2 pl-6 text-sm">
         {story.claims.map((claim, index) => {
           const c = claim.clearance;
-          const lead = c ?? claim.readings[0];
-          const resolution = !c && claim.readings[0] ? readingResolutionPm(claim.readings[0]) : null;
+          const lead = c ? resultShown(c) : claim.readings[0] ? readingShown(claim.readings[0]) : null;
+          const limits = c ? limitTextsFor(c, system) : null;
           return (
             <li key={`${claim.kind}:${claim.key}:${index}`}>
               <span className="italic">“{claim.text}”</span>
               {lead && (
                 <>
                   {' — '}
-                  <strong className="figures font-semibold">{systemFigure(lead.valueUm, lead.expandedUncertaintyUm, system, resolution).main}</strong>
+                  <strong className="figures font-semibold">{shownText(lead, system).main}</strong>
                   {c?.verdict && c.rule && (
                     <>
                       , {verdictWords[c.verdict]} ({c.rule} rule, k = {formatCoverageFactor(c.coverageFactor)})
-                      {c.band && limitFacts(c, specLimitTexts(c.band, c.unit, systemDisplayUnits[system].main)).map((fact) => ` ${fact}`)}
+                      {limits && limitFacts(c, limits).map((fact) => ` ${fact}`)}
                     </>
                   )}
                 </>
@@ -39,12 +39,12 @@ export function PrintEvidence({ story, system }: { story: PublicStory; system: U
               {c?.spec && (
                 <span className="block text-xs">
                   Spec {c.spec.name} v{c.spec.version}
-                  {c.band ? `, band ${bandText(c.band, c.unit, systemDisplayUnits[system].main)}` : ''}; source: {c.spec.sourceText}
+                  {limits ? `, band ${limits.band ?? 'no limits'}` : ''}; source: {c.spec.sourceText}
                 </span>
               )}
               <span className="block text-xs">
                 {claim.readings
-                  .map((r) => `${r.name} ${systemFigure(r.valueUm, r.expandedUncertaintyUm, system, readingResolutionPm(r)).value} (${r.instrument.name}; clip “${r.moment.clipTitle}” at ${formatTime(r.moment.atMs / 1000)}; checked by ${r.checked.byName}, ${instantDay(r.checked.at)})`)
+                  .map((r) => `${r.name} ${shownText(readingShown(r), system).value} (${r.instrument.name}; clip “${r.moment.clipTitle}” at ${formatTime(r.moment.atMs / 1000)}; checked by ${r.checked.byName}, ${instantDay(r.checked.at)})`)
                   .join('; ')}
               </span>
             </li>

@@ -1,4 +1,5 @@
 import { formatCoverageFactor } from '@shared/measure/format-quantity';
+import { isAnyUnit, quantityOf } from '@shared/measure/quantities';
 import { verdictWords } from '@shared/measure/spec';
 import type { UnitSystem } from '@shared/measure/format';
 import type { PublicClearance, PublicReading } from '@shared/public/public-story.schema';
@@ -7,12 +8,31 @@ import { Button } from '@/components/ui/button';
 import { ErrorState } from '@/components/ui/data-states';
 import { useServerCalc } from '@/features/calc/api/use-server-calc';
 import { CalcSteps } from '@/features/calc/components/calc-steps';
+import type { CalcResponse } from '@shared/measure/calc.schema';
+import type { ShownFigure } from '../lib/figures';
 import { recomputeRequest } from '../lib/recompute';
 import { Figure } from './figure';
 
 // Both figures come from the same engine; anything beyond float noise is a real difference.
 function same(a: number, b: number) {
   return Math.abs(a - b) <= 1e-9 * Math.max(1, Math.abs(a), Math.abs(b));
+}
+
+/** The calculator's answer as a figure: a length by its µm figures, any other quantity in its unit. */
+function answerShown(result: CalcResponse, published: ShownFigure): ShownFigure | null {
+  if (result.value_um !== null && result.expandedUncertainty_um !== null) return { quantity: 'length', valueUm: result.value_um, expandedUm: result.expandedUncertainty_um };
+  if (!isAnyUnit(result.unit)) return null;
+  const quantity = quantityOf(result.unit);
+  if (quantity === 'length') return null;
+  return { quantity, figure: { unit: result.unit, value: result.value, expandedUncertainty: result.expandedUncertainty, decimals: published.quantity !== 'length' && published.figure.unit === result.unit ? published.figure.decimals : null } };
+}
+
+/** Whether the answer is the published figure: the same value and U (in the same unit), and the same verdict. */
+function agreesWith(result: CalcResponse, published: ShownFigure): boolean {
+  if (published.quantity === 'length') {
+    return result.value_um !== null && result.expandedUncertainty_um !== null && same(result.value_um, published.valueUm) && same(result.expandedUncertainty_um, published.expandedUm);
+  }
+  return result.unit === published.figure.unit && same(result.value, published.figure.value) && same(result.expandedUncertainty, published.figure.expandedUncertainty);
 }
 
 /**
@@ -28,7 +48,7 @@ export function Recompute({
   readings: readonly PublicReading[];
   clearance: PublicClearance | null;
   /** The published figure to compare with. */
-  published: { valueUm: number; expandedUm: number; verdict: PublicClearance['verdict'] };
+  published: { shown: ShownFigure; verdict: PublicClearance['verdict'] };
   system: UnitSystem;
 }) {
   const request = recomputeRequest(readings, clearance);
@@ -42,18 +62,14 @@ export function Recompute({
     );
   }
   const result = calc.data;
-  const agrees =
-    result &&
-    result.value_um !== null &&
-    result.expandedUncertainty_um !== null &&
-    same(result.value_um, published.valueUm) &&
-    same(result.expandedUncertainty_um, published.expandedUm) &&
-    result.verdict === published.verdict;
+  const agrees = result && agreesWith(result, published.shown) && result.verdict === published.verdict;
+  const answer = result ? answerShown(result, published.shown) : null;
   return (
     <div className="space-y-3" data-recompute="">
       <p className="text-sm text-ink-muted">
         The readings as the engine takes them (value, unit, the instrument’s resolution and stated uncertainty, the day’s zero
-        offset){request.spec ? ', the spec’s limits and rule' : ''} and the coverage factor. Lengths are in each reading’s own unit.
+        offset){request.formula ? ', the formula with its constants' : ''}
+        {request.spec ? ', the spec’s limits and rule' : ''} and the coverage factor. Figures are in each reading’s own unit.
       </p>
       <pre className="figures max-h-64 overflow-auto rounded-md border border-rule bg-paper-2 p-3 text-xs leading-relaxed" aria-label="Inputs sent to the calculator">
         {JSON.stringify(request, null, 2)}
@@ -77,9 +93,7 @@ export function Recompute({
           <p className="text-sm font-medium">
             {agrees ? 'Same result as published:' : 'A different result from the published one — tell the site admin:'}
           </p>
-          {result.value_um !== null && result.expandedUncertainty_um !== null && (
-            <Figure valueUm={result.value_um} expandedUm={result.expandedUncertainty_um} coverageFactor={result.coverageFactor} system={system} />
-          )}
+          {answer && <Figure shown={answer} coverageFactor={result.coverageFactor} system={system} />}
           {result.verdict && (
             <div>
               <VerdictBadge verdict={result.verdict} size="sm" rule={clearance?.rule ? `${clearance.rule} rule, k = ${formatCoverageFactor(result.coverageFactor)}` : undefined} />

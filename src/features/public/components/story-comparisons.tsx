@@ -1,7 +1,17 @@
 import type { UnitSystem } from '@shared/measure/format';
-import type { PublicStory } from '@shared/public/public-story.schema';
+import type { PublicClearance, PublicStory } from '@shared/public/public-story.schema';
+import { isLengthUnit } from '@shared/measure/units';
+import { isLengthQuantity } from '@shared/public/quantity-figures';
+import { resultShown } from '../lib/figures';
 import { comparisons } from '../lib/story-view';
-import { BeforeAfterChart } from './before-after-chart';
+import { BeforeAfterChart, type ChartBand } from './before-after-chart';
+
+/** The band of a group's first result: a length's in µm, any other quantity's in its unit. */
+function bandOf(c: PublicClearance | undefined): ChartBand | null {
+  if (!c) return null;
+  if (isLengthQuantity(c.quantity) && isLengthUnit(c.unit)) return c.band ? { quantity: 'length', band: c.band, bandUnit: c.unit } : null;
+  return c.bandInUnit ? { quantity: 'other', limits: c.bandInUnit, unit: c.unit } : null;
+}
 
 /** The story's before-and-after charts: clearances of the entry judged against the same spec. Loaded on its own. */
 export default function StoryComparisons({ story, system }: { story: PublicStory; system: UnitSystem }) {
@@ -16,14 +26,12 @@ export default function StoryComparisons({ story, system }: { story: PublicStory
         <BeforeAfterChart
           key={group.spec}
           title={`${group.spec}: how the build changed it`}
-          band={group.clearances[0]?.band ?? null}
-          bandUnit={group.clearances[0]?.unit}
+          band={bandOf(group.clearances[0])}
           system={system}
           points={group.clearances.map((c) => ({
             id: c.key,
             label: c.name,
-            valueUm: c.valueUm,
-            expandedUm: c.expandedUncertaintyUm,
+            shown: resultShown(c),
             verdict: c.verdict,
           }))}
         />

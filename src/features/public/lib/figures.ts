@@ -1,7 +1,9 @@
 import { formatLength, formatNumber, formatResult, formatUncertainty, limitDecimals, showsFineUnit, symbolFor, systemOf, type UnitSystem } from '@shared/measure/format';
+import { convertNumber, unitTable, type AnyUnit, type QuantityKind } from '@shared/measure/quantities';
 import { guardedLimits, type BandPm, type DecisionRule, type Verdict } from '@shared/measure/spec';
-import { specLimitTexts } from '@shared/public/spec-limits';
-import { maxExactDecimals, micrometresToPicometres, picometresPerUnit, type LengthUnit } from '@shared/measure/units';
+import { firstNumberDecimals, isLengthQuantity, quantityFigureFor, readerUnitFor, type QuantityFigure } from '@shared/public/quantity-figures';
+import { specLimitTexts, specLimitTextsIn, type SpecLimitsInUnit, type SpecLimitTexts } from '@shared/public/spec-limits';
+import { isLengthUnit, maxExactDecimals, micrometresToPicometres, picometresPerUnit, type LengthUnit } from '@shared/measure/units';
 import type { BandUm } from './band';
 
 /** The coarse and the fine unit of each system: inches and thou, millimetres and micrometres. */
@@ -140,12 +142,12 @@ export function pictureProps(input: {
  */
 export function readingResolutionPm(reading: {
   kind: 'direct' | 'bracket' | 'repeated';
-  unit: LengthUnit;
+  unit: AnyUnit;
   value: string | null;
   values: string[] | null;
   engine?: { kind: string; unit: string; resolution?: number | string } | undefined;
 }): bigint | null {
-  if (reading.kind === 'bracket') return null;
+  if (reading.kind === 'bracket' || !isLengthUnit(reading.unit)) return null;
   const engine = reading.engine;
   if (engine && engine.kind !== 'bracket' && engine.resolution !== undefined && engine.unit === reading.unit) {
     const text = String(engine.resolution);
@@ -164,4 +166,148 @@ function stepOf(text: string, unit: LengthUnit, whole: boolean): bigint | null {
   const scale = picometresPerUnit[unit] / 10n ** BigInt(decimals);
   const pm = whole ? BigInt(`${match[1]}${match[2] ?? ''}`) * scale : scale;
   return pm > 0n ? pm : null;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Every quantity. Lengths keep the µm path above (in and thou, mm and µm, the reader's system);
+// any other quantity is shown from its figures in its own unit, converted to the reader's system
+// (shared/public/quantity-figures.ts): 35 lbf·ft ± 1.2 lbf·ft reads 47 N·m ± 1.6 N·m in metric.
+
+/** A published figure as a page shows it: a length by its µm figures, any other quantity in its unit. */
+export type ShownFigure =
+  | { quantity: 'length'; valueUm: number; expandedUm: number; resolutionPm?: bigint | null }
+  | { quantity: Exclude<QuantityKind, 'length'>; figure: QuantityFigure };
+
+/** What a published reading or result carries of its figures (older publications: lengths in µm only). */
+interface PublishedFigures {
+  quantity?: QuantityKind | undefined;
+  unit: AnyUnit;
+  valueUm: number | null;
+  expandedUncertaintyUm: number | null;
+  expandedUncertainty?: number | undefined;
+  display: string;
+}
+
+function otherFigure(f: PublishedFigures, value: number | undefined): ShownFigure | null {
+  if (!f.quantity || f.quantity === 'length') return null;
+  return {
+    quantity: f.quantity,
+    figure: { unit: f.unit, value: value ?? 0, expandedUncertainty: f.expandedUncertainty ?? 0, decimals: firstNumberDecimals(f.display) },
+  };
+}
+
+/** A published reading's figure: a length at its resolution, any other quantity at the places it was read to. */
+export function readingShown(reading: PublishedFigures & Parameters<typeof readingResolutionPm>[0] & { estimate?: number | undefined }): ShownFigure {
+  return (
+    otherFigure(reading, reading.estimate) ?? {
+      quantity: 'length',
+      valueUm: reading.valueUm ?? 0,
+      expandedUm: reading.expandedUncertaintyUm ?? 0,
+      resolutionPm: readingResolutionPm(reading),
+    }
+  );
+}
+
+/** A published result's figure ("clearance" in the API). */
+export function resultShown(result: PublishedFigures & { value?: number | undefined }): ShownFigure {
+  return otherFigure(result, result.value) ?? { quantity: 'length', valueUm: result.valueUm ?? 0, expandedUm: result.expandedUncertaintyUm ?? 0 };
+}
+
+/** A figure in the reader's system: `systemFigure` for a length, its own unit or the system's usual one for any other. */
+export function shownText(shown: ShownFigure, system: UnitSystem): SystemFigure {
+  if (shown.quantity === 'length') return systemFigure(shown.valueUm, shown.expandedUm, system, shown.resolutionPm);
+  const text = quantityFigureFor(shown.figure, system);
+  return { main: text.main, fine: null, value: text.value };
+}
+
+/** Whether a figure carries an uncertainty to show. */
+export function hasUncertainty(shown: ShownFigure): boolean {
+  return shown.quantity === 'length' ? shown.expandedUm > 0 : shown.figure.expandedUncertainty > 0;
+}
+
+/** The unit a figure of another quantity is shown in for `system`. */
+export function shownUnit(shown: Exclude<ShownFigure, { quantity: 'length' }>, system: UnitSystem): AnyUnit {
+  return readerUnitFor(shown.figure.unit, system);
+}
+
+/** A value of `from` in `to` (a temperature takes the offset; set `difference` for U or a span). */
+export function inUnit(value: number, from: AnyUnit, to: AnyUnit, difference = false): number {
+  return from === to ? value : convertNumber(value, from, to, { difference });
+}
+
+/**
+ * A spec's limits as words in the reader's system: a length's in its main unit (B.7.2 places),
+ * any other quantity's from its limits in the result's unit. Null without limits.
+ */
+export function limitTextsFor(
+  result: { quantity?: QuantityKind | undefined; unit: AnyUnit; band: BandUm | null; bandInUnit?: SpecLimitsInUnit | null | undefined },
+  system: UnitSystem,
+): SpecLimitTexts | null {
+  if (isLengthQuantity(result.quantity) && isLengthUnit(result.unit)) {
+    return result.band ? specLimitTexts(result.band, result.unit, systemDisplayUnits[system].main) : null;
+  }
+  return result.bandInUnit ? specLimitTextsIn(result.bandInUnit, result.unit, readerUnitFor(result.unit, system)) : null;
+}
+
+/** "N·m", "°", "" for a ratio: the symbol of a figure's unit, for scale captions. */
+export function unitSymbolOf(unit: AnyUnit): string {
+  return unitTable[unit].symbol;
+}
+
+/**
+ * The band picture of a result of another quantity, in the reader's unit: the limits as the
+ * engine judged them, the value, its coverage interval and the limits where the verdict changes
+ * (the guarded rule moves them in by the interval's halves, ISO 14253-1; the simple rule not at all).
+ */
+export function quantityPictureProps(input: {
+  unit: AnyUnit;
+  value: number;
+  interval: readonly [number, number];
+  expandedUncertainty: number;
+  coverageFactor: number;
+  coverageProbability: number;
+  band: SpecLimitsInUnit;
+  verdict: Verdict;
+  rule: DecisionRule;
+  /** Places the value was shown with as judged. */
+  decimals: number | null;
+  system: UnitSystem;
+}) {
+  const to = readerUnitFor(input.unit, input.system);
+  const at = (v: number | null) => (v === null ? undefined : inUnit(v, input.unit, to));
+  const value = inUnit(input.value, input.unit, to);
+  const low = inUnit(input.interval[0], input.unit, to);
+  const high = inUnit(input.interval[1], input.unit, to);
+  const min = at(input.band.min);
+  const max = at(input.band.max);
+  const below = input.rule === 'guarded' ? value - low : 0;
+  const above = input.rule === 'guarded' ? high - value : 0;
+  const asymmetric = Math.abs(value - low - (high - value)) > 1e-9 * Math.max(1, Math.abs(value), Math.abs(high - low));
+  const shown = quantityFigureFor({ unit: input.unit, value: input.value, expandedUncertainty: input.expandedUncertainty, decimals: input.decimals }, input.system);
+  const limitTexts = specLimitTextsIn(input.band, input.unit, to);
+  // The scale keeps the limits' places, and at most one more for the value.
+  const limitPlaces = Math.max(0, ...[limitTexts.band, limitTexts.preferred, limitTexts.reject].map((t) => (t ? (firstNumberDecimals(t) ?? 0) : 0)));
+  const valuePlaces = firstNumberDecimals(shown.value) ?? limitPlaces;
+  return {
+    unit: to,
+    decimals: Math.max(limitPlaces, Math.min(valuePlaces, limitPlaces + 1)),
+    band: {
+      ...(min !== undefined && { min }),
+      ...(max !== undefined && { max }),
+      ...(at(input.band.preferredMin) !== undefined && { preferredMin: at(input.band.preferredMin)! }),
+      ...(at(input.band.preferredMax) !== undefined && { preferredMax: at(input.band.preferredMax)! }),
+      ...(at(input.band.reject) !== undefined && { reject: at(input.band.reject)! }),
+    },
+    value,
+    interval: [low, high] as const,
+    asymmetric,
+    coverageFactor: input.coverageFactor,
+    coverageProbability: input.coverageProbability,
+    limits: {
+      ...(min !== undefined && { acceptMin: min + below, rejectBelow: min - above }),
+      ...(max !== undefined && { acceptMax: max - above, rejectAbove: max + below }),
+    },
+    verdict: input.verdict,
+    rule: input.rule,
+  };
 }

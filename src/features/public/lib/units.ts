@@ -1,7 +1,7 @@
 import { useQuery } from '@tanstack/react-query';
 import { useSyncExternalStore } from 'react';
 import { unitSystems, type UnitSystem } from '@shared/measure/format';
-import type { LengthUnit } from '@shared/measure/units';
+import type { AnyUnit } from '@shared/measure/quantities';
 import { authQueries } from '@/features/auth/api/auth-queries';
 import { defaultUnitsOf } from '@/features/auth/lib/default-units';
 import { followQueries } from '@/features/follows/api/follow-queries';
@@ -60,7 +60,7 @@ export interface UnitChoice {
  * then the account's pick, then the account's default units; until there is any, figures follow
  * the builder's unit (`entryUnit`), so an inch builder's story reads in inches.
  */
-export function useUnitSystem(entryUnit: LengthUnit | null): UnitChoice {
+export function useUnitSystem(entryUnit: AnyUnit | null): UnitChoice {
   const me = useQuery(authQueries.me());
   const signedIn = Boolean(me.data);
   const preferences = useQuery({ ...followQueries.preferences(), enabled: signedIn });

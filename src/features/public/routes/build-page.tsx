@@ -13,7 +13,8 @@ import { publicQueries } from '../api/public-queries';
 import { ShareMeta } from '../components/share-meta';
 import { UnitsSwitch } from '../components/units-switch';
 import { dateTimeAttr, dayText, instantDay } from '../lib/dates';
-import { systemFigure } from '../lib/figures';
+import { resultShown, shownText } from '../lib/figures';
+import { entryUnitOf } from '../lib/unit-choice';
 import { useUnitSystem } from '../lib/units';
 
 const BeforeAfterChart = lazy(() => import('../components/before-after-chart').then((m) => ({ default: m.BeforeAfterChart })));
@@ -40,8 +41,8 @@ export async function loader({ params }: LoaderFunctionArgs) {
 export function Component() {
   const buildId = buildIdFrom(useParams());
   const { data: build } = useSuspenseQuery(publicQueries.build(buildId));
-  const units = useUnitSystem(build.clearances[0]?.unit ?? null);
-  const changed = build.clearances.filter((c) => c.entries.length >= 2 && c.first.valueUm !== c.latest.valueUm);
+  const units = useUnitSystem(entryUnitOf(build.clearances.map((c) => c.unit)));
+  const changed = build.clearances.filter((c) => c.entries.length >= 2 && (c.first.valueUm !== c.latest.valueUm || c.first.value !== c.latest.value));
 
   return (
     <>
@@ -123,8 +124,7 @@ export function Component() {
                     id: `${e.storyId}:${e.revision}`,
                     label: e.storyTitle,
                     detail: e.workDate ? dayText(e.workDate) : undefined,
-                    valueUm: e.valueUm,
-                    expandedUm: e.expandedUncertaintyUm,
+                    shown: figureShown(c, e),
                     verdict: e.verdict,
                   }))}
                 />
@@ -171,6 +171,11 @@ function PartsList({ build }: { build: PublicBuild }) {
   );
 }
 
+/** One entry's figure of a summarised result: a length by its µm figures, any other quantity in the summary's unit. */
+function figureShown(c: PublicClearanceSummary, f: PublicClearanceFigure) {
+  return resultShown({ quantity: c.quantity, unit: c.unit, valueUm: f.valueUm, expandedUncertaintyUm: f.expandedUncertaintyUm, value: f.value, expandedUncertainty: f.expandedUncertainty, display: f.display });
+}
+
 /** "entry 2", linking to the entry, its title on hover and for screen readers. */
 function EntryRef({ figure, entries }: { figure: PublicClearanceFigure; entries: PublicBuild['entries'] }) {
   const number = entries.findIndex((e) => e.storyId === figure.storyId) + 1;
@@ -212,11 +217,11 @@ function ClearanceSummaryTable({
               {c.latest.spec && <span className="block text-xs font-normal text-ink-muted">{c.latest.spec.name} v{c.latest.spec.version}</span>}
             </th>
             <Td numeric className="whitespace-nowrap">
-              {systemFigure(c.first.valueUm, c.first.expandedUncertaintyUm, system).main}
+              {shownText(figureShown(c, c.first), system).main}
               <EntryRef figure={c.first} entries={entries} />
             </Td>
             <Td numeric className="whitespace-nowrap">
-              {systemFigure(c.latest.valueUm, c.latest.expandedUncertaintyUm, system).main}
+              {shownText(figureShown(c, c.latest), system).main}
               {c.entries.length > 1 ? <EntryRef figure={c.latest} entries={entries} /> : <span className="block font-sans text-2xs text-ink-muted">same entry</span>}
             </Td>
             <Td>

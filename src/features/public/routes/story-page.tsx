@@ -18,6 +18,7 @@ import { ShareMeta } from '../components/share-meta';
 import { UnitsSwitch } from '../components/units-switch';
 import { dateTimeAttr, dayText, instantDay } from '../lib/dates';
 import { useUnitSystem } from '../lib/units';
+import { entryUnitOf } from '../lib/unit-choice';
 import { checkedSummary, claimPath, findClaim, listWords } from '../lib/story-view';
 import '../components/public-story.css';
 
@@ -60,8 +61,8 @@ export function Component() {
   const headingRef = useRef<HTMLHeadingElement>(null);
   // The claim link the reader opened, so closing the panel puts focus back where they were.
   const openerRef = useRef<HTMLElement | null>(null);
-  const firstUnit = story.claims[0]?.clearance?.unit ?? story.claims[0]?.readings[0]?.unit ?? null;
-  const units = useUnitSystem(firstUnit);
+  // The builder's system, when the reader has chosen none: the first claim's figure in a unit of one system.
+  const units = useUnitSystem(entryUnitOf(story.claims.flatMap((c) => [c.clearance?.unit, c.readings[0]?.unit])));
   const claim = findClaim(story, claimKey);
   const open = claimKey !== undefined;
 

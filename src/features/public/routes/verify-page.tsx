@@ -155,16 +155,18 @@ function limitsLine(limits: SheetClearance['limits']): string | null {
 }
 
 function SheetFigures({ sheet }: { sheet: PartSheet }) {
+  // Clearances when every result is a gap; results when some are not (a torque, a compression ratio).
+  const noun = sheet.clearances.every((c) => (c.quantity ?? 'length') === 'length') ? 'clearance' : 'result';
   return (
     <div className="flex flex-col gap-8">
       <section aria-labelledby="figures-heading" className="flex flex-col gap-3">
         <h2 id="figures-heading" className="text-md font-semibold">
-          Checked clearances now
+          Checked {noun}s now
         </h2>
-        <Table caption="Checked clearances of the part, as published now" captionHidden maxHeight="none">
+        <Table caption={`Checked ${noun}s of the part, as published now`} captionHidden maxHeight="none">
           <THead>
             <Tr>
-              <Th>Clearance: value ± U, verdict, spec and readings</Th>
+              <Th>{noun === 'clearance' ? 'Clearance' : 'Result'}: value ± U, verdict, spec and readings</Th>
             </Tr>
           </THead>
           <TBody>

@@ -1,8 +1,8 @@
 import type { CalibrationState, Instrument } from '@shared/instruments/instrument.schema';
 import type { ReadingWarning, ReviewState } from '@shared/readings/reading.schema';
-import { unitSymbols } from '@shared/measure/units';
 import { Badge } from '@/components/ui/badge';
 import { cn } from '@/lib/cn';
+import { withReadingUnit } from '../lib/reading-text';
 
 const reviewWords: Record<ReviewState, string> = {
   unchecked: 'unchecked',
@@ -100,8 +100,8 @@ export function CalibrationBadge({ state }: { state: CalibrationState }) {
   );
 }
 
-/** "0–6 in depth micrometer · 0.0001 in" for a select option. */
+/** "0–6 in depth micrometer · 0.0001 in", "Click wrench · 1 lbf·ft" for a select option. */
 export function instrumentOptionText(instrument: Pick<Instrument, 'name' | 'serial' | 'unit' | 'resolution' | 'retired'>): string {
   const serial = instrument.serial ? ` (${instrument.serial})` : '';
-  return `${instrument.name}${serial} · ${instrument.resolution} ${unitSymbols[instrument.unit]}${instrument.retired ? ' · retired' : ''}`;
+  return `${instrument.name}${serial} · ${withReadingUnit(instrument.resolution, instrument.unit)}${instrument.retired ? ' · retired' : ''}`;
 }

@@ -2,7 +2,6 @@ import { useId, useState } from 'react';
 import { useQueryClient } from '@tanstack/react-query';
 import type { Build } from '@shared/builds/build.schema';
 import type { Instrument } from '@shared/instruments/instrument.schema';
-import { unitSymbols } from '@shared/measure/units';
 import { readingPatchSchema, type Reading, type ReadingPatch } from '@shared/readings/reading.schema';
 import { normaliseReadingFigures } from '@shared/readings/reading-figures';
 import { readingKindLabels } from '@shared/readings/reading-words';
@@ -12,7 +11,7 @@ import { useToast } from '@/components/ui/toast';
 import { ApiError, errorMessage } from '@/lib/api';
 import { EDIT_CONFLICT, useUpdateReading } from '../api/reading-mutations';
 import { readingQueries } from '../api/reading-queries';
-import { enteredFigures, splitValues } from '../lib/reading-text';
+import { enteredFigures, splitValues, withReadingUnit } from '../lib/reading-text';
 import { WarningIcon } from './reading-badges';
 
 interface Draft {
@@ -32,14 +31,14 @@ function typed(reading: Reading, field: string): string | null {
 
 /** The boxes start from what was typed (its unit included), so saving unchanged changes nothing. */
 function draftOf(reading: Reading): Draft {
-  const symbol = unitSymbols[reading.unit];
+  const inUnit = (text: string) => withReadingUnit(text, reading.unit);
   const entered = reading.entered.values;
   return {
     name: reading.name,
-    value: typed(reading, 'value') ?? (reading.value ? `${reading.value} ${symbol}` : ''),
-    passes: typed(reading, 'passes') ?? (reading.passes ? `${reading.passes} ${symbol}` : ''),
-    stops: typed(reading, 'stops') ?? (reading.stops ? `${reading.stops} ${symbol}` : ''),
-    values: Array.isArray(entered) ? entered.join('; ') : (reading.values ?? []).map((v) => `${v} ${symbol}`).join('; '),
+    value: typed(reading, 'value') ?? (reading.value ? inUnit(reading.value) : ''),
+    passes: typed(reading, 'passes') ?? (reading.passes ? inUnit(reading.passes) : ''),
+    stops: typed(reading, 'stops') ?? (reading.stops ? inUnit(reading.stops) : ''),
+    values: Array.isArray(entered) ? entered.join('; ') : (reading.values ?? []).map(inUnit).join('; '),
     partId: reading.partId === null ? '' : String(reading.partId),
     note: reading.note,
   };

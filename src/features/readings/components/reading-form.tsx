@@ -1,16 +1,18 @@
 import { useEffect, useId, useMemo, useRef, useState, type ReactNode } from 'react';
-import { useFieldArray, useForm, useWatch, type Path } from 'react-hook-form';
+import { useController, useFieldArray, useForm, useWatch, type Path } from 'react-hook-form';
 import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
 import { Link } from 'react-router-dom';
 import type { Build } from '@shared/builds/build.schema';
 import type { Clip, Moment } from '@shared/clips/clip.schema';
-import { calibrationDueOn, calibrationStateOn, zeroCheckedKinds, type Instrument, type InstrumentKind } from '@shared/instruments/instrument.schema';
+import { calibrationDueOn, calibrationStateOn, instrumentKindNames, zeroCheckedKinds, type Instrument, type InstrumentKind } from '@shared/instruments/instrument.schema';
 import { readingSchema as engineReadingSchema } from '@shared/measure/calc.schema';
 import { decimalsForStep, formatUncertaintyIn, formatValue } from '@shared/measure/format-quantity';
 import { engineInstrumentsMap } from '@shared/measure/instrument-map';
 import { evaluateReading } from '@shared/measure/readings';
+import { quantityOf, unitTable } from '@shared/measure/quantities';
+import { figureExamples } from '@shared/measure/quantity-text';
+import type { ReadingUnit } from '@shared/measure/record-units';
 import { materialExpansion, materialNames } from '@shared/measure/thermal';
-import { unitNames, unitSymbols } from '@shared/measure/units';
 import { keyFromName, MAX_ENTERED_REPEATS, suggestKey, type Reading, type ReadingKind } from '@shared/readings/reading.schema';
 import { normaliseReadingFigures, toEngineReading } from '@shared/readings/reading-figures';
 import { readingKindLabels } from '@shared/readings/reading-words';
@@ -25,6 +27,7 @@ import { nudgedAtMs } from '@/features/clips/components/moments-list';
 import { formatTime, frameDuration, frameIndexAt } from '@/features/clips/lib/clip-format';
 import { ApiError, errorMessage } from '@/lib/api';
 import { useDefaultUnits } from '@/features/auth/lib/use-default-units';
+import { UnitOptions } from '@/features/instruments/components/unit-options';
 import { usePlayerShortcuts } from '@/features/clips/lib/player-shortcuts';
 import { cn } from '@/lib/cn';
 import { useCreateReading } from '../api/reading-mutations';
@@ -34,15 +37,20 @@ import {
   defaultKindFor,
   figuresOf,
   formPathOf,
+  kindsFor,
   readClipChoices,
   readingFormResolver,
+  readsLength,
   startingChoices,
   temperatureOf,
   toReadingInput,
+  unitAfterChoosing,
   writeClipChoices,
   type ReadingFormValues,
 } from '../lib/reading-form';
+import { withReadingUnit } from '../lib/reading-text';
 import { CalibrationBadge, instrumentOptionText, WarningIcon } from './reading-badges';
+import { ReadingBudget } from './reading-budget';
 
 export interface ReadingFormProps {
   build: Build;
@@ -55,13 +63,23 @@ export interface ReadingFormProps {
   onClose: () => void;
 }
 
-const kindOrder: readonly ReadingKind[] = ['direct', 'bracket', 'repeated'];
+/** A kind of instrument in a sentence: "torque wrench or gauge", "burette" (the register's name without its aside). */
+function kindWords(kind: InstrumentKind): string {
+  return instrumentKindNames[kind].replace(/\s*\(.*\)$/, '').toLowerCase();
+}
 
 /** What each way of reading means with this kind of instrument: with feeler blades, one indication is a single blade. */
-function kindHint(kind: ReadingKind, instrumentKind: InstrumentKind | undefined): string {
-  if (kind === 'direct') return instrumentKind === 'feeler-blades' ? 'a single blade that enters with a light drag' : 'micrometer, depth micrometer, bore gauge';
+function kindHint(kind: ReadingKind, instrument: Instrument | undefined): string {
+  const instrumentKind: InstrumentKind | undefined = instrument?.kind;
+  if (kind === 'direct') {
+    if (instrumentKind === 'feeler-blades') return 'a single blade that enters with a light drag';
+    if (instrument && !readsLength(instrument)) {
+      return instrumentKind === 'other' ? 'the figure it shows' : `the figure the ${kindWords(instrument.kind)} shows`;
+    }
+    return 'micrometer, depth micrometer, bore gauge';
+  }
   if (kind === 'bracket') return 'the blade that enters and the one that does not';
-  return 'the same size read several times; the mean is used';
+  return `the same ${readsLength(instrument) ? 'size' : 'figure'} read several times; the mean is used`;
 }
 
 function secondsText(atMs: number): string {
@@ -306,6 +324,8 @@ interface ChosenByHand {
   instrument: boolean;
   part: boolean;
   name: boolean;
+  /** The unit of figures typed without one, when another of the instrument's quantity was picked. */
+  unit: boolean;
 }
 
 function ReadingFields({
@@ -353,15 +373,21 @@ function ReadingFields({
   const [momentMissing, setMomentMissing] = useState(false);
   // Until the builder picks a way of reading, it follows the instrument.
   const [kindByHand, setKindByHand] = useState(false);
-  const byHand = useRef<ChosenByHand>({ instrument: false, part: false, name: false });
+  const byHand = useRef<ChosenByHand>({ instrument: false, part: false, name: false, unit: false });
   const nameInput = useRef<HTMLInputElement | null>(null);
   const kindLegendId = useId();
   const kindHintId = useId();
 
-  /** The instrument, and the way of reading it gives unless one was picked by hand. */
+  /**
+   * The instrument, the way of reading it gives unless one was picked by hand (never a feeler
+   * bracket for an instrument that does not read lengths), and its unit unless another of its
+   * quantity was picked by hand.
+   */
   function chooseInstrument(idText: string) {
+    const chosen = instruments.find((i) => String(i.id) === idText);
     setValue('instrumentId', idText);
-    if (!kindByHand) setValue('kind', defaultKindFor(instruments.find((i) => String(i.id) === idText)));
+    if (!kindByHand || !kindsFor(chosen).includes(getValues('kind'))) setValue('kind', defaultKindFor(chosen));
+    setValue('unit', unitAfterChoosing(chosen, getValues('unit'), byHand.current.unit));
   }
 
   // Opened before the build's readings were loaded: take the clip's last choices once they are.
@@ -422,6 +448,19 @@ function ReadingFields({
     },
   });
   const kindField = register('kind', { onChange: () => setKindByHand(true) });
+  // Controlled: its options change with the instrument, and the unit set for it must land on them.
+  const unitControl = useController({ control, name: 'unit' }).field;
+  const unitField = {
+    name: unitControl.name,
+    ref: unitControl.ref,
+    value: unitControl.value,
+    onBlur: unitControl.onBlur,
+    onChange: (event: { target: { value: string } }) => {
+      byHand.current.unit = true;
+      unitControl.onChange(event.target.value);
+    },
+  };
+  const length = readsLength(instrument);
   const typedName = watched.name?.trim() ?? '';
 
   return (
@@ -506,7 +545,7 @@ function ReadingFields({
             : `Follows the instrument: ${instrument ? (instrument.kind === 'feeler-blades' ? 'feeler blades give a bracket' : 'it shows one indication') : 'choose one'}. Pick another if you read it otherwise.`}
         </p>
         <div className="flex flex-col gap-1">
-          {kindOrder.map((kind) => (
+          {kindsFor(instrument).map((kind) => (
             <label
               key={kind}
               className={cn(
@@ -517,30 +556,33 @@ function ReadingFields({
               <input type="radio" value={kind} {...kindField} className="translate-y-0.5 accent-(--color-ink)" />
               <span>
                 <span className="font-medium">{readingKindLabels[kind]}</span>
-                <span className="text-xs text-ink-muted"> · {kindHint(kind, instrument?.kind)}</span>
+                <span className="text-xs text-ink-muted"> · {kindHint(kind, instrument)}</span>
               </span>
             </label>
           ))}
         </div>
       </fieldset>
 
-      <FigureFields form={form} repeats={repeats} instrument={instrument} values={watched} />
+      <FigureFields form={form} repeats={repeats} instrument={instrument} values={watched} unitField={unitField} />
 
-      <div className="grid grid-cols-2 gap-2">
-        <Field label={`Temperature, ${watched.temperatureScale === 'degF' ? '°F' : '°C'}`} error={errors.temperatureC?.message} hint="Of the part; optional. Corrected to 20 °C with the material.">
-          <Input {...register('temperatureC')} inputMode="decimal" className="figures h-8! text-sm" />
-        </Field>
-        <Field label="Material" error={errors.material?.message} hint="To correct to 20 °C.">
-          <Select {...register('material')} size="sm">
-            <option value="">None</option>
-            {materialNames.map((m) => (
-              <option key={m} value={m}>
-                {materialExpansion[m].label}
-              </option>
-            ))}
-          </Select>
-        </Field>
-      </div>
+      {/* The part's temperature corrects a length to 20 °C; a torque, a volume or a pressure has no such correction here. */}
+      {length && (
+        <div className="grid grid-cols-2 gap-2">
+          <Field label={`Temperature, ${watched.temperatureScale === 'degF' ? '°F' : '°C'}`} error={errors.temperatureC?.message} hint="Of the part; optional. Corrected to 20 °C with the material.">
+            <Input {...register('temperatureC')} inputMode="decimal" className="figures h-8! text-sm" />
+          </Field>
+          <Field label="Material" error={errors.material?.message} hint="To correct to 20 °C.">
+            <Select {...register('material')} size="sm">
+              <option value="">None</option>
+              {materialNames.map((m) => (
+                <option key={m} value={m}>
+                  {materialExpansion[m].label}
+                </option>
+              ))}
+            </Select>
+          </Field>
+        </div>
+      )}
 
       <Field label="Taken on" error={errors.takenOn?.message} hint="Calibration and zero checks are judged on this day.">
         <Input type="date" {...register('takenOn')} className="figures h-8! text-sm" />
@@ -585,15 +627,15 @@ function InstrumentState({ instrument, takenOn }: { instrument: Instrument; take
   const day = /^\d{4}-\d{2}-\d{2}$/.test(takenOn) ? takenOn : null;
   const state = day ? calibrationStateOn(instrument, day) : instrument.calibrationState;
   const due = calibrationDueOn(instrument.lastCalibratedOn, instrument.calibrationIntervalDays);
-  const symbol = unitSymbols[instrument.unit];
+  const unit = instrument.unit;
   const needsZero = zeroCheckedKinds.has(instrument.kind);
   const zeroToday = instrument.latestZeroCheck && instrument.latestZeroCheck.checkedOn === day ? instrument.latestZeroCheck : null;
   return (
     <div className="-mt-1 flex flex-col gap-1 text-xs" data-instrument-state="">
       <p className="flex flex-wrap items-center gap-x-2 gap-y-1 text-ink-muted">
         <span className="figures">
-          reads in {symbol}, resolution {instrument.resolution} {symbol}
-          {instrument.statedUncertainty ? `, stated u ${instrument.statedUncertainty} ${symbol}` : ''}
+          reads in {quantityOf(unit) === 'length' ? unitTable[unit].symbol : unitTable[unit].name}, resolution {withReadingUnit(instrument.resolution, unit)}
+          {instrument.statedUncertainty ? `, stated u ${withReadingUnit(instrument.statedUncertainty, unit)}` : ''}
         </span>
         <CalibrationBadge state={state} />
       </p>
@@ -624,7 +666,7 @@ function InstrumentState({ instrument, takenOn }: { instrument: Instrument; take
       )}
       {needsZero && zeroToday && (
         <p className="figures text-ink-muted">
-          Zero check that day: offset {zeroToday.offset} {unitSymbols[zeroToday.unit]}, subtracted from this reading.
+          Zero check that day: offset {withReadingUnit(zeroToday.offset, zeroToday.unit)}, subtracted from this reading.
         </p>
       )}
     </div>
@@ -637,23 +679,41 @@ function FigureFields({
   repeats,
   instrument,
   values,
+  unitField,
 }: {
   form: ReturnType<typeof useForm<ReadingFormValues>>;
   repeats: ReturnType<typeof useFieldArray<ReadingFormValues, 'values'>>;
   instrument: Instrument | undefined;
   values: ReadingFormValues;
+  unitField: { name: string; ref: (element: HTMLSelectElement | null) => void; value: string; onBlur: () => void; onChange: (event: { target: { value: string } }) => void };
 }) {
   const { register, formState } = form;
   const errors = formState.errors;
-  const unitHint = instrument ? `in ${unitNames[instrument.unit]} unless you type a unit` : 'with its unit';
+  const unit: ReadingUnit | undefined = values.unit || instrument?.unit;
+  const quantity = unit ? quantityOf(unit) : 'length';
+  const unitHint = unit ? `in ${unitTable[unit].name} unless you type a unit` : 'with its unit';
+  // Lengths keep the examples they always had; other quantities show theirs ("64.2 cc, 64.2 ml or 3.92 cu in").
+  const examples = quantity === 'length' ? '0.5642, 0.5642 in, 564.2 thou' : figureExamples[quantity];
+  const placeholder = `e.g. ${figureExamples[quantity]}`;
   const readBack = useMemo(() => readBackOf(values, instrument), [values, instrument]);
   const fieldHasError = Boolean(errors.value || errors.passes || errors.stops || errors.values);
 
   return (
     <div className="flex flex-col gap-2">
+      {instrument && (
+        <Field
+          label="Unit"
+          error={errors.unit?.message}
+          hint={`For figures typed without one; ${instrument.kind === 'other' ? 'this instrument' : `the ${kindWords(instrument.kind)}`} reads ${quantityOf(instrument.unit)}.`}
+        >
+          <Select {...unitField} size="sm">
+            <UnitOptions quantity={quantityOf(instrument.unit)} extra={values.unit || undefined} />
+          </Select>
+        </Field>
+      )}
       {values.kind === 'direct' && (
-        <Field label="Value as shown" required error={errors.value?.message} hint={`As the instrument shows it, ${unitHint}: 0.5642, 0.5642 in, 564.2 thou.`}>
-          <Input {...register('value')} autoComplete="off" inputMode="decimal" className="figures h-8! text-sm" />
+        <Field label="Value as shown" required error={errors.value?.message} hint={`As the instrument shows it, ${unitHint}: ${examples}.`}>
+          <Input {...register('value')} autoComplete="off" inputMode="decimal" placeholder={placeholder} className="figures h-8! text-sm" />
         </Field>
       )}
       {values.kind === 'bracket' && (
@@ -709,6 +769,7 @@ function FigureFields({
           <span>{readBack.text}</span>
         </p>
       )}
+      {readBack?.budget && <ReadingBudget {...readBack.budget} />}
     </div>
   );
 }
@@ -717,20 +778,23 @@ function FigureFields({
  * What the typed figures read as, by `normaliseReadingFigures` (the server's check), and the
  * engine's estimate with its standard uncertainty; or the first reason they do not read.
  */
-function readBackOf(values: ReadingFormValues, instrument: Instrument | undefined): { ok: boolean; text: string } | null {
+function readBackOf(
+  values: ReadingFormValues,
+  instrument: Instrument | undefined,
+): { ok: boolean; text: string; budget?: Parameters<typeof ReadingBudget>[0] } | null {
   const figures = figuresOf(values);
   const typed = 'value' in figures ? figures.value : 'passes' in figures ? `${figures.passes}${figures.stops}` : figures.values.join('');
   if (!instrument || !typed?.trim()) return null;
   const normal = normaliseReadingFigures(figures, instrument);
-  if (!normal.ok) return { ok: false, text: normal.problems[0]?.message ?? 'These figures do not read as lengths.' };
+  if (!normal.ok) return { ok: false, text: normal.problems[0]?.message ?? 'These figures do not read as figures of what the instrument measures.' };
   const f = normal.figures;
-  const symbol = unitSymbols[f.unit];
+  const inUnit = (text: string | null) => withReadingUnit(text ?? '', f.unit);
   const shown =
     values.kind === 'direct'
-      ? `reads as ${f.value} ${symbol}`
+      ? `reads as ${inUnit(f.value)}`
       : values.kind === 'bracket'
-        ? `reads as ${f.passes} ${symbol} enters, ${f.stops} ${symbol} does not`
-        : `reads as ${f.values?.length ?? 0} values in ${symbol}: ${(f.values ?? []).join(', ')}`;
+        ? `reads as ${inUnit(f.passes)} enters, ${inUnit(f.stops)} does not`
+        : `reads as ${f.values?.length ?? 0} values in ${unitTable[f.unit].symbol}: ${(f.values ?? []).join(', ')}`;
   const zero = instrument.latestZeroCheck && instrument.latestZeroCheck.checkedOn === values.takenOn ? instrument.latestZeroCheck : null;
   const celsius = temperatureOf(values.temperatureC, values.temperatureScale);
   const temperature = typeof celsius === 'number' ? celsius : null;
@@ -744,13 +808,10 @@ function readBackOf(values: ReadingFormValues, instrument: Instrument | undefine
   const key = keyFromName(values.name || 'reading');
   const evaluated = evaluateReading(key, checked.data, engineInstrumentsMap([built.instrument]));
   const estimate = formatValue(evaluated.estimate, evaluated.unit, decimalsForStep(evaluated.displayStep));
-  // What u is made of, largest first: the same components the clearance's budget will list.
-  const parts = evaluated.components
-    .map((c) => ({ source: c.source.replace(`${key}: `, ''), size: c.standardUncertainty * Math.abs(c.effects[0]?.effect ?? 0) }))
-    .sort((a, b) => b.size - a.size)
-    .map((c) => c.source);
+  // What u is made of is the table under this line: the same components a result's budget will list.
   return {
     ok: true,
-    text: `${shown}; estimate ${estimate}, u = ${formatUncertaintyIn(evaluated.standardUncertainty, evaluated.unit)}${parts.length ? ` (from ${parts.join('; ')})` : ''}`,
+    text: `${shown}; estimate ${estimate}, u = ${formatUncertaintyIn(evaluated.standardUncertainty, evaluated.unit)}`,
+    budget: { evaluated, instrumentNames: built.instrument ? { [built.instrument.name]: instrument.name } : {} },
   };
 }

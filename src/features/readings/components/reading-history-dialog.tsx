@@ -1,10 +1,12 @@
 import { useQuery } from '@tanstack/react-query';
+import { isAnyUnit } from '@shared/measure/quantities';
 import type { Reading } from '@shared/readings/reading.schema';
 import { Button } from '@/components/ui/button';
 import { Dialog, DialogClose, DialogContent } from '@/components/ui/dialog';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
+import { unitChoiceLabel } from '@/features/instruments/lib/unit-choices';
 import { readingQueries } from '../api/reading-queries';
-import { enteredFigures } from '../lib/reading-text';
+import { enteredFigures, withReadingUnit } from '../lib/reading-text';
 
 /** Fields of a stored snapshot worth showing first, in this order, with their labels. */
 const mainFields: [string, string][] = [
@@ -26,6 +28,21 @@ function show(value: unknown): string {
   if (Array.isArray(value)) return value.map(show).join(', ');
   if (typeof value === 'object') return JSON.stringify(value);
   return String(value);
+}
+
+/** The figure fields of a snapshot, shown with the snapshot's own unit after them ("64.2 cc"). */
+const figureFields: ReadonlySet<string> = new Set(['value', 'passes', 'stops', 'values']);
+
+/** A stored field as a reader says it: figures with their unit, the unit by name ("inches", "pound-force feet (lbf·ft)"). */
+function showField(field: string, snapshot: Record<string, unknown>): string {
+  const value = snapshot[field];
+  const unit = snapshot.unit;
+  if (field === 'unit' && isAnyUnit(value)) return unitChoiceLabel(value);
+  if (figureFields.has(field) && isAnyUnit(unit) && unit !== '1') {
+    if (typeof value === 'string' && value !== '') return withReadingUnit(value, unit);
+    if (Array.isArray(value)) return value.map((v) => (typeof v === 'string' ? withReadingUnit(v, unit) : show(v))).join(', ');
+  }
+  return show(value);
 }
 
 function when(iso: string): string {
@@ -87,7 +104,7 @@ function HistoryList({ reading }: { reading: Reading }) {
                 .map(([f, label]) => (
                   <div key={f} className="contents">
                     <dt className="text-ink-muted">{label}</dt>
-                    <dd className="break-words">{f === 'partId' ? partName(rev.snapshot[f]) : show(rev.snapshot[f])}</dd>
+                    <dd className="break-words">{f === 'partId' ? partName(rev.snapshot[f]) : showField(f, rev.snapshot)}</dd>
                   </div>
                 ))}
             </dl>

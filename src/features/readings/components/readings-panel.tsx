@@ -9,11 +9,11 @@ import {
   useReactTable,
   type ColumnFiltersState,
   type FilterFn,
+  type SortingFn,
   type SortingState,
 } from '@tanstack/react-table';
 import type { Build } from '@shared/builds/build.schema';
 import type { BuildFlag } from '@shared/review/review.schema';
-import { formatUncertainty } from '@shared/measure/format';
 import { reviewStates, type Reading, type ReviewState } from '@shared/readings/reading.schema';
 import { Button } from '@/components/ui/button';
 import { DeleteDialog } from '@/components/ui/dialog';
@@ -31,7 +31,7 @@ import { errorMessage } from '@/lib/api';
 import { cn } from '@/lib/cn';
 import { useDeleteReading } from '../api/reading-mutations';
 import { readingInstrumentsQuery, readingQueries, readingsCsvUrl } from '../api/reading-queries';
-import { enteredFigures, estimateText, readingKindWords } from '../lib/reading-text';
+import { enteredFigures, estimateSortKey, estimateText, readingKindWords, uncertaintyText } from '../lib/reading-text';
 import { useNarrowScreen } from '../lib/use-narrow';
 import { ReadingEditor } from './reading-editor';
 import { ReadingHistoryDialog } from './reading-history-dialog';
@@ -53,6 +53,15 @@ const idEquals =
 
 const column = createColumnHelper<Reading>();
 
+/** Estimates sort by quantity, then by size in a common unit (`estimateSortKey`); unknown sizes last. */
+const byEstimate: SortingFn<Reading> = (a, b) => {
+  const [qa, va] = estimateSortKey(a.original);
+  const [qb, vb] = estimateSortKey(b.original);
+  if (qa !== qb) return qa - qb;
+  if (Number.isNaN(va) || Number.isNaN(vb)) return Number(Number.isNaN(va)) - Number(Number.isNaN(vb));
+  return va === vb ? 0 : va < vb ? -1 : 1;
+};
+
 const columns = [
   column.accessor('name', {
     id: 'name',
@@ -65,9 +74,10 @@ const columns = [
       </>
     ),
   }),
-  column.accessor((r) => r.result.valueUm, {
+  column.accessor((r) => r.result.value ?? r.result.valueUm, {
     id: 'entered',
     header: 'Value as entered',
+    sortingFn: byEstimate,
     cell: ({ row }) =>
       // A bracket's two blades on two lines, so the column stays narrow.
       enteredFigures(row.original)
@@ -78,13 +88,14 @@ const columns = [
           </span>
         )),
   }),
-  column.accessor((r) => r.result.valueUm, {
+  column.accessor((r) => r.result.value ?? r.result.valueUm, {
     id: 'estimate',
     header: 'Estimate ± u',
+    sortingFn: byEstimate,
     cell: ({ row }) => (
       <>
         <span className="figures block whitespace-nowrap">{row.original.result.display}</span>
-        <span className="figures block whitespace-nowrap text-xs text-ink-muted">± {formatUncertainty(row.original.result.standardUncertaintyUm, row.original.unit)}</span>
+        <span className="figures block whitespace-nowrap text-xs text-ink-muted">± {uncertaintyText(row.original)}</span>
       </>
     ),
   }),
@@ -520,7 +531,7 @@ function ReadingCard({
         {menu}
       </div>
       <p className="figures text-base">
-        {reading.result.display} <span className="text-xs text-ink-muted">± {formatUncertainty(reading.result.standardUncertaintyUm, reading.unit)} (u)</span>
+        {reading.result.display} <span className="text-xs text-ink-muted">± {uncertaintyText(reading)} (u)</span>
       </p>
       <p className="figures text-xs text-ink-muted">as entered: {enteredFigures(reading)}</p>
       <div className="flex flex-wrap items-start gap-2">

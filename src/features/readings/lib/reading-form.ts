@@ -2,7 +2,8 @@ import type { FieldErrors, Resolver } from 'react-hook-form';
 import type { Instrument } from '@shared/instruments/instrument.schema';
 import { readingInputSchema, type Reading, type ReadingInput, type ReadingKind } from '@shared/readings/reading.schema';
 import { TEMPERATURE_RANGE_C } from '@shared/measure/calc.schema';
-import type { TemperatureScale } from '@shared/measure/quantities';
+import { quantityOf, type TemperatureScale } from '@shared/measure/quantities';
+import type { ReadingUnit } from '@shared/measure/record-units';
 import { normaliseReadingFigures } from '@shared/readings/reading-figures';
 
 /** The reading form as typed: every length is text, so "0.5640" keeps its places. */
@@ -13,11 +14,16 @@ export interface ReadingFormValues {
   /** Part id; '' = not tied to a part. */
   partId: string;
   kind: ReadingKind;
+  /**
+   * The unit of figures typed without one: the instrument's until the builder picks another of
+   * its quantity (thou on an inch micrometer, lbf·in on a lbf·ft wrench); '' = no instrument yet.
+   */
+  unit: ReadingUnit | '';
   value: string;
   passes: string;
   stops: string;
   values: { text: string }[];
-  /** The part's temperature as typed, in `temperatureScale`; sent in °C. */
+  /** The part's temperature as typed, in `temperatureScale`; sent in °C. Lengths only. */
   temperatureC: string;
   /** The scale the temperature box is in: the account's choice (°F in an inch shop). */
   temperatureScale: TemperatureScale;
@@ -38,6 +44,26 @@ export function localToday(now: Date = new Date()): string {
  */
 export function defaultKindFor(instrument: Pick<Instrument, 'kind'> | undefined): ReadingKind {
   return instrument?.kind === 'feeler-blades' ? 'bracket' : 'direct';
+}
+
+/** Whether an instrument reads lengths (no instrument yet counts as one: the form starts as it always has). */
+export function readsLength(instrument: Pick<Instrument, 'unit'> | undefined): boolean {
+  return instrument === undefined || quantityOf(instrument.unit) === 'length';
+}
+
+/** The ways of reading an instrument offers: a feeler bracket only for one that reads lengths. */
+export function kindsFor(instrument: Pick<Instrument, 'unit'> | undefined): readonly ReadingKind[] {
+  return readsLength(instrument) ? ['direct', 'bracket', 'repeated'] : ['direct', 'repeated'];
+}
+
+/**
+ * The unit the form shows after choosing `instrument`: the one already chosen when it is of the
+ * instrument's quantity and was picked by hand, else the instrument's own.
+ */
+export function unitAfterChoosing(instrument: Pick<Instrument, 'unit'> | undefined, current: ReadingUnit | '', pickedByHand: boolean): ReadingUnit | '' {
+  if (!instrument) return current;
+  if (pickedByHand && current !== '' && quantityOf(current) === quantityOf(instrument.unit)) return current;
+  return instrument.unit;
 }
 
 /** The instrument and part last used for a reading on one clip, as this browser keeps them. */
@@ -101,6 +127,7 @@ export function blankReadingForm(instrument: Instrument | undefined, partId: num
     instrumentId: instrument ? String(instrument.id) : '',
     partId: partId === null ? '' : String(partId),
     kind: defaultKindFor(instrument),
+    unit: instrument ? instrument.unit : '',
     value: '',
     passes: '',
     stops: '',
@@ -113,11 +140,12 @@ export function blankReadingForm(instrument: Instrument | undefined, partId: num
   };
 }
 
-/** The figures the chosen kind uses, as the API and `normaliseReadingFigures` take them. */
-export function figuresOf(values: Pick<ReadingFormValues, 'kind' | 'value' | 'passes' | 'stops' | 'values'>) {
-  if (values.kind === 'direct') return { kind: values.kind, value: values.value } as const;
-  if (values.kind === 'bracket') return { kind: values.kind, passes: values.passes, stops: values.stops } as const;
-  return { kind: values.kind, values: values.values.map((v) => v.text).filter((t) => t.trim() !== '') } as const;
+/** The figures the chosen kind uses, with their unit, as the API and `normaliseReadingFigures` take them. */
+export function figuresOf(values: Pick<ReadingFormValues, 'kind' | 'value' | 'passes' | 'stops' | 'values'> & { unit?: ReadingUnit | '' }) {
+  const unit = values.unit ? { unit: values.unit } : {};
+  if (values.kind === 'direct') return { kind: values.kind, ...unit, value: values.value } as const;
+  if (values.kind === 'bracket') return { kind: values.kind, ...unit, passes: values.passes, stops: values.stops } as const;
+  return { kind: values.kind, ...unit, values: values.values.map((v) => v.text).filter((t) => t.trim() !== '') } as const;
 }
 
 /** A temperature box: '' = none; anything else must be a number (else it is sent as text and refused by name). */
@@ -140,8 +168,13 @@ function temperatureRangeText(scale: TemperatureScale): string {
   return `${f(TEMPERATURE_RANGE_C.min)} to ${f(TEMPERATURE_RANGE_C.max)} °F`;
 }
 
-/** The body of POST /api/builds/:buildId/readings for what was typed at `momentId`. */
+/**
+ * The body of POST /api/builds/:buildId/readings for what was typed at `momentId`. The part's
+ * temperature and material go with lengths only (the form hides them for other quantities, so
+ * whatever they held is not sent).
+ */
 export function toReadingInput(values: ReadingFormValues, momentId: number): ReadingInput {
+  const length = values.unit === '' || quantityOf(values.unit) === 'length';
   return {
     momentId,
     instrumentId: Number(values.instrumentId),
@@ -149,8 +182,8 @@ export function toReadingInput(values: ReadingFormValues, momentId: number): Rea
     name: values.name,
     ...figuresOf(values),
     // A non-number is passed through so the schema names the field; the type only admits numbers.
-    temperatureC: temperatureOf(values.temperatureC, values.temperatureScale) as number | null,
-    material: values.material || null,
+    temperatureC: length ? (temperatureOf(values.temperatureC, values.temperatureScale) as number | null) : null,
+    material: length ? values.material || null : null,
     note: values.note,
     takenOn: values.takenOn,
   };

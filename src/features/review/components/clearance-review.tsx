@@ -1,7 +1,7 @@
 import type { EvidenceCheckDto } from '@shared/review/review.schema';
 import type { ReviewSheet } from '@shared/review/review-sheet.schema';
 import { ClearanceResultView, specSourceWords } from '@/features/clearances/components/clearance-result-view';
-import { expressionOf, specLine } from '@/features/clearances/lib/clearance-view';
+import { formulaLegend, modelText, specLine } from '@/features/clearances/lib/clearance-view';
 import { WarningIcon } from '@/features/readings/components/reading-badges';
 import { CitedChecksAndJudge } from './citing-sentences';
 import { EvidenceStateBadge } from './evidence-state-badge';
@@ -12,8 +12,9 @@ import { Fact } from './reading-review';
 type SheetClearance = ReviewSheet['clearances'][number];
 
 /**
- * One clearance laid out for checking: for a story published before, what differs from the
- * published judgement (first, so it is not missed); the readings it sums (each with where it
+ * One result laid out for checking: for a story published before, what differs from the
+ * published judgement (first, so it is not missed); how it is worked out (a signed sum, or a
+ * formula with what each of its names stands for); the readings it uses (each with where it
  * stands in this review), the spec and its source, the worked-out figure with how its interval
  * was found, its verdict and band picture, its uncertainty budget, and the sentences that cite it.
  */
@@ -35,6 +36,8 @@ export function ClearanceReview({
 }) {
   const { clearance, citedIn, check, asPublished, change } = item;
   const summed = clearance.terms.map((t) => ({ term: t, entry: readings.find((r) => r.reading.id === t.readingId) }));
+  const isFormula = clearance.formula !== null;
+  const constants = formulaLegend(clearance).filter((l) => !l.reading);
   return (
     <div className="flex flex-col gap-4" data-review-subject={`clearance:${clearance.key}`}>
       <header className="flex flex-wrap items-center gap-x-3 gap-y-1">
@@ -50,15 +53,21 @@ export function ClearanceReview({
 
       <dl className="grid grid-cols-[max-content_minmax(0,1fr)] gap-x-4 gap-y-1 text-sm">
         <Fact term="Worked out as">
-          <span className="figures">{expressionOf(clearance.terms)}</span>
+          <span className="figures break-words" data-model="">
+            {modelText(clearance)}
+          </span>
         </Fact>
-        <Fact term="Readings summed">
+        <Fact term={isFormula ? 'Readings, by name' : 'Readings summed'}>
           <ul className="flex flex-col gap-1">
             {summed.map(({ term, entry }) => (
               <li key={term.readingId} className="flex flex-wrap items-center gap-2">
-                <span className="figures w-3 text-center" aria-label={term.sign === 1 ? 'plus' : 'minus'}>
-                  {term.sign === 1 ? '+' : '−'}
-                </span>
+                {isFormula ? (
+                  <span className="figures text-ink-muted">{term.symbol ?? term.readingKey} =</span>
+                ) : (
+                  <span className="figures w-3 text-center" aria-label={term.sign === 1 ? 'plus' : 'minus'}>
+                    {term.sign === 1 ? '+' : '−'}
+                  </span>
+                )}
                 {entry ? (
                   <button type="button" className="text-left text-accent underline underline-offset-2" onClick={() => onOpenReading(term.readingId)}>
                     {term.readingName}
@@ -72,6 +81,17 @@ export function ClearanceReview({
             ))}
           </ul>
         </Fact>
+        {constants.length > 0 && (
+          <Fact term="Constants">
+            <ul className="flex flex-col gap-0.5">
+              {constants.map((c) => (
+                <li key={c.name} className="figures">
+                  <span className="text-ink-muted">{c.name} =</span> {c.meaning}
+                </li>
+              ))}
+            </ul>
+          </Fact>
+        )}
         <Fact term="Spec">
           {clearance.spec ? (
             <span className="flex flex-col gap-0.5">

@@ -1,10 +1,11 @@
 import type { ReactNode } from 'react';
 import type { EvidenceCheckDto } from '@shared/review/review.schema';
 import type { ReviewSheet } from '@shared/review/review-sheet.schema';
-import { unitLabel, unitSymbols } from '@shared/measure/units';
+import { unitTable, type AnyUnit } from '@shared/measure/quantities';
+import { isLengthUnit, unitLabel } from '@shared/measure/units';
 import { CalibrationBadge } from '@/features/instruments/components/calibration-badge';
 import { ReadingWarnings, WarningIcon } from '@/features/readings/components/reading-badges';
-import { enteredFigures, estimateText, readingKindWords } from '@/features/readings/lib/reading-text';
+import { enteredFigures, estimateText, readingKindWords, withReadingUnit } from '@/features/readings/lib/reading-text';
 import { formatTime } from '@/features/clips/lib/clip-format';
 import { calibrationFromWarnings } from '../lib/review-format';
 import { CitedChecksAndJudge } from './citing-sentences';
@@ -13,6 +14,13 @@ import type { JudgeProps } from './judge-bar';
 import { MomentVideo } from './moment-video';
 
 type SheetReading = ReviewSheet['readings'][number];
+
+/** A unit in words: "inches (in)" for a length as before, "cubic centimetre (cc)", "degree (°)" for the others. */
+function unitWords(unit: AnyUnit): string {
+  if (isLengthUnit(unit)) return unitLabel(unit);
+  const { name, symbol } = unitTable[unit];
+  return symbol && !name.includes(`(${symbol})`) ? `${name} (${symbol})` : name;
+}
 
 /** One row of a compact fact list. */
 export function Fact({ term, children }: { term: string; children: ReactNode }) {
@@ -79,7 +87,7 @@ export function ReadingReview({
         </Fact>
         <Fact term="Kind">{readingKindWords[reading.kind]}</Fact>
         <Fact term="Unit">
-          {unitLabel(reading.unit)}
+          {unitWords(reading.unit)}
         </Fact>
         <Fact term="Instrument">
           <span className="inline-flex flex-wrap items-center gap-2">
@@ -90,7 +98,7 @@ export function ReadingReview({
         <Fact term="Zero check">
           {reading.zeroCheck ? (
             <span>
-              offset <span className="figures">{reading.zeroCheck.offset} {unitSymbols[reading.zeroCheck.unit]}</span> applied, from that day’s zero check
+              offset <span className="figures">{withReadingUnit(reading.zeroCheck.offset, reading.zeroCheck.unit)}</span> applied, from that day’s zero check
             </span>
           ) : zeroMissing ? (
             <span className="inline-flex items-start gap-1 text-verdict-undecided">
@@ -125,10 +133,10 @@ export function ReadingReview({
 
       <section aria-labelledby={`${headingId}-used`} className="flex flex-col gap-1">
         <h3 id={`${headingId}-used`} className="text-sm font-semibold">
-          Clearances that use it
+          Results that use it
         </h3>
         {usedBy.length === 0 ? (
-          <p className="text-sm text-ink-muted">None of the story’s clearances sums it.</p>
+          <p className="text-sm text-ink-muted">None of the story’s results uses it.</p>
         ) : (
           <ul className="flex flex-col gap-0.5 text-sm">
             {usedBy.map((c) => (

@@ -1,13 +1,14 @@
 import { useFormContext, useWatch } from 'react-hook-form';
 import { specSourceKinds } from '@shared/measure/spec.schema';
-import { lengthTextIn } from '@shared/measure/length-text';
-import { lengthUnits, unitNames, unitSymbols } from '@shared/measure/units';
-import { specVersionInputSchema } from '@shared/specs/spec-library.schema';
+import { quantityOf, unitTable } from '@shared/measure/quantities';
+import { figureTextIn } from '@shared/measure/quantity-text';
+import { normaliseSpecFigures, specVersionInputSchema } from '@shared/specs/spec-library.schema';
 import { BandPicture } from '@/features/calc/components/band-picture';
-import { LengthInput } from '@/features/instruments/components/length-input';
+import { FigureInput } from '@/features/instruments/components/figure-input';
+import { UnitOptions } from '@/features/instruments/components/unit-options';
 import { Field, Input, Select, Textarea } from '@/components/ui/field';
 import { figuresBody, type SpecFiguresValues } from '../lib/spec-form';
-import { bandOf, specSourceKindNames } from '../lib/spec-format';
+import { bandOf, bandSummary, isLengthVersion, specSourceKindNames } from '../lib/spec-format';
 
 type FigureName = 'min' | 'max' | 'preferredMin' | 'preferredMax' | 'reject';
 
@@ -29,32 +30,31 @@ export function SpecFiguresFields() {
   const errors = formState.errors;
   const values = useWatch({ control }) as SpecFiguresValues;
   const unit = values.unit;
-  const symbol = unitSymbols[unit];
+  const symbol = unitTable[unit].symbol;
+  const quantity = quantityOf(unit);
 
   const live = (name: FigureName) => {
     const text = values[name] ?? '';
     if (text.trim() === '') return undefined;
-    const parsed = lengthTextIn(text, unit);
+    const parsed = figureTextIn(text, unit);
     return parsed.ok ? undefined : parsed.message;
   };
   const figure = (name: FigureName) => (
-    <Field label={`${figureLabels[name].label} (${symbol})`} hint={figureLabels[name].hint} error={errors[name]?.message ?? live(name)}>
-      <LengthInput unit={unit} {...register(name)} />
+    <Field label={symbol ? `${figureLabels[name].label} (${symbol})` : figureLabels[name].label} hint={figureLabels[name].hint} error={errors[name]?.message ?? live(name)}>
+      <FigureInput unit={unit} {...register(name)} />
     </Field>
   );
 
+  // The figures as they would be stored ("40 lb-ft" → "40"), once the whole version is valid.
   const checked = specVersionInputSchema.safeParse(figuresBody(values));
-  const picture = checked.success ? bandOf(checked.data) : null;
+  const normal = checked.success ? normaliseSpecFigures(checked.data) : null;
+  const stored = normal?.ok ? normal.figures : null;
 
   return (
     <div className="flex flex-col gap-4">
       <Field label="Unit" error={errors.unit?.message} hint="Every figure of this version is in this unit." className="sm:w-64">
         <Select {...register('unit', { deps: ['min', 'max', 'preferredMin', 'preferredMax', 'reject'] })}>
-          {lengthUnits.map((u) => (
-            <option key={u} value={u}>
-              {unitNames[u]}
-            </option>
-          ))}
+          <UnitOptions quantity={null} withRatio extra={unit} />
         </Select>
       </Field>
       <fieldset className="grid gap-3 rounded-md border border-rule p-3 sm:grid-cols-2">
@@ -112,12 +112,25 @@ export function SpecFiguresFields() {
 
       <div className="rounded-md border border-rule p-3" aria-live="polite">
         <p className="mb-2 text-sm font-medium">The band as entered</p>
-        {picture ? (
-          <BandPicture unit={unit} decimals={picture.decimals} band={picture.band} preferred={picture.preferred} rejectPm={picture.rejectPm} />
+        {stored && isLengthVersion(stored) ? (
+          <BandPicture unit={stored.unit} {...pictureProps(stored)} />
+        ) : stored ? (
+          <p className="figures text-sm" data-band-summary="">
+            {bandSummary(stored)}
+          </p>
         ) : (
-          <p className="text-sm text-ink-muted">Appears here once the figures agree: at least one band limit, every figure a length in {unitNames[unit]}, the preferred band inside the band and the reject limit outside it.</p>
+          <p className="text-sm text-ink-muted">
+            Appears here once the figures agree: at least one band limit, every figure {quantity === 'ratio' ? 'a ratio' : `in ${unitTable[unit].name}`}, the
+            preferred band inside the band and the reject limit outside it.
+          </p>
         )}
       </div>
     </div>
   );
+}
+
+/** The band picture's figures for a length version. */
+function pictureProps(v: Parameters<typeof bandOf>[0]) {
+  const { decimals, band, preferred, rejectPm } = bandOf(v);
+  return { decimals, band, preferred, rejectPm };
 }

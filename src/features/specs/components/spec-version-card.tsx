@@ -1,15 +1,17 @@
 import { decisionRuleText } from '@shared/measure/spec';
-import { unitNames } from '@shared/measure/units';
+import { unitTable } from '@shared/measure/quantities';
 import type { SpecVersion } from '@shared/specs/spec-library.schema';
 import { BandPicture } from '@/features/calc/components/band-picture';
 import { Badge } from '@/components/ui/badge';
-import { bandOf, bandSummary, dayOf, isInventedForDemo, specSourceKindNames } from '../lib/spec-format';
+import { cn } from '@/lib/cn';
+import { bandOf, bandSummary, dayOf, isInventedForDemo, isLengthVersion, specSourceKindNames } from '../lib/spec-format';
 
 /** One version: its figures, rule, source, note and date, and the band drawn alone. */
 export function SpecVersionCard({ version, latest }: { version: SpecVersion; latest: boolean }) {
-  const picture = bandOf(version);
+  // The band is drawn for lengths (stored in picometres); other quantities say it in words.
+  const picture = isLengthVersion(version) ? { unit: version.unit, ...bandOf(version) } : null;
   const headingId = `spec-version-${version.id}`;
-  const hasBand = picture.band.minPm !== undefined || picture.band.maxPm !== undefined;
+  const hasBand = picture !== null && (picture.band.minPm !== undefined || picture.band.maxPm !== undefined);
   return (
     <article aria-labelledby={headingId} className="rounded-lg border border-rule bg-paper" data-spec-version={version.version}>
       <header className="flex flex-wrap items-center gap-2 border-b border-rule px-4 py-2.5">
@@ -22,12 +24,12 @@ export function SpecVersionCard({ version, latest }: { version: SpecVersion; lat
         </span>
         {isInventedForDemo(version) && <Badge>figures invented for the demo</Badge>}
       </header>
-      <div className="grid gap-4 p-4 lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]">
+      <div className={cn('grid gap-4 p-4', picture && 'lg:grid-cols-[minmax(0,1fr)_minmax(0,22rem)]')}>
         <dl className="grid gap-x-4 gap-y-2 text-sm sm:grid-cols-[max-content_minmax(0,1fr)]">
           <dt className="text-ink-muted">Band</dt>
           <dd className="figures">{bandSummary(version)}</dd>
           <dt className="text-ink-muted">Unit</dt>
-          <dd>{unitNames[version.unit]}</dd>
+          <dd>{unitTable[version.unit].name}</dd>
           <dt className="text-ink-muted">Decision rule</dt>
           <dd>
             <span className="font-medium">{version.rule === 'guarded' ? 'Guarded' : 'Simple'}</span>
@@ -41,13 +43,15 @@ export function SpecVersionCard({ version, latest }: { version: SpecVersion; lat
           <dt className="text-ink-muted">Note</dt>
           <dd className={version.note ? 'whitespace-pre-line' : 'text-ink-muted'}>{version.note || 'none'}</dd>
         </dl>
-        <div>
-          {hasBand ? (
-            <BandPicture unit={version.unit} decimals={picture.decimals} band={picture.band} preferred={picture.preferred} rejectPm={picture.rejectPm} />
-          ) : (
-            <p className="text-sm text-ink-muted">This version has no band to draw.</p>
-          )}
-        </div>
+        {picture && (
+          <div>
+            {hasBand ? (
+              <BandPicture unit={picture.unit} decimals={picture.decimals} band={picture.band} preferred={picture.preferred} rejectPm={picture.rejectPm} />
+            ) : (
+              <p className="text-sm text-ink-muted">This version has no band to draw.</p>
+            )}
+          </div>
+        )}
       </div>
     </article>
   );

@@ -3,12 +3,14 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import type { z } from 'zod';
 import type { SpecSourceKind } from '@shared/measure/spec.schema';
 import type { DecisionRule } from '@shared/measure/spec';
-import type { LengthUnit } from '@shared/measure/units';
+import { defaultUnitFor, type AnyUnit } from '@shared/measure/quantities';
+import type { DefaultUnits } from '@/features/auth/lib/default-units';
 import { specInputSchema, specVersionInputSchema, type SpecVersion } from '@shared/specs/spec-library.schema';
 
 /** A version's figures as typed: blank boxes are "no such limit". */
 export interface SpecFiguresValues {
-  unit: LengthUnit;
+  /** Any unit: a length, another quantity, or "1" for a ratio (compression ratio 10.2:1). */
+  unit: AnyUnit;
   min: string;
   max: string;
   preferredMin: string;
@@ -42,6 +44,11 @@ export const blankFigures: SpecFiguresValues = {
 };
 
 export const blankSpec: SpecCreateValues = { name: '', appliesTo: '', shared: false, ...blankFigures };
+
+/** A new spec in the builder's length unit (in or mm) when they chose a system, else inches. */
+export function blankSpecFor(defaults: DefaultUnits): SpecCreateValues {
+  return defaults.system ? { ...blankSpec, unit: defaultUnitFor('length', defaults.system) } : blankSpec;
+}
 
 /** A stored version as the starting point of the next one. */
 export function figuresFrom(v: SpecVersion): SpecFiguresValues {

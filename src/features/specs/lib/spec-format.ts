@@ -2,7 +2,11 @@ import type { SpecSourceKind } from '@shared/measure/spec.schema';
 import type { BandPm } from '@shared/measure/spec';
 import { lengthTextIn } from '@shared/measure/length-text';
 import { displayDecimals } from '@shared/measure/format';
-import { unitSymbols, type LengthUnit } from '@shared/measure/units';
+import { withUnit } from '@shared/measure/format-quantity';
+import type { Fraction } from '@shared/measure/exact';
+import type { AnyUnit } from '@shared/measure/quantities';
+import { figureTextIn } from '@shared/measure/quantity-text';
+import { isLengthUnit, type LengthUnit } from '@shared/measure/units';
 
 /** What people see for each kind of source. */
 export const specSourceKindNames: Record<SpecSourceKind, string> = {
@@ -13,7 +17,7 @@ export const specSourceKindNames: Record<SpecSourceKind, string> = {
 
 /** The figures of one version as stored: decimal text in `unit`, null where not set. */
 export interface VersionFigures {
-  unit: LengthUnit;
+  unit: AnyUnit;
   min: string | null;
   max: string | null;
   preferredMin: string | null;
@@ -33,11 +37,19 @@ function places(text: string | null, unit: LengthUnit): number {
   return parsed.ok ? displayDecimals(parsed.length.lastPlacePm, unit) : 0;
 }
 
+/** A version whose figures are lengths: the one kind the picometre band picture draws. */
+export type LengthVersionFigures = VersionFigures & { unit: LengthUnit };
+
+/** Whether the version's figures are lengths. */
+export function isLengthVersion<T extends VersionFigures>(v: T): v is T & { unit: LengthUnit } {
+  return isLengthUnit(v.unit);
+}
+
 /**
- * The version's limits in picometres for a band picture, read exactly from the stored text;
+ * A length version's limits in picometres for a band picture, read exactly from the stored text;
  * the preferred band falls back to the band's own limit on an open side, as the engine judges it.
  */
-export function bandOf(v: VersionFigures): { band: BandPm; preferred: BandPm | null; rejectPm: bigint | null; decimals: number } {
+export function bandOf(v: LengthVersionFigures): { band: BandPm; preferred: BandPm | null; rejectPm: bigint | null; decimals: number } {
   const min = pm(v.min, v.unit);
   const max = pm(v.max, v.unit);
   const pMin = pm(v.preferredMin, v.unit);
@@ -60,20 +72,30 @@ function range(lo: string | null, hi: string | null): string {
   return '';
 }
 
+/** A stored figure's exact value in `unit` (any quantity), or undefined when blank or unreadable. */
+function exact(text: string | null, unit: AnyUnit): Fraction | undefined {
+  if (text === null || text.trim() === '') return undefined;
+  const parsed = figureTextIn(text, unit);
+  return parsed.ok ? parsed.figure.value : undefined;
+}
+
 /** Which side of the band the reject limit is on (at or above max: above), as the engine reads it. */
 export function rejectSide(v: VersionFigures): 'above' | 'below' | null {
-  const reject = pm(v.reject, v.unit);
+  const reject = exact(v.reject, v.unit);
   if (reject === undefined) return null;
-  const max = pm(v.max, v.unit);
-  const min = pm(v.min, v.unit);
-  if (max !== undefined && reject >= max) return 'above';
-  if (min !== undefined && reject <= min) return 'below';
+  const max = exact(v.max, v.unit);
+  const min = exact(v.min, v.unit);
+  if (max !== undefined && reject.gte(max)) return 'above';
+  if (min !== undefined && reject.lte(min)) return 'below';
   return null;
 }
 
-/** "0.0020–0.0040 in, preferred 0.0025–0.0035, reject above 0.0050". */
+/**
+ * "0.0020–0.0040 in, preferred 0.0025–0.0035, reject above 0.0050"; "35–40 lbf·ft"; "10.2–10.8"
+ * for a ratio (no unit after it).
+ */
 export function bandSummary(v: VersionFigures): string {
-  const parts = [`${range(v.min, v.max)} ${unitSymbols[v.unit]}`];
+  const parts = [withUnit(range(v.min, v.max), v.unit)];
   if (v.preferredMin !== null || v.preferredMax !== null) parts.push(`preferred ${range(v.preferredMin ?? v.min, v.preferredMax ?? v.max)}`);
   const side = rejectSide(v);
   if (side && v.reject !== null) parts.push(`reject ${side} ${v.reject}`);

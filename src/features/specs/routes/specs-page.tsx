@@ -3,6 +3,7 @@ import { useInfiniteQuery, useQuery } from '@tanstack/react-query';
 import { useNavigate, useSearchParams, type LoaderFunctionArgs } from 'react-router-dom';
 import { authQueries } from '@/features/auth/api/auth-queries';
 import { requireArea } from '@/features/auth/lib/require-role';
+import { useDefaultUnits } from '@/features/auth/lib/use-default-units';
 import { Button } from '@/components/ui/button';
 import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-states';
 import { Dialog, DialogClose, DialogContent } from '@/components/ui/dialog';
@@ -17,7 +18,7 @@ import { specQueries, type SpecListFilter } from '../api/spec-queries';
 import { SpecCaution } from '../components/spec-caution';
 import { SpecCreateForm } from '../components/spec-forms';
 import { SpecsTable } from '../components/specs-table';
-import { blankSpec } from '../lib/spec-form';
+import { blankSpecFor } from '../lib/spec-form';
 
 function filterFrom(params: URLSearchParams): Required<SpecListFilter> {
   return { q: (params.get('q') ?? '').slice(0, 100), mine: params.get('mine') === '1' };
@@ -174,13 +175,14 @@ function SpecsList({
 
 function CreateSpecDialog({ open, onOpenChange }: { open: boolean; onOpenChange: (open: boolean) => void }) {
   const create = useCreateSpec();
+  const defaults = useDefaultUnits();
   const navigate = useNavigate();
   const { toast } = useToast();
   return (
     <Dialog open={open} onOpenChange={onOpenChange}>
       <DialogContent title="New spec" description="Its figures become version 1. Later changes are saved as new versions; versions are never edited.">
         <SpecCreateForm
-          defaultValues={blankSpec}
+          defaultValues={blankSpecFor(defaults)}
           secondaryAction={
             <DialogClose asChild>
               <Button variant="quiet">Cancel</Button>

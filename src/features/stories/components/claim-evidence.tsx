@@ -4,9 +4,11 @@ import type { Clearance } from '@shared/clearances/clearance.schema';
 import type { Reading } from '@shared/readings/reading.schema';
 import type { ClaimKind, ClaimStatus, ClaimTarget } from '@shared/stories/claims';
 import { VerdictBadge } from '@/components/ui/badge';
-import { conformanceOf, endInUnit, intervalOf } from '@/features/clearances/components/coverage-facts';
+import { endInUnit, intervalOf } from '@/features/clearances/components/coverage-facts';
+import { formulaLegend, isLengthResult } from '@/features/clearances/lib/clearance-view';
+import { estimateText } from '@/features/readings/lib/reading-text';
 import { formatTime } from '@/features/clips/lib/clip-format';
-import { CoverageRows, ReaderBudget, ReaderWarnings } from '@/features/public/components/uncertainty-evidence';
+import { CoverageRows, hasCoverageRows, ReaderBudget, ReaderWarnings } from '@/features/public/components/uncertainty-evidence';
 
 export interface EvidenceLookup {
   buildId: number;
@@ -77,7 +79,9 @@ export function ClaimEvidence({
       )}
 
       {target ? (
-        <p className="figures text-base font-medium">{target.display}</p>
+        <p className="figures text-base font-medium" data-target-display="">
+          {target.display}
+        </p>
       ) : clearance && clearance.problems.length > 0 ? (
         <p className="text-ink-muted">It cannot be worked out yet: {clearance.problems.join(' ')}</p>
       ) : (
@@ -89,6 +93,18 @@ export function ClaimEvidence({
         )
       )}
 
+      {clearance?.formula && (
+        <p className="text-xs text-ink-muted" data-formula="">
+          = <span className="figures break-words text-ink">{clearance.formula}</span>
+          {formulaLegend(clearance)
+            .filter((l) => !l.reading)
+            .map((l) => (
+              <span key={l.name} className="block">
+                with <span className="figures text-ink">{l.name}</span> = <span className="figures">{l.meaning}</span>
+              </span>
+            ))}
+        </p>
+      )}
       {clearance?.result?.verdict && clearance.result.rule && (
         <div className="flex flex-col gap-1">
           <VerdictBadge verdict={clearance.result.verdict} rule={`${clearance.result.rule} rule, k = ${formatCoverageFactor(clearance.result.coverageFactor)}`} size="sm" />
@@ -101,14 +117,7 @@ export function ClaimEvidence({
         </div>
       )}
       {clearance && clearance.result && !clearance.result.verdict && <p className="text-xs text-ink-muted">No spec attached, so no verdict.</p>}
-      {clearance?.result && (intervalOf(clearance.result) || conformanceOf(clearance.result) !== null) && (
-        // What readers will see under the verdict, in the builder's own units.
-        <dl className="flex flex-col gap-0.5 [&_dd]:mb-1.5" data-coverage="">
-          <CoverageRows facts={clearance.result} end={endInUnit(clearance.result)} />
-        </dl>
-      )}
-      {clearance?.result && <ReaderWarnings facts={clearance.result} />}
-      {clearance?.result && <ReaderBudget facts={clearance.result} />}
+      {clearance?.result && <ResultFacts result={clearance.result} formula={clearance.formula} />}
       {reading && <p className="text-xs text-ink-muted">A reading on its own has no verdict; clearances worked out from it do.</p>}
 
       {termReadings.length > 0 && (
@@ -122,10 +131,10 @@ export function ClaimEvidence({
                     <img src={r.frameUrl} alt={`Evidence still of ${r.name} at ${formatTime(r.atMs / 1000)} in ${r.clipTitle}`} className="h-16 w-28 shrink-0 rounded-sm border border-rule bg-paper-2 object-cover" loading="lazy" />
                     <div className="min-w-0">
                       <p className="font-medium">
-                        {term && <span className="figures mr-1 text-ink-muted">{term.sign === 1 ? '+' : '−'}</span>}
+                        {term && <span className="figures mr-1 text-ink-muted">{clearance?.formula ? `${term.symbol ?? term.readingKey} =` : term.sign === 1 ? '+' : '−'}</span>}
                         {r.name} <span className="figures text-xs text-ink-muted">{r.key}</span>
                       </p>
-                      <p className="figures text-xs">{r.result.display}</p>
+                      <p className="figures text-xs">{estimateText(r)}</p>
                       <p className="text-xs text-ink-muted">
                         {r.instrumentName} · {r.takenOn} · {reviewWords[r.reviewState]}
                       </p>
@@ -136,7 +145,7 @@ export function ClaimEvidence({
                   </>
                 ) : (
                   <p className="text-ink-muted">
-                    {term?.sign === -1 ? '− ' : '+ '}
+                    {clearance?.formula ? `${term?.symbol ?? term?.readingKey} = ` : term?.sign === -1 ? '− ' : '+ '}
                     {term?.readingName} ({term?.readingKey}): this reading is not in the list any more.
                   </p>
                 )}
@@ -146,6 +155,27 @@ export function ClaimEvidence({
         </div>
       )}
     </div>
+  );
+}
+
+/**
+ * The interval, the method, the probability within spec, the warnings and the budget of a cited
+ * result, in the words readers will see under the verdict and in the builder's own unit: a length
+ * by its µm figures (as always), any other quantity by its figures in its own unit.
+ */
+function ResultFacts({ result, formula }: { result: NonNullable<Clearance['result']>; formula: string | null }) {
+  const noun = isLengthResult(result) && formula === null ? 'clearance' : 'result';
+  const interval = intervalOf(result);
+  return (
+    <>
+      {hasCoverageRows(result, interval) && (
+        <dl className="flex flex-col gap-0.5 [&_dd]:mb-1.5" data-coverage="">
+          <CoverageRows facts={result} end={endInUnit(result)} interval={interval} noun={noun} />
+        </dl>
+      )}
+      <ReaderWarnings facts={result} />
+      <ReaderBudget facts={result} noun={noun} />
+    </>
   );
 }
 
