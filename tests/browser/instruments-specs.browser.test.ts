@@ -80,6 +80,12 @@ describe('a builder keeps an instruments register and a spec library', () => {
       await dialog.waitFor({ state: 'detached' });
 
       const row = table.getByRole('row').filter({ hasText: name });
+      // Other tests add instruments to the same demo builder: the new one may be on a later page.
+      const loadMore = page.getByRole('button', { name: 'Load more' });
+      while ((await row.count()) === 0 && (await loadMore.count()) > 0) {
+        await loadMore.click();
+        await page.waitForTimeout(200);
+      }
       await row.waitFor();
       await expect(row.getByText('from resolution').count()).resolves.toBe(1);
       // 2025-01-10 + 365 days = 2026-01-10 (2025 is not a leap year); today (2026-12-02) is after it.

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { loadDemoBuilds } from '../../../server/db/demo-content';
 import { seedDemoClips } from '../../../server/db/seed-clips';
 import { loadDemoDiary, seedDemoDiary } from '../../../server/db/seed-diary';
+import { Build } from '../../../server/features/builds/build.model';
 import { Reading } from '../../../server/features/readings/reading.model';
 import { EvidenceCheck, StoryPublication } from '../../../server/features/review/review.model';
 import { evidenceOf } from '../../../server/features/review/review.service';
@@ -33,7 +34,9 @@ describe('the demo clips', () => {
       const entries = diary.builds.flatMap((b) => b.stories);
       expect(await seedDemoDiary(deps)).toBe(entries.length);
       expect(await seedDemoDiary(deps)).toBe(0);
-      expect(await Reading.count({ where: { key: diary.builds.flatMap((b) => b.readings.map((r) => r.key)) } })).toBe(
+      // Within the demo builds: other tests' builds may use the same keys.
+      const demoBuilds = await Build.findAll({ attributes: ['id'], where: { title: diary.builds.map((b) => b.build) } });
+      expect(await Reading.count({ where: { key: diary.builds.flatMap((b) => b.readings.map((r) => r.key)), buildId: demoBuilds.map((b) => b.id) } })).toBe(
         diary.builds.reduce((n, b) => n + b.readings.length, 0),
       );
       for (const entry of entries) {

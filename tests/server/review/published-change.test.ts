@@ -79,7 +79,19 @@ describe('what changed since a clearance was published', () => {
   });
 
   it('reads the published judgement, with a null method before the field existed', () => {
-    expect(asPublished(firstEngine(), 1)).toEqual({ revision: 1, verdict: 'conforms', display: '0.004700 in ± 0.000082 in (k = 2)', valueUm: 119.38, expandedUncertaintyUm: 2.0828, method: null });
+    // 119.38 µm = 0.0047 in and 2.0828 µm = 0.000082 in (1 in = 25 400 µm, NIST SP 811 B.8).
+    expect(asPublished(firstEngine(), 1)).toEqual({
+      revision: 1,
+      verdict: 'conforms',
+      display: '0.004700 in ± 0.000082 in (k = 2)',
+      valueUm: 119.38,
+      expandedUncertaintyUm: 2.0828,
+      method: null,
+      quantity: 'length',
+      unit: 'in',
+      value: 119.38 / 25_400,
+      expandedUncertainty: 2.0828 / 25_400,
+    });
     expect(publishedResult(undefined)).toBeNull();
   });
 
@@ -129,8 +141,19 @@ describe('what changed since a clearance was published', () => {
       expect(changeSincePublished({ result: { ...torque, value: 50.2 }, spec }, asTyped, 1, unedited)).toBe('The result is 50.2 N·m now, 47.5 N·m when published (revision 1)');
     });
 
-    it('sends 0 for the µm figures the review sheet’s schema asks for, and the result’s own display', () => {
-      expect(asPublished(ratio, 3)).toEqual({ revision: 3, verdict: 'conforms', display: '10.19 ± 0.11 (95 %, k = 2)', valueUm: 0, expandedUncertaintyUm: 0, method: 'gum' });
+    it('sends no µm figures, and the figures in the result’s own unit with its display', () => {
+      expect(asPublished(ratio, 3)).toEqual({
+        revision: 3,
+        verdict: 'conforms',
+        display: '10.19 ± 0.11 (95 %, k = 2)',
+        valueUm: null,
+        expandedUncertaintyUm: null,
+        method: 'gum',
+        quantity: 'ratio',
+        unit: '1',
+        value: 10.19,
+        expandedUncertainty: 0.11,
+      });
     });
   });
 });

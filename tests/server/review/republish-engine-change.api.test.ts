@@ -82,6 +82,10 @@ describe('the review sheet of a published story sent for review again', () => {
       valueUm: now.valueUm,
       expandedUncertaintyUm: now.expandedUncertaintyUm,
       method: 'monte-carlo',
+      quantity: 'length',
+      unit: now.unit,
+      value: now.value,
+      expandedUncertainty: now.expandedUncertainty,
     });
     expect(entry!.change).toBeNull();
   }, 120_000);
@@ -93,7 +97,8 @@ describe('the review sheet of a published story sent for review again', () => {
     // (0.005 in), so it was too close to call then.
     const uThen = 8;
     await judgeAsTheFirstEngine((r) => {
-      const { method: _m, coverageProbability: _p, fixedCoverageFactor: _f, effectiveDegreesOfFreedom: _n, intervalUm: _i, probabilityOfConformance: _c, budget: _b, warnings: _w, ...first } = r;
+      // The first engine knew neither the interval and budget nor figures in the result's own unit.
+      const { method: _m, coverageProbability: _p, fixedCoverageFactor: _f, effectiveDegreesOfFreedom: _n, intervalUm: _i, probabilityOfConformance: _c, budget: _b, warnings: _w, quantity: _q, value: _v, standardUncertainty: _s, expandedUncertainty: _e, interval: _in, bandInUnit: _bi, ...first } = r;
       return { ...first, coverageFactor: 2, standardUncertaintyUm: uThen / 2, expandedUncertaintyUm: uThen, display: '0.0047 in ± 0.00031 in (k = 2)', verdict: 'undecided' };
     });
 
@@ -107,6 +112,11 @@ describe('the review sheet of a published story sent for review again', () => {
       valueUm: now.valueUm,
       expandedUncertaintyUm: uThen,
       method: null,
+      // Read from its µm figures: 1 in = 25 400 µm (NIST SP 811 B.8).
+      quantity: 'length',
+      unit: 'in',
+      value: now.valueUm! / 25_400,
+      expandedUncertainty: uThen / 25_400,
     });
     const uNow = formatUncertainty(now.expandedUncertaintyUm!, 'in');
     expect(uNow).not.toBe('0.00031 in');
