@@ -35,13 +35,14 @@ async function sheet(s: Session) {
  * switched off inside one transaction: DDL is transactional in PostgreSQL, so no other session
  * ever sees it off. A stand-in for a publication made before the change, nothing more.
  */
-async function judgeAsTheFirstEngine(older: (r: ClearanceResult) => ClearanceResult): Promise<void> {
+/** Rewrites the published result as an older engine stored it (a stored JSON shape, so fields today's type requires may be missing). */
+async function judgeAsTheFirstEngine(older: (r: ClearanceResult) => Omit<ClearanceResult, 'quantity'>): Promise<void> {
   const story = (await Story.findByPk(f.story.id))!;
   const sequelize = StoryPublication.sequelize!;
   await sequelize.transaction(async (transaction) => {
     const publication = (await StoryPublication.findByPk(story.publishedPublicationId!, { transaction }))!;
     const evidence = structuredClone(publication.evidence) as unknown as PublishedEvidence;
-    evidence.clearances = evidence.clearances.map((c) => (c.id === f.clearance.id ? { ...c, result: older(c.result!) } : c));
+    evidence.clearances = evidence.clearances.map((c) => (c.id === f.clearance.id ? { ...c, result: older(c.result!) as ClearanceResult } : c));
     await sequelize.query('ALTER TABLE story_publications DISABLE TRIGGER story_publications_append_only', { transaction });
     await publication.update({ evidence: evidence as unknown as Record<string, unknown> }, { transaction });
     await sequelize.query('ALTER TABLE story_publications ENABLE TRIGGER story_publications_append_only', { transaction });
