@@ -1,13 +1,16 @@
-// `npm test`: Debian's ffmpeg (installed when missing), type-check, lint, then the whole Vitest
+// `npm test`: Debian's ffmpeg and pocketsphinx (installed when missing), type-check, lint, then the whole Vitest
 // suite (its global setup starts the test PostgreSQL and recreates the test database). Stops at
 // the first failing step, non-zero.
 import { spawn } from 'node:child_process';
 import path from 'node:path';
 import { repoRoot } from './lib/bootstrap';
 import { ensureSystemFfmpeg } from './lib/ffmpeg';
+import { ensureSystemSpeech } from './lib/speech';
 
 // The media tests run the ffmpeg the server would: the system's, once it is there.
 ensureSystemFfmpeg();
+// Listening to clips needs pocketsphinx; its test narrates a clip with festival.
+ensureSystemSpeech({ testVoice: true });
 
 const bin = (name: string) => path.join(repoRoot, 'node_modules', '.bin', name);
 const steps: [string, string[]][] = [

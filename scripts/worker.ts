@@ -11,9 +11,11 @@ import { createLogger } from '../server/logger';
 import { storageFromConfig } from '../server/storage/select-storage';
 import { prepareDatabase } from './lib/bootstrap';
 import { ensureSystemFfmpeg } from './lib/ffmpeg';
+import { ensureSystemSpeech } from './lib/speech';
 import { localSettings, onShutdown } from './lib/run-local';
 
 ensureSystemFfmpeg();
+ensureSystemSpeech();
 const s = localSettings();
 const db = await prepareDatabase({ databaseUrl: process.env.DATABASE_URL, dataDir: s.dataDir, port: s.pgPort, database: s.database, seed: false });
 const config = loadConfig({ ...process.env, DATABASE_URL: db.databaseUrl });

@@ -32,6 +32,7 @@ import { reviewRouter, storyTransitionsRouter } from './features/review/review.r
 import { buildStoriesRouter, storiesRouter } from './features/stories/stories.routes';
 import { storyImageFilesRouter, storyImagesRouter } from './features/stories/story-images';
 import { adminUsersRouter } from './features/users/users.routes';
+import { clipSpeechRouter, publicSpeechRouter } from './features/speech/speech.routes';
 import { csrfProtection } from './http/csrf';
 import { apiNotFound, errorHandler } from './http/error-handler';
 import { mount } from './http/routes';
@@ -143,6 +144,8 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
   mount(app, '/sheets', sheetsPdfRouter(config));
   mount(app, '/api/public/stories', storyQuestionsRouter());
   mount(app, '/api/questions', questionsRouter());
+  mount(app, '/api/clips', clipSpeechRouter({ config, queue, logger }));
+  mount(app, '/api/public/clips', publicSpeechRouter());
 
   app.use(['/api', '/auth'], apiNotFound);
   serveClient(app, config);

@@ -82,11 +82,25 @@ const envSchema = z.object({
   /** Attempts after the first for one message (with growing delays), so a mail server that is down for a while still gets it. */
   MAIL_RETRY_LIMIT: z.coerce.number().int().min(0).max(30).default(12),
   MAIL_RETRY_DELAY_SECONDS: z.coerce.number().int().min(1).max(3600).default(5),
+  /**
+   * Another offline recognizer instead of pocketsphinx: a command line (no shell; quotes group
+   * words) with `{wav}` where the 16 kHz mono WAV goes, printing JSON words (see README).
+   */
+  SPEECH_COMMAND: z.string().trim().min(1).optional(),
+  /** pocketsphinx's model folder (acoustic model `en-us`, `en-us.lm.bin`, `cmudict-en-us.dict`). */
+  SPEECH_MODEL_DIR: z.string().min(1).default('/usr/share/pocketsphinx/model/en-us'),
+  /** "off": clips are not listened to (their words stay empty, their state "unavailable"). */
+  SPEECH: z.enum(['on', 'off']).default('on'),
+  /** Where SPEECH_COMMAND's program is looked for when it is a bare name. */
+  PATH: z.string().default('/usr/local/bin:/usr/bin:/bin'),
 }).superRefine((e, ctx) => {
   if (e.NODE_ENV === 'production' && !e.SESSION_SECRET) {
     ctx.addIssue({ code: 'custom', path: ['SESSION_SECRET'], message: 'required in production: set a long random value' });
   }
   if (e.STORAGE_DRIVER === 's3' && !e.S3_BUCKET) ctx.addIssue({ code: 'custom', path: ['S3_BUCKET'], message: 'required when STORAGE_DRIVER=s3' });
+  if (e.SPEECH_COMMAND !== undefined && !commandLine(e.SPEECH_COMMAND)) {
+    ctx.addIssue({ code: 'custom', path: ['SPEECH_COMMAND'], message: 'a quote is not closed' });
+  }
   if (Boolean(e.S3_ACCESS_KEY_ID) !== Boolean(e.S3_SECRET_ACCESS_KEY)) {
     ctx.addIssue({ code: 'custom', path: ['S3_SECRET_ACCESS_KEY'], message: 'set both S3 keys or neither' });
   }
@@ -146,6 +160,42 @@ export interface Config {
     retryLimit: number;
     retryDelaySeconds: number;
   };
+  /** Listening to clips (offline speech recognition). */
+  speech: {
+    enabled: boolean;
+    /** SPEECH_COMMAND split into program and arguments; null for pocketsphinx. */
+    command: string[] | null;
+    modelDir: string;
+    /** The folders a bare program name is looked up in (PATH). */
+    searchPath: string;
+  };
+}
+
+/**
+ * A command line split into words as a shell would for the simple cases (spaces separate,
+ * '…' and "…" group, no expansion); null when a quote is left open.
+ */
+export function commandLine(text: string): string[] | null {
+  const words: string[] = [];
+  let word: string | null = null;
+  let quote: '"' | "'" | null = null;
+  for (const ch of text) {
+    if (quote) {
+      if (ch === quote) quote = null;
+      else word = (word ?? '') + ch;
+    } else if (ch === '"' || ch === "'") {
+      quote = ch;
+      word ??= '';
+    } else if (/\s/.test(ch)) {
+      if (word !== null) words.push(word);
+      word = null;
+    } else {
+      word = (word ?? '') + ch;
+    }
+  }
+  if (quote) return null;
+  if (word !== null) words.push(word);
+  return words.length > 0 ? words : null;
 }
 
 /** Parses the environment into a Config; throws with every problem listed. */
@@ -214,6 +264,12 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
       fakePorts: { smtp: e.FAKE_SMTP_PORT, api: e.FAKE_SMTP_API_PORT },
       retryLimit: e.MAIL_RETRY_LIMIT,
       retryDelaySeconds: e.MAIL_RETRY_DELAY_SECONDS,
+    },
+    speech: {
+      enabled: e.SPEECH === 'on',
+      command: e.SPEECH_COMMAND === undefined ? null : commandLine(e.SPEECH_COMMAND),
+      modelDir: e.SPEECH_MODEL_DIR,
+      searchPath: e.PATH,
     },
     storage: {
       driver: e.STORAGE_DRIVER,

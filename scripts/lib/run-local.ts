@@ -7,6 +7,7 @@ import { createFakeSmtp } from '../../server/fakes/smtp/fake-smtp';
 import { loadDemoPeople } from '../../server/db/demo-content';
 import { prepareDatabase, repoRoot } from './bootstrap';
 import { ensureSystemFfmpeg } from './ffmpeg';
+import { ensureSystemSpeech } from './speech';
 
 /** Ports and folders of the local instance; each one can be overridden from the environment. */
 export function localSettings(env = process.env) {
@@ -45,6 +46,7 @@ export function fakeAccounts() {
  */
 export async function bringUpLocal(overrides: Record<string, string> = {}) {
   ensureSystemFfmpeg();
+  ensureSystemSpeech();
   const s = localSettings();
   // The invented demo people are for the local fake provider only, never next to real GitHub.
   const realGithub = Boolean(process.env.GITHUB_CLIENT_ID && process.env.GITHUB_CLIENT_SECRET);

@@ -12,6 +12,7 @@ import { Story, StoryImage, StoryRevision, initStoryModels } from '../features/s
 import { User, initUserModel } from '../features/users/user.model';
 import { Question, initQuestionModel } from '../features/questions/question.model';
 import { initReaderPreferencesModel } from '../features/public/reader-preferences.model';
+import { initSpeechModels } from '../features/speech/speech.model';
 
 /** Initialises every feature's models and their associations on one Sequelize instance. */
 export function initModels(sequelize: Sequelize) {
@@ -28,6 +29,7 @@ export function initModels(sequelize: Sequelize) {
   initFollowModel(sequelize);
   initQuestionModel(sequelize);
   initReaderPreferencesModel(sequelize);
+  initSpeechModels(sequelize);
 
   Build.belongsTo(User, { as: 'owner', foreignKey: 'ownerId' });
   Build.hasMany(Part, { as: 'parts', foreignKey: 'buildId' });

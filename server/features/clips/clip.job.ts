@@ -15,6 +15,7 @@ import { MediaRejected } from './media/probe';
 import { planWebCopy } from './media/plan';
 import { makeWebCopy } from './media/transcode';
 import { makePoster, makeThumbnailStrip } from './media/stills';
+import { enqueueListen, startListenWorker } from '../speech/listen.job';
 
 export interface ClipJobDeps {
   storage: Storage;
@@ -23,6 +24,8 @@ export interface ClipJobDeps {
   faultAt?: (stage: 'start' | 'web-copy' | 'stills', clipId: number, attempt: number) => void | Promise<void>;
   /** How often a running job touches its row; a third of the stall time at most (set by startClipWorker). */
   heartbeatMs?: number;
+  /** Called once a clip is ready (startClipWorker queues listening to it); a failure is logged, never the clip's. */
+  onReady?: (clipId: number, durationS: number) => Promise<unknown>;
 }
 
 export interface ClipJobData {
@@ -154,6 +157,7 @@ export async function processClip(deps: ClipJobDeps, clipId: number, attempt: { 
       return;
     }
     deps.logger.info({ clipId: clip.id, plan }, 'clip ready');
+    await deps.onReady?.(clip.id, probe.durationS).catch((err: unknown) => deps.logger.warn({ err, clipId: clip.id }, 'listening to the clip not queued'));
   } catch (err) {
     const permanent = err instanceof MediaRejected;
     // ffmpeg's own complaint is worth showing; anything else (SQL, paths, storage) stays in the log.
@@ -191,8 +195,14 @@ async function hasWaitingJob(queue: Queue, clipId: number): Promise<boolean> {
  * heartbeat every second).
  */
 export async function startClipWorker(config: Config, queue: Queue, given: ClipJobDeps) {
+  // Listening to ready clips runs in this process too, on its own queue.
+  const listen = await startListenWorker(config, queue, { storage: given.storage, logger: given.logger });
   // Three heartbeats per stall period, so a busy machine never looks like a dead worker.
-  const deps = { ...given, heartbeatMs: Math.min(5000, Math.floor((config.jobs.stallSeconds * 1000) / 3)) };
+  const deps: ClipJobDeps = {
+    onReady: (clipId, durationS) => enqueueListen(queue, config, clipId, durationS),
+    ...given,
+    heartbeatMs: Math.min(5000, Math.floor((config.jobs.stallSeconds * 1000) / 3)),
+  };
   await queue.boss.work<ClipJobData>(
     queue.names.clipProcess,
     { batchSize: 1, includeMetadata: true, pollingIntervalSeconds: 0.5 },
@@ -228,6 +238,7 @@ export async function startClipWorker(config: Config, queue: Queue, given: ClipJ
     async stop() {
       clearInterval(timer);
       await queue.boss.offWork(queue.names.clipProcess);
+      await listen.stop();
     },
   };
 }

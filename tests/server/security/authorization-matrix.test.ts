@@ -100,6 +100,10 @@ const TABLE: Record<string, Expected> = {
   'GET /api/clips/:clipId/chapters.vtt':     { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   'GET /api/clips/:clipId/moments':          { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   'POST /api/clips/:clipId/moments':         { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+  // What was heard in a clip's sound (words, captions, proposed readings): read as the clip is.
+  'GET /api/clips/:clipId/words':            { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'GET /api/clips/:clipId/captions.vtt':     { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'GET /api/clips/:clipId/proposals':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
 
   // Moments: changed through their clip's build.
   'PATCH /api/moments/:momentId':            { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
@@ -200,6 +204,7 @@ const TABLE: Record<string, Expected> = {
   'GET /api/public/clips/:clipId/video':     { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
   'GET /api/public/clips/:clipId/poster':    { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
   'GET /api/public/clips/:clipId/frame':     { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
+  'GET /api/public/clips/:clipId/captions.vtt': { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
   // The inspection sheet of a part of the published build, its PDF, and the check of a printed sheet.
   'GET /api/public/parts/:partId/sheet':     { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
   'GET /sheets/parts/:partId.pdf':           { anonymous: 200, follower: 200, owner: 200, otherBuilder: 200, moderator: 200, admin: 200 },
@@ -419,6 +424,7 @@ const SHAPES: Record<string, Shape> = {
   'GET /api/public/clips/:clipId/video': { params: publishedClip },
   'GET /api/public/clips/:clipId/poster': { params: publishedClip },
   'GET /api/public/clips/:clipId/frame': { params: publishedClip, query: () => '?t=0.5' },
+  'GET /api/public/clips/:clipId/captions.vtt': { params: publishedClip },
   'GET /api/public/verify/parts/:partId': { query: () => `?story=${fx.published.storyId}&rev=${fx.published.revision}` },
 
   'GET /api/public/stories/following': { before: (actor) => setFollowingOwner(actor, true) },

@@ -76,6 +76,14 @@ export async function runFfprobe(args: string[], options: RunOptions): Promise<R
   return run(mediaBinaries().ffprobe, ['-hide_banner', ...args.slice(0, -1), '-protocol_whitelist', 'file', input], options);
 }
 
+/**
+ * Runs another media tool (a speech recognizer) under the same limits and timeout as ffmpeg:
+ * no shell, the program's arguments as given. Errors are MediaCommandFailed, as for ffmpeg.
+ */
+export async function runMediaTool(bin: string, args: string[], options: RunOptions): Promise<RunResult> {
+  return run(bin, args, options);
+}
+
 function ffmpegProtocols(args: string[]): string[] {
   const output = args.at(-1);
   if (output === undefined || (output.startsWith('-') && output !== '-')) throw new RangeError('the last ffmpeg argument must be its output');

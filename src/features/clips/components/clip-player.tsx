@@ -304,6 +304,7 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
         >
           {clip.videoUrl && <source src={clip.videoUrl} />}
           <track kind="chapters" src={clip.chaptersUrl} label="Chapters" default />
+          <track kind="captions" srcLang="en" label="English (from the clip's sound)" src={`/api/clips/${clip.id}/captions.vtt`} />
           Your browser cannot play this video. <a href={clip.videoUrl ?? '#'}>Download it</a> instead.
         </video>
       </div>

@@ -42,7 +42,9 @@ export function MomentClip({ reading }: { reading: PublicReading }) {
         aria-label={`Clip “${moment.clipTitle}”, from the moment of ${reading.name}`}
         className="aspect-video w-full rounded-md border border-rule bg-ink object-contain"
         data-moment-s={at}
-      />
+      >
+        <track kind="captions" srcLang="en" label="English (from the clip's sound)" src={`/api/public/clips/${moment.clipId}/captions.vtt`} />
+      </video>
       <figcaption className="flex flex-wrap items-center justify-between gap-2 text-xs text-ink-muted">
         <span>
           {moment.clipTitle} · moment at <span className="figures text-ink">{formatTime(at)}</span>
