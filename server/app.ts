@@ -107,7 +107,7 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
   app.use(csrf.protect);
 
   mount(app, '/auth', authRouter(passport, { signInLimit: config.signInRateLimit }));
-  mount(app, '/api/health', healthRouter(sequelize));
+  mount(app, '/api/health', healthRouter(sequelize, config.speech));
   mount(app, '/api/csrf-token', csrf.tokenRouter);
   mount(app, '/api/me', meRouter);
   mount(app, '/api/admin/users', adminUsersRouter);

@@ -15,6 +15,7 @@ import { quantityKinds } from '../measure/quantities';
 import { readingUnitSchema } from '../measure/record-units';
 import { decisionRules, verdicts } from '../measure/spec';
 import { readingKinds, readingWarningSchema } from '../readings/reading.schema';
+import { heardStates } from '../review/heard-states';
 import { storyTagsSchema } from '../stories/story.schema';
 
 /** A keyset cursor over (publishedAt, publication id): opaque to clients, pass back as `before`. */
@@ -216,6 +217,18 @@ export const publicReadingSchema = z.object({
   engine: engineReadingSchema.optional(),
   /** The instrument entry `engine.instrument` names (calibration, MPE, setting standard), when there is one. */
   engineInstrument: z.object({ name: z.string(), entry: calcInstrumentSchema }).optional(),
+  /**
+   * What the clip's sound said near the reading's moment when it was published
+   * (`shared/review/heard.ts`): `agrees` when the builder was heard saying the figure logged, with
+   * the words and when (ms from the clip's start). Absent from publications made before it.
+   */
+  heard: z
+    .object({
+      state: z.enum(heardStates),
+      words: z.string().optional(),
+      atMs: z.number().int().nonnegative().optional(),
+    })
+    .optional(),
 });
 export type PublicReading = z.infer<typeof publicReadingSchema>;
 

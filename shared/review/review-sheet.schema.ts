@@ -10,6 +10,7 @@ import { quantityKinds } from '../measure/quantities';
 import { verdicts } from '../measure/spec';
 import { readingSchema } from '../readings/reading.schema';
 import { changesRequestedSchema, storyStates } from '../stories/story.schema';
+import { heardStates } from './heard-states';
 import { evidenceCheckSchema, publishBlockerSchema } from './review.schema';
 
 /** How a claim stands against its target (shared/stories/claims.ts `ClaimStatus`). */
@@ -31,6 +32,29 @@ export const sheetCheckSchema = z.object({
   comment: z.string(),
 });
 export type SheetCheck = z.infer<typeof sheetCheckSchema>;
+
+/**
+ * The second witness of a reading (`shared/review/heard.ts`): what the clip's sound says near its
+ * moment, set beside the figure logged. `disagrees` marks the reading for attention; it is not a
+ * flag and blocks nothing.
+ */
+export const heardWitnessSchema = z.object({
+  state: z.enum(heardStates),
+  /** The line: "heard ‘five hundred sixty four and two tenths’ at 0:00.5 → 564.2 thou = 0.5642 in: agrees with the logged 0.5642 in". */
+  text: z.string(),
+  /** The figure named, as said (decimal text in its unit): the agreeing one, or the closest that disagrees. */
+  figure: z
+    .union([
+      z.object({ value: z.string(), unit: anyUnitSchema }),
+      z.object({ passes: z.string(), stops: z.string(), unit: anyUnitSchema }),
+    ])
+    .optional(),
+  /** When its first word was said, ms from the start of the clip. */
+  atMs: z.number().int().nonnegative().optional(),
+  /** The words it was read from. */
+  words: z.string().optional(),
+});
+export type HeardWitnessDto = z.infer<typeof heardWitnessSchema>;
 
 /** Who holds a story for review, and until when (a live claim only). */
 export const reviewClaimSchema = z.object({
@@ -84,6 +108,8 @@ export const reviewSheetSchema = z.object({
       usedBy: z.array(z.object({ id: z.number().int().positive(), key: z.string(), name: z.string(), display: z.string().nullable() })),
       citedIn: z.array(citingSentenceSchema),
       check: sheetCheckSchema.nullable(),
+      /** What was heard on the clip near the reading's moment. Optional: servers before it did not send it. */
+      heard: heardWitnessSchema.optional(),
     }),
   ),
   clearances: z.array(

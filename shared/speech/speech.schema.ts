@@ -4,6 +4,7 @@
  * serves both under /api/clips/:clipId; the captions are WebVTT text, not JSON.
  */
 import { z } from 'zod';
+import { dbIdText } from '../http/db-values.schema';
 import { allUnits } from '../measure/quantities';
 
 /**
@@ -49,6 +50,17 @@ const proposalBase = {
   unitHeard: z.boolean(),
   /** Why the figure is not just the literal words, when it is not. */
   note: z.string().optional(),
+  /** The builder set it aside (`POST …/proposals/:proposalId/dismiss`; `DELETE` the same brings it back). */
+  dismissed: z.boolean().default(false),
+  /**
+   * A reading is already logged for it: one whose moment in this clip is within ±1.5 s of the
+   * words and whose figure is the same within its instrument's resolution (`readingKey` names it).
+   */
+  logged: z.boolean().default(false),
+  /** The key of the reading that logged it, when `logged`. */
+  readingKey: z.string().optional(),
+  /** The id of the reading that logged it, when `logged`. */
+  readingId: z.number().int().positive().optional(),
 };
 
 /** A reading proposed from speech: a value ("five sixty four and two tenths") or a feeler bracket ("three thou slides, four won't go"). */
@@ -72,6 +84,17 @@ export const speechProposalSchema = z.discriminatedUnion('kind', [
 ]);
 /** A reading proposed from speech. */
 export type SpeechProposal = z.infer<typeof speechProposalSchema>;
+
+/** What a proposal id looks like: "<startMs>-<n>". */
+export const PROPOSAL_ID_PATTERN = /^\d{1,10}-\d{1,4}$/;
+
+/** Path of `POST`/`DELETE /api/clips/:clipId/proposals/:proposalId/dismiss`. */
+export const proposalParamsSchema = z.object({
+  clipId: dbIdText,
+  proposalId: z.string().regex(PROPOSAL_ID_PATTERN, 'must be a proposal id like 4120-0'),
+});
+/** Path parameters naming one proposal of one clip. */
+export type ProposalParams = z.infer<typeof proposalParamsSchema>;
 
 /** `GET /api/clips/:clipId/proposals`: the readings heard, in the order they were said. */
 export const clipProposalsResponseSchema = z.object({

@@ -8,6 +8,7 @@ import { launchBrowser } from '../../scripts/lib/chromium';
 import { repoRoot } from '../../scripts/lib/bootstrap';
 import type { ClearanceResult } from '@shared/clearances/clearance.schema';
 import { Follow } from '../../server/features/follows/follow.model';
+import { listeningOf, storeClipWords } from '../../server/features/speech/speech.service';
 import type { PublishedEvidence } from '../../server/features/public/publication';
 import { StoryPublication } from '../../server/features/review/review.model';
 import { Story } from '../../server/features/stories/story.model';
@@ -84,6 +85,20 @@ beforeAll(async () => {
   await Follow.upsert({ followerId: follower!.id, builderId: builder!.id, emailOnPublish: true });
   second = await makeReviewFixture(owner, { clipFile, title: 'Invented flat-twin crank (published for the outbox test)' });
   await publishThroughReview(owner, await sessionFor(site, 'moderator'), second);
+
+  // What the builder said on the clip, stored as the listening worker would once it has finished
+  // with the clip's sound: the depth as logged, the height a tenth off, the bracket as logged.
+  for (const end = Date.now() + 90_000; ['pending', 'listening'].includes((await listeningOf(fixture.clipId))?.state ?? 'pending'); ) {
+    if (Date.now() > end) throw new Error('the fixture clip was not listened to within 90 s');
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  const said = (text: string, atMs: number) => text.split(' ').map((word, i) => ({ word, startMs: atMs + i * 120, endMs: atMs + i * 120 + 100, confidence: 0.8 }));
+  await storeClipWords(fixture.clipId, [
+    ...said('five hundred sixty four and two tenths', 200),
+    ...said('point five five nine four', 1_300),
+    // More than 1.5 s after the height's last word, so the bracket is a phrase of its own.
+    ...said("four thou slides five thou won't go", 3_500),
+  ]);
 }, 300_000);
 
 afterAll(async () => {
@@ -134,17 +149,56 @@ describe('a moderator checking a story against the footage', () => {
       const feelerId = `reading:${feelerReadingId}`;
       expect(await option(depthId).getAttribute('aria-selected')).toBe('true');
       expect(await page.locator('[data-current] [data-entered]').innerText()).toBe('0.5642 in');
+      // The second witness beside the still: what the builder said near the moment, a calm line when it agrees.
+      const agrees = page.locator('[data-current] [data-heard="agrees"]');
+      await agrees.waitFor();
+      expect(await agrees.innerText()).toContain(
+        'Heard on the clip: ‘five hundred sixty four and two tenths’ at 0:00.2 → 564.2 thou = 0.5642 in: agrees with the logged 0.5642 in.',
+      );
+      // The clip's captions are on the moderator's player, off until chosen.
+      const captions = await page.locator('[data-current] video').evaluate((v: HTMLVideoElement) => {
+        const track = v.querySelector('track');
+        return { kind: track?.kind, srclang: track?.srclang, label: track?.label, src: track?.getAttribute('src'), mode: v.textTracks[0]?.mode };
+      });
+      expect(captions).toEqual({
+        kind: 'captions',
+        srclang: 'en',
+        label: "English (from the clip's sound)",
+        src: `/api/clips/${fixture.clipId}/captions.vtt`,
+        mode: 'disabled',
+      });
+      // The height was said a tenth off: its row is marked, and its line says what was heard and what was logged.
+      await option(heightId).locator('[data-heard-differs]').waitFor();
+      expect(await option(depthId).locator('[data-heard-differs]').count()).toBe(0);
 
       // c marks the reading on screen checked and moves on to the next that needs a look.
       await page.locator('body').press('c');
       await page.locator(`[role="option"][data-evidence-id="${depthId}"][data-evidence-state="checked"]`).waitFor();
       await expect.poll(() => option(heightId).getAttribute('aria-selected')).toBe('true');
+      const differs = page.locator('[data-current] [data-heard="disagrees"]');
+      await differs.waitFor();
+      expect(await differs.innerText()).toContain(
+        'Heard on the clip, not what was logged: ‘point five five nine four’ (no unit said) at 0:01.3 → 0.5594 in (the closest of 2 figures heard): disagrees with the logged 0.5595 in.',
+      );
+      await differs.scrollIntoViewIfNeeded();
+      await page.screenshot({ path: path.join(artifacts, 'review-heard-differs-1280.png') });
+      await page.setViewportSize({ width: 390, height: 844 });
+      await page.locator('[data-current] [data-heard="disagrees"]').scrollIntoViewIfNeeded();
+      await page.screenshot({ path: path.join(artifacts, 'review-heard-differs-390.png') });
+      await page.setViewportSize({ width: 1280, height: 860 });
+      // "Listen from" plays the clip, sound on, from where the figure was said.
+      await differs.getByRole('button', { name: 'Listen from 0:01.3' }).click();
+      await page.waitForFunction(() => {
+        const v = document.querySelector<HTMLVideoElement>('[data-current] video');
+        return v !== null && !v.muted && v.currentTime >= 1.3;
+      });
 
       // j moves down to the feeler bracket; its clip starts 3 s before the moment.
       await page.locator('body').press('j');
       await expect.poll(() => option(feelerId).getAttribute('aria-selected')).toBe('true');
       const current = page.locator('[data-current]');
       expect(await current.innerText()).toContain('0.004 in enters · 0.005 in does not');
+      await current.locator('[data-heard="agrees"]').waitFor();
       await current.locator('[data-calibration="overdue"]').waitFor();
       await page.waitForFunction(() => {
         const v = document.querySelector<HTMLVideoElement>('[data-current] video');
@@ -316,7 +370,8 @@ describe('the admin outbox and the unsubscribe page', () => {
       await page.screenshot({ path: path.join(artifacts, 'review-outbox-1280.png') });
       await page.setViewportSize({ width: 1280, height: 860 });
 
-      await list.locator(`[data-outbox-row="${followerMail!.subject}"]`).click();
+      // Other test files may make more followers of the shared demo builder: the row sent to this follower.
+      await list.locator(`[data-outbox-row="${followerMail!.subject}"]`).filter({ hasText: 'sam@okafor-garage.example' }).click();
       const header = message.locator('[data-list-unsubscribe]');
       await expect.poll(() => header.getAttribute('data-list-unsubscribe')).toMatch(/^<http:\/\/127\.0\.0\.1:\d+\/api\/unsubscribe\?token=/);
       expect(await message.innerText()).toContain('List-Unsubscribe=One-Click');
@@ -384,6 +439,14 @@ describe('the builder resubmits and the moderator publishes', () => {
       await page.screenshot({ path: path.join(artifacts, 'journey-moderator-last.png') });
       const [published] = await site.smtp.waitFor((m) => m.to.includes('ines@marrow-and-vane.example') && m.subject.startsWith('Published') && m.text.includes(`/stories/${fixture.story.id}`));
       expect(published!.html).toContain(`/stories/${fixture.story.id}`);
+
+      // Readers see, beside the bore depth's figure, that the builder was heard saying it on the clip.
+      await page.goto(`${site.url}/stories/${fixture.story.id}/claims/reading:bore-depth`);
+      const heard = page.locator('#claim-panel [data-claim-evidence="reading:bore-depth"] [data-reading="bore-depth"] [data-heard-on-clip]');
+      await heard.waitFor();
+      expect(await heard.innerText()).toBe('Heard on the clip: “five hundred sixty four and two tenths” at 0:00.2, the figure logged.');
+      await heard.scrollIntoViewIfNeeded();
+      await page.screenshot({ path: path.join(artifacts, 'public-heard-on-clip-1280.png') });
     } finally {
       await page.close();
     }

@@ -8,6 +8,7 @@ import { micrometresToPicometres, picometresPerUnit, type LengthUnit } from '@sh
 import type { PublicBuilderRef, PublicClearance, PublicReading } from '@shared/public/public-story.schema';
 import { convertedQuantityDisplay, firstNumberDecimals } from '@shared/public/quantity-figures';
 import type { Reading as ReadingDto } from '@shared/readings/reading.schema';
+import type { HeardWitness } from '@shared/review/heard';
 import { claimTargetsFrom, claimTargetKey } from '@shared/stories/claims';
 import { StoryPublication } from '../review/review.model';
 import type { User } from '../users/user.model';
@@ -42,7 +43,8 @@ export interface PublishedClaim {
 export interface PublishedEvidence {
   buildId: number;
   claims: PublishedClaim[];
-  readings: (ReadingDto & { checked: CheckedRecord })[];
+  /** `heard`: what the clip's sound said near the reading's moment when it was published; absent from publications before it. */
+  readings: (ReadingDto & { checked: CheckedRecord; heard?: HeardWitness })[];
   clearances: (ClearanceDto & { checked: CheckedRecord })[];
 }
 
@@ -192,7 +194,16 @@ export function publicReading(r: PublishedEvidence['readings'][number], units: U
     warnings: r.warnings,
     moment: { momentId: r.momentId, clipId: r.clipId, clipTitle: r.clipTitle, atMs: r.atMs, ...publicClipUrls(r.clipId, r.atMs) },
     checked: publicCheck(r.checked),
+    ...(r.heard && { heard: publicHeard(r.heard) }),
   };
+}
+
+/**
+ * The witness as readers get it: its state, and for a figure heard, the words and when they were
+ * said (the moderator's line speaks of "the logged" figure; the page says it in its own words).
+ */
+function publicHeard(h: HeardWitness): NonNullable<PublicReading['heard']> {
+  return { state: h.state, ...(h.words !== undefined && { words: h.words }), ...(h.atMs !== undefined && { atMs: h.atMs }) };
 }
 
 function publicCheck(c: CheckedRecord) {

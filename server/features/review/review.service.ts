@@ -34,6 +34,7 @@ import { readingDtosForBuild } from '../readings/readings.service';
 import { Story } from '../stories/story.model';
 import { User } from '../users/user.model';
 import { changesRequestedMail, followerMails, publishedMail, submittedMails, withdrawnMail, type Person } from './review.emails';
+import { heardWitnesses } from './heard-witness';
 import { asPublished, changeSincePublished, publishedResult } from './published-change';
 import { CheckAnswer, EvidenceCheck, ReviewClaim, StoryPublication } from './review.model';
 
@@ -588,6 +589,8 @@ async function publish(story: Story, build: Build, moderator: User, judged: Judg
   };
   const readingByKey = new Map(e.citedReadings.map((r) => [r.key, r]));
   const clearanceByKey = new Map(e.citedClearances.map((c) => [c.key, c]));
+  // What was heard near each reading's moment when it was published, so readers see the witness as judged.
+  const heard = await heardWitnesses(e.citedReadings);
   const last = (await StoryPublication.max('number', { where: { storyId: story.id }, transaction })) as number | null;
   return StoryPublication.create(
     {
@@ -620,7 +623,7 @@ async function publish(story: Story, build: Build, moderator: User, judged: Judg
             checked: subject ? checked(c.kind, subject.id) : null,
           };
         }),
-        readings: e.citedReadings.map((r) => ({ ...r, checked: checked('reading', r.id) })),
+        readings: e.citedReadings.map((r) => ({ ...r, checked: checked('reading', r.id), heard: heard.get(r.id) })),
         clearances: e.citedClearances.map((c) => ({ ...c, checked: checked('clearance', c.id) })),
       },
       publishedBy: moderator.id,
@@ -708,6 +711,7 @@ export async function reviewSheet(storyId: number, user: User, deps: ReviewDeps)
   const holder = claim ? await User.findByPk(claim.moderatorId) : null;
   const isModerator = reviewers.has(user.role) && build.ownerId !== user.id;
   const compare = await comparePublished(story, e);
+  const heard = await heardWitnesses(e.citedReadings);
   return {
     story: {
       id: story.id,
@@ -729,6 +733,7 @@ export async function reviewSheet(storyId: number, user: User, deps: ReviewDeps)
       usedBy: e.citedClearances.filter((c) => c.terms.some((t) => t.readingId === r.id)).map((c) => ({ id: c.id, key: c.key, name: c.name, display: c.result?.display ?? null })),
       citedIn: sentences('reading', r.key),
       check: checkOf('reading', r.id),
+      heard: heard.get(r.id),
     })),
     clearances: e.citedClearances.map((c) => ({
       clearance: c,

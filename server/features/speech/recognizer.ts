@@ -49,6 +49,16 @@ export function recognizerFromConfig(speech: Config['speech']): Recognizer {
   return speech.command ? commandRecognizer(speech.command, speech.searchPath) : pocketsphinxRecognizer(speech.modelDir);
 }
 
+/**
+ * For an admin (`/api/health`): the recognizer the configuration names, and whether it can run
+ * here; `why` says what is missing (or that SPEECH=off) when it cannot.
+ */
+export function recognizerStatus(speech: Config['speech']): { name: string; available: boolean; why: string | null } {
+  const recognizer = recognizerFromConfig(speech);
+  const why = speech.enabled ? recognizer.unavailableBecause() : 'SPEECH=off: clips are not listened to';
+  return { name: recognizer.name, available: why === null, why };
+}
+
 // ---------------------------------------------------------------------------------------------
 // pocketsphinx
 

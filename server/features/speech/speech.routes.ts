@@ -2,19 +2,19 @@ import { Router } from 'express';
 import type { Logger } from 'pino';
 import { clipIdParamsSchema } from '@shared/clips/clip.schema';
 import { publicClipParamsSchema } from '@shared/public/public-story.schema';
-import type { ClipProposalsResponse, ClipWordsResponse, ListeningState } from '@shared/speech/speech.schema';
+import { proposalParamsSchema, type ClipProposalsResponse, type ClipWordsResponse, type ListeningState } from '@shared/speech/speech.schema';
 import type { Config } from '../../config';
 import { access } from '../../http/authorize';
 import { notFound } from '../../http/errors';
 import { validate } from '../../http/validate';
 import type { Queue } from '../../jobs/queue';
 import type { Clip } from '../clips/clip.model';
-import { clipForViewer } from '../clips/clips.service';
+import { clipForOwner, clipForViewer } from '../clips/clips.service';
 import { publicClipScope } from '../public/public.service';
 import { captionsVtt } from './captions';
 import { enqueueListen } from './listen.job';
 import { recognizerFromConfig } from './recognizer';
-import { listeningOf, proposalsFromWords, spokenFigureOptions, wordsForReaders } from './speech.service';
+import { dismissProposal, listeningOf, proposalsForClip, undismissProposal, wordsForReaders } from './speech.service';
 
 export interface SpeechRouteDeps {
   config: Config;
@@ -39,7 +39,10 @@ async function stateOf(deps: SpeechRouteDeps, clip: Clip): Promise<ListeningStat
   return state;
 }
 
-/** Routes under /api/clips/:clipId: the words heard in a clip, its captions and the readings they propose. */
+/**
+ * Routes under /api/clips/:clipId: the words heard in a clip, its captions and the readings they
+ * propose; its builder dismisses a proposal (and brings it back) there too.
+ */
 export function clipSpeechRouter(deps: SpeechRouteDeps) {
   const router = Router();
   const one = validate({ params: clipIdParamsSchema });
@@ -60,10 +63,24 @@ export function clipSpeechRouter(deps: SpeechRouteDeps) {
 
   router.get('/:clipId/proposals', access.signedIn, one, async (req, res) => {
     const clip = await clipForViewer(clipId(req), req.user);
-    const [state, words, opts] = await Promise.all([stateOf(deps, clip), wordsForReaders(clip.id), spokenFigureOptions(clip)]);
-    const body: ClipProposalsResponse = { state, items: proposalsFromWords(words, opts) };
+    const [state, items] = await Promise.all([stateOf(deps, clip), proposalsForClip(clip)]);
+    const body: ClipProposalsResponse = { state, items };
     res.set('Cache-Control', 'private, no-cache');
     res.json(body);
+  });
+
+  // Setting a proposal aside is the builder's choice about their own clip: only the build's
+  // builder (an admin passes the role check and is refused by buildForOwner; others' clips 404).
+  const proposal = validate({ params: proposalParamsSchema });
+  router.post('/:clipId/proposals/:proposalId/dismiss', access.role('builder'), proposal, async (req, res) => {
+    const clip = await clipForOwner(clipId(req), req.user);
+    await dismissProposal(clip, req.user!, String(req.params.proposalId));
+    res.status(204).end();
+  });
+  router.delete('/:clipId/proposals/:proposalId/dismiss', access.role('builder'), proposal, async (req, res) => {
+    const clip = await clipForOwner(clipId(req), req.user);
+    await undismissProposal(clip, String(req.params.proposalId));
+    res.status(204).end();
   });
 
   return router;

@@ -2,12 +2,15 @@ import { QueryTypes, type Transaction } from 'sequelize';
 import { quantityOf, unitsOf, type AnyUnit } from '@shared/measure/quantities';
 import type { ClipWord as ClipWordDto, ListeningState, SpeechProposal } from '@shared/speech/speech.schema';
 import { findSpokenFigures, type FindSpokenFiguresOptions } from '@shared/speech/spoken-figures';
+import { notFound } from '../../http/errors';
 import { Build } from '../builds/build.model';
 import { Instrument } from '../instruments/instrument.model';
 import { Clip } from '../clips/clip.model';
+import type { User } from '../users/user.model';
 import { cleanWord } from './captions';
+import { loggedReadingFor, type ClipReadingFigures } from './proposal-match';
 import type { RecognizedWord } from './recognizer';
-import { ClipWord } from './speech.model';
+import { ClipWord, ProposalDismissal } from './speech.model';
 
 const db = () => ClipWord.sequelize!;
 
@@ -125,9 +128,88 @@ export function proposalsFromWords(words: readonly ClipWordDto[], opts: FindSpok
       heard: f.words,
       unitHeard: f.unitHeard,
       ...(f.note ? { note: f.note } : {}),
+      dismissed: false,
+      logged: false,
     };
     return f.kind === 'value'
       ? { kind: 'value' as const, value: f.value, feel: f.feel, ...common }
       : { kind: 'bracket' as const, passes: f.passes, stops: f.stops, ...common };
   });
+}
+
+/** The readings logged at moments of the clip, with their instruments' resolutions. */
+async function clipReadingFigures(clipId: number): Promise<ClipReadingFigures[]> {
+  const rows = await db().query<{
+    id: number;
+    key: string;
+    kind: ClipReadingFigures['kind'];
+    unit: ClipReadingFigures['unit'];
+    value: string | null;
+    passes: string | null;
+    stops: string | null;
+    repeated_values: string[] | null;
+    at_ms: number;
+    resolution: string;
+    resolution_unit: ClipReadingFigures['unit'];
+  }>(
+    `SELECT r.id, r.key, r.kind, r.unit, r.value, r.passes, r.stops, r.repeated_values, m.at_ms,
+            i.resolution, i.unit AS resolution_unit
+       FROM readings r
+       JOIN moments m ON m.id = r.moment_id
+       JOIN instruments i ON i.id = r.instrument_id
+      WHERE m.clip_id = :clipId`,
+    { type: QueryTypes.SELECT, replacements: { clipId } },
+  );
+  return rows.map((r) => ({
+    id: r.id,
+    key: r.key,
+    kind: r.kind,
+    unit: r.unit,
+    value: r.value,
+    passes: r.passes,
+    stops: r.stops,
+    repeatedValues: r.repeated_values,
+    atMs: r.at_ms,
+    resolution: r.resolution,
+    resolutionUnit: r.resolution_unit,
+  }));
+}
+
+/**
+ * The clip's proposals as its proposals route answers them: what its words propose with its
+ * builder's units, each marked `dismissed` when the builder set it aside and `logged` (with the
+ * reading's key) when a reading near its time already holds its figure (`loggedReadingFor`).
+ */
+export async function proposalsForClip(clip: Pick<Clip, 'id' | 'buildId'>): Promise<SpeechProposal[]> {
+  const [words, opts, dismissals, readings] = await Promise.all([
+    wordsForReaders(clip.id),
+    spokenFigureOptions(clip),
+    ProposalDismissal.findAll({ where: { clipId: clip.id }, attributes: ['proposalId'] }),
+    clipReadingFigures(clip.id),
+  ]);
+  const dismissed = new Set(dismissals.map((d) => d.proposalId));
+  return proposalsFromWords(words, opts).map((p) => {
+    const reading = loggedReadingFor(p, readings);
+    return {
+      ...p,
+      dismissed: dismissed.has(p.id),
+      ...(reading ? { logged: true, readingKey: reading.key, readingId: reading.id } : {}),
+    };
+  });
+}
+
+/**
+ * Sets a proposal of the clip aside for its builder (again is harmless). Only a proposal the
+ * clip's words make now can be dismissed: any other id is not found.
+ */
+export async function dismissProposal(clip: Pick<Clip, 'id' | 'buildId'>, user: User, proposalId: string): Promise<void> {
+  const words = await wordsForReaders(clip.id);
+  const exists = proposalsFromWords(words, await spokenFigureOptions(clip)).some((p) => p.id === proposalId);
+  if (!exists) throw notFound('This clip has no proposed reading with that id; its words may have been heard again.');
+  await ProposalDismissal.bulkCreate([{ clipId: clip.id, proposalId, dismissedBy: user.id }], { ignoreDuplicates: true });
+}
+
+/** Brings a dismissed proposal back (harmless when it was not dismissed, or is gone). */
+export async function undismissProposal(clip: Pick<Clip, 'id'>, proposalId: string): Promise<void> {
+  await ProposalDismissal.destroy({ where: { clipId: clip.id, proposalId } });
 }

@@ -6,6 +6,8 @@ import { listRoutes } from '../../../server/http/routes';
 import { Follow } from '../../../server/features/follows/follow.model';
 import { Question } from '../../../server/features/questions/question.model';
 import { ClipUpload } from '../../../server/features/clips/clip-upload.model';
+import { ProposalDismissal } from '../../../server/features/speech/speech.model';
+import { listeningOf, storeClipWords } from '../../../server/features/speech/speech.service';
 import { makeTestClip } from '../../support/clips';
 import {
   actors,
@@ -104,6 +106,10 @@ const TABLE: Record<string, Expected> = {
   'GET /api/clips/:clipId/words':            { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   'GET /api/clips/:clipId/captions.vtt':     { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   'GET /api/clips/:clipId/proposals':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  // Setting a proposed reading aside and bringing it back: the build's builder only, as for
+  // marking a moment (an admin passes the role check and is refused there; others' clips 404).
+  'POST /api/clips/:clipId/proposals/:proposalId/dismiss':   { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
+  'DELETE /api/clips/:clipId/proposals/:proposalId/dismiss': { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
 
   // Moments: changed through their clip's build.
   'PATCH /api/moments/:momentId':            { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
@@ -292,6 +298,34 @@ async function lockVersionAt(url: string, field: string): Promise<number> {
 
 const clip = () => ({ file: clipFile, name: 'matrix-upload.mp4' });
 
+/**
+ * The proposal the dismiss rows name: "three thou" heard at 1 s in the fixture clip (its words
+ * are stored directly once the worker has listened to the clip's tone).
+ */
+const MATRIX_PROPOSAL_ID = '1000-0';
+const dismissalOfMatrixProposal = () => ProposalDismissal.findOne({ where: { clipId: fx.clipId, proposalId: MATRIX_PROPOSAL_ID } });
+async function setMatrixProposalDismissed(dismissed: boolean) {
+  if (!dismissed) await ProposalDismissal.destroy({ where: { clipId: fx.clipId, proposalId: MATRIX_PROPOSAL_ID } });
+  else await ProposalDismissal.bulkCreate([{ clipId: fx.clipId, proposalId: MATRIX_PROPOSAL_ID, dismissedBy: fx.actorIds.owner }], { ignoreDuplicates: true });
+}
+
+/** Waits until the worker is done with the fixture clip's sound, then gives it the words the dismiss rows need. */
+async function giveFixtureClipWords() {
+  const end = Date.now() + 60_000;
+  for (;;) {
+    // Asking for the words queues a clip nobody has listened to yet.
+    await sessions.owner.agent.get(`/api/clips/${fx.clipId}/words`).expect(200);
+    const state = (await listeningOf(fx.clipId))?.state;
+    if (state === 'ready' || state === 'failed' || state === 'unavailable') break;
+    if (Date.now() > end) throw new Error(`the fixture clip is still ${state} after a minute`);
+    await new Promise((r) => setTimeout(r, 250));
+  }
+  await storeClipWords(fx.clipId, [
+    { word: 'three', startMs: 1000, endMs: 1200, confidence: 0.9 },
+    { word: 'thou', startMs: 1250, endMs: 1500, confidence: 0.9 },
+  ]);
+}
+
 /** The owner's resumable upload every actor asks about and continues, and one per actor to cancel. */
 const uploads = { url: '', id: '', toCancel: {} as Record<Actor, string>, offsetBefore: 0 };
 const tusHeaders = { 'Tus-Resumable': '1.0.0' };
@@ -357,6 +391,8 @@ const SHAPES: Record<string, Shape> = {
   'DELETE /api/clips/:clipId': { params: (actor) => ({ clipId: fx.clipToDelete[actor] }) },
   'GET /api/clips/:clipId/frame': { query: () => '?t=0.5' },
   'POST /api/clips/:clipId/moments': { body: () => ({ atMs: 100 }) },
+  'POST /api/clips/:clipId/proposals/:proposalId/dismiss': { before: () => setMatrixProposalDismissed(false) },
+  'DELETE /api/clips/:clipId/proposals/:proposalId/dismiss': { before: () => setMatrixProposalDismissed(true) },
   'PATCH /api/moments/:momentId': { body: () => ({ label: 'Matrix check label' }) },
   'DELETE /api/moments/:momentId': { params: (actor) => ({ momentId: fx.momentToDelete[actor] }) },
 
@@ -470,6 +506,7 @@ function fill(routePath: string, actor: Actor, shape: Shape): string {
     partId: fx.published.partId,
     questionId: fx.published.questionId,
     uploadId: uploads.id,
+    proposalId: MATRIX_PROPOSAL_ID,
     ...shape.params?.(actor),
   };
   return routePath.replace(/:(\w+)/g, (_, name: string) => {
@@ -539,6 +576,15 @@ const EFFECTS: Record<string, (actor: Actor, status: number, s: Session, res: { 
     await headUpload(sessions.owner.agent, `/api/builds/${fx.buildId}/uploads/${uploads.toCancel[actor]}`).expect(status === 204 ? 404 : 200);
   },
   'DELETE /api/clips/:clipId': (actor, status) => stillThere(`/api/clips/${fx.clipToDelete[actor]}`, status === 204),
+  // A dismissal is there after the builder's POST and gone after their DELETE; a refusal left it as it was.
+  'POST /api/clips/:clipId/proposals/:proposalId/dismiss': async (_actor, status) => {
+    const row = await dismissalOfMatrixProposal();
+    if (status === 204) expect(row?.dismissedBy).toBe(fx.actorIds.owner);
+    else expect(row).toBeNull();
+  },
+  'DELETE /api/clips/:clipId/proposals/:proposalId/dismiss': async (_actor, status) => {
+    expect(await dismissalOfMatrixProposal()).toEqual(status === 204 ? null : expect.anything());
+  },
   'DELETE /api/moments/:momentId': async (actor, status) => {
     const list = await sessions.owner.agent.get(`/api/clips/${fx.clipId}/moments`).expect(200);
     const ids = (list.body.items as { id: number }[]).map((m) => m.id);
@@ -670,6 +716,7 @@ beforeAll(async () => {
   const opened = await Promise.all(actors.map((actor) => sessionFor(t, actor)));
   actors.forEach((actor, i) => (sessions[actor] = opened[i]!));
   fx = await buildMatrixFixtures(t, sessions, { clip: clipFile, image: pngFile });
+  await giveFixtureClipWords();
   const startUpload = async () => {
     const res = await createUpload(sessions.owner.agent, sessions.owner.token, fx.buildId, 1000, 'matrix-resumable.mp4').expect(201);
     return res.headers.location!.split('/').pop()!;

@@ -1,33 +1,28 @@
-import { execFile } from 'node:child_process';
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import { promisify } from 'node:util';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { WebVTTParser, type Entity } from 'webvtt-parser';
 import htmlEntities from 'webvtt-parser/html-entities.json';
 import { clipSchema } from '@shared/clips/clip.schema';
-import { clipProposalsResponseSchema, clipWordsResponseSchema, type ClipWordsResponse } from '@shared/speech/speech.schema';
+import { clipProposalsResponseSchema, type ClipWordsResponse } from '@shared/speech/speech.schema';
 import { Fraction, fractionToExactText } from '@shared/measure/exact';
 import { convertExact } from '@shared/measure/quantities';
-import { mediaBinaries } from '../../../server/features/clips/media/binaries';
 import { makeTestClip } from '../../support/clips';
+import { makeNarratedClip, waitForListening } from '../../support/narration';
 import { csrfToken, signIn, startTestApp, type TestApp } from '../../support/test-app';
 
 /*
- * Listening end to end: a clip narrated by festival's US English voice is uploaded through the
- * API; once processed, the worker takes its sound out with ffmpeg and pocketsphinx (Debian's,
- * installed by `npm test`) hears it. Nothing here is skipped when the recognizer is missing: the
+ * Listening end to end: a clip narrated by festival's US English voice (tests/support/narration.ts)
+ * is uploaded through the API; once processed, the worker takes its sound out with ffmpeg and
+ * pocketsphinx (Debian's, installed by `npm test`) hears it. Nothing here is skipped when the recognizer is missing: the
  * product's own bootstrap installs it, so its absence is a failure.
  *
  * "five hundred sixty four and two tenths" is 564.2 thou = 0.5642 in: thou and tenths as the
  * trade says them, common practice (no published source); 1 in = 1000 thou by NIST SP 811 B.8.
  */
 
-const run = promisify(execFile);
-const TEXT2WAVE = '/usr/bin/text2wave';
-const VOICE = '(voice_cmu_us_slt_arctic_hts)';
 /** Where each phrase starts in the clip, seconds. */
 const PHRASE_AT = { opening: 1, figure: 4 } as const;
 const CLIP_SECONDS = 8;
@@ -38,97 +33,21 @@ let builder: Awaited<ReturnType<typeof signIn>>;
 let token: string;
 let buildId: number;
 
-/** The 16-bit mono samples of a RIFF WAV file and its sample rate (the data chunk found by walking the chunks). */
-function readWav(file: string): { rate: number; samples: Buffer } {
-  const buf = fs.readFileSync(file);
-  if (buf.toString('latin1', 0, 4) !== 'RIFF' || buf.toString('latin1', 8, 12) !== 'WAVE') throw new Error(`${file} is not a WAV file`);
-  let rate = 0;
-  for (let at = 12; at + 8 <= buf.length; ) {
-    const id = buf.toString('latin1', at, at + 4);
-    const size = buf.readUInt32LE(at + 4);
-    if (id === 'fmt ') {
-      const channels = buf.readUInt16LE(at + 10);
-      const bits = buf.readUInt16LE(at + 22);
-      if (channels !== 1 || bits !== 16) throw new Error(`${file}: expected 16-bit mono, got ${bits}-bit × ${channels}`);
-      rate = buf.readUInt32LE(at + 12);
-    }
-    if (id === 'data') return { rate, samples: buf.subarray(at + 8, at + 8 + size) };
-    at += 8 + size + (size % 2);
-  }
-  throw new Error(`${file} has no data chunk`);
-}
-
-/** A 16-bit mono WAV of `seconds` of silence with each phrase's samples placed at its time. */
-function writeNarration(file: string, seconds: number, phrases: { atS: number; wav: string }[]) {
-  const parts = phrases.map((p) => ({ ...p, ...readWav(p.wav) }));
-  const rate = parts[0]!.rate;
-  const data = Buffer.alloc(Math.round(seconds * rate) * 2);
-  for (const p of parts) {
-    if (p.rate !== rate) throw new Error('the phrases differ in sample rate');
-    p.samples.copy(data, Math.round(p.atS * rate) * 2);
-  }
-  const header = Buffer.alloc(44);
-  header.write('RIFF', 0, 'latin1');
-  header.writeUInt32LE(36 + data.length, 4);
-  header.write('WAVEfmt ', 8, 'latin1');
-  header.writeUInt32LE(16, 16);
-  header.writeUInt16LE(1, 20); // PCM
-  header.writeUInt16LE(1, 22); // mono
-  header.writeUInt32LE(rate, 24);
-  header.writeUInt32LE(rate * 2, 28);
-  header.writeUInt16LE(2, 32);
-  header.writeUInt16LE(16, 34);
-  header.write('data', 36, 'latin1');
-  header.writeUInt32LE(data.length, 40);
-  fs.writeFileSync(file, Buffer.concat([header, data]));
-}
-
-/** Festival's US English voice saying `text`, as a 16 kHz WAV. */
-async function say(text: string, name: string): Promise<string> {
-  if (!fs.existsSync(TEXT2WAVE)) throw new Error(`${TEXT2WAVE} is missing: npm test installs festival and festvox-us-slt-hts (scripts/lib/speech.ts)`);
-  const txt = path.join(work, `${name}.txt`);
-  const wav = path.join(work, `${name}.wav`);
-  fs.writeFileSync(txt, `${text}\n`);
-  await run(TEXT2WAVE, ['-F', '16000', '-eval', VOICE, '-o', wav, txt]);
-  return wav;
-}
-
 /** An 8 s test-pattern MP4 (H.264 + AAC) whose sound says the two phrases at their times. */
-async function makeNarratedClip(): Promise<string> {
-  const narration = path.join(work, 'narration.wav');
-  writeNarration(narration, CLIP_SECONDS, [
-    { atS: PHRASE_AT.opening, wav: await say('the depth reads', 'opening') },
-    { atS: PHRASE_AT.figure, wav: await say('five hundred sixty four and two tenths', 'figure') },
-  ]);
-  const file = path.join(work, 'narrated.mp4');
-  await run(mediaBinaries().ffmpeg, [
-    '-v', 'error', '-y',
-    '-f', 'lavfi', '-i', `testsrc=size=320x240:rate=30:duration=${CLIP_SECONDS}`,
-    '-i', narration,
-    '-map', '0:v', '-map', '1:a',
-    '-c:v', 'libx264', '-preset', 'veryfast', '-pix_fmt', 'yuv420p',
-    '-c:a', 'aac', '-ar', '48000', '-ac', '2',
-    '-t', String(CLIP_SECONDS), '-movflags', '+faststart', '-f', 'mp4', file,
-  ]);
-  return file;
+function makeFigureClip(): Promise<string> {
+  return makeNarratedClip({
+    dir: work,
+    seconds: CLIP_SECONDS,
+    phrases: [
+      { atS: PHRASE_AT.opening, text: 'the depth reads' },
+      { atS: PHRASE_AT.figure, text: 'five hundred sixty four and two tenths' },
+    ],
+  });
 }
 
 async function upload(file: string, agent = builder, tok = token, build = buildId): Promise<number> {
   const res = await agent.post(`/api/builds/${build}/clips`).set('x-csrf-token', tok).attach('file', file, path.basename(file)).expect(201);
   return clipSchema.parse(res.body.clip).id;
-}
-
-/** Waits until the clip is processed and listened to (or listening ended otherwise); the words as the API gives them. */
-async function waitForListening(agent: typeof builder, clipId: number, ms = 120_000): Promise<ClipWordsResponse> {
-  const end = Date.now() + ms;
-  for (;;) {
-    const clip = clipSchema.parse((await agent.get(`/api/clips/${clipId}`).expect(200)).body.clip);
-    if (clip.status === 'failed') throw new Error(`clip ${clipId} failed: ${clip.failureReason}`);
-    const words = clipWordsResponseSchema.parse((await agent.get(`/api/clips/${clipId}/words`).expect(200)).body);
-    if (clip.status === 'ready' && !['pending', 'listening'].includes(words.state)) return words;
-    if (Date.now() > end) throw new Error(`clip ${clipId} is ${clip.status}, listening ${words.state}, after ${ms} ms`);
-    await new Promise((r) => setTimeout(r, 250));
-  }
 }
 
 function parseVtt(text: string) {
@@ -158,7 +77,7 @@ describe('a clip read aloud', () => {
   let heard: ClipWordsResponse;
 
   beforeAll(async () => {
-    clipId = await upload(await makeNarratedClip());
+    clipId = await upload(await makeFigureClip());
     const started = Date.now();
     heard = await waitForListening(builder, clipId);
     // For the report: upload to words, on this machine.

@@ -151,3 +151,28 @@ export function useDeleteMoment(clipId: number) {
     },
   });
 }
+
+/**
+ * POST (dismiss) or DELETE (bring back) /api/clips/:clipId/proposals/:proposalId/dismiss.
+ * Optimistic: the list marks it at once and goes back if the server refuses.
+ */
+export function useSetProposalDismissed(clipId: number) {
+  const queryClient = useQueryClient();
+  const key = clipQueries.proposals(clipId).queryKey;
+  return useMutation({
+    mutationFn: ({ proposalId, dismissed }: { proposalId: string; dismissed: boolean }) =>
+      apiFetch(`/api/clips/${clipId}/proposals/${encodeURIComponent(proposalId)}/dismiss`, { method: dismissed ? 'POST' : 'DELETE' }),
+    onMutate: async ({ proposalId, dismissed }) => {
+      await queryClient.cancelQueries({ queryKey: key });
+      const previous = queryClient.getQueryData(key);
+      if (previous) {
+        queryClient.setQueryData(key, { ...previous, items: previous.items.map((p) => (p.id === proposalId ? { ...p, dismissed } : p)) });
+      }
+      return { previous };
+    },
+    onError: (_error, _vars, context) => {
+      if (context?.previous) queryClient.setQueryData(key, context.previous);
+    },
+    onSettled: () => queryClient.invalidateQueries({ queryKey: key }),
+  });
+}

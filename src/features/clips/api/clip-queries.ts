@@ -1,11 +1,15 @@
 import { queryOptions } from '@tanstack/react-query';
 import { clipListResponseSchema, momentListResponseSchema } from '@shared/clips/clip.schema';
+import { clipProposalsResponseSchema } from '@shared/speech/speech.schema';
 import { apiFetch } from '@/lib/api';
 import { queryClient } from '@/lib/query-client';
 import { isInProgress } from '../lib/clip-format';
 
 /** How often to ask again while a clip is uploading or processing. */
 export const CLIP_POLL_MS = 1000;
+
+/** How often to ask again while a clip's sound waits to be listened to or is being listened to. */
+export const LISTEN_POLL_MS = 2000;
 
 /** Mutation keys, so polling can hold off while the order is being saved. */
 export const clipMutationKeys = {
@@ -39,6 +43,21 @@ export const clipQueries = {
       queryFn: async ({ signal }) => {
         const { items } = await apiFetch(`/api/clips/${clipId}/moments`, { schema: momentListResponseSchema, signal });
         return items;
+      },
+    }),
+  /** Every clip's proposals (what readings change: a proposal is marked logged). */
+  allProposals: ['clips', 'proposals'] as const,
+  /**
+   * The readings heard in a clip's sound, with where listening stands; asks again every two
+   * seconds while it waits or listens (the server queues a clip nobody listened to yet).
+   */
+  proposals: (clipId: number) =>
+    queryOptions({
+      queryKey: [...clipQueries.all, 'proposals', clipId] as const,
+      queryFn: ({ signal }) => apiFetch(`/api/clips/${clipId}/proposals`, { schema: clipProposalsResponseSchema, signal }),
+      refetchInterval: (query) => {
+        const state = query.state.data?.state;
+        return state === 'pending' || state === 'listening' ? LISTEN_POLL_MS : false;
       },
     }),
 };

@@ -1,6 +1,7 @@
 import { useCallback, useEffect, useId, useRef, useState, type KeyboardEvent } from 'react';
 import { useQuery } from '@tanstack/react-query';
 import type { Clip } from '@shared/clips/clip.schema';
+import type { SpeechProposal } from '@shared/speech/speech.schema';
 import { Button } from '@/components/ui/button';
 import { Input } from '@/components/ui/field';
 import { useToast } from '@/components/ui/toast';
@@ -9,7 +10,9 @@ import { cn } from '@/lib/cn';
 import { useCreateMoment } from '../api/clip-mutations';
 import { clipQueries } from '../api/clip-queries';
 import { formatFrameRate, formatResolution, formatTime, frameDuration, frameIndexAt, spokenTime } from '../lib/clip-format';
-import { isShortcut, keyLabel, usePlayerShortcuts } from '../lib/player-shortcuts';
+import { heardFiguresOf, type HeardFigures } from '../lib/heard';
+import { isShortcut, keyLabel, useHeardShortcuts, usePlayerShortcuts } from '../lib/player-shortcuts';
+import { HeardList } from './heard-list';
 import { MomentsList } from './moments-list';
 import { ScrubStrip } from './scrub-strip';
 import { ShortcutSettings } from './shortcut-settings';
@@ -22,6 +25,11 @@ const LEAD_IN_S = 3;
 export interface LogReadingAt {
   atMs: number;
   momentId: number | null;
+  /**
+   * A proposal heard in the clip's sound, accepted: the form opens filled in with its figures,
+   * and (with no moment there yet) marks the moment at `atMs` only when the reading is saved.
+   */
+  heard?: HeardFigures;
 }
 
 export interface ClipPlayerProps {
@@ -60,6 +68,7 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
   const createMoment = useCreateMoment(clip.id);
   const moments = useQuery(clipQueries.moments(clip.id));
   const [shortcuts, setShortcuts] = usePlayerShortcuts();
+  const [heardKeys, setHeardKeys] = useHeardShortcuts();
   const markKey = keyLabel(shortcuts.mark);
   const readingKey = keyLabel(shortcuts.reading);
 
@@ -201,6 +210,16 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
     const frameIndex = frameIndexAt(video.currentTime, fps);
     const existing = moments.data?.find((m) => frameIndexAt(m.atMs / 1000, fps) === frameIndex) ?? null;
     onLogReading({ atMs: existing?.atMs ?? atMs, momentId: existing?.id ?? null });
+  }
+
+  /** Accepting a proposal heard at its start: the player goes there and the form opens filled in (a moment on that frame is reused). */
+  function acceptHeard(proposal: SpeechProposal) {
+    if (!onLogReading) return;
+    videoRef.current?.pause();
+    seek(proposal.startMs / 1000, true);
+    const frameIndex = frameIndexAt(proposal.startMs / 1000, fps);
+    const existing = moments.data?.find((m) => frameIndexAt(m.atMs / 1000, fps) === frameIndex) ?? null;
+    onLogReading({ atMs: existing?.atMs ?? proposal.startMs, momentId: existing?.id ?? null, heard: heardFiguresOf(proposal) });
   }
 
   function onRegionKeyDown(event: KeyboardEvent<HTMLElement>) {
@@ -426,9 +445,26 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
           <p id={shortcutId} className="min-w-0 flex-1 basis-64 text-xs text-ink-muted" aria-live="off">
             {keysHint}
           </p>
-          <ShortcutSettings settings={shortcuts} onSave={setShortcuts} withReading={!!onLogReading} className="-my-1 h-7 px-2 text-xs" />
+          <ShortcutSettings
+            settings={shortcuts}
+            onSave={setShortcuts}
+            withReading={!!onLogReading}
+            heard={onLogReading ? { settings: heardKeys, onSave: setHeardKeys } : undefined}
+            className="-my-1 h-7 px-2 text-xs"
+          />
         </div>
       </div>
+
+      <HeardList
+        clip={clip}
+        shortcuts={shortcuts}
+        keys={heardKeys}
+        onSeek={(seconds) => {
+          videoRef.current?.pause();
+          seek(seconds, true);
+        }}
+        onAccept={onLogReading && acceptHeard}
+      />
 
       <MomentsList
         clip={clip}

@@ -18,12 +18,16 @@ export const SHORTCUTS_STORAGE_KEY = 'benchproof.player-shortcuts';
 // keyboard actually sends. Space, punctuation and symbols are left to the browser and our own keys.
 const ONE_KEY = /^[\p{L}\p{N}]$/u;
 
-/** Why `key` cannot be a shortcut (in words for the builder), or null when it can. */
-export function shortcutKeyProblem(key: string, other?: string): string | null {
+/**
+ * Why `key` cannot be a shortcut (in words for the builder), or null when it can; `other` is the
+ * key (or keys) already given to other shortcuts.
+ */
+export function shortcutKeyProblem(key: string, other?: string | readonly string[]): string | null {
   const k = key.trim().toLowerCase();
   if (!k) return 'Type the key to use.';
   if ([...k].length !== 1 || !ONE_KEY.test(k)) return 'Use one letter or digit.';
-  if (other !== undefined && k === other.trim().toLowerCase()) return 'The two shortcuts need different keys.';
+  const others = other === undefined ? [] : typeof other === 'string' ? [other] : other;
+  if (others.some((o) => k === o.trim().toLowerCase())) return 'The two shortcuts need different keys.';
   return null;
 }
 
@@ -61,6 +65,47 @@ export function isShortcut(event: { key: string; ctrlKey: boolean; altKey: boole
   return event.key.toLowerCase() === key;
 }
 
+/**
+ * The keys of the "Heard on this clip" list, which work while the list has focus: accept the
+ * selected proposal (opens the reading form filled in), dismiss it, undo the last dismissal.
+ * They follow the player's `enabled` switch; Enter and Delete (not character keys) and the
+ * arrows stay on, as Space and the arrows do on the picture.
+ */
+export interface HeardShortcuts {
+  accept: string;
+  dismiss: string;
+  undo: string;
+}
+
+export const defaultHeardShortcuts: HeardShortcuts = Object.freeze({ accept: 'a', dismiss: 'd', undo: 'u' });
+
+/** Where the list's keys are kept, per browser, beside the player's. */
+export const HEARD_SHORTCUTS_STORAGE_KEY = 'benchproof.heard-shortcuts';
+
+/**
+ * The stored text as the list's keys; anything missing or invalid falls back to its default, and
+ * a key that repeats another of the list's (or the player's mark and reading keys) brings all three
+ * back to A, D and U.
+ */
+export function parseHeardShortcuts(text: string | null, player: Pick<PlayerShortcuts, 'mark' | 'reading'> = defaultShortcuts): HeardShortcuts {
+  let raw: unknown;
+  try {
+    raw = text ? JSON.parse(text) : null;
+  } catch {
+    raw = null;
+  }
+  const stored = raw && typeof raw === 'object' ? (raw as Record<string, unknown>) : {};
+  const keyOr = (value: unknown, fallback: string) =>
+    typeof value === 'string' && shortcutKeyProblem(value) === null ? value.toLowerCase() : fallback;
+  const parsed = {
+    accept: keyOr(stored.accept, defaultHeardShortcuts.accept),
+    dismiss: keyOr(stored.dismiss, defaultHeardShortcuts.dismiss),
+    undo: keyOr(stored.undo, defaultHeardShortcuts.undo),
+  };
+  const keys = [parsed.accept, parsed.dismiss, parsed.undo, player.mark, player.reading];
+  return new Set(keys).size === keys.length ? parsed : defaultHeardShortcuts;
+}
+
 const listeners = new Set<() => void>();
 let cachedText: string | null | undefined;
 let cached: PlayerShortcuts = defaultShortcuts;
@@ -85,11 +130,34 @@ function snapshot(): PlayerShortcuts {
   return cached;
 }
 
+let heardUnstored: string | null = null;
+let heardCachedText: string | null | undefined;
+let heardCachedPlayer: PlayerShortcuts | undefined;
+let heardCached: HeardShortcuts = defaultHeardShortcuts;
+
+function heardSnapshot(): HeardShortcuts {
+  let text: string | null = heardUnstored;
+  if (text === null) {
+    try {
+      text = window.localStorage.getItem(HEARD_SHORTCUTS_STORAGE_KEY);
+    } catch {
+      text = null;
+    }
+  }
+  const player = snapshot();
+  if (text !== heardCachedText || player !== heardCachedPlayer) {
+    heardCachedText = text;
+    heardCachedPlayer = player;
+    heardCached = parseHeardShortcuts(text, player);
+  }
+  return heardCached;
+}
+
 function subscribe(onChange: () => void): () => void {
   listeners.add(onChange);
   // Another tab changed them.
   const onStorage = (event: StorageEvent) => {
-    if (event.key === SHORTCUTS_STORAGE_KEY || event.key === null) onChange();
+    if (event.key === SHORTCUTS_STORAGE_KEY || event.key === HEARD_SHORTCUTS_STORAGE_KEY || event.key === null) onChange();
   };
   window.addEventListener('storage', onStorage);
   return () => {
@@ -108,6 +176,25 @@ export function saveShortcuts(next: PlayerShortcuts): void {
     unstored = text;
   }
   for (const listener of listeners) listener();
+}
+
+/** Stores the "Heard on this clip" list's keys for this browser and tells every list on the page. */
+export function saveHeardShortcuts(next: HeardShortcuts): void {
+  const text = JSON.stringify({ accept: next.accept.toLowerCase(), dismiss: next.dismiss.toLowerCase(), undo: next.undo.toLowerCase() });
+  try {
+    window.localStorage.setItem(HEARD_SHORTCUTS_STORAGE_KEY, text);
+    heardUnstored = null;
+  } catch {
+    heardUnstored = text;
+  }
+  for (const listener of listeners) listener();
+}
+
+/** The "Heard on this clip" list's keys for this browser (on or off with the player's), and a setter that stores them. */
+export function useHeardShortcuts(): [HeardShortcuts, (next: HeardShortcuts) => void] {
+  const settings = useSyncExternalStore(subscribe, heardSnapshot, () => defaultHeardShortcuts);
+  const set = useCallback((next: HeardShortcuts) => saveHeardShortcuts(next), []);
+  return [settings, set];
 }
 
 /** The player's shortcut settings for this browser, and a setter that stores them. */

@@ -34,6 +34,37 @@ export function enteredText(reading: PublicReading): string {
   return typedIn(reading.value ?? '?', reading.unit);
 }
 
+/**
+ * "Heard on the clip": the builder was heard saying the figure logged near the reading's moment
+ * when it was published. Shown only when it agreed; anything else says nothing to a reader.
+ */
+function HeardOnClip({ reading }: { reading: PublicReading }) {
+  const heard = reading.heard;
+  if (heard?.state !== 'agrees') return null;
+  return (
+    <p className="flex items-start gap-1.5 text-xs text-ink-muted" data-heard-on-clip="">
+      <svg viewBox="0 0 16 16" className="mt-0.5 size-3.5 shrink-0 text-verdict-conforms" aria-hidden="true">
+        <path d="M3 6v4M6 3.5v9M9 5v6M12 2.5v11" fill="none" stroke="currentColor" strokeWidth="1.6" strokeLinecap="round" />
+      </svg>
+      <span>
+        Heard on the clip
+        {heard.words && (
+          <>
+            : “<span className="text-ink">{heard.words}</span>”
+          </>
+        )}
+        {heard.atMs !== undefined && (
+          <>
+            {' '}
+            at <span className="figures">{formatTime(heard.atMs / 1000)}</span>
+          </>
+        )}
+        , the figure logged.
+      </span>
+    </p>
+  );
+}
+
 /** Whether a published result is a length (older publications carry no quantity: they are). */
 function isLengthResult(c: PublicClearance): boolean {
   return isLengthQuantity(c.quantity) && isLengthUnit(c.unit);
@@ -296,6 +327,7 @@ function ReadingCard({
           {reading.name}
         </p>
         <Figure shown={readingShown(reading)} system={system} size="sm" />
+        <HeardOnClip reading={reading} />
         <p className="text-xs text-ink-muted">
           As entered: <span className="figures text-ink">{enteredText(reading)}</span>
           {reading.zeroCheck && (

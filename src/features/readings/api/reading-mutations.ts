@@ -6,6 +6,7 @@ import {
   type ReadingInput,
   type ReadingPatch,
 } from '@shared/readings/reading.schema';
+import { clipQueries } from '@/features/clips/api/clip-queries';
 import { apiFetch } from '@/lib/api';
 import { readingQueries } from './reading-queries';
 
@@ -22,6 +23,8 @@ async function refreshAfterChange(queryClient: QueryClient) {
   await Promise.all([
     queryClient.invalidateQueries({ queryKey: readingQueries.all }),
     queryClient.invalidateQueries({ queryKey: CLEARANCES_ROOT }),
+    // A proposal heard in a clip is marked logged by a reading near its time.
+    queryClient.invalidateQueries({ queryKey: clipQueries.allProposals }),
   ]);
 }
 

@@ -23,6 +23,7 @@ import { useToast } from '@/components/ui/toast';
 import { useCreateMoment, useDeleteMoment, useUpdateMoment } from '@/features/clips/api/clip-mutations';
 import { clipQueries } from '@/features/clips/api/clip-queries';
 import type { LogReadingAt } from '@/features/clips/components/clip-player';
+import { confidenceWord, type HeardFigures } from '@/features/clips/lib/heard';
 import { nudgedAtMs } from '@/features/clips/components/moments-list';
 import { formatTime, frameDuration, frameIndexAt } from '@/features/clips/lib/clip-format';
 import { ApiError, errorMessage } from '@/lib/api';
@@ -35,6 +36,8 @@ import { readingInstrumentsQuery, readingQueries } from '../api/reading-queries'
 import {
   blankReadingForm,
   defaultKindFor,
+  instrumentForHeard,
+  withHeardFigures,
   figuresOf,
   formPathOf,
   kindsFor,
@@ -120,8 +123,9 @@ export function ReadingForm({ build, clip, at, onSeek, onSaved, onClose }: Readi
           ✕
         </Button>
       </header>
+      {at.heard && <HeardNotice heard={at.heard} atMs={at.atMs} />}
       <MomentPicker clip={clip} at={at} onSeek={onSeek} onCancelled={onClose}>
-        {(momentId, cancel, moment) =>
+        {(momentId, cancel, moment, pending) =>
           instruments.isPending ? (
             <LoadingState label="Loading your instruments…" className="py-3" />
           ) : !instruments.data ? (
@@ -144,6 +148,8 @@ export function ReadingForm({ build, clip, at, onSeek, onSaved, onClose }: Readi
               instruments={usable}
               momentId={momentId}
               momentLabel={moment?.label ?? ''}
+              pendingMoment={pending}
+              heard={at.heard}
               onSaved={onSaved}
               onCancel={cancel}
             />
@@ -154,9 +160,31 @@ export function ReadingForm({ build, clip, at, onSeek, onSaved, onClose }: Readi
   );
 }
 
+/** What was heard, above the form it filled in: the form's figures are a proposal until saved. */
+function HeardNotice({ heard, atMs }: { heard: HeardFigures; atMs: number }) {
+  return (
+    <p className="rounded-md border border-accent/40 bg-accent-wash/50 px-2 py-1.5 text-xs text-ink" data-heard-filled="">
+      Filled in from what was heard at <span className="figures">{formatTime(atMs / 1000)}</span>: “{heard.words}” ({confidenceWord(heard.confidence)}).
+      Check the figures against the footage; nothing is saved until you save the reading.
+    </p>
+  );
+}
+
 /**
- * The moment the reading belongs to: marks one at the opening time when none was given, shows
- * its evidence still, and moves it (typed time or ±1 frame). Cancel takes back a moment it marked.
+ * A moment still to be marked: the time chosen, marked only when the reading is saved (a form
+ * filled in from what was heard stores nothing before that). `mark` marks it; `unmark` takes it
+ * back when the reading is then refused.
+ */
+export interface PendingMoment {
+  atMs: number;
+  mark: () => Promise<Moment>;
+  unmark: (moment: Moment) => void;
+}
+
+/**
+ * The moment the reading belongs to: marks one at the opening time when none was given (or, for a
+ * form filled in from what was heard, holds the time and marks it when the reading is saved),
+ * shows its evidence still, and moves it (typed time or ±1 frame). Cancel takes back a moment it marked.
  */
 function MomentPicker({
   clip,
@@ -169,7 +197,7 @@ function MomentPicker({
   at: LogReadingAt;
   onSeek: (atMs: number) => void;
   onCancelled: () => void;
-  children: (momentId: number | null, cancel: () => void, moment: Moment | null) => ReactNode;
+  children: (momentId: number | null, cancel: () => void, moment: Moment | null, pending: PendingMoment | null) => ReactNode;
 }) {
   const moments = useQuery(clipQueries.moments(clip.id));
   const create = useCreateMoment(clip.id);
@@ -178,6 +206,8 @@ function MomentPicker({
   const { toast } = useToast();
   const [momentId, setMomentId] = useState<number | null>(at.momentId);
   const [markedHere, setMarkedHere] = useState(false);
+  // Accepted from what was heard with no moment on that frame: the time waits for the save.
+  const [pendingAtMs, setPendingAtMs] = useState<number | null>(at.heard && at.momentId === null ? at.atMs : null);
   const [timeText, setTimeText] = useState(secondsText(at.atMs));
   const [error, setError] = useState<string | null>(null);
   const started = useRef(false);
@@ -217,6 +247,15 @@ function MomentPicker({
   }
 
   function moveTo(atMs: number) {
+    if (!moment && pendingAtMs !== null) {
+      const problem = checkTime(atMs);
+      if (problem) return setError(problem);
+      setError(null);
+      setPendingAtMs(atMs);
+      setTimeText(secondsText(atMs));
+      onSeek(atMs);
+      return;
+    }
     if (!moment) return markAt(atMs);
     const problem = checkTime(atMs);
     if (problem) return setError(problem);
@@ -234,7 +273,7 @@ function MomentPicker({
   }
 
   useEffect(() => {
-    if (started.current || at.momentId !== null) return;
+    if (started.current || at.momentId !== null || pendingAtMs !== null) return;
     started.current = true;
     markAt(at.atMs);
     // Only on opening (the ref keeps it to once); later marks come from the buttons.
@@ -250,6 +289,19 @@ function MomentPicker({
     moveTo(Math.round(seconds * 1000));
   }
 
+  const pending: PendingMoment | null =
+    !moment && pendingAtMs !== null
+      ? {
+          atMs: pendingAtMs,
+          mark: () => create.mutateAsync({ atMs: pendingAtMs, label: '' }),
+          unmark: (m) =>
+            remove.mutate(m.id, {
+              onError: (e) => toast({ tone: 'error', title: 'A moment stays marked', description: `${errorMessage(e)} The reading was not saved; delete the moment from the moments list if you do not need it.` }),
+            }),
+        }
+      : null;
+  const nudgeFrom = moment?.atMs ?? pendingAtMs;
+
   function cancel() {
     if (markedHere && moment) {
       remove.mutate(moment.id, {
@@ -259,13 +311,17 @@ function MomentPicker({
     onCancelled();
   }
 
-  const seconds = (moment?.atMs ?? at.atMs) / 1000;
+  const seconds = (moment?.atMs ?? pendingAtMs ?? at.atMs) / 1000;
   return (
     <>
       <div className="flex flex-col gap-2 rounded-md border border-rule bg-paper-2/50 p-2">
         <div className="relative aspect-video w-full overflow-hidden rounded-sm border border-rule bg-paper-3">
           {moment ? (
             <img src={moment.frameUrl} alt={`Evidence still at ${formatTime(seconds)}, frame ${frameIndexAt(seconds, fps) + 1}`} className="size-full object-contain" />
+          ) : pendingAtMs !== null ? (
+            <p className="p-3 text-xs text-ink-muted">
+              The player shows this time. The moment and its evidence still are made when you save the reading.
+            </p>
           ) : (
             <p className="p-3 text-xs text-ink-muted">{busy ? 'Marking the moment…' : 'No moment marked yet.'}</p>
           )}
@@ -293,12 +349,12 @@ function MomentPicker({
             />
           </div>
           <Button type="submit" size="sm" loading={busy} loadingText="Saving…">
-            {moment ? 'Move' : 'Mark'}
+            {moment || pendingAtMs !== null ? 'Move' : 'Mark'}
           </Button>
-          <Button size="sm" variant="quiet" className="px-2" disabled={!moment || busy} onClick={() => moment && moveTo(nudgedAtMs(moment.atMs, -1, fps, durationMs ?? Infinity))} aria-label="Nudge the moment one frame earlier">
+          <Button size="sm" variant="quiet" className="px-2" disabled={nudgeFrom === null || busy} onClick={() => nudgeFrom !== null && moveTo(nudgedAtMs(nudgeFrom, -1, fps, durationMs ?? Infinity))} aria-label="Nudge the moment one frame earlier">
             −1 f
           </Button>
-          <Button size="sm" variant="quiet" className="px-2" disabled={!moment || busy} onClick={() => moment && moveTo(nudgedAtMs(moment.atMs, 1, fps, durationMs ?? Infinity))} aria-label="Nudge the moment one frame later">
+          <Button size="sm" variant="quiet" className="px-2" disabled={nudgeFrom === null || busy} onClick={() => nudgeFrom !== null && moveTo(nudgedAtMs(nudgeFrom, 1, fps, durationMs ?? Infinity))} aria-label="Nudge the moment one frame later">
             +1 f
           </Button>
         </form>
@@ -309,12 +365,13 @@ function MomentPicker({
           </p>
         ) : (
           <p id={`${timeId}-hint`} className="figures text-xs text-ink-muted">
-            {moment ? `${formatTime(seconds)} · frame ${frameIndexAt(seconds, fps) + 1}` : 'The moment is marked when the form opens.'}
+            {moment || pendingAtMs !== null ? `${formatTime(seconds)} · frame ${frameIndexAt(seconds, fps) + 1}` : 'The moment is marked when the form opens.'}
             {moment && markedHere && ' · marked for this reading (Cancel takes it back)'}
+            {!moment && pendingAtMs !== null && ' · marked when you save the reading'}
           </p>
         )}
       </div>
-      {children(moment?.id ?? null, cancel, moment)}
+      {children(moment?.id ?? null, cancel, moment, pending)}
     </>
   );
 }
@@ -334,6 +391,8 @@ function ReadingFields({
   instruments,
   momentId,
   momentLabel,
+  pendingMoment,
+  heard,
   onSaved,
   onCancel,
 }: {
@@ -343,6 +402,10 @@ function ReadingFields({
   momentId: number | null;
   /** The label of the moment the reading is tied to ('' = none): offered as the reading's name. */
   momentLabel: string;
+  /** The moment to mark when the reading is saved (a form filled in from what was heard). */
+  pendingMoment: PendingMoment | null;
+  /** What was heard in the clip's sound, when the form was opened from it: its figures fill the form. */
+  heard?: HeardFigures;
   onSaved: (reading: Reading) => void;
   onCancel: () => void;
 }) {
@@ -362,7 +425,11 @@ function ReadingFields({
   const temperatureScale = units.temperatureScale ?? (units.system === 'imperial' ? 'degF' : 'degC');
   const [defaultValues] = useState(() => {
     const start = choicesFor(buildReadings);
-    return blankReadingForm(instruments.find((i) => i.id === start.instrumentId) ?? instruments[0], start.partId, label, temperatureScale);
+    const startInstrument = instruments.find((i) => i.id === start.instrumentId) ?? instruments[0];
+    if (!heard) return blankReadingForm(startInstrument, start.partId, label, temperatureScale);
+    // Heard figures: an instrument of their quantity (feeler blades for a bracket), and the figures as said.
+    const instrument = instrumentForHeard(heard, instruments, startInstrument);
+    return withHeardFigures(blankReadingForm(instrument, start.partId, label, temperatureScale), heard);
   });
   const form = useForm<ReadingFormValues>({ defaultValues, resolver, mode: 'onTouched' });
   const { register, control, formState, setError, handleSubmit, setValue, getValues } = form;
@@ -371,8 +438,9 @@ function ReadingFields({
   const errors = formState.errors;
   const instrument = instruments.find((i) => String(i.id) === watched.instrumentId);
   const [momentMissing, setMomentMissing] = useState(false);
-  // Until the builder picks a way of reading, it follows the instrument.
-  const [kindByHand, setKindByHand] = useState(false);
+  // Until the builder picks a way of reading, it follows the instrument (what was heard counts as picked).
+  const [kindByHand, setKindByHand] = useState(heard !== undefined);
+  const [kindAsHeard, setKindAsHeard] = useState(heard !== undefined);
   const byHand = useRef<ChosenByHand>({ instrument: false, part: false, name: false, unit: false });
   const nameInput = useRef<HTMLInputElement | null>(null);
   const kindLegendId = useId();
@@ -386,7 +454,10 @@ function ReadingFields({
   function chooseInstrument(idText: string) {
     const chosen = instruments.find((i) => String(i.id) === idText);
     setValue('instrumentId', idText);
-    if (!kindByHand || !kindsFor(chosen).includes(getValues('kind'))) setValue('kind', defaultKindFor(chosen));
+    if (!kindByHand || !kindsFor(chosen).includes(getValues('kind'))) {
+      setValue('kind', defaultKindFor(chosen));
+      setKindAsHeard(false);
+    }
     setValue('unit', unitAfterChoosing(chosen, getValues('unit'), byHand.current.unit));
   }
 
@@ -396,7 +467,9 @@ function ReadingFields({
     if (readingsAtOpening.current || !readingList.data || remembered) return;
     readingsAtOpening.current = true;
     const next = choicesFor(buildReadings);
-    if (!byHand.current.instrument && next.instrumentId !== null) chooseInstrument(String(next.instrumentId));
+    const nextInstrument = instruments.find((i) => i.id === next.instrumentId);
+    const pick = heard && nextInstrument ? instrumentForHeard(heard, instruments, nextInstrument) : nextInstrument;
+    if (!byHand.current.instrument && pick) chooseInstrument(String(pick.id));
     if (!byHand.current.part) setValue('partId', next.partId === null ? '' : String(next.partId));
     // Only when the list first arrives; later refetches must not move the builder's choices.
   }, [readingList.data]);
@@ -412,16 +485,25 @@ function ReadingFields({
   }, [label]);
 
   const submit = handleSubmit(async (values) => {
-    if (momentId === null) {
+    if (momentId === null && !pendingMoment) {
       setMomentMissing(true);
       return;
     }
     setMomentMissing(false);
+    // A form filled in from what was heard marks its moment now, and takes it back if the reading is refused.
+    let marked: Moment | null = null;
     try {
-      const reading = await create.mutateAsync(toReadingInput(values, momentId));
+      if (momentId === null && pendingMoment) marked = await pendingMoment.mark();
+    } catch (error) {
+      setError('root.moment', { message: errorMessage(error) });
+      return;
+    }
+    try {
+      const reading = await create.mutateAsync(toReadingInput(values, marked?.id ?? momentId!));
       writeClipChoices(clipId, { instrumentId: reading.instrumentId, partId: reading.partId });
       onSaved(reading);
     } catch (error) {
+      if (marked) pendingMoment?.unmark(marked);
       const details = error instanceof ApiError ? error.details.filter((d) => d.path) : [];
       for (const d of details) {
         const path = d.path === 'key' ? 'name' : formPathOf(d.path ?? '', values);
@@ -447,7 +529,12 @@ function ReadingFields({
       byHand.current.part = true;
     },
   });
-  const kindField = register('kind', { onChange: () => setKindByHand(true) });
+  const kindField = register('kind', {
+    onChange: () => {
+      setKindByHand(true);
+      setKindAsHeard(false);
+    },
+  });
   // Controlled: its options change with the instrument, and the unit set for it must land on them.
   const unitControl = useController({ control, name: 'unit' }).field;
   const unitField = {
@@ -540,9 +627,11 @@ function ReadingFields({
           How it was read
         </legend>
         <p id={kindHintId} className="-mt-1 mb-0.5 text-xs text-ink-muted">
-          {kindByHand
-            ? 'As you chose; it stays when you change the instrument.'
-            : `Follows the instrument: ${instrument ? (instrument.kind === 'feeler-blades' ? 'feeler blades give a bracket' : 'it shows one indication') : 'choose one'}. Pick another if you read it otherwise.`}
+          {kindAsHeard
+            ? 'As heard; it stays when you change the instrument. Pick another if you read it otherwise.'
+            : kindByHand
+              ? 'As you chose; it stays when you change the instrument.'
+              : `Follows the instrument: ${instrument ? (instrument.kind === 'feeler-blades' ? 'feeler blades give a bracket' : 'it shows one indication') : 'choose one'}. Pick another if you read it otherwise.`}
         </p>
         <div className="flex flex-col gap-1">
           {kindsFor(instrument).map((kind) => (

@@ -1,4 +1,5 @@
 import type { FieldErrors, Resolver } from 'react-hook-form';
+import type { HeardFigures } from '@/features/clips/lib/heard';
 import type { Instrument } from '@shared/instruments/instrument.schema';
 import { readingInputSchema, type Reading, type ReadingInput, type ReadingKind } from '@shared/readings/reading.schema';
 import { TEMPERATURE_RANGE_C } from '@shared/measure/calc.schema';
@@ -138,6 +139,31 @@ export function blankReadingForm(instrument: Instrument | undefined, partId: num
     note: '',
     takenOn: localToday(),
   };
+}
+
+/**
+ * The instrument a form filled in from what was heard starts with: `start` (the clip's last, or
+ * the first) when it reads the heard figure's quantity, else the first that does; for a feeler
+ * bracket, feeler blades when the register has them. `start` when none reads that quantity (the
+ * form then says why the figure does not read).
+ */
+export function instrumentForHeard<I extends Pick<Instrument, 'id' | 'kind' | 'unit'>>(heard: Pick<HeardFigures, 'kind' | 'unit'>, instruments: readonly I[], start: I | undefined): I | undefined {
+  const quantity = quantityOf(heard.unit);
+  const reads = (i: I) => quantityOf(i.unit) === quantity;
+  if (heard.kind === 'bracket') {
+    const blades = (i: I) => i.kind === 'feeler-blades' && reads(i);
+    if (start && blades(start)) return start;
+    const any = instruments.find(blades);
+    if (any) return any;
+  }
+  if (start && reads(start)) return start;
+  return instruments.find(reads) ?? start;
+}
+
+/** A fresh form with what was heard in it: the way it was read and each figure as text with its unit ("564.2 thou"). */
+export function withHeardFigures(values: ReadingFormValues, heard: HeardFigures): ReadingFormValues {
+  if (heard.kind === 'bracket') return { ...values, kind: 'bracket', passes: heard.passes ?? '', stops: heard.stops ?? '' };
+  return { ...values, kind: 'direct', value: heard.value ?? '' };
 }
 
 /** The figures the chosen kind uses, with their unit, as the API and `normaliseReadingFigures` take them. */

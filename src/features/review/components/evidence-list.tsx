@@ -19,6 +19,18 @@ export interface EvidenceItem {
   check: SheetCheck | null;
   /** A clearance whose verdict or figures differ from the story's current publication: its revision. */
   differsFromRevision?: number | null;
+  /** A reading whose figure, said on its clip near the moment, is not the one logged. */
+  heardDiffers?: boolean;
+}
+
+/** A warning mark before "heard on the clip: another figure". */
+function HeardDiffersGlyph() {
+  return (
+    <svg viewBox="0 0 16 16" className="size-3.5 shrink-0" aria-hidden="true">
+      <path d="M8 1.5 15 14.5H1z" fill="none" stroke="currentColor" strokeWidth="1.5" strokeLinejoin="round" />
+      <path d="M8 6v4M8 11.6v.8" stroke="currentColor" strokeWidth="1.5" strokeLinecap="round" />
+    </svg>
+  );
 }
 
 const stateTone = {
@@ -114,6 +126,12 @@ export function EvidenceList({
                       <span className="mt-0.5 flex items-center gap-1 text-xs font-medium text-verdict-undecided" data-differs-from-revision={item.differsFromRevision}>
                         <PublishedChangeGlyph changed />
                         differs from published revision {item.differsFromRevision}
+                      </span>
+                    )}
+                    {item.heardDiffers && (
+                      <span className="mt-0.5 flex items-center gap-1 text-xs font-medium text-danger" data-heard-differs="">
+                        <HeardDiffersGlyph />
+                        heard on the clip: another figure
                       </span>
                     )}
                   </span>

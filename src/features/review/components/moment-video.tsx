@@ -1,14 +1,22 @@
-import { useRef } from 'react';
+import { useEffect, useRef } from 'react';
 import { formatTime } from '@/features/clips/lib/clip-format';
 import { Button } from '@/components/ui/button';
 import { LEAD_IN_S, leadInStart } from '../lib/review-format';
+
+/** A request to play the clip with its sound from a time (ms); `n` makes a repeat of the same time a new request. */
+export interface ListenRequest {
+  ms: number;
+  n: number;
+}
 
 /**
  * The clip of a reading: it plays the few seconds before its moment, so the moderator sees the
  * instrument being set and read, and stops on the moment itself, the frame of the evidence still
  * beside it. Muted, so the browser lets it start on its own; the controls play on from there.
+ * Captions of the clip's sound are there, off until chosen. `listen` (from a press of "Listen
+ * from …") plays from a time with the sound on, and does not stop at the moment.
  */
-export function MomentVideo({ clipId, atMs, label }: { clipId: number; atMs: number; label: string }) {
+export function MomentVideo({ clipId, atMs, label, listen }: { clipId: number; atMs: number; label: string; listen?: ListenRequest | null }) {
   const ref = useRef<HTMLVideoElement>(null);
   const start = leadInStart(atMs);
   const at = atMs / 1000;
@@ -23,6 +31,18 @@ export function MomentVideo({ clipId, atMs, label }: { clipId: number; atMs: num
     // Autoplay may be refused (a browser setting); the controls are there to start it by hand.
     video.play().catch(() => undefined);
   }
+
+  // A request made before this player was shown (another reading's) is not replayed.
+  const handled = useRef(listen?.n ?? 0);
+  useEffect(() => {
+    const video = ref.current;
+    if (!listen || !video || listen.n === handled.current) return;
+    handled.current = listen.n;
+    holding.current = false;
+    video.muted = false;
+    video.currentTime = listen.ms / 1000;
+    video.play().catch(() => undefined);
+  }, [listen]);
 
   function stopAtMoment() {
     const video = ref.current;
@@ -53,7 +73,9 @@ export function MomentVideo({ clipId, atMs, label }: { clipId: number; atMs: num
         aria-label={`Clip of ${label}: the ${LEAD_IN_S} seconds before the moment, stopping on it`}
         className="aspect-video w-full rounded-md border border-rule bg-ink object-contain"
         data-lead-in-s={start}
-      />
+      >
+        <track kind="captions" srcLang="en" label="English (from the clip's sound)" src={`/api/clips/${clipId}/captions.vtt`} />
+      </video>
       <figcaption className="flex items-center justify-between gap-2 text-xs text-ink-muted">
         <span>
           Clip · plays from <span className="figures">{formatTime(start)}</span> and stops on the moment at{' '}

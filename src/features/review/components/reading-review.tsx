@@ -1,4 +1,4 @@
-import type { ReactNode } from 'react';
+import { useState, type ReactNode } from 'react';
 import type { EvidenceCheckDto } from '@shared/review/review.schema';
 import type { ReviewSheet } from '@shared/review/review-sheet.schema';
 import { unitTable, type AnyUnit } from '@shared/measure/quantities';
@@ -11,7 +11,8 @@ import { calibrationFromWarnings } from '../lib/review-format';
 import { CitedChecksAndJudge } from './citing-sentences';
 import { EvidenceStateBadge } from './evidence-state-badge';
 import type { JudgeProps } from './judge-bar';
-import { MomentVideo } from './moment-video';
+import { HeardLine } from './heard-line';
+import { MomentVideo, type ListenRequest } from './moment-video';
 
 type SheetReading = ReviewSheet['readings'][number];
 
@@ -49,7 +50,8 @@ export function ReadingReview({
   /** The moderator's buttons; left out for the builder, who answers flags instead. */
   judge?: JudgeProps;
 }) {
-  const { reading, usedBy, citedIn, check } = item;
+  const { reading, usedBy, citedIn, check, heard } = item;
+  const [listen, setListen] = useState<ListenRequest | null>(null);
   const zeroMissing = reading.warnings.some((w) => w.code === 'no-zero-check');
   return (
     <div className="flex flex-col gap-4" data-review-subject={`reading:${reading.key}`}>
@@ -63,7 +65,7 @@ export function ReadingReview({
       </header>
 
       <div className="grid gap-3 md:grid-cols-2">
-        <figure className="flex flex-col gap-1.5">
+        <figure className="order-1 flex flex-col gap-1.5">
           <img
             src={reading.frameUrl}
             alt={`Evidence still of ${reading.name}: ${reading.clipTitle} at ${formatTime(reading.atMs / 1000)}`}
@@ -73,7 +75,11 @@ export function ReadingReview({
             Evidence still · {reading.clipTitle} at <span className="figures text-ink">{formatTime(reading.atMs / 1000)}</span>
           </figcaption>
         </figure>
-        <MomentVideo clipId={reading.clipId} atMs={reading.atMs} label={reading.name} />
+        {/* On a phone the line comes straight after the still; side by side, it runs under both. */}
+        <div className="order-3 md:order-2">
+          <MomentVideo clipId={reading.clipId} atMs={reading.atMs} label={reading.name} listen={listen} />
+        </div>
+        <HeardLine heard={heard} onListen={(ms) => setListen((l) => ({ ms, n: (l?.n ?? 0) + 1 }))} className="order-2 md:order-3 md:col-span-2" />
       </div>
 
       <dl className="grid grid-cols-[max-content_minmax(0,1fr)] gap-x-4 gap-y-1 text-sm">

@@ -72,7 +72,7 @@ export function Component() {
 
 function itemsOf(sheet: ReviewSheet): EvidenceItem[] {
   return [
-    ...sheet.readings.map(({ reading, check }) => ({
+    ...sheet.readings.map(({ reading, check, heard }) => ({
       id: `reading:${reading.id}`,
       kind: 'reading' as const,
       name: reading.name,
@@ -80,6 +80,7 @@ function itemsOf(sheet: ReviewSheet): EvidenceItem[] {
       figure: enteredFigures(reading),
       detail: reading.instrumentName,
       check,
+      heardDiffers: heard?.state === 'disagrees',
     })),
     ...sheet.clearances.map(({ clearance, check, asPublished, change }) => ({
       id: `clearance:${clearance.id}`,
