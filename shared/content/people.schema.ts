@@ -23,7 +23,7 @@ export const demoBuildSchema = z.object({
   title: z.string().min(3),
   subject: z.string(),
   parts: z.array(z.object({ name: z.string(), serial: z.string() })),
-  /** Generated at seed time: a test pattern with this caption, `seconds` long, and its marked moments. */
+  /** Generated at seed time: a narrated scene (an instrument display and the builder’s spoken lines, see server/db/seed-clips.ts) with this caption, `seconds` long, and its marked moments. */
   clips: z
     .array(
       z.object({

@@ -8,6 +8,7 @@ import { EvidenceCheck, StoryPublication } from '../../../server/features/review
 import { evidenceOf } from '../../../server/features/review/review.service';
 import { Story } from '../../../server/features/stories/story.model';
 import { Clip, Moment } from '../../../server/features/clips/clip.model';
+import { listeningOf, proposalsForClip } from '../../../server/features/speech/speech.service';
 import { createLogger } from '../../../server/logger';
 import { startTestApp } from '../../support/test-app';
 
@@ -49,8 +50,31 @@ describe('the demo clips', () => {
         if (entry.state === 'published') expect(await StoryPublication.count({ where: { storyId: story.id } })).toBe(1);
         if (entry.flag) expect(await EvidenceCheck.count({ where: { storyId: story.id, state: 'flagged' } })).toBe(1);
       }
+
+      // Every moment with a reading has a line to say and a figure to show.
+      const demoClips = loadDemoBuilds().flatMap((b) => b.clips);
+      for (const r of diary.builds.flatMap((b) => b.readings)) {
+        const moment = demoClips.find((c) => c.title === r.clip)?.moments.find((m) => m.atMs === r.atMs);
+        if (moment) expect(moment.say && moment.show, `${r.clip} at ${r.atMs} ms`).toBeTruthy();
+      }
+
+      // The narration is heard: at least one demo reading is proposed near its moment, with its figure.
+      const listening = async () => Promise.all(clips.map(async (c) => (await listeningOf(c.id))?.state));
+      const listenEnd = Date.now() + 60_000;
+      let states = await listening();
+      while (states.some((s) => s !== 'ready') && Date.now() < listenEnd) {
+        await new Promise((r) => setTimeout(r, 300));
+        states = await listening();
+      }
+      expect(states).toEqual(clips.map(() => 'ready'));
+      const heard: string[] = [];
+      for (const clip of clips) {
+        for (const p of await proposalsForClip(clip)) if (p.logged) heard.push(`${clip.title}: ${p.readingKey} heard as "${p.heard}"`);
+      }
+      console.log(`demo readings heard on their clips (${heard.length}):\n${heard.join('\n')}`);
+      expect(heard.length).toBeGreaterThanOrEqual(1);
     } finally {
       await t.close();
     }
-  }, 120_000);
+  }, 240_000);
 });
