@@ -42,6 +42,8 @@
  *   "five hundred sixty four and two tenths" is 564.2 thou (0.5642 in), "three point five thou and
  *   two tenths" 3.7 thou; a minus goes with the whole ("minus two thou and two tenths" is −2.2).
  *   "X and Y tenths <unit>" is X + Y/10 in that unit ("fourteen and three tenths millimetres").
+ *   With no unit said, "X and Y tenths" is taken for thou only when X is 100 or more (a
+ *   micrometer reading); "forty two and six tenths" could be cc or mm, so it gives nothing.
  * - "X <unit> and a half" is X + 0.5 in that unit ("an inch and a half", "three thou and a half").
  * - "N tenths / hundredths / thousandths of a(n) <unit>" is N/10, N/100, N/1000 of the unit;
  *   "tenths of a thou" stay tenths, "thousandths of an inch" are thou, "thousandths of a
@@ -720,6 +722,10 @@ function readAfterNumber(
       const to = tenths.to + after.words.length;
       return named ? { kind: 'figure', to, value, unit: named } : { kind: 'nothing', to };
     }
+    // Without a unit word, only a count of hundreds of thou is taken for thou and tenths (a
+    // micrometer reading, "five sixty four and two tenths"); "forty two and six tenths" could as
+    // well be cc or mm, and a wrong unit costs more than a missed figure.
+    if (Number(num.value) < 100) return { kind: 'nothing', to: tenths.to };
     const note = 'tenths after a count: read as thou and tenths of a thou';
     return { kind: 'figure', to: tenths.to, value, unit: 'thou', note };
   }

@@ -204,6 +204,8 @@ describe('ordinary talk proposes nothing', () => {
   it.each<[string, FindSpokenFiguresOptions?]>([
     ['cylinder one at top dead centre'],
     ['two bolts'],
+    // No unit said and under a hundred: cc, mm or thou? A wrong unit costs more than a missed figure.
+    ['forty two and six tenths'],
     ['in the first place'],
     ['bolt three'],
     ['torque them in two stages'],
