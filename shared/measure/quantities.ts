@@ -31,6 +31,19 @@ export const quantityKinds = [
 /** A quantity kind as stored and sent over the API. */
 export type QuantityKind = (typeof quantityKinds)[number];
 
+/** What each quantity is called on a screen (headings of unit pickers, labels). */
+export const quantityNames: Readonly<Record<QuantityKind, string>> = {
+  length: 'Length',
+  volume: 'Volume',
+  angle: 'Angle',
+  torque: 'Torque',
+  pressure: 'Pressure',
+  temperature: 'Temperature',
+  time: 'Time',
+  mass: 'Mass',
+  ratio: 'Ratio',
+};
+
 /** Every unit code, grouped by quantity in picker order. `'1'` is the unit of a ratio. */
 export const allUnits = [
   'in',

@@ -2,6 +2,7 @@ import {
   defaultUnitFor,
   isAnyUnit,
   quantityKinds,
+  quantityNames,
   quantityOf,
   unitTable,
   unitsOf,
@@ -13,17 +14,7 @@ import {
 import { noDefaultUnits, type DefaultUnits } from '@/features/auth/lib/default-units';
 
 /** Group headings of the unit pickers. */
-export const quantityLabels: Readonly<Record<QuantityKind, string>> = {
-  length: 'Length',
-  volume: 'Volume',
-  angle: 'Angle',
-  torque: 'Torque',
-  pressure: 'Pressure',
-  temperature: 'Temperature',
-  time: 'Time',
-  mass: 'Mass',
-  ratio: 'Ratio',
-};
+export const quantityLabels = quantityNames;
 
 /** The quantities a reading can hold (a ratio is worked out, not read off an instrument). */
 export const readingQuantities: readonly QuantityKind[] = quantityKinds.filter((q) => q !== 'ratio');

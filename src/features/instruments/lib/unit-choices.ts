@@ -1,17 +1,7 @@
-import { quantityKinds, unitTable, unitsOf, type AnyUnit, type QuantityKind } from '@shared/measure/quantities';
+import { quantityKinds, quantityNames, unitTable, unitsOf, type AnyUnit, type QuantityKind } from '@shared/measure/quantities';
 
 /** Group headings of the unit pickers. */
-export const quantityHeadings: Readonly<Record<QuantityKind, string>> = {
-  length: 'Length',
-  volume: 'Volume',
-  angle: 'Angle',
-  torque: 'Torque',
-  pressure: 'Pressure',
-  temperature: 'Temperature',
-  time: 'Time',
-  mass: 'Mass',
-  ratio: 'Ratio',
-};
+export const quantityHeadings = quantityNames;
 
 /**
  * What a unit picker says for a unit: lengths by name as they always were ("inches", "thou
