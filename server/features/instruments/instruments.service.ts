@@ -173,7 +173,7 @@ const figureWords: Readonly<Record<string, string>> = {
   shown: 'what it showed',
 };
 
-function storedLength(field: string, text: string, unit: ReadingUnit, rule: 'positive' | 'not-negative' | 'any'): string {
+function storedFigure(field: string, text: string, unit: ReadingUnit, rule: 'positive' | 'not-negative' | 'any'): string {
   const parsed = figureTextIn(text, unit);
   if (!parsed.ok) throw badRequest(`${field}: ${parsed.message}`, [{ path: field, message: parsed.message }]);
   const sign = parsed.figure.value.n === 0n ? 0 : Number(parsed.figure.value.s);
@@ -196,8 +196,8 @@ export async function createInstrument(owner: User, input: InstrumentInput): Pro
     kind: input.kind,
     serial: input.serial,
     unit: input.unit,
-    resolution: storedLength('resolution', input.resolution, input.unit, 'positive'),
-    statedUncertainty: input.statedUncertainty === null ? null : storedLength('statedUncertainty', input.statedUncertainty, input.unit, 'not-negative'),
+    resolution: storedFigure('resolution', input.resolution, input.unit, 'positive'),
+    statedUncertainty: input.statedUncertainty === null ? null : storedFigure('statedUncertainty', input.statedUncertainty, input.unit, 'not-negative'),
     ...accuracyFields(input, input.unit),
     calibrationIntervalDays: input.calibrationIntervalDays,
     lastCalibratedOn: input.lastCalibratedOn,
@@ -228,9 +228,9 @@ export async function updateInstrument(instrument: Instrument, patch: Instrument
   for (const key of ['name', 'kind', 'serial', 'unit', 'calibrationIntervalDays', 'lastCalibratedOn', 'calibratedBy', 'note', 'retired'] as const) {
     if (fields[key] !== undefined) changes[key] = fields[key];
   }
-  if (fields.resolution !== undefined) changes.resolution = storedLength('resolution', fields.resolution, unit, 'positive');
+  if (fields.resolution !== undefined) changes.resolution = storedFigure('resolution', fields.resolution, unit, 'positive');
   if (fields.statedUncertainty !== undefined) {
-    changes.statedUncertainty = fields.statedUncertainty === null ? null : storedLength('statedUncertainty', fields.statedUncertainty, unit, 'not-negative');
+    changes.statedUncertainty = fields.statedUncertainty === null ? null : storedFigure('statedUncertainty', fields.statedUncertainty, unit, 'not-negative');
   } else if (unit !== instrument.unit && instrument.statedUncertainty != null) {
     throw badRequest('Send the stated uncertainty in the new unit (or null) when you change the unit.', [
       { path: 'statedUncertainty', message: 'send it in the new unit' },
@@ -263,7 +263,7 @@ function accuracyFields(
   const out: Record<string, string | null> = {};
   for (const field of ['calibrationUncertainty', 'maxPermissibleError', 'settingStandardUncertainty'] as const) {
     const text = fields[field];
-    if (text !== undefined) out[field] = text === null ? null : storedLength(field, text, unit, 'not-negative');
+    if (text !== undefined) out[field] = text === null ? null : storedFigure(field, text, unit, 'not-negative');
   }
   for (const field of ['calibrationCoverageFactor', 'settingStandardCoverageFactor'] as const) {
     const k = fields[field];
@@ -287,11 +287,7 @@ function inUse() {
 
 /** Deletes an instrument nothing refers to; one with readings or zero checks is refused (409). */
 export async function deleteInstrument(instrument: Instrument): Promise<void> {
-  const [readings, checks] = await Promise.all([
-    Reading.count({ where: { instrumentId: instrument.id } }),
-    ZeroCheck.count({ where: { instrumentId: instrument.id } }),
-  ]);
-  if (readings > 0 || checks > 0) throw inUse();
+  if (await instrumentHasRecords(instrument.id)) throw inUse();
   // A reading logged between the count and the delete is caught by the foreign key.
   await instrument.destroy().catch((err: unknown) => {
     throw err instanceof ForeignKeyConstraintError ? inUse() : err;
@@ -324,8 +320,8 @@ type ZeroCheckInput = z.output<typeof zeroCheckInputSchema>;
  */
 export async function addZeroCheck(instrument: Instrument, user: User, input: ZeroCheckInput): Promise<ZeroCheckDto> {
   const signed = !nonNegativeQuantities.has(quantityOf(instrument.unit));
-  const standardSize = storedLength('standardSize', input.standardSize, instrument.unit, signed ? 'any' : 'not-negative');
-  const shown = storedLength('shown', input.shown, instrument.unit, 'any');
+  const standardSize = storedFigure('standardSize', input.standardSize, instrument.unit, signed ? 'any' : 'not-negative');
+  const shown = storedFigure('shown', input.shown, instrument.unit, 'any');
   if (input.momentId !== null) {
     const moment = await Moment.findOne({
       where: { id: input.momentId },
