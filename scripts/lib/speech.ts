@@ -18,12 +18,18 @@ const RECOGNIZER_FILES = [
 const VOICE_PACKAGES = ['festival', 'festvox-us-slt-hts', 'fonts-dseg'];
 const VOICE_FILES = ['/usr/bin/text2wave', '/usr/share/festival/voices/us/cmu_us_slt_arctic_hts', '/usr/share/fonts/truetype/dseg/DSEG7Classic-Regular.ttf'];
 
+/** ssocr reads seven-segment displays in clips; tesseract (digits only) reads other displays. */
+const DISPLAY_PACKAGES = ['ssocr', 'tesseract-ocr'];
+const DISPLAY_FILES = ['/usr/bin/ssocr', '/usr/bin/tesseract'];
+
 /** What ensureSystemSpeech found or did. */
 export interface SystemSpeech {
   /** pocketsphinx and its model are there: clips can be listened to. */
   recognizer: boolean;
   /** festival, its voice and the seven-segment font are there (the demo clips are narrated). */
   voice: boolean;
+  /** ssocr and tesseract are there: instrument displays in clips can be read. */
+  display: boolean;
   /** Packages this call installed. */
   installed: string[];
 }
@@ -34,16 +40,19 @@ export interface SystemSpeech {
  * otherwise the command to run is printed and listening reports itself unavailable (clips show
  * the state "unavailable"; everything else works). festival, its voice and fonts-dseg come too:
  * the seed narrates the demo clips with them (silent clips without), and the tests narrate theirs.
- * They are installed in a second step, so a mirror without them never costs the recognizer.
+ * They are installed in a second step, so a mirror without them never costs the recognizer; ssocr
+ * and tesseract (reading instrument displays in clips) in a third.
  * `testVoice` is accepted for older callers; the voice is always wanted now.
  */
 export function ensureSystemSpeech(_options: { testVoice?: boolean } = {}): SystemSpeech {
   const recognizerWanted = allThere(RECOGNIZER_FILES) ? [] : RECOGNIZER_PACKAGES;
   const voiceWanted = allThere(VOICE_FILES) ? [] : VOICE_PACKAGES;
-  const wanted = [...recognizerWanted, ...voiceWanted];
+  const displayWanted = allThere(DISPLAY_FILES) ? [] : DISPLAY_PACKAGES;
+  const wanted = [...recognizerWanted, ...voiceWanted, ...displayWanted];
   const state = (installed: string[]): SystemSpeech => ({
     recognizer: allThere(RECOGNIZER_FILES),
     voice: allThere(VOICE_FILES),
+    display: allThere(DISPLAY_FILES),
     installed,
   });
   if (wanted.length === 0) return state([]);
@@ -52,6 +61,7 @@ export function ensureSystemSpeech(_options: { testVoice?: boolean } = {}): Syst
     const without = [
       ...(recognizerWanted.length ? ['clips will not be listened to (their captions stay empty)'] : []),
       ...(voiceWanted.length ? ['the demo clips will be silent'] : []),
+      ...(displayWanted.length ? ['instrument displays will not be read'] : []),
     ];
     log(`${wanted.join(', ')} not installed; ${without.join(' and ')}. Install with: sudo ${install}`);
     return state([]);
@@ -68,6 +78,7 @@ export function ensureSystemSpeech(_options: { testVoice?: boolean } = {}): Syst
   for (const [packages, without] of [
     [recognizerWanted, 'clips will not be listened to'],
     [voiceWanted, 'the demo clips will be silent'],
+    [displayWanted, 'instrument displays will not be read'],
   ] as const) {
     if (packages.length === 0) continue;
     const status = aptGet(['install', '-y', '-q', '--no-install-recommends', ...packages]);

@@ -2,6 +2,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { z } from 'zod';
+import { allUnits } from '@shared/measure/quantities';
 import { demoBuildSchema, demoBuildsFileSchema, demoPeopleFileSchema, type DemoPerson } from '@shared/content/people.schema';
 
 /** The project's content/ folder (the invented demo scenario). */
@@ -24,8 +25,14 @@ export const demoClipMomentSchema = sharedDemoClipSchema.shape.moments.element.e
   say: z.string().min(1).max(200).optional(),
   show: z.string().regex(/^[0-9.|-]{1,12}$/).optional(),
 });
-/** A demo clip with its narrated moments. */
-export const demoClipSchema = sharedDemoClipSchema.extend({ moments: z.array(demoClipMomentSchema) });
+/**
+ * A demo clip with its narrated moments; `displayUnit` marks its instrument display for reading
+ * (the seed sets the display region in that unit, as the builder would with "Mark a display").
+ */
+export const demoClipSchema = sharedDemoClipSchema.extend({
+  moments: z.array(demoClipMomentSchema),
+  displayUnit: z.enum(allUnits).optional(),
+});
 const narratedBuildsFileSchema = demoBuildsFileSchema.extend({
   builds: z.array(demoBuildSchema.extend({ clips: z.array(demoClipSchema).default([]) })),
 });

@@ -9,6 +9,7 @@ import { Clip, Moment } from '../features/clips/clip.model';
 import { enqueueClip } from '../features/clips/clip.job';
 import { acceptUpload } from '../features/clips/clips.service';
 import { mediaBinaries } from '../features/clips/media/binaries';
+import { setDisplayRegion } from '../features/speech/display.service';
 import { User } from '../features/users/user.model';
 import type { Config } from '../config';
 import type { Queue } from '../jobs/queue';
@@ -25,6 +26,15 @@ const VOICE = '(voice_cmu_us_slt_arctic_hts)';
 const VOICE_DIR = '/usr/share/festival/voices/us/cmu_us_slt_arctic_hts';
 /** The line starts this long before its moment, so the figure is said around the moment. */
 const LEAD_MS = 600;
+/** Where the instrument display is drawn in the 640×360 scene, pixels. */
+const DISPLAY_BOX = { x: 360, y: 110, w: 250, h: 110 } as const;
+/** The region a builder would mark around it: 10 px more each side, as fractions of the frame. */
+const DISPLAY_REGION = {
+  x: (DISPLAY_BOX.x - 10) / 640,
+  y: (DISPLAY_BOX.y - 10) / 360,
+  width: (DISPLAY_BOX.w + 20) / 640,
+  height: (DISPLAY_BOX.h + 20) / 360,
+};
 /** The instrument display shows the figure from 1 s before to 2 s after the moment. */
 const SHOW_BEFORE_S = 1;
 const SHOW_AFTER_S = 2;
@@ -64,6 +74,8 @@ export async function seedDemoClips(deps: { config: Config; storage: Storage; qu
           spec.title,
         );
         for (const m of spec.moments) await Moment.create({ clipId: clip.id, atMs: m.atMs, label: m.label, createdBy: owner.id });
+        // The builder's box around the display (a little larger than the drawn display), read once the clip is ready.
+        if (spec.displayUnit) await setDisplayRegion(clip, owner, DISPLAY_REGION, spec.displayUnit);
         await enqueueClip(deps.queue, clip.id);
         made += 1;
       } finally {
@@ -103,7 +115,7 @@ function sceneArgs(spec: DemoClip, lines: { startMs: number; wav: string }[], fi
     );
   }
   // The instrument display: a dark box at the right, the figure in seven segments (a bracket's two blades either side of a bar).
-  const box = { x: 360, y: 110, w: 250, h: 110 };
+  const box = DISPLAY_BOX;
   const mid = box.x + box.w / 2;
   const figureY = `${box.y + box.h / 2}-text_h/2`;
   for (const m of spec.moments) {

@@ -227,6 +227,8 @@ export const publicReadingSchema = z.object({
       state: z.enum(heardStates),
       words: z.string().optional(),
       atMs: z.number().int().nonnegative().optional(),
+      /** Said, or shown on the instrument's display (absent: said). */
+      source: z.enum(['speech', 'display']).optional(),
     })
     .optional(),
 });

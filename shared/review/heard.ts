@@ -58,8 +58,10 @@ export interface HeardWitness {
   figure?: HeardFigure;
   /** When the figure's first word was said, ms from the start of the clip. */
   atMs?: number;
-  /** The words the figure was read from, cleaned. */
+  /** The words the figure was read from, cleaned (for a display, the figure shown). */
   words?: string;
+  /** Where the figure named came from: said, or shown on the instrument's display. */
+  source?: 'speech' | 'display';
 }
 
 /** What the witness needs of a reading: its figures as logged (decimal text in `unit`) and its moment. */
@@ -84,11 +86,25 @@ export interface HeardWord {
   confidence: number;
 }
 
-/** Where listening to the reading's clip stands, with its words once it was listened to. */
-export type ClipListening = { state: 'ready'; words: readonly HeardWord[] } | { state: Exclude<ListeningState, 'ready'> };
+/** A figure read off the clip's instrument display: shown from `startMs` to `endMs`, decimal text in `unit`. */
+export interface ShownFigure {
+  startMs: number;
+  endMs: number;
+  text: string;
+  unit: AnyUnit;
+  confidence: number;
+}
 
-/** A spoken figure with its times in ms. */
-export type TimedSpokenFigure = SpokenFigure & { startMs: number; endMs: number };
+/**
+ * Where listening to the reading's clip stands, with its words once it was listened to, and the
+ * figures read off its display when its builder marked one.
+ */
+export type ClipListening =
+  | { state: 'ready'; words: readonly HeardWord[]; shown?: readonly ShownFigure[] }
+  | { state: Exclude<ListeningState, 'ready'> };
+
+/** A spoken figure with its times in ms; `source` 'display' when it was read off the display rather than said. */
+export type TimedSpokenFigure = SpokenFigure & { startMs: number; endMs: number; source?: 'speech' | 'display' };
 
 /** "0:07.9", "1:02:03.4": minutes and seconds to the tenth, as the clip player shows them. */
 export function clipTime(ms: number): string {
@@ -120,6 +136,28 @@ export function figuresNear(reading: Pick<WitnessReading, 'unit' | 'atMs'>, word
   return findSpokenFigures(timed, { units, defaultUnit: reading.unit })
     .map((f) => ({ ...f, startMs: Math.round(f.start * 1000), endMs: Math.round(f.end * 1000) }))
     .filter((f) => f.startMs <= toMs && f.endMs >= fromMs);
+}
+
+/** The figures the display showed near the reading's moment, in the reading's quantity, as figures to judge. */
+export function shownNear(reading: Pick<WitnessReading, 'unit' | 'atMs'>, shown: readonly ShownFigure[]): TimedSpokenFigure[] {
+  const { fromMs, toMs } = heardWindow(reading.atMs);
+  const quantity = quantityOf(reading.unit);
+  return shown
+    .filter((f) => f.startMs <= toMs && f.endMs >= fromMs && quantityOf(f.unit) === quantity)
+    .map((f) => ({
+      kind: 'value' as const,
+      value: f.text,
+      unit: f.unit,
+      feel: null,
+      start: f.startMs / 1000,
+      end: f.endMs / 1000,
+      startMs: f.startMs,
+      endMs: f.endMs,
+      confidence: f.confidence,
+      words: f.text,
+      unitHeard: false,
+      source: 'display' as const,
+    }));
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -274,9 +312,13 @@ function figureText(f: SpokenFigure, unit: AnyUnit): string {
   return converted.every((c): c is string => c !== null) ? `${said} = ${withUnit(converted.join('–'), unit)}` : said;
 }
 
-/** "‘five hundred sixty four and two tenths’ at 0:00.5" (with "(no unit said)" when it was not). */
+/**
+ * "heard ‘five hundred sixty four and two tenths’ at 0:00.5" (with "(no unit said)" when it was
+ * not), or "read 0.5642 on the display at 0:03.0".
+ */
 function saidText(f: TimedSpokenFigure): string {
-  return `‘${f.words}’${f.unitHeard ? '' : ' (no unit said)'} at ${clipTime(f.startMs)}`;
+  if (f.source === 'display') return `read ${f.words} on the display at ${clipTime(f.startMs)}`;
+  return `heard ‘${f.words}’${f.unitHeard ? '' : ' (no unit said)'} at ${clipTime(f.startMs)}`;
 }
 
 function figureOf(f: SpokenFigure): HeardFigure {
@@ -306,7 +348,7 @@ function timeFromMoment(f: Match, atMs: number): number {
  * The rule, over the figures already found near the moment (`figuresNear`): agrees, disagrees
  * (naming the closest) or nothing heard. See this file's header.
  */
-export function judgeHeard(reading: WitnessReading, figures: readonly TimedSpokenFigure[]): HeardWitness {
+export function judgeHeard(reading: WitnessReading, figures: readonly TimedSpokenFigure[], withDisplay = false): HeardWitness {
   const quantity = quantityOf(reading.unit);
   const own = figures.filter((f) => quantityOf(f.unit) === quantity && bears(f, reading));
   const { fromMs, toMs } = heardWindow(reading.atMs);
@@ -315,7 +357,7 @@ export function judgeHeard(reading: WitnessReading, figures: readonly TimedSpoke
     const what = reading.kind === 'bracket' ? 'feeler blade' : quantity;
     return {
       state: 'nothing-heard',
-      text: `nothing heard near this moment: no ${what} was said between ${clipTime(fromMs)} and ${clipTime(toMs)}`,
+      text: `nothing heard near this moment: no ${what} was said${withDisplay ? ' or shown on the display' : ''} between ${clipTime(fromMs)} and ${clipTime(toMs)}`,
     };
   }
   const matches = [...own.flatMap((f) => valueMatch(f, reading) ?? []), ...bladePairs(own, reading)];
@@ -326,7 +368,7 @@ export function judgeHeard(reading: WitnessReading, figures: readonly TimedSpoke
   if (!chosen) {
     // Figures of the quantity whose text could not be read exactly: said, but not comparable.
     const f = own[0]!;
-    return { state: 'disagrees', text: `heard ${saidText(f)}, which cannot be set against the logged ${loggedText(reading)}`, atMs: f.startMs, words: f.words };
+    return { state: 'disagrees', text: `${saidText(f)}, which cannot be set against the logged ${loggedText(reading)}`, atMs: f.startMs, words: f.words };
   }
   const logged = reading.kind === 'repeated' ? `${loggedText(reading, chosen.logged)} (one of its ${reading.values?.length ?? 0} values)` : loggedText(reading);
   const verb = chosen.agrees ? 'agrees with' : 'disagrees with';
@@ -336,28 +378,31 @@ export function judgeHeard(reading: WitnessReading, figures: readonly TimedSpoke
     const second = chosen.figures[1]!;
     return {
       state: 'agrees',
-      text: `heard ${saidText(first)} → ${figureText(first, reading.unit)} and ${saidText(second)} → ${figureText(second, reading.unit)}: agree with the logged ${logged}`,
+      text: `${saidText(first)} → ${figureText(first, reading.unit)} and ${saidText(second)} → ${figureText(second, reading.unit)}: agree with the logged ${logged}`,
       ...(first.kind === 'value' && second.kind === 'value' && first.unit === second.unit && {
         figure: { passes: first.feel === 'passes' ? first.value : second.value, stops: first.feel === 'passes' ? second.value : first.value, unit: first.unit },
       }),
       atMs: first.startMs,
       words: `${first.words} … ${second.words}`,
+      source: 'speech',
     };
   }
   const closest = !chosen.agrees && own.length > 1 ? ` (the closest of ${own.length} figures heard)` : '';
   return {
     state: chosen.agrees ? 'agrees' : 'disagrees',
-    text: `heard ${saidText(first)} → ${figureText(first, reading.unit)}${closest}: ${verb} the logged ${logged}`,
+    text: `${saidText(first)} → ${figureText(first, reading.unit)}${closest}: ${verb} the logged ${logged}`,
     figure: figureOf(first),
     atMs: first.startMs,
     words: first.words,
+    source: first.source ?? 'speech',
   };
 }
 
 /** The witness for one reading: `judgeHeard` over the figures said near its moment, once its clip was listened to. */
 export function heardWitness(reading: WitnessReading, listening: ClipListening): HeardWitness {
   if (listening.state !== 'ready') return notListened(listening.state);
-  return judgeHeard(reading, figuresNear(reading, listening.words));
+  const shown = listening.shown ? shownNear(reading, listening.shown) : [];
+  return judgeHeard(reading, [...figuresNear(reading, listening.words), ...shown], listening.shown !== undefined);
 }
 
 /** A heard figure as the screens show it: "564.2 thou", "3–4 thou". */

@@ -53,6 +53,8 @@ export const heardWitnessSchema = z.object({
   atMs: z.number().int().nonnegative().optional(),
   /** The words it was read from. */
   words: z.string().optional(),
+  /** Said, or shown on the instrument's display (absent before displays were read: said). */
+  source: z.enum(['speech', 'display']).optional(),
 });
 export type HeardWitnessDto = z.infer<typeof heardWitnessSchema>;
 

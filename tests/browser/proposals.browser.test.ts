@@ -37,7 +37,7 @@ interface Heard {
   kind: string;
   value?: string;
   unit: string;
-  startMs: number;
+  atMs: number;
 }
 let thou: Heard;
 let mm: Heard;
@@ -167,17 +167,17 @@ beforeAll(async () => {
     const end = Date.now() + 120_000;
     let items: Heard[] = [];
     for (;;) {
-      const res = await api<{ state: string; items: Heard[] }>(page, 'GET', `/api/clips/${clipId}/proposals`);
-      if (!['pending', 'listening'].includes(res.json.state)) {
-        expect(res.json.state, 'pocketsphinx must be installed: npm test installs it').toBe('ready');
-        items = res.json.items;
+      const res = await api<{ state: string; suggestions: Heard[] }>(page, 'GET', `/api/clips/${clipId}/suggestions`);
+      if (!['queued', 'running'].includes(res.json.state)) {
+        expect(res.json.state, 'pocketsphinx must be installed: npm test installs it').toBe('done');
+        items = res.json.suggestions;
         break;
       }
       if (Date.now() > end) throw new Error(`listening to clip ${clipId} is still ${res.json.state}`);
       await page.waitForTimeout(500);
     }
-    thou = items.find((p) => p.kind === 'value' && p.unit === 'thou' && p.value === '564.2')!;
-    mm = items.find((p) => p.kind === 'value' && p.unit === 'mm' && p.value === '12.5')!;
+    thou = items.find((p) => p.kind === 'direct' && p.unit === 'thou' && p.value === '564.2')!;
+    mm = items.find((p) => p.kind === 'direct' && p.unit === 'mm' && p.value === '12.5')!;
     expect({ thou, mm }, JSON.stringify(items)).toEqual({ thou: expect.anything(), mm: expect.anything() });
   } finally {
     await page.close();
@@ -206,7 +206,7 @@ describe('heard on this clip, in the builder’s workspace', () => {
       await row(page, thou).getByText('read as thou and tenths', { exact: false }).waitFor();
 
       await row(page, mm).getByRole('button', { name: /^Go to \d:\d\d\.\d in the player$/ }).click();
-      await expect.poll(() => currentTime(page)).toBeCloseTo(mm.startMs / 1000, 1);
+      await expect.poll(() => currentTime(page)).toBeCloseTo(mm.atMs / 1000, 1);
       expect(await page.evaluate(() => document.querySelector('video')!.paused)).toBe(true);
 
       await dismissToasts(page);
@@ -228,9 +228,9 @@ describe('heard on this clip, in the builder’s workspace', () => {
       await form.locator('[data-heard-filled]').getByText('five hundred sixty four and two tenths', { exact: false }).waitFor();
       await expect.poll(() => form.getByLabel('Value as shown').inputValue()).toBe('564.2 thou');
       expect(await form.getByRole('radio', { name: /^One indication/ }).isChecked()).toBe(true);
-      await expect.poll(() => form.getByLabel(/^Moment at/).inputValue()).toBe((thou.startMs / 1000).toFixed(3));
+      await expect.poll(() => form.getByLabel(/^Moment at/).inputValue()).toBe((thou.atMs / 1000).toFixed(3));
       // The player is at that time, and nothing was stored on opening: no moment yet.
-      await expect.poll(() => currentTime(page)).toBeCloseTo(thou.startMs / 1000, 1);
+      await expect.poll(() => currentTime(page)).toBeCloseTo(thou.atMs / 1000, 1);
       await page.waitForTimeout(500);
       expect(await Moment.count({ where: { clipId } })).toBe(momentsBefore);
       await form.getByText('marked when you save the reading', { exact: false }).waitFor();
@@ -244,7 +244,7 @@ describe('heard on this clip, in the builder’s workspace', () => {
       await form.waitFor({ state: 'detached' });
 
       // Stored now: one moment at the proposal's time, one reading of 564.2 thou on it.
-      const moment = await Moment.findOne({ where: { clipId, atMs: thou.startMs } });
+      const moment = await Moment.findOne({ where: { clipId, atMs: thou.atMs } });
       expect(moment).not.toBeNull();
       expect(await Moment.count({ where: { clipId } })).toBe(momentsBefore + 1);
       const reading = await Reading.findOne({ where: { buildId, momentId: moment!.id } });

@@ -3,7 +3,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import { promisify } from 'node:util';
 import { clipSchema } from '@shared/clips/clip.schema';
-import { clipWordsResponseSchema, type ClipWordsResponse } from '@shared/speech/speech.schema';
+import { clipTranscriptResponseSchema, type ClipTranscriptResponse } from '@shared/speech/speech.schema';
 import { mediaBinaries } from '../../server/features/clips/media/binaries';
 
 /*
@@ -113,13 +113,13 @@ interface Agent {
  * Waits until the clip is processed and listened to (or listening ended otherwise: failed,
  * unavailable); the words as the API gives them.
  */
-export async function waitForListening(agent: Agent, clipId: number, ms = 120_000): Promise<ClipWordsResponse> {
+export async function waitForListening(agent: Agent, clipId: number, ms = 120_000): Promise<ClipTranscriptResponse> {
   const end = Date.now() + ms;
   for (;;) {
     const clip = clipSchema.parse(((await agent.get(`/api/clips/${clipId}`).expect(200)).body as { clip: unknown }).clip);
     if (clip.status === 'failed') throw new Error(`clip ${clipId} failed: ${clip.failureReason}`);
-    const words = clipWordsResponseSchema.parse((await agent.get(`/api/clips/${clipId}/words`).expect(200)).body);
-    if (clip.status === 'ready' && !['pending', 'listening'].includes(words.state)) return words;
+    const words = clipTranscriptResponseSchema.parse((await agent.get(`/api/clips/${clipId}/transcript`).expect(200)).body);
+    if (clip.status === 'ready' && !['queued', 'running'].includes(words.state)) return words;
     if (Date.now() > end) throw new Error(`clip ${clipId} is ${clip.status}, listening ${words.state}, after ${ms} ms`);
     await new Promise((r) => setTimeout(r, 250));
   }

@@ -15,6 +15,8 @@ import { MediaRejected } from './media/probe';
 import { planWebCopy } from './media/plan';
 import { makeWebCopy } from './media/transcode';
 import { makePoster, makeThumbnailStrip } from './media/stills';
+import { enqueueDisplayRead, startDisplayWorker } from '../speech/display.job';
+import { displayRegionOf } from '../speech/display.service';
 import { enqueueListen, startListenWorker } from '../speech/listen.job';
 
 export interface ClipJobDeps {
@@ -195,11 +197,16 @@ async function hasWaitingJob(queue: Queue, clipId: number): Promise<boolean> {
  * heartbeat every second).
  */
 export async function startClipWorker(config: Config, queue: Queue, given: ClipJobDeps) {
-  // Listening to ready clips runs in this process too, on its own queue.
+  // Listening to ready clips and reading their displays run in this process too, each on its own queue.
   const listen = await startListenWorker(config, queue, { storage: given.storage, logger: given.logger });
+  const display = await startDisplayWorker(config, queue, { storage: given.storage, logger: given.logger });
   // Three heartbeats per stall period, so a busy machine never looks like a dead worker.
   const deps: ClipJobDeps = {
-    onReady: (clipId, durationS) => enqueueListen(queue, config, clipId, durationS),
+    onReady: async (clipId, durationS) => {
+      await enqueueListen(queue, config, clipId, durationS);
+      // A display region set while the clip was being processed is read now.
+      if (await displayRegionOf(clipId)) await enqueueDisplayRead(queue, config, clipId, durationS);
+    },
     ...given,
     heartbeatMs: Math.min(5000, Math.floor((config.jobs.stallSeconds * 1000) / 3)),
   };
@@ -239,6 +246,7 @@ export async function startClipWorker(config: Config, queue: Queue, given: ClipJ
       clearInterval(timer);
       await queue.boss.offWork(queue.names.clipProcess);
       await listen.stop();
+      await display.stop();
     },
   };
 }

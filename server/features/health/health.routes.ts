@@ -4,6 +4,7 @@ import { access } from '../../http/authorize';
 import { AppError } from '../../http/errors';
 import type { Config } from '../../config';
 import { mediaBinaries } from '../clips/media/binaries';
+import { displayReaderStatus } from '../speech/display-reader';
 import { recognizerStatus } from '../speech/recognizer';
 
 /**
@@ -29,7 +30,7 @@ export function healthRouter(sequelize: Sequelize, speech?: Config['speech']) {
     const body = { status: 'ok', database: 'reachable', latencyMs: Date.now() - started };
     if (req.user?.role !== 'admin') return res.json(body);
     const { source, version } = mediaBinaries();
-    res.json({ ...body, media: { ffmpeg: { source, version }, ...(speech && { recognizer: recognizerStatus(speech) }) } });
+    res.json({ ...body, media: { ffmpeg: { source, version }, ...(speech && { recognizer: recognizerStatus(speech) }), displayReader: displayReaderStatus() } });
   });
   return router;
 }

@@ -203,7 +203,12 @@ export function publicReading(r: PublishedEvidence['readings'][number], units: U
  * said (the moderator's line speaks of "the logged" figure; the page says it in its own words).
  */
 function publicHeard(h: HeardWitness): NonNullable<PublicReading['heard']> {
-  return { state: h.state, ...(h.words !== undefined && { words: h.words }), ...(h.atMs !== undefined && { atMs: h.atMs }) };
+  return {
+    state: h.state,
+    ...(h.words !== undefined && { words: h.words }),
+    ...(h.atMs !== undefined && { atMs: h.atMs }),
+    ...(h.source === 'display' && { source: 'display' as const }),
+  };
 }
 
 function publicCheck(c: CheckedRecord) {

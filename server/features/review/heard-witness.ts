@@ -1,11 +1,12 @@
 import type { AnyUnit } from '@shared/measure/quantities';
 import type { Reading as ReadingDto } from '@shared/readings/reading.schema';
 import { heardWitness, notListened, type ClipListening, type HeardWitness, type WitnessReading } from '@shared/review/heard';
+import { displayRegionOf, displayValuesOf } from '../speech/display.service';
 import { listeningOf, wordsForReaders } from '../speech/speech.service';
 
 /*
- * The review sheet's second witness: for each reading, what its clip's sound says near the
- * reading's moment (the rule is `shared/review/heard.ts`). Each clip's listening state and words
+ * The review sheet's second witness: for each reading, what its clip's sound says (and its
+ * instrument display shows, once read) near the reading's moment (the rule is `shared/review/heard.ts`). Each clip's listening state and words
  * are read once, however many of the story's readings it holds.
  */
 
@@ -28,7 +29,10 @@ export function witnessReading(r: ReadingDto): WitnessReading {
 async function clipListening(clipId: number): Promise<ClipListening> {
   const state = (await listeningOf(clipId))?.state ?? 'pending';
   if (state !== 'ready') return { state };
-  return { state, words: await wordsForReaders(clipId) };
+  const [words, region, shown] = await Promise.all([wordsForReaders(clipId), displayRegionOf(clipId), displayValuesOf(clipId)]);
+  // The display counts once it was read; while it is being read the witness is the sound alone.
+  if (!region || region.state !== 'ready') return { state, words };
+  return { state, words, shown: shown.map((v) => ({ ...v, unit: region.unit })) };
 }
 
 /** The witness of each reading, by reading id. */

@@ -27,9 +27,14 @@ export interface ListenJobData {
   clipId: number;
 }
 
-/** The `clip-listen` queue's name, with the instance prefix (as `queueNames` does for the others). */
+/** A clip evidence queue's name (`clip-listen`, `clip-display-read`), with the instance prefix (as `queueNames` does for the others). */
+export function evidenceQueueName(config: Pick<Config, 'jobs'>, base: 'clip-listen' | 'clip-display-read'): string {
+  return `${config.jobs.queuePrefix ? `${config.jobs.queuePrefix}-` : ''}${base}`;
+}
+
+/** The `clip-listen` queue's name. */
 export function listenQueueName(config: Pick<Config, 'jobs'>): string {
-  return `${config.jobs.queuePrefix ? `${config.jobs.queuePrefix}-` : ''}clip-listen`;
+  return evidenceQueueName(config, 'clip-listen');
 }
 
 /** pg-boss refuses an expiry of 24 h or more (as for clip jobs). */
@@ -45,12 +50,14 @@ export function listenJobExpireSeconds(durationS: number, floorS: number): numbe
   return Math.min(EXPIRY_CEILING_S, Math.max(Math.ceil(floorS), 300 + decodeAllTimeoutS(d) + recognizeTimeoutS(d)));
 }
 
-const made = new WeakSet<PgBoss>();
+const made = new WeakMap<PgBoss, Set<string>>();
 
-/** Creates the queue (once per process and boss), with the clip queue's retries. */
-async function ensureListenQueue(queue: Queue, config: Pick<Config, 'jobs'>): Promise<string> {
-  const name = listenQueueName(config);
-  if (made.has(queue.boss)) return name;
+/** Creates an evidence queue (once per process, boss and name), with the clip queue's retries. */
+export async function ensureEvidenceQueue(queue: Queue, config: Pick<Config, 'jobs'>, base: 'clip-listen' | 'clip-display-read'): Promise<string> {
+  const name = evidenceQueueName(config, base);
+  const names = made.get(queue.boss) ?? new Set<string>();
+  made.set(queue.boss, names);
+  if (names.has(name)) return name;
   // 'short': at most one waiting job per clip, so asking again is harmless.
   const options = {
     name,
@@ -62,13 +69,13 @@ async function ensureListenQueue(queue: Queue, config: Pick<Config, 'jobs'>): Pr
   };
   await queue.boss.createQueue(name, options);
   await queue.boss.updateQueue(name, options);
-  made.add(queue.boss);
+  names.add(name);
   return name;
 }
 
 /** Puts listening to a clip on the `clip-listen` queue (at most one waiting job per clip). */
 export async function enqueueListen(queue: Queue, config: Pick<Config, 'jobs'>, clipId: number, durationS?: number) {
-  const name = await ensureListenQueue(queue, config);
+  const name = await ensureEvidenceQueue(queue, config, 'clip-listen');
   const seconds = durationS ?? (await Clip.findByPk(clipId, { attributes: ['id', 'probe'] }))?.probe?.durationS ?? 0;
   return queue.boss.send(name, { clipId } satisfies ListenJobData, {
     singletonKey: `listen-${clipId}`,
@@ -175,7 +182,7 @@ export async function listenToClip(deps: ListenDeps, clipId: number, attempt: { 
  */
 export async function startListenWorker(config: Config, queue: Queue, given: Omit<ListenDeps, 'speech'>) {
   const deps: ListenDeps = { ...given, speech: config.speech };
-  const name = await ensureListenQueue(queue, config);
+  const name = await ensureEvidenceQueue(queue, config, 'clip-listen');
   const stopping = new AbortController();
   await queue.boss.work<ListenJobData>(
     name,

@@ -1,9 +1,9 @@
 import { Fraction } from '@shared/measure/exact';
 import { convertExact, quantityOf, type AnyUnit } from '@shared/measure/quantities';
-import type { SpeechProposal } from '@shared/speech/speech.schema';
+import type { Suggestion } from '@shared/speech/speech.schema';
 
 /**
- * How far from the words a reading's moment may be and still log them, ms: the moment within
+ * How far from the words (or the display's showing) a reading's moment may be and still log them, ms: the moment within
  * ±1.5 s of the span the figure was said in. Our rule (common practice, no published source):
  * builders mark the moment while saying the figure or just after, and the recognizer's times
  * are good to a few tenths of a second.
@@ -36,22 +36,22 @@ function fraction(text: string | null | undefined): Fraction | null {
   }
 }
 
-/** Distance in ms from a moment to the span the words were said in (0 inside it). */
-function msFromWords(atMs: number, p: Pick<SpeechProposal, 'startMs' | 'endMs'>): number {
-  if (atMs < p.startMs) return p.startMs - atMs;
+/** Distance in ms from a moment to the span the figure was said or shown in (0 inside it). */
+function msFromWords(atMs: number, p: Pick<Suggestion, 'atMs' | 'endMs'>): number {
+  if (atMs < p.atMs) return p.atMs - atMs;
   if (atMs > p.endMs) return atMs - p.endMs;
   return 0;
 }
 
 /**
  * The reading already logged for a proposal, or null: a reading whose moment is within
- * `LOGGED_WITHIN_MS` of the words, of the same quantity, whose figure is the proposal's within its
+ * `LOGGED_WITHIN_MS` of the words (or the display), of the same quantity, whose figure is the proposal's within its
  * instrument's resolution (|heard − logged| ≤ resolution, compared exactly after converting the
  * heard figure into the reading's unit). A value matches a direct reading's value or one of a
  * repeated reading's values; a blade said with how it went ("three thou drags") also matches that
  * side of a feeler bracket; a bracket matches a bracket on both blades. The nearest in time wins.
  */
-export function loggedReadingFor<R extends ClipReadingFigures>(proposal: SpeechProposal, readings: readonly R[]): R | null {
+export function loggedReadingFor<R extends ClipReadingFigures>(proposal: Suggestion, readings: readonly R[]): R | null {
   let best: { reading: R; distance: number } | null = null;
   for (const r of readings) {
     const distance = msFromWords(r.atMs, proposal);
@@ -62,7 +62,7 @@ export function loggedReadingFor<R extends ClipReadingFigures>(proposal: SpeechP
   return best?.reading ?? null;
 }
 
-function figuresAgree(p: SpeechProposal, r: ClipReadingFigures): boolean {
+function figuresAgree(p: Suggestion, r: ClipReadingFigures): boolean {
   if (quantityOf(p.unit) !== quantityOf(r.unit) || quantityOf(r.resolutionUnit) !== quantityOf(r.unit)) return false;
   const resolutionText = fraction(r.resolution);
   if (!resolutionText) return false;

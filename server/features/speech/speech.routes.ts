@@ -2,7 +2,21 @@ import { Router } from 'express';
 import type { Logger } from 'pino';
 import { clipIdParamsSchema } from '@shared/clips/clip.schema';
 import { publicClipParamsSchema } from '@shared/public/public-story.schema';
-import { proposalParamsSchema, type ClipProposalsResponse, type ClipWordsResponse, type ListeningState } from '@shared/speech/speech.schema';
+import { quantityOf } from '@shared/measure/quantities';
+import {
+  captionCorrectionBodySchema,
+  captionCorrectionParamsSchema,
+  displayRegionBodySchema,
+  evidenceStateOf,
+  suggestionParamsSchema,
+  type CaptionCorrectionBody,
+  type CaptionCorrectionListResponse,
+  type CaptionCorrectionResponse,
+  type ClipSuggestionsResponse,
+  type ClipTranscriptResponse,
+  type DisplayRegionBody,
+  type EvidenceState,
+} from '@shared/speech/speech.schema';
 import type { Config } from '../../config';
 import { access } from '../../http/authorize';
 import { notFound } from '../../http/errors';
@@ -12,9 +26,12 @@ import type { Clip } from '../clips/clip.model';
 import { clipForOwner, clipForViewer } from '../clips/clips.service';
 import { publicClipScope } from '../public/public.service';
 import { captionsVtt } from './captions';
+import { correctionDto, createCorrection, listCorrections, removeCorrection } from './corrections.service';
+import { enqueueDisplayRead } from './display.job';
+import { displayRegionOf, regionDto, removeDisplayRegion, setDisplayRegion, type DisplayState } from './display.service';
 import { enqueueListen } from './listen.job';
 import { recognizerFromConfig } from './recognizer';
-import { dismissProposal, listeningOf, proposalsForClip, undismissProposal, wordsForReaders } from './speech.service';
+import { dismissSuggestion, listeningOf, spokenFigureOptions, suggestionsForClip, undismissSuggestion, wordsForReaders } from './speech.service';
 
 export interface SpeechRouteDeps {
   config: Config;
@@ -28,7 +45,7 @@ const clipId = (req: { params: Record<string, unknown> }) => Number(req.params.c
  * Where listening to the clip stands. A ready clip nobody has listened to yet (it was ready before
  * this feature, or was found 'unavailable' and a recognizer is here now) is queued on the way.
  */
-async function stateOf(deps: SpeechRouteDeps, clip: Clip): Promise<ListeningState> {
+async function listeningState(deps: SpeechRouteDeps, clip: Clip): Promise<EvidenceState> {
   const state = (await listeningOf(clip.id))?.state ?? 'pending';
   const waiting = state === 'pending' || (state === 'unavailable' && deps.config.speech.enabled && recognizerFromConfig(deps.config.speech).unavailableBecause() === null);
   if (waiting && clip.status === 'ready' && deps.queue) {
@@ -36,54 +53,137 @@ async function stateOf(deps: SpeechRouteDeps, clip: Clip): Promise<ListeningStat
       deps.logger.warn({ err, clipId: clip.id }, 'listening to the clip not queued'),
     );
   }
-  return state;
+  return evidenceStateOf(state);
+}
+
+const displayStates: Record<DisplayState, EvidenceState> = { pending: 'queued', reading: 'running', ready: 'done', failed: 'failed', unavailable: 'off' };
+
+/** Where reading the clip's display stands (null: no region set); a pending one of a ready clip is queued on the way. */
+async function displayState(deps: SpeechRouteDeps, clip: Clip, state: DisplayState | null): Promise<EvidenceState | null> {
+  if (state === null) return null;
+  if (state === 'pending' && clip.status === 'ready' && deps.queue) {
+    await enqueueDisplayRead(deps.queue, deps.config, clip.id, clip.probe?.durationS).catch((err: unknown) =>
+      deps.logger.warn({ err, clipId: clip.id }, 'reading the clip display not queued'),
+    );
+  }
+  return displayStates[state];
 }
 
 /**
- * Routes under /api/clips/:clipId: the words heard in a clip, its captions and the readings they
- * propose; its builder dismisses a proposal (and brings it back) there too.
+ * The suggestions' state from listening's and the display's: under way while either is, then
+ * failed if either failed, `done` when each asked for has finished (a display region set makes
+ * it wait for that reading too), `off` only when nothing can be read at all.
+ */
+export function combinedState(listening: EvidenceState, display: EvidenceState | null): EvidenceState {
+  const states = display === null ? [listening] : [listening, display];
+  for (const s of ['running', 'queued', 'failed', 'done'] as const) if (states.includes(s)) return s;
+  return 'off';
+}
+
+/**
+ * Routes under /api/clips/:clipId: the words heard in a clip, its captions, the readings its
+ * sound and display suggest, the region of its picture where a display is read, and its
+ * builder's caption corrections. Anyone who may see the clip reads them; its builder dismisses a
+ * suggestion (and brings it back), sets the display region and corrects the captions.
  */
 export function clipSpeechRouter(deps: SpeechRouteDeps) {
   const router = Router();
   const one = validate({ params: clipIdParamsSchema });
 
-  router.get('/:clipId/words', access.signedIn, one, async (req, res) => {
+  router.get('/:clipId/transcript', access.signedIn, one, async (req, res) => {
     const clip = await clipForViewer(clipId(req), req.user);
-    const body: ClipWordsResponse = { state: await stateOf(deps, clip), words: await wordsForReaders(clip.id) };
+    const words = (await wordsForReaders(clip.id)).map(({ word, ...w }) => ({ startMs: w.startMs, endMs: w.endMs, text: word, confidence: w.confidence }));
+    const body: ClipTranscriptResponse = { state: await listeningState(deps, clip), words };
     res.set('Cache-Control', 'private, no-cache');
     res.json(body);
   });
 
   router.get('/:clipId/captions.vtt', access.signedIn, one, async (req, res) => {
     const clip = await clipForViewer(clipId(req), req.user);
-    await stateOf(deps, clip);
+    await listeningState(deps, clip);
     res.set('Cache-Control', 'private, no-cache');
     res.type('text/vtt; charset=utf-8').send(captionsVtt(await wordsForReaders(clip.id)));
   });
 
-  router.get('/:clipId/proposals', access.signedIn, one, async (req, res) => {
+  router.get('/:clipId/suggestions', access.signedIn, one, async (req, res) => {
     const clip = await clipForViewer(clipId(req), req.user);
-    const [state, items] = await Promise.all([stateOf(deps, clip), proposalsForClip(clip)]);
-    const body: ClipProposalsResponse = { state, items };
+    const region = await displayRegionOf(clip.id);
+    const [listening, display, suggestions] = await Promise.all([
+      listeningState(deps, clip),
+      displayState(deps, clip, (region?.state as DisplayState | undefined) ?? null),
+      suggestionsForClip(clip),
+    ]);
+    const body: ClipSuggestionsResponse = {
+      state: combinedState(listening, display),
+      suggestions,
+      displayRegion: region && display ? { ...regionDto(region), state: display } : null,
+    };
     res.set('Cache-Control', 'private, no-cache');
     res.json(body);
   });
 
-  // Setting a proposal aside is the builder's choice about their own clip: only the build's
-  // builder (an admin passes the role check and is refused by buildForOwner; others' clips 404).
-  const proposal = validate({ params: proposalParamsSchema });
-  router.post('/:clipId/proposals/:proposalId/dismiss', access.role('builder'), proposal, async (req, res) => {
+  // Setting a suggestion aside, and where the display is, are the builder's choices about their
+  // own clip: only the build's builder (an admin passes the role check and is refused by
+  // clipForOwner; others' clips are not found).
+  const suggestion = validate({ params: suggestionParamsSchema });
+  router.post('/:clipId/suggestions/:id/dismiss', access.role('builder'), suggestion, async (req, res) => {
     const clip = await clipForOwner(clipId(req), req.user);
-    await dismissProposal(clip, req.user!, String(req.params.proposalId));
+    await dismissSuggestion(clip, req.user!, String(req.params.id));
     res.status(204).end();
   });
-  router.delete('/:clipId/proposals/:proposalId/dismiss', access.role('builder'), proposal, async (req, res) => {
+  router.delete('/:clipId/suggestions/:id/dismiss', access.role('builder'), suggestion, async (req, res) => {
     const clip = await clipForOwner(clipId(req), req.user);
-    await undismissProposal(clip, String(req.params.proposalId));
+    await undismissSuggestion(clip, String(req.params.id));
+    res.status(204).end();
+  });
+
+  router.put('/:clipId/display-region', access.role('builder'), validate({ params: clipIdParamsSchema, body: displayRegionBodySchema }), async (req, res) => {
+    const clip = await clipForOwner(clipId(req), req.user);
+    const { unit: given, ...region } = req.body as DisplayRegionBody;
+    const unit = given ?? (await usualUnit(clip));
+    await setDisplayRegion(clip, req.user!, region, unit);
+    if (clip.status === 'ready' && deps.queue) await enqueueDisplayRead(deps.queue, deps.config, clip.id, clip.probe?.durationS);
+    res.status(204).end();
+  });
+  router.delete('/:clipId/display-region', access.role('builder'), one, async (req, res) => {
+    const clip = await clipForOwner(clipId(req), req.user);
+    await removeDisplayRegion(clip);
+    res.status(204).end();
+  });
+
+  // Caption corrections: the builder's own words for a span of the clip, used wherever its words
+  // are read. Anyone who may see the clip lists them; only the build's builder makes or removes
+  // one (as for dismissing a suggestion).
+  router.get('/:clipId/caption-corrections', access.signedIn, one, async (req, res) => {
+    const clip = await clipForViewer(clipId(req), req.user);
+    const body: CaptionCorrectionListResponse = { items: (await listCorrections(clip.id)).map(correctionDto) };
+    res.set('Cache-Control', 'private, no-cache');
+    res.json(body);
+  });
+  router.post(
+    '/:clipId/caption-corrections',
+    access.role('builder'),
+    validate({ params: clipIdParamsSchema, body: captionCorrectionBodySchema }),
+    async (req, res) => {
+      const clip = await clipForOwner(clipId(req), req.user);
+      const correction = await createCorrection(clip, req.user!, req.body as CaptionCorrectionBody);
+      const body: CaptionCorrectionResponse = { correction: correctionDto(correction) };
+      res.status(201).json(body);
+    },
+  );
+  router.delete('/:clipId/caption-corrections/:correctionId', access.role('builder'), validate({ params: captionCorrectionParamsSchema }), async (req, res) => {
+    const clip = await clipForOwner(clipId(req), req.user);
+    await removeCorrection(clip, Number(req.params.correctionId));
     res.status(204).end();
   });
 
   return router;
+}
+
+/** The unit a display is read in when the builder names none: their usual one, else their first length unit, else inches. */
+async function usualUnit(clip: Clip) {
+  const opts = await spokenFigureOptions(clip);
+  return opts.defaultUnit ?? opts.units?.find((u) => quantityOf(u) === 'length') ?? 'in';
 }
 
 /**

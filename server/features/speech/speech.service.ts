@@ -1,6 +1,6 @@
 import { QueryTypes, type Transaction } from 'sequelize';
 import { quantityOf, unitsOf, type AnyUnit } from '@shared/measure/quantities';
-import type { ClipWord as ClipWordDto, ListeningState, SpeechProposal } from '@shared/speech/speech.schema';
+import type { ClipWord as ClipWordDto, ListeningState, Suggestion } from '@shared/speech/speech.schema';
 import { findSpokenFigures, type FindSpokenFiguresOptions } from '@shared/speech/spoken-figures';
 import { notFound } from '../../http/errors';
 import { Build } from '../builds/build.model';
@@ -8,6 +8,8 @@ import { Instrument } from '../instruments/instrument.model';
 import { Clip } from '../clips/clip.model';
 import type { User } from '../users/user.model';
 import { cleanWord } from './captions';
+import { withCorrections } from './corrections.service';
+import { displayRegionOf, displaySuggestions, displayValuesOf } from './display.service';
 import { loggedReadingFor, type ClipReadingFigures } from './proposal-match';
 import type { RecognizedWord } from './recognizer';
 import { ClipWord, ProposalDismissal } from './speech.model';
@@ -78,7 +80,12 @@ export async function storeClipWords(clipId: number, words: readonly RecognizedW
   });
 }
 
-/** A clip's words as readers get them: markers removed, alternates' numbers dropped, confidence within 0…1. */
+/**
+ * A clip's words as readers get them: markers removed, alternates' numbers dropped, confidence
+ * within 0…1, and its builder's caption corrections applied (`withCorrections`: their words in
+ * place of those heard in their spans), so captions, transcript, suggestions and the review's
+ * second witness all read the corrected words.
+ */
 export async function wordsForReaders(clipId: number): Promise<ClipWordDto[]> {
   const rows = await ClipWord.findAll({ where: { clipId }, order: [['position', 'ASC']] });
   const words: ClipWordDto[] = [];
@@ -87,7 +94,7 @@ export async function wordsForReaders(clipId: number): Promise<ClipWordDto[]> {
     if (word === null) continue;
     words.push({ word, startMs: row.startMs, endMs: row.endMs, confidence: Math.min(1, Math.max(0, Number(row.confidence))) });
   }
-  return words;
+  return withCorrections(clipId, words);
 }
 
 /**
@@ -112,27 +119,28 @@ export async function spokenFigureOptions(clip: Pick<Clip, 'buildId'>): Promise<
  * The readings heard in the words (`findSpokenFigures`), in the order said, each with an id that
  * stays the same while the words do: its start in ms and its place among figures starting then.
  */
-export function proposalsFromWords(words: readonly ClipWordDto[], opts: FindSpokenFiguresOptions): SpeechProposal[] {
+export function suggestionsFromWords(words: readonly ClipWordDto[], opts: FindSpokenFiguresOptions): Suggestion[] {
   const timed = words.map((w) => ({ word: w.word, start: w.startMs / 1000, end: w.endMs / 1000, confidence: w.confidence }));
   const seen = new Map<number, number>();
   return findSpokenFigures(timed, opts).map((f) => {
-    const startMs = Math.round(f.start * 1000);
-    const n = seen.get(startMs) ?? 0;
-    seen.set(startMs, n + 1);
+    const atMs = Math.round(f.start * 1000);
+    const n = seen.get(atMs) ?? 0;
+    seen.set(atMs, n + 1);
     const common = {
-      id: `${startMs}-${n}`,
+      id: `${atMs}-${n}`,
+      atMs,
+      endMs: Math.max(atMs, Math.round(f.end * 1000)),
+      source: 'speech' as const,
+      text: f.words,
       unit: f.unit,
-      startMs,
-      endMs: Math.max(startMs, Math.round(f.end * 1000)),
       confidence: f.confidence,
-      heard: f.words,
       unitHeard: f.unitHeard,
       ...(f.note ? { note: f.note } : {}),
       dismissed: false,
       logged: false,
     };
     return f.kind === 'value'
-      ? { kind: 'value' as const, value: f.value, feel: f.feel, ...common }
+      ? { kind: 'direct' as const, value: f.value, feel: f.feel, ...common }
       : { kind: 'bracket' as const, passes: f.passes, stops: f.stops, ...common };
   });
 }
@@ -176,19 +184,24 @@ async function clipReadingFigures(clipId: number): Promise<ClipReadingFigures[]>
 }
 
 /**
- * The clip's proposals as its proposals route answers them: what its words propose with its
- * builder's units, each marked `dismissed` when the builder set it aside and `logged` (with the
- * reading's key) when a reading near its time already holds its figure (`loggedReadingFor`).
+ * The clip's suggestions as its suggestions route answers them, in time order: what its words
+ * propose with its builder's units and what was read off its display, each marked `dismissed`
+ * when the builder set it aside and `logged` (with the reading's key) when a reading near its
+ * time already holds its figure (`loggedReadingFor`).
  */
-export async function proposalsForClip(clip: Pick<Clip, 'id' | 'buildId'>): Promise<SpeechProposal[]> {
-  const [words, opts, dismissals, readings] = await Promise.all([
+export async function suggestionsForClip(clip: Pick<Clip, 'id' | 'buildId'>): Promise<Suggestion[]> {
+  const [words, opts, dismissals, readings, region, shown] = await Promise.all([
     wordsForReaders(clip.id),
     spokenFigureOptions(clip),
     ProposalDismissal.findAll({ where: { clipId: clip.id }, attributes: ['proposalId'] }),
     clipReadingFigures(clip.id),
+    displayRegionOf(clip.id),
+    displayValuesOf(clip.id),
   ]);
   const dismissed = new Set(dismissals.map((d) => d.proposalId));
-  return proposalsFromWords(words, opts).map((p) => {
+  const all = [...suggestionsFromWords(words, opts), ...(region ? displaySuggestions(shown, region.unit) : [])];
+  all.sort((a, b) => a.atMs - b.atMs || (a.source === b.source ? 0 : a.source === 'speech' ? -1 : 1));
+  return all.map((p) => {
     const reading = loggedReadingFor(p, readings);
     return {
       ...p,
@@ -199,17 +212,23 @@ export async function proposalsForClip(clip: Pick<Clip, 'id' | 'buildId'>): Prom
 }
 
 /**
- * Sets a proposal of the clip aside for its builder (again is harmless). Only a proposal the
- * clip's words make now can be dismissed: any other id is not found.
+ * Sets a suggestion of the clip aside for its builder (again is harmless). Only a suggestion the
+ * clip's words or display make now can be dismissed: any other id is not found.
  */
-export async function dismissProposal(clip: Pick<Clip, 'id' | 'buildId'>, user: User, proposalId: string): Promise<void> {
-  const words = await wordsForReaders(clip.id);
-  const exists = proposalsFromWords(words, await spokenFigureOptions(clip)).some((p) => p.id === proposalId);
-  if (!exists) throw notFound('This clip has no proposed reading with that id; its words may have been heard again.');
-  await ProposalDismissal.bulkCreate([{ clipId: clip.id, proposalId, dismissedBy: user.id }], { ignoreDuplicates: true });
+export async function dismissSuggestion(clip: Pick<Clip, 'id' | 'buildId'>, user: User, id: string): Promise<void> {
+  const exists = id.startsWith('d')
+    ? await displaySuggestionExists(clip.id, id)
+    : suggestionsFromWords(await wordsForReaders(clip.id), await spokenFigureOptions(clip)).some((p) => p.id === id);
+  if (!exists) throw notFound('This clip has no suggested reading with that id; its words or display may have been read again.');
+  await ProposalDismissal.bulkCreate([{ clipId: clip.id, proposalId: id, dismissedBy: user.id }], { ignoreDuplicates: true });
 }
 
-/** Brings a dismissed proposal back (harmless when it was not dismissed, or is gone). */
-export async function undismissProposal(clip: Pick<Clip, 'id'>, proposalId: string): Promise<void> {
-  await ProposalDismissal.destroy({ where: { clipId: clip.id, proposalId } });
+async function displaySuggestionExists(clipId: number, id: string): Promise<boolean> {
+  const region = await displayRegionOf(clipId);
+  return region !== null && displaySuggestions(await displayValuesOf(clipId), region.unit).some((p) => p.id === id);
+}
+
+/** Brings a dismissed suggestion back (harmless when it was not dismissed, or is gone). */
+export async function undismissSuggestion(clip: Pick<Clip, 'id'>, id: string): Promise<void> {
+  await ProposalDismissal.destroy({ where: { clipId: clip.id, proposalId: id } });
 }

@@ -8,7 +8,8 @@ import { EvidenceCheck, StoryPublication } from '../../../server/features/review
 import { evidenceOf } from '../../../server/features/review/review.service';
 import { Story } from '../../../server/features/stories/story.model';
 import { Clip, Moment } from '../../../server/features/clips/clip.model';
-import { listeningOf, proposalsForClip } from '../../../server/features/speech/speech.service';
+import { displayRegionOf } from '../../../server/features/speech/display.service';
+import { listeningOf, suggestionsForClip } from '../../../server/features/speech/speech.service';
 import { createLogger } from '../../../server/logger';
 import { startTestApp } from '../../support/test-app';
 
@@ -69,10 +70,25 @@ describe('the demo clips', () => {
       expect(states).toEqual(clips.map(() => 'ready'));
       const heard: string[] = [];
       for (const clip of clips) {
-        for (const p of await proposalsForClip(clip)) if (p.logged) heard.push(`${clip.title}: ${p.readingKey} heard as "${p.heard}"`);
+        for (const p of await suggestionsForClip(clip)) if (p.logged) heard.push(`${clip.title}: ${p.readingKey} heard as "${p.text}"`);
       }
       console.log(`demo readings heard on their clips (${heard.length}):\n${heard.join('\n')}`);
       expect(heard.length).toBeGreaterThanOrEqual(1);
+
+      // A demo clip with its display marked has each figure the display showed read off it, and
+      // the demo readings at those moments are the figures read (logged), in the unit marked.
+      const marked = loadDemoBuilds().flatMap((b) => b.clips).filter((c) => c.displayUnit);
+      expect(marked.length).toBeGreaterThanOrEqual(1);
+      for (const spec of marked) {
+        const clip = clips.find((c) => c.title === spec.title)!;
+        const displayEnd = Date.now() + 60_000;
+        while ((await displayRegionOf(clip.id))?.state !== 'ready' && Date.now() < displayEnd) await new Promise((r) => setTimeout(r, 300));
+        expect((await displayRegionOf(clip.id))?.state, spec.title).toBe('ready');
+        const read = (await suggestionsForClip(clip)).filter((p) => p.source === 'display');
+        const shows = spec.moments.filter((m) => m.show).map((m) => m.show);
+        expect(read.map((p) => p.text), spec.title).toEqual(shows);
+        expect(read.every((p) => p.unit === spec.displayUnit && p.logged), JSON.stringify(read)).toBe(true);
+      }
     } finally {
       await t.close();
     }

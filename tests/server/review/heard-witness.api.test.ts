@@ -81,6 +81,7 @@ describe('what was heard near each reading’s moment, on the review sheet', () 
       figure: { value: '564.2', unit: 'thou' },
       atMs: 200,
       words: 'five hundred sixty four and two tenths',
+      source: 'speech',
     });
     // Both figures are within 4 s of 1.5 s; neither is within half a step of 0.5595 in, and 0.5594 in is the closer.
     // "hmm" is a filler: the figure starts at "point", 1 300 + 120 ms.
@@ -90,6 +91,7 @@ describe('what was heard near each reading’s moment, on the review sheet', () 
       figure: { value: '0.5594', unit: 'in' },
       atMs: 1_420,
       words: 'point five five nine four',
+      source: 'speech',
     });
   }, 60_000);
 

@@ -6,7 +6,8 @@ import { listRoutes } from '../../../server/http/routes';
 import { Follow } from '../../../server/features/follows/follow.model';
 import { Question } from '../../../server/features/questions/question.model';
 import { ClipUpload } from '../../../server/features/clips/clip-upload.model';
-import { ProposalDismissal } from '../../../server/features/speech/speech.model';
+import { DisplayRegionRow, ProposalDismissal } from '../../../server/features/speech/speech.model';
+import { CaptionCorrection } from '../../../server/features/speech/corrections.model';
 import { listeningOf, storeClipWords } from '../../../server/features/speech/speech.service';
 import { makeTestClip } from '../../support/clips';
 import {
@@ -102,14 +103,22 @@ const TABLE: Record<string, Expected> = {
   'GET /api/clips/:clipId/chapters.vtt':     { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   'GET /api/clips/:clipId/moments':          { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   'POST /api/clips/:clipId/moments':         { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
-  // What was heard in a clip's sound (words, captions, proposed readings): read as the clip is.
-  'GET /api/clips/:clipId/words':            { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  // What was heard and read in a clip (transcript, captions, suggested readings): read as the clip is.
+  'GET /api/clips/:clipId/transcript':       { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
   'GET /api/clips/:clipId/captions.vtt':     { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
-  'GET /api/clips/:clipId/proposals':        { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
-  // Setting a proposed reading aside and bringing it back: the build's builder only, as for
-  // marking a moment (an admin passes the role check and is refused there; others' clips 404).
-  'POST /api/clips/:clipId/proposals/:proposalId/dismiss':   { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
-  'DELETE /api/clips/:clipId/proposals/:proposalId/dismiss': { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
+  'GET /api/clips/:clipId/suggestions':      { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  // Setting a suggested reading aside and bringing it back, and marking where the display is: the
+  // build's builder only, as for marking a moment (an admin passes the role check and is refused
+  // there; others' clips 404).
+  'POST /api/clips/:clipId/suggestions/:id/dismiss':   { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
+  'DELETE /api/clips/:clipId/suggestions/:id/dismiss': { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
+  'PUT /api/clips/:clipId/display-region':    { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
+  'DELETE /api/clips/:clipId/display-region': { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
+  // Caption corrections: read as the clip is; made and removed by the build's builder only, as
+  // for dismissing a suggestion (an admin passes the role check and is refused there).
+  'GET /api/clips/:clipId/caption-corrections':                   { anonymous: 401, follower: 404, owner: 200, otherBuilder: 404, moderator: 200, admin: 200 },
+  'POST /api/clips/:clipId/caption-corrections':                  { anonymous: 401, follower: 403, owner: 201, otherBuilder: 404, moderator: 403, admin: 403 },
+  'DELETE /api/clips/:clipId/caption-corrections/:correctionId':  { anonymous: 401, follower: 403, owner: 204, otherBuilder: 404, moderator: 403, admin: 403 },
 
   // Moments: changed through their clip's build.
   'PATCH /api/moments/:momentId':            { anonymous: 401, follower: 403, owner: 200, otherBuilder: 404, moderator: 403, admin: 403 },
@@ -309,12 +318,31 @@ async function setMatrixProposalDismissed(dismissed: boolean) {
   else await ProposalDismissal.bulkCreate([{ clipId: fx.clipId, proposalId: MATRIX_PROPOSAL_ID, dismissedBy: fx.actorIds.owner }], { ignoreDuplicates: true });
 }
 
+/** Where the display region rows put a display: the right half of the frame, in the middle. */
+const MATRIX_REGION = { x: 0.5, y: 0.25, width: 0.4, height: 0.5 };
+async function setMatrixDisplayRegion(present: boolean) {
+  await DisplayRegionRow.destroy({ where: { clipId: fx.clipId } });
+  if (present) await DisplayRegionRow.create({ clipId: fx.clipId, ...MATRIX_REGION, unit: 'in', state: 'ready', setBy: fx.actorIds.owner });
+}
+
+/**
+ * The caption correction rows' span: before the words the dismiss rows need (1–1.5 s), so a
+ * correction there never changes their proposal. Each row starts with none, or with one to remove.
+ */
+const MATRIX_CORRECTION = { startMs: 100, endMs: 400, text: 'matrix check words' };
+const matrixCorrection = { id: 0 };
+const matrixCorrections = () => CaptionCorrection.findAll({ where: { clipId: fx.clipId } });
+async function setMatrixCorrection(present: boolean) {
+  await CaptionCorrection.destroy({ where: { clipId: fx.clipId } });
+  if (present) matrixCorrection.id = (await CaptionCorrection.create({ clipId: fx.clipId, ...MATRIX_CORRECTION, correctedBy: fx.actorIds.owner })).id;
+}
+
 /** Waits until the worker is done with the fixture clip's sound, then gives it the words the dismiss rows need. */
 async function giveFixtureClipWords() {
   const end = Date.now() + 60_000;
   for (;;) {
     // Asking for the words queues a clip nobody has listened to yet.
-    await sessions.owner.agent.get(`/api/clips/${fx.clipId}/words`).expect(200);
+    await sessions.owner.agent.get(`/api/clips/${fx.clipId}/transcript`).expect(200);
     const state = (await listeningOf(fx.clipId))?.state;
     if (state === 'ready' || state === 'failed' || state === 'unavailable') break;
     if (Date.now() > end) throw new Error(`the fixture clip is still ${state} after a minute`);
@@ -391,8 +419,16 @@ const SHAPES: Record<string, Shape> = {
   'DELETE /api/clips/:clipId': { params: (actor) => ({ clipId: fx.clipToDelete[actor] }) },
   'GET /api/clips/:clipId/frame': { query: () => '?t=0.5' },
   'POST /api/clips/:clipId/moments': { body: () => ({ atMs: 100 }) },
-  'POST /api/clips/:clipId/proposals/:proposalId/dismiss': { before: () => setMatrixProposalDismissed(false) },
-  'DELETE /api/clips/:clipId/proposals/:proposalId/dismiss': { before: () => setMatrixProposalDismissed(true) },
+  'POST /api/clips/:clipId/suggestions/:id/dismiss': { before: () => setMatrixProposalDismissed(false), params: () => ({ id: MATRIX_PROPOSAL_ID }) },
+  'DELETE /api/clips/:clipId/suggestions/:id/dismiss': { before: () => setMatrixProposalDismissed(true), params: () => ({ id: MATRIX_PROPOSAL_ID }) },
+  'PUT /api/clips/:clipId/display-region': { before: () => setMatrixDisplayRegion(false), body: () => MATRIX_REGION },
+  'DELETE /api/clips/:clipId/display-region': { before: () => setMatrixDisplayRegion(true) },
+  'GET /api/clips/:clipId/caption-corrections': { before: () => setMatrixCorrection(true) },
+  'POST /api/clips/:clipId/caption-corrections': { before: () => setMatrixCorrection(false), body: () => MATRIX_CORRECTION },
+  'DELETE /api/clips/:clipId/caption-corrections/:correctionId': {
+    before: () => setMatrixCorrection(true),
+    params: () => ({ correctionId: matrixCorrection.id }),
+  },
   'PATCH /api/moments/:momentId': { body: () => ({ label: 'Matrix check label' }) },
   'DELETE /api/moments/:momentId': { params: (actor) => ({ momentId: fx.momentToDelete[actor] }) },
 
@@ -506,7 +542,6 @@ function fill(routePath: string, actor: Actor, shape: Shape): string {
     partId: fx.published.partId,
     questionId: fx.published.questionId,
     uploadId: uploads.id,
-    proposalId: MATRIX_PROPOSAL_ID,
     ...shape.params?.(actor),
   };
   return routePath.replace(/:(\w+)/g, (_, name: string) => {
@@ -577,13 +612,40 @@ const EFFECTS: Record<string, (actor: Actor, status: number, s: Session, res: { 
   },
   'DELETE /api/clips/:clipId': (actor, status) => stillThere(`/api/clips/${fx.clipToDelete[actor]}`, status === 204),
   // A dismissal is there after the builder's POST and gone after their DELETE; a refusal left it as it was.
-  'POST /api/clips/:clipId/proposals/:proposalId/dismiss': async (_actor, status) => {
+  'POST /api/clips/:clipId/suggestions/:id/dismiss': async (_actor, status) => {
     const row = await dismissalOfMatrixProposal();
     if (status === 204) expect(row?.dismissedBy).toBe(fx.actorIds.owner);
     else expect(row).toBeNull();
   },
-  'DELETE /api/clips/:clipId/proposals/:proposalId/dismiss': async (_actor, status) => {
+  'DELETE /api/clips/:clipId/suggestions/:id/dismiss': async (_actor, status) => {
     expect(await dismissalOfMatrixProposal()).toEqual(status === 204 ? null : expect.anything());
+  },
+  // The region is set by the builder's PUT (and its reading queued) and gone after their DELETE; a refusal left it as it was.
+  'PUT /api/clips/:clipId/display-region': async (_actor, status) => {
+    const row = await DisplayRegionRow.findByPk(fx.clipId);
+    if (status === 204) expect(row).toMatchObject({ ...MATRIX_REGION, setBy: fx.actorIds.owner });
+    else expect(row).toBeNull();
+  },
+  'DELETE /api/clips/:clipId/display-region': async (_actor, status) => {
+    expect(await DisplayRegionRow.findByPk(fx.clipId)).toEqual(status === 204 ? null : expect.anything());
+  },
+  // Those who may see the clip are given its correction; a correction is made only by the
+  // builder's POST (in their name) and gone only after their DELETE; a refusal changed nothing.
+  // Each cell leaves the fixture clip without corrections.
+  'GET /api/clips/:clipId/caption-corrections': async (_actor, status, _s, res) => {
+    if (status === 200) expect((res.body as { items: unknown[] }).items).toEqual([expect.objectContaining({ id: matrixCorrection.id, ...MATRIX_CORRECTION })]);
+    else expect((res.body as { items?: unknown }).items).toBeUndefined();
+    await setMatrixCorrection(false);
+  },
+  'POST /api/clips/:clipId/caption-corrections': async (_actor, status) => {
+    const rows = await matrixCorrections();
+    if (status === 201) expect(rows.map((r) => ({ text: r.text, by: r.correctedBy }))).toEqual([{ text: MATRIX_CORRECTION.text, by: fx.actorIds.owner }]);
+    else expect(rows).toEqual([]);
+    await setMatrixCorrection(false);
+  },
+  'DELETE /api/clips/:clipId/caption-corrections/:correctionId': async (_actor, status) => {
+    expect((await matrixCorrections()).map((r) => r.id)).toEqual(status === 204 ? [] : [matrixCorrection.id]);
+    await setMatrixCorrection(false);
   },
   'DELETE /api/moments/:momentId': async (actor, status) => {
     const list = await sessions.owner.agent.get(`/api/clips/${fx.clipId}/moments`).expect(200);

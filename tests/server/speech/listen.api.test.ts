@@ -6,7 +6,7 @@ import request from 'supertest';
 import { WebVTTParser, type Entity } from 'webvtt-parser';
 import htmlEntities from 'webvtt-parser/html-entities.json';
 import { clipSchema } from '@shared/clips/clip.schema';
-import { clipProposalsResponseSchema, type ClipWordsResponse } from '@shared/speech/speech.schema';
+import { clipSuggestionsResponseSchema, type ClipTranscriptResponse } from '@shared/speech/speech.schema';
 import { Fraction, fractionToExactText } from '@shared/measure/exact';
 import { convertExact } from '@shared/measure/quantities';
 import { makeTestClip } from '../../support/clips';
@@ -74,24 +74,24 @@ afterAll(async () => {
 
 describe('a clip read aloud', () => {
   let clipId: number;
-  let heard: ClipWordsResponse;
+  let heard: ClipTranscriptResponse;
 
   beforeAll(async () => {
     clipId = await upload(await makeFigureClip());
     const started = Date.now();
     heard = await waitForListening(builder, clipId);
     // For the report: upload to words, on this machine.
-    console.info(`[listen test] clip ${clipId} ready and listened to in ${Date.now() - started} ms: ${heard.words.map((w) => w.word).join(' ')}`);
+    console.info(`[listen test] clip ${clipId} ready and listened to in ${Date.now() - started} ms: ${heard.words.map((w) => w.text).join(' ')}`);
   }, 180_000);
 
   it('is listened to by the recognizer the bootstrap installs (never "unavailable" here)', () => {
-    expect(heard.state, 'pocketsphinx must be installed: npm test installs it (scripts/lib/speech.ts)').toBe('ready');
+    expect(heard.state, 'pocketsphinx must be installed: npm test installs it (scripts/lib/speech.ts)').toBe('done');
     expect(heard.words.length).toBeGreaterThan(3);
   });
 
   it('has the figure’s words near when they were said, without the recognizer’s markers', () => {
-    const sixty = heard.words.find((w) => w.word === 'sixty');
-    const four = heard.words.find((w) => w.word === 'four' && w.startMs >= (sixty?.startMs ?? 0));
+    const sixty = heard.words.find((w) => w.text === 'sixty');
+    const four = heard.words.find((w) => w.text === 'four' && w.startMs >= (sixty?.startMs ?? 0));
     expect(sixty, JSON.stringify(heard.words)).toBeDefined();
     expect(four, JSON.stringify(heard.words)).toBeDefined();
     // The figure's phrase starts at 4 s and lasts about 2.6 s ("sixty" is its third word).
@@ -102,7 +102,7 @@ describe('a clip read aloud', () => {
     }
     expect(four!.startMs).toBeGreaterThanOrEqual(sixty!.endMs);
     for (const w of heard.words) {
-      expect(w.word).not.toMatch(/^<.*>$|\(\d+\)$/);
+      expect(w.text).not.toMatch(/^<.*>$|\(\d+\)$/);
       expect(w.confidence).toBeGreaterThanOrEqual(0);
       expect(w.confidence).toBeLessThanOrEqual(1);
     }
@@ -120,18 +120,18 @@ describe('a clip read aloud', () => {
   });
 
   it('proposes 564.2 thou (0.5642 in) within 1.5 s of when it was said', async () => {
-    const body = clipProposalsResponseSchema.parse((await builder.get(`/api/clips/${clipId}/proposals`).expect(200)).body);
-    expect(body.state).toBe('ready');
-    const figure = body.items.find((p) => {
-      if (p.kind !== 'value' || (p.unit !== 'thou' && p.unit !== 'in')) return false;
+    const body = clipSuggestionsResponseSchema.parse((await builder.get(`/api/clips/${clipId}/suggestions`).expect(200)).body);
+    expect(body.state).toBe('done');
+    const figure = body.suggestions.find((p) => {
+      if (p.kind !== 'direct' || (p.unit !== 'thou' && p.unit !== 'in')) return false;
       return fractionToExactText(convertExact(new Fraction(p.value), p.unit, 'in')) === '0.5642';
     });
-    expect(figure, JSON.stringify(body.items)).toBeDefined();
-    expect(Math.abs(figure!.startMs - PHRASE_AT.figure * 1000)).toBeLessThanOrEqual(1500);
-    expect(figure!.heard).toContain('sixty four');
+    expect(figure, JSON.stringify(body.suggestions)).toBeDefined();
+    expect(Math.abs(figure!.atMs - PHRASE_AT.figure * 1000)).toBeLessThanOrEqual(1500);
+    expect(figure!.text).toContain('sixty four');
     // The same words give the same ids.
-    const again = clipProposalsResponseSchema.parse((await builder.get(`/api/clips/${clipId}/proposals`).expect(200)).body);
-    expect(again.items.map((p) => p.id)).toEqual(body.items.map((p) => p.id));
+    const again = clipSuggestionsResponseSchema.parse((await builder.get(`/api/clips/${clipId}/suggestions`).expect(200)).body);
+    expect(again.suggestions.map((p) => p.id)).toEqual(body.suggestions.map((p) => p.id));
   });
 
   it('is not captioned for readers while no publication cites it', async () => {
@@ -144,10 +144,10 @@ describe('a clip without sound', () => {
   it('is listened to at once: ready, no words, captions with no cues', async () => {
     const clipId = await upload(await makeTestClip({ format: 'mp4-h264', dir: work, seconds: 2, audio: false, name: 'silent' }));
     const heard = await waitForListening(builder, clipId);
-    expect(heard).toEqual({ state: 'ready', words: [] });
+    expect(heard).toEqual({ state: 'done', words: [] });
     const vtt = await builder.get(`/api/clips/${clipId}/captions.vtt`).expect(200);
     expect(vtt.text).toBe('WEBVTT\n');
-    expect(clipProposalsResponseSchema.parse((await builder.get(`/api/clips/${clipId}/proposals`).expect(200)).body)).toEqual({ state: 'ready', items: [] });
+    expect(clipSuggestionsResponseSchema.parse((await builder.get(`/api/clips/${clipId}/suggestions`).expect(200)).body)).toEqual({ state: 'done', suggestions: [], displayRegion: null });
   }, 120_000);
 });
 
@@ -180,15 +180,15 @@ describe('another recognizer plugged in with SPEECH_COMMAND', () => {
       const clipId = await upload(await makeTestClip({ format: 'mp4-h264', dir: work, seconds: 2, name: 'for-command' }), x.agent, x.tok, x.build);
       const heard = await waitForListening(x.agent, clipId);
       expect(heard).toEqual({
-        state: 'ready',
+        state: 'done',
         words: [
-          { word: 'RIFF', startMs: 500, endMs: 900, confidence: 0.8 },
-          { word: 'three', startMs: 1000, endMs: 1200, confidence: 1 },
-          { word: 'thou', startMs: 1250, endMs: 1500, confidence: 0.9 },
+          { text: 'RIFF', startMs: 500, endMs: 900, confidence: 0.8 },
+          { text: 'three', startMs: 1000, endMs: 1200, confidence: 1 },
+          { text: 'thou', startMs: 1250, endMs: 1500, confidence: 0.9 },
         ],
       });
-      const proposals = clipProposalsResponseSchema.parse((await x.agent.get(`/api/clips/${clipId}/proposals`).expect(200)).body);
-      expect(proposals.items).toMatchObject([{ id: '1000-0', kind: 'value', value: '3', unit: 'thou', startMs: 1000, endMs: 1500, heard: 'three thou' }]);
+      const proposals = clipSuggestionsResponseSchema.parse((await x.agent.get(`/api/clips/${clipId}/suggestions`).expect(200)).body);
+      expect(proposals.suggestions).toMatchObject([{ id: '1000-0', kind: 'direct', value: '3', unit: 'thou', atMs: 1000, endMs: 1500, source: 'speech', text: 'three thou' }]);
     } finally {
       await x.app.close();
     }
@@ -198,7 +198,7 @@ describe('another recognizer plugged in with SPEECH_COMMAND', () => {
     const x = await appWith('/nonexistent/benchproof-asr --json {wav}');
     try {
       const clipId = await upload(await makeTestClip({ format: 'mp4-h264', dir: work, seconds: 2, name: 'no-recognizer' }), x.agent, x.tok, x.build);
-      expect(await waitForListening(x.agent, clipId)).toEqual({ state: 'unavailable', words: [] });
+      expect(await waitForListening(x.agent, clipId)).toEqual({ state: 'off', words: [] });
       expect((await x.agent.get(`/api/clips/${clipId}/captions.vtt`).expect(200)).text).toBe('WEBVTT\n');
     } finally {
       await x.app.close();

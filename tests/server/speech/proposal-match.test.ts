@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import type { SpeechProposal } from '@shared/speech/speech.schema';
+import type { Suggestion } from '@shared/speech/speech.schema';
 import { LOGGED_WITHIN_MS, loggedReadingFor, type ClipReadingFigures } from '../../../server/features/speech/proposal-match';
 
 /*
@@ -8,10 +8,10 @@ import { LOGGED_WITHIN_MS, loggedReadingFor, type ClipReadingFigures } from '../
  * 1 thou = 10 tenths.
  */
 
-const value = (v: string, unit: SpeechProposal['unit'], extra: Partial<SpeechProposal> = {}): SpeechProposal =>
-  ({ id: '4000-0', kind: 'value', value: v, feel: null, unit, startMs: 4000, endMs: 6000, confidence: 0.9, heard: '', unitHeard: true, dismissed: false, logged: false, ...extra }) as SpeechProposal;
-const bracket = (passes: string, stops: string, unit: SpeechProposal['unit']): SpeechProposal =>
-  ({ id: '4000-0', kind: 'bracket', passes, stops, unit, startMs: 4000, endMs: 6000, confidence: 0.9, heard: '', unitHeard: true, dismissed: false, logged: false }) as SpeechProposal;
+const value = (v: string, unit: Suggestion['unit'], extra: Partial<Suggestion> = {}): Suggestion =>
+  ({ id: '4000-0', kind: 'direct', value: v, feel: null, unit, atMs: 4000, endMs: 6000, source: 'speech', confidence: 0.9, text: '', unitHeard: true, dismissed: false, logged: false, ...extra }) as Suggestion;
+const bracket = (passes: string, stops: string, unit: Suggestion['unit']): Suggestion =>
+  ({ id: '4000-0', kind: 'bracket', passes, stops, unit, atMs: 4000, endMs: 6000, source: 'speech', confidence: 0.9, text: '', unitHeard: true, dismissed: false, logged: false }) as Suggestion;
 
 let nextId = 1;
 function reading(fields: Partial<ClipReadingFigures>): ClipReadingFigures {

@@ -5,7 +5,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import request from 'supertest';
 import { clipSchema } from '@shared/clips/clip.schema';
 import { errorBodySchema } from '@shared/http/error.schema';
-import { clipProposalsResponseSchema, type SpeechProposal } from '@shared/speech/speech.schema';
+import { clipSuggestionsResponseSchema, type Suggestion } from '@shared/speech/speech.schema';
 import { ProposalDismissal } from '../../../server/features/speech/speech.model';
 import { storeClipWords } from '../../../server/features/speech/speech.service';
 import { makeTestClip } from '../../support/clips';
@@ -33,14 +33,14 @@ let token: string;
 let buildId: number;
 let micrometerId: number;
 let clipId: number;
-let thou: SpeechProposal;
-let mm: SpeechProposal;
+let thou: Suggestion;
+let mm: Suggestion;
 
 async function proposals(agent: Agent = builder, clip = clipId) {
-  return clipProposalsResponseSchema.parse((await agent.get(`/api/clips/${clip}/proposals`).expect(200)).body);
+  return clipSuggestionsResponseSchema.parse((await agent.get(`/api/clips/${clip}/suggestions`).expect(200)).body);
 }
-const byId = async (id: string) => (await proposals()).items.find((p) => p.id === id)!;
-const dismissUrl = (id: string, clip = clipId) => `/api/clips/${clip}/proposals/${id}/dismiss`;
+const byId = async (id: string) => (await proposals()).suggestions.find((p) => p.id === id)!;
+const dismissUrl = (id: string, clip = clipId) => `/api/clips/${clip}/suggestions/${id}/dismiss`;
 const dismissalRows = (clip = clipId) => ProposalDismissal.count({ where: { clipId: clip } });
 
 async function upload(file: string): Promise<number> {
@@ -91,12 +91,12 @@ beforeAll(async () => {
   });
   clipId = await upload(file);
   const heard = await waitForListening(builder, clipId);
-  expect(heard.state, 'pocketsphinx must be installed: npm test installs it (scripts/lib/speech.ts)').toBe('ready');
+  expect(heard.state, 'pocketsphinx must be installed: npm test installs it (scripts/lib/speech.ts)').toBe('done');
   const body = await proposals();
-  const found = (unit: string, value: string) => body.items.find((p) => p.kind === 'value' && p.unit === unit && p.value === value);
+  const found = (unit: string, value: string) => body.suggestions.find((p) => p.kind === 'direct' && p.unit === unit && p.value === value);
   thou = found('thou', '564.2')!;
   mm = found('mm', '12.5')!;
-  expect({ thou, mm }, JSON.stringify(body.items)).toEqual({ thou: expect.anything(), mm: expect.anything() });
+  expect({ thou, mm }, JSON.stringify(body.suggestions)).toEqual({ thou: expect.anything(), mm: expect.anything() });
 }, 240_000);
 
 afterAll(async () => {
@@ -106,8 +106,8 @@ afterAll(async () => {
 
 describe('proposals heard in a clip', () => {
   it('are listed at their times, neither dismissed nor logged at first', () => {
-    expect(Math.abs(thou.startMs - PHRASE_AT.thou * 1000)).toBeLessThanOrEqual(1500);
-    expect(Math.abs(mm.startMs - PHRASE_AT.mm * 1000)).toBeLessThanOrEqual(1500);
+    expect(Math.abs(thou.atMs - PHRASE_AT.thou * 1000)).toBeLessThanOrEqual(1500);
+    expect(Math.abs(mm.atMs - PHRASE_AT.mm * 1000)).toBeLessThanOrEqual(1500);
     for (const p of [thou, mm]) expect(p).toMatchObject({ dismissed: false, logged: false });
     expect(thou.readingKey).toBeUndefined();
   });
@@ -165,7 +165,7 @@ describe('dismissing a proposal and bringing it back', () => {
     expect(csrf.status).toBe(403);
     expect(errorBodySchema.parse(csrf.body).error.code).toBe('csrf_invalid');
     const malformed = await builder.post(dismissUrl('not-an-id')).set('x-csrf-token', token).expect(400);
-    expect(errorBodySchema.parse(malformed.body).error.details.map((d) => d.path)).toContain('proposalId');
+    expect(errorBodySchema.parse(malformed.body).error.details.map((d) => d.path)).toContain('id');
     const unknown = await builder.post(dismissUrl('999999-0')).set('x-csrf-token', token).expect(404);
     expect(errorBodySchema.parse(unknown.body).error.code).toBe('not_found');
     expect(await dismissalRows()).toBe(0);
@@ -178,7 +178,7 @@ describe('dismissing a proposal and bringing it back', () => {
       { word: 'three', startMs: 500, endMs: 700, confidence: 0.9 },
       { word: 'thou', startMs: 750, endMs: 1000, confidence: 0.9 },
     ]);
-    const [p] = (await proposals(builder, silent)).items;
+    const [p] = (await proposals(builder, silent)).suggestions;
     expect(p).toMatchObject({ id: '500-0', value: '3', unit: 'thou' });
     await builder.post(dismissUrl(p!.id, silent)).set('x-csrf-token', token).expect(204);
     expect(await dismissalRows(silent)).toBe(1);
@@ -192,7 +192,7 @@ describe('a proposal already logged', () => {
     // The same figure 3 s after the words: too far (more than 1.5 s, our rule).
     const far = await logReading('Bore depth, later', await momentAt(thou.endMs + 3000), { kind: 'direct', value: '0.5642' });
     // Near the words, but a step of the micrometer's resolution and more away: 0.5644 in is 0.0002 in off.
-    const other = await logReading('Bore depth, other', await momentAt(thou.startMs), { kind: 'direct', value: '0.5644' });
+    const other = await logReading('Bore depth, other', await momentAt(thou.atMs), { kind: 'direct', value: '0.5644' });
     expect(await byId(thou.id)).toMatchObject({ logged: false });
 
     // 0.5643 in is one step (0.0001 in) from 564.2 thou = 0.5642 in: the same within the reading's resolution.
@@ -208,7 +208,7 @@ describe('a proposal already logged', () => {
 
   it('stays marked for a reviewer reading the clip, who cannot dismiss it', async () => {
     const moderator = await signIn(t, 'demo-moderator');
-    const seen = (await proposals(moderator)).items.find((p) => p.id === thou.id);
+    const seen = (await proposals(moderator)).suggestions.find((p) => p.id === thou.id);
     expect(seen).toMatchObject({ logged: true });
   });
 });

@@ -186,3 +186,43 @@ describe('clipTime', () => {
     expect(clipTime(3_723_400)).toBe('1:02:03.4');
   });
 });
+
+describe('a figure shown on the display near the moment', () => {
+  const withDisplay = (shown: { startMs: number; endMs: number; text: string; unit: 'in' | 'mm' | 'cc' }[], ...words: HeardWord[][]) => ({
+    state: 'ready' as const,
+    words: words.flat(),
+    shown: shown.map((s) => ({ ...s, confidence: 1 })),
+  });
+
+  it('agrees when the display showed the figure logged, and says it was read, not heard', () => {
+    const w = heardWitness(depth, withDisplay([{ startMs: 6_900, endMs: 9_900, text: '0.5642', unit: 'in' }]));
+    expect(w).toMatchObject({ state: 'agrees', atMs: 6_900, figure: { value: '0.5642', unit: 'in' } });
+    expect(w.text).toBe('read 0.5642 on the display at 0:06.9 → 0.5642 in: agrees with the logged 0.5642 in');
+  });
+
+  it('disagrees when it showed another figure, converting a metric display exactly (1 in = 25.4 mm, NIST SP 811 B.8)', () => {
+    // 14.331 mm = 0.564212… in: the logged 0.5642 in is within half a step of 0.0001 in; 14.336 mm = 0.56441 in is not.
+    expect(heardWitness(depth, withDisplay([{ startMs: 7_000, endMs: 8_000, text: '14.331', unit: 'mm' }])).state).toBe('agrees');
+    const w = heardWitness(depth, withDisplay([{ startMs: 7_000, endMs: 8_000, text: '14.336', unit: 'mm' }]));
+    expect(w.state).toBe('disagrees');
+    expect(w.text).toMatch(/^read 14\.336 on the display at 0:07\.0 → 14\.336 mm = 0\.5644\d* in: disagrees with the logged 0\.5642 in$/);
+  });
+
+  it('leaves out what was shown far from the moment or of another quantity, and says nothing was said or shown', () => {
+    const w = heardWitness(
+      depth,
+      withDisplay([
+        { startMs: 20_000, endMs: 22_000, text: '0.5642', unit: 'in' },
+        { startMs: 7_000, endMs: 8_000, text: '64.2', unit: 'cc' },
+      ]),
+    );
+    expect(w.state).toBe('nothing-heard');
+    expect(w.text).toBe('nothing heard near this moment: no length was said or shown on the display between 0:03.9 and 0:11.9');
+  });
+
+  it('agrees on what was shown when the words heard disagree, and names what agreed', () => {
+    const w = heardWitness(depth, withDisplay([{ startMs: 7_000, endMs: 9_000, text: '0.5642', unit: 'in' }], said('point five six two four', 7_500)));
+    expect(w.state).toBe('agrees');
+    expect(w.text).toMatch(/^read 0\.5642 on the display/);
+  });
+});

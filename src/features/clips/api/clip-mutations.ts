@@ -153,20 +153,23 @@ export function useDeleteMoment(clipId: number) {
 }
 
 /**
- * POST (dismiss) or DELETE (bring back) /api/clips/:clipId/proposals/:proposalId/dismiss.
+ * POST (dismiss) or DELETE (bring back) /api/clips/:clipId/suggestions/:id/dismiss.
  * Optimistic: the list marks it at once and goes back if the server refuses.
  */
-export function useSetProposalDismissed(clipId: number) {
+export function useSetSuggestionDismissed(clipId: number) {
   const queryClient = useQueryClient();
-  const key = clipQueries.proposals(clipId).queryKey;
+  const key = clipQueries.suggestions(clipId).queryKey;
   return useMutation({
-    mutationFn: ({ proposalId, dismissed }: { proposalId: string; dismissed: boolean }) =>
-      apiFetch(`/api/clips/${clipId}/proposals/${encodeURIComponent(proposalId)}/dismiss`, { method: dismissed ? 'POST' : 'DELETE' }),
-    onMutate: async ({ proposalId, dismissed }) => {
+    mutationFn: ({ suggestionId, dismissed }: { suggestionId: string; dismissed: boolean }) =>
+      apiFetch(`/api/clips/${clipId}/suggestions/${encodeURIComponent(suggestionId)}/dismiss`, { method: dismissed ? 'POST' : 'DELETE' }),
+    onMutate: async ({ suggestionId, dismissed }) => {
       await queryClient.cancelQueries({ queryKey: key });
       const previous = queryClient.getQueryData(key);
       if (previous) {
-        queryClient.setQueryData(key, { ...previous, items: previous.items.map((p) => (p.id === proposalId ? { ...p, dismissed } : p)) });
+        queryClient.setQueryData(key, {
+          ...previous,
+          suggestions: previous.suggestions.map((p) => (p.id === suggestionId ? { ...p, dismissed } : p)),
+        });
       }
       return { previous };
     },

@@ -1,6 +1,6 @@
 import { queryOptions } from '@tanstack/react-query';
 import { clipListResponseSchema, momentListResponseSchema } from '@shared/clips/clip.schema';
-import { clipProposalsResponseSchema } from '@shared/speech/speech.schema';
+import { clipSuggestionsResponseSchema } from '@shared/speech/speech.schema';
 import { apiFetch } from '@/lib/api';
 import { queryClient } from '@/lib/query-client';
 import { isInProgress } from '../lib/clip-format';
@@ -45,19 +45,19 @@ export const clipQueries = {
         return items;
       },
     }),
-  /** Every clip's proposals (what readings change: a proposal is marked logged). */
-  allProposals: ['clips', 'proposals'] as const,
+  /** Every clip's suggestions (what readings change: a suggestion is marked logged). */
+  allSuggestions: ['clips', 'suggestions'] as const,
   /**
-   * The readings heard in a clip's sound, with where listening stands; asks again every two
-   * seconds while it waits or listens (the server queues a clip nobody listened to yet).
+   * The readings heard in a clip's sound and read off its display, with where that stands; asks
+   * again every two seconds while it waits or runs (the server queues a clip nobody listened to yet).
    */
-  proposals: (clipId: number) =>
+  suggestions: (clipId: number) =>
     queryOptions({
-      queryKey: [...clipQueries.all, 'proposals', clipId] as const,
-      queryFn: ({ signal }) => apiFetch(`/api/clips/${clipId}/proposals`, { schema: clipProposalsResponseSchema, signal }),
+      queryKey: [...clipQueries.all, 'suggestions', clipId] as const,
+      queryFn: ({ signal }) => apiFetch(`/api/clips/${clipId}/suggestions`, { schema: clipSuggestionsResponseSchema, signal }),
       refetchInterval: (query) => {
         const state = query.state.data?.state;
-        return state === 'pending' || state === 'listening' ? LISTEN_POLL_MS : false;
+        return state === 'queued' || state === 'running' ? LISTEN_POLL_MS : false;
       },
     }),
 };

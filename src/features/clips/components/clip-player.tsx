@@ -1,7 +1,7 @@
 import { useCallback, useEffect, useId, useRef, useState, type KeyboardEvent } from 'react';
 import { useQuery } from '@tanstack/react-query';
 import type { Clip } from '@shared/clips/clip.schema';
-import type { SpeechProposal } from '@shared/speech/speech.schema';
+import type { Suggestion } from '@shared/speech/speech.schema';
 import { Button } from '@/components/ui/button';
 import { Input } from '@/components/ui/field';
 import { useToast } from '@/components/ui/toast';
@@ -12,6 +12,8 @@ import { clipQueries } from '../api/clip-queries';
 import { formatFrameRate, formatResolution, formatTime, frameDuration, frameIndexAt, spokenTime } from '../lib/clip-format';
 import { heardFiguresOf, type HeardFigures } from '../lib/heard';
 import { isShortcut, keyLabel, useHeardShortcuts, usePlayerShortcuts } from '../lib/player-shortcuts';
+import { DisplayRegionControls, DisplayRegionOverlay, useDisplayMarking } from './display-region';
+import { CaptionEditor, CaptionsTrack } from './caption-editor';
 import { HeardList } from './heard-list';
 import { MomentsList } from './moments-list';
 import { ScrubStrip } from './scrub-strip';
@@ -58,6 +60,7 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
   const [playing, setPlaying] = useState(false);
   const [muted, setMuted] = useState(false);
   const [mediaDuration, setMediaDuration] = useState<number | null>(null);
+  const displayMarking = useDisplayMarking(clip);
   const [announcement, setAnnouncement] = useState('');
   const [hasFocus, setHasFocus] = useState(false);
   const [label, setLabel] = useState('');
@@ -213,13 +216,13 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
   }
 
   /** Accepting a proposal heard at its start: the player goes there and the form opens filled in (a moment on that frame is reused). */
-  function acceptHeard(proposal: SpeechProposal) {
+  function acceptHeard(proposal: Suggestion) {
     if (!onLogReading) return;
     videoRef.current?.pause();
-    seek(proposal.startMs / 1000, true);
-    const frameIndex = frameIndexAt(proposal.startMs / 1000, fps);
+    seek(proposal.atMs / 1000, true);
+    const frameIndex = frameIndexAt(proposal.atMs / 1000, fps);
     const existing = moments.data?.find((m) => frameIndexAt(m.atMs / 1000, fps) === frameIndex) ?? null;
-    onLogReading({ atMs: existing?.atMs ?? proposal.startMs, momentId: existing?.id ?? null, heard: heardFiguresOf(proposal) });
+    onLogReading({ atMs: existing?.atMs ?? proposal.atMs, momentId: existing?.id ?? null, heard: heardFiguresOf(proposal) });
   }
 
   function onRegionKeyDown(event: KeyboardEvent<HTMLElement>) {
@@ -291,7 +294,7 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
         aria-describedby={shortcutId}
         onKeyDown={onFrameKeyDown}
         data-player-frame=""
-        className="rounded-sm focus:outline-2 focus:outline-offset-2 focus:outline-accent"
+        className="relative rounded-sm focus:outline-2 focus:outline-offset-2 focus:outline-accent"
       >
         <video
           ref={videoRef}
@@ -323,9 +326,10 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
         >
           {clip.videoUrl && <source src={clip.videoUrl} />}
           <track kind="chapters" src={clip.chaptersUrl} label="Chapters" default />
-          <track kind="captions" srcLang="en" label="English (from the clip's sound)" src={`/api/clips/${clip.id}/captions.vtt`} />
+          <CaptionsTrack clipId={clip.id} />
           Your browser cannot play this video. <a href={clip.videoUrl ?? '#'}>Download it</a> instead.
         </video>
+        <DisplayRegionOverlay marking={displayMarking} clip={clip} />
       </div>
 
       <div className="flex flex-wrap items-center gap-1" role="group" aria-label="Player controls">
@@ -465,6 +469,16 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
         }}
         onAccept={onLogReading && acceptHeard}
       />
+
+      <CaptionEditor
+        clip={clip}
+        canCorrect={onLogReading !== undefined}
+        onSeek={(seconds) => {
+          videoRef.current?.pause();
+          seek(seconds, true);
+        }}
+      />
+      {onLogReading && <DisplayRegionControls marking={displayMarking} />}
 
       <MomentsList
         clip={clip}

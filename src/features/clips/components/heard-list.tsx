@@ -1,13 +1,13 @@
 import { useId, useMemo, useRef, useState, type KeyboardEvent } from 'react';
 import { useQuery } from '@tanstack/react-query';
 import type { Clip } from '@shared/clips/clip.schema';
-import type { SpeechProposal } from '@shared/speech/speech.schema';
+import type { Suggestion } from '@shared/speech/speech.schema';
 import { Button } from '@/components/ui/button';
 import { LoadingState } from '@/components/ui/data-states';
 import { useToast } from '@/components/ui/toast';
 import { errorMessage } from '@/lib/api';
 import { cn } from '@/lib/cn';
-import { useSetProposalDismissed } from '../api/clip-mutations';
+import { useSetSuggestionDismissed } from '../api/clip-mutations';
 import { clipQueries } from '../api/clip-queries';
 import { formatTime } from '../lib/clip-format';
 import { CLEAR_CONFIDENCE, confidenceWord, heardFigureSpoken, heardFigureText, listeningSentence } from '../lib/heard';
@@ -18,14 +18,15 @@ export interface HeardListProps {
   /** Moves the player to a time (seconds). */
   onSeek: (seconds: number) => void;
   /** Opens the reading form filled in from a proposal; without it the list only shows what was heard. */
-  onAccept?: (proposal: SpeechProposal) => void;
+  onAccept?: (proposal: Suggestion) => void;
   shortcuts: PlayerShortcuts;
   keys: HeardShortcuts;
 }
 
 /** The proposal in a sentence, for the live region: "564.2 thou at 0:04.1, heard “…”, clear". */
-function proposalSentence(p: SpeechProposal): string {
-  return `${heardFigureSpoken(p)} at ${formatTime(p.startMs / 1000)}, heard “${p.heard}”, ${confidenceWord(p.confidence)}${p.logged ? `, logged as ${p.readingKey ?? 'a reading'}` : ''}`;
+function proposalSentence(p: Suggestion): string {
+  const how = p.source === 'display' ? 'read off the display' : `heard “${p.text}”`;
+  return `${heardFigureSpoken(p)} at ${formatTime(p.atMs / 1000)}, ${how}, ${confidenceWord(p.confidence)}${p.logged ? `, logged as ${p.readingKey ?? 'a reading'}` : ''}`;
 }
 
 /**
@@ -38,8 +39,8 @@ function proposalSentence(p: SpeechProposal): string {
  * shortcut settings (off, or other keys).
  */
 export function HeardList({ clip, onSeek, onAccept, shortcuts, keys }: HeardListProps) {
-  const query = useQuery(clipQueries.proposals(clip.id));
-  const setDismissed = useSetProposalDismissed(clip.id);
+  const query = useQuery(clipQueries.suggestions(clip.id));
+  const setDismissed = useSetSuggestionDismissed(clip.id);
   const { toast } = useToast();
   const [showDismissed, setShowDismissed] = useState(false);
   const [selectedId, setSelectedId] = useState<string | null>(null);
@@ -52,7 +53,7 @@ export function HeardList({ clip, onSeek, onAccept, shortcuts, keys }: HeardList
   const rowId = (id: string) => `heard-${clip.id}-${id}`;
   const canChange = onAccept !== undefined;
 
-  const items = useMemo(() => [...(query.data?.items ?? [])].sort((a, b) => a.startMs - b.startMs || a.id.localeCompare(b.id)), [query.data]);
+  const items = useMemo(() => [...(query.data?.suggestions ?? [])].sort((a, b) => a.atMs - b.atMs || a.id.localeCompare(b.id)), [query.data]);
   const dismissedCount = items.filter((p) => p.dismissed).length;
   const visible = items.filter((p) => showDismissed || !p.dismissed);
   const selected = visible.find((p) => p.id === selectedId) ?? null;
@@ -64,20 +65,20 @@ export function HeardList({ clip, onSeek, onAccept, shortcuts, keys }: HeardList
     setAnnouncement(toggle.current ? `${text}\u200b` : text);
   }
 
-  function select(p: SpeechProposal | undefined, announce = true) {
+  function select(p: Suggestion | undefined, announce = true) {
     if (!p) return;
     setSelectedId(p.id);
     if (announce) say(`${visible.indexOf(p) + 1} of ${visible.length}: ${proposalSentence(p)}.`);
     document.getElementById(rowId(p.id))?.scrollIntoView({ block: 'nearest' });
   }
 
-  function accept(p: SpeechProposal) {
+  function accept(p: Suggestion) {
     if (!onAccept) return;
     setSelectedId(p.id);
     onAccept(p);
   }
 
-  function dismiss(p: SpeechProposal) {
+  function dismiss(p: Suggestion) {
     if (!canChange || p.dismissed) return;
     // The next one takes its place in the selection (the one before when it was the last).
     const at = visible.indexOf(p);
@@ -86,9 +87,9 @@ export function HeardList({ clip, onSeek, onAccept, shortcuts, keys }: HeardList
     // Its row goes from the list: focus inside it (its Dismiss button) moves to the list, not to the page.
     if (!showDismissed && document.getElementById(rowId(p.id))?.contains(document.activeElement)) groupRef.current?.focus();
     setUndoable((list) => [...list.filter((id) => id !== p.id), p.id]);
-    say(`Dismissed ${heardFigureSpoken(p)} at ${formatTime(p.startMs / 1000)}.${shortcuts.enabled ? ` Press ${keyLabel(keys.undo)} to bring it back.` : ''}`);
+    say(`Dismissed ${heardFigureSpoken(p)} at ${formatTime(p.atMs / 1000)}.${shortcuts.enabled ? ` Press ${keyLabel(keys.undo)} to bring it back.` : ''}`);
     setDismissed.mutate(
-      { proposalId: p.id, dismissed: true },
+      { suggestionId: p.id, dismissed: true },
       {
         onError: (error) => {
           setUndoable((list) => list.filter((id) => id !== p.id));
@@ -98,13 +99,13 @@ export function HeardList({ clip, onSeek, onAccept, shortcuts, keys }: HeardList
     );
   }
 
-  function bringBack(p: SpeechProposal) {
+  function bringBack(p: Suggestion) {
     if (!canChange || !p.dismissed) return;
     setUndoable((list) => list.filter((id) => id !== p.id));
     setSelectedId(p.id);
-    say(`Brought back ${heardFigureSpoken(p)} at ${formatTime(p.startMs / 1000)}.`);
+    say(`Brought back ${heardFigureSpoken(p)} at ${formatTime(p.atMs / 1000)}.`);
     setDismissed.mutate(
-      { proposalId: p.id, dismissed: false },
+      { suggestionId: p.id, dismissed: false },
       { onError: (error) => toast({ tone: 'error', title: 'Not brought back', description: `${errorMessage(error)} It stays dismissed.` }) },
     );
   }
@@ -165,7 +166,7 @@ export function HeardList({ clip, onSeek, onAccept, shortcuts, keys }: HeardList
     );
   else {
     const state = query.data.state;
-    const status = state !== 'ready' || items.length === 0 ? listeningSentence(state) : null;
+    const status = state !== 'done' || items.length === 0 ? listeningSentence(state) : null;
     body = (
       <>
         {status && (
@@ -201,10 +202,10 @@ export function HeardList({ clip, onSeek, onAccept, shortcuts, keys }: HeardList
                       canChange={canChange}
                       shortcuts={shortcuts}
                       keys={keys}
-                      busy={setDismissed.isPending && setDismissed.variables?.proposalId === p.id}
+                      busy={setDismissed.isPending && setDismissed.variables?.suggestionId === p.id}
                       onSeek={() => {
                         select(p, false);
-                        onSeek(p.startMs / 1000);
+                        onSeek(p.atMs / 1000);
                       }}
                       onFocusInside={() => setSelectedId(p.id)}
                       onAccept={() => accept(p)}
@@ -235,6 +236,7 @@ export function HeardList({ clip, onSeek, onAccept, shortcuts, keys }: HeardList
     <section aria-labelledby={headingId} className="flex flex-col gap-2" data-heard="">
       <h3 id={headingId} className="text-sm font-semibold">
         Heard on this clip
+        {query.data?.displayRegion && ' and read off its display'}
         {items.length > 0 && <span className="figures font-normal text-ink-muted"> · {items.length - dismissedCount}</span>}
       </h3>
       {body}
@@ -260,7 +262,7 @@ function HeardRow({
   onBringBack,
 }: {
   id: string;
-  proposal: SpeechProposal;
+  proposal: Suggestion;
   selected: boolean;
   canChange: boolean;
   shortcuts: PlayerShortcuts;
@@ -272,7 +274,7 @@ function HeardRow({
   onDismiss: () => void;
   onBringBack: () => void;
 }) {
-  const time = formatTime(p.startMs / 1000);
+  const time = formatTime(p.atMs / 1000);
   const figure = heardFigureText(p);
   const clear = confidenceWord(p.confidence);
   const name = `${heardFigureSpoken(p)} at ${time}`;
@@ -304,7 +306,11 @@ function HeardRow({
         </span>
         <span
           className={cn('inline-flex items-center gap-1 text-xs', clear === 'clear' ? 'text-ink-muted' : 'text-verdict-undecided')}
-          title={`The recognizer’s confidence ${p.confidence.toFixed(2)}; clear from ${CLEAR_CONFIDENCE} (our rule)`}
+          title={
+            p.source === 'display'
+              ? `${Math.round(p.confidence * 100)} % of the frames read agreed; clear from ${CLEAR_CONFIDENCE} (our rule)`
+              : `The recognizer’s confidence ${p.confidence.toFixed(2)}; clear from ${CLEAR_CONFIDENCE} (our rule)`
+          }
           data-heard-confidence=""
         >
           <ConfidenceMark clear={clear === 'clear'} />
@@ -321,8 +327,20 @@ function HeardRow({
         {p.dismissed && <span className="text-xs italic">Dismissed</span>}
       </div>
       <p className="min-w-0 text-xs break-words text-ink-muted">
-        <span className="sr-only">Words heard: </span>“{p.heard}”{!p.unitHeard && ' · unit not said'}
-        {p.note && ` · ${p.note}`}
+        {p.source === 'display' ? (
+          <>
+            <span className="inline-flex items-center gap-1" data-heard-source="display">
+              <DisplayMark />
+              Shown on the display
+            </span>
+            {' · unit as set with its box'}
+          </>
+        ) : (
+          <>
+            <span className="sr-only">Words heard: </span>“{p.text}”{!p.unitHeard && ' · unit not said'}
+            {p.note && ` · ${p.note}`}
+          </>
+        )}
       </p>
       {canChange && (
         <div className="-ml-1 flex flex-wrap items-center gap-x-1" role="group" aria-label={`Actions for ${name}`}>
@@ -367,6 +385,15 @@ function ConfidenceMark({ clear }: { clear: boolean }) {
       <circle cx="5" cy="5" r="4" fill="none" stroke="currentColor" strokeWidth="1.2" />
       <path d="M3.8 4a1.3 1.3 0 1 1 1.7 1.2c-.4.2-.5.4-.5.8" fill="none" stroke="currentColor" strokeWidth="1" strokeLinecap="round" />
       <circle cx="5" cy="7.4" r=".55" fill="currentColor" />
+    </svg>
+  );
+}
+
+/** A small seven-segment "8": the figure was read off the instrument's display. */
+function DisplayMark() {
+  return (
+    <svg viewBox="0 0 8 12" className="h-3 w-2" aria-hidden="true">
+      <path d="M1.5 1h5M7 1.5v4M7 6.5v4M1.5 11h5M1 6.5v4M1 1.5v4M1.5 6h5" fill="none" stroke="currentColor" strokeWidth="1.2" strokeLinecap="round" />
     </svg>
   );
 }

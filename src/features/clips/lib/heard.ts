@@ -1,6 +1,6 @@
 import { withUnit } from '@shared/measure/format-quantity';
 import type { AnyUnit } from '@shared/measure/quantities';
-import type { ListeningState, SpeechProposal } from '@shared/speech/speech.schema';
+import type { EvidenceState, Suggestion } from '@shared/speech/speech.schema';
 
 /**
  * The recognizer's confidence at or above which we call a figure "clear" (else "unsure"): a
@@ -17,7 +17,7 @@ export function confidenceWord(confidence: number): 'clear' | 'unsure' {
 }
 
 /** The figure heard with its unit, as the list shows it: "564.2 thou", "3|4 thou blades", "3 thou blade, enters". */
-export function heardFigureText(p: SpeechProposal): string {
+export function heardFigureText(p: Suggestion): string {
   if (p.kind === 'bracket') return `${withUnit(`${p.passes}|${p.stops}`, p.unit)} blades`;
   const figure = withUnit(p.value, p.unit);
   if (p.feel === 'passes') return `${figure} blade, enters`;
@@ -26,7 +26,7 @@ export function heardFigureText(p: SpeechProposal): string {
 }
 
 /** The same figure in words for a screen reader: "3 thou enters, 4 thou does not". */
-export function heardFigureSpoken(p: SpeechProposal): string {
+export function heardFigureSpoken(p: Suggestion): string {
   if (p.kind === 'bracket') return `feeler bracket: ${withUnit(p.passes, p.unit)} enters, ${withUnit(p.stops, p.unit)} does not`;
   return heardFigureText(p);
 }
@@ -50,24 +50,24 @@ export interface HeardFigures {
 }
 
 /** The reading form's figures for a proposal. */
-export function heardFiguresOf(p: SpeechProposal): HeardFigures {
-  const common = { proposalId: p.id, unit: p.unit, words: p.heard, confidence: p.confidence };
+export function heardFiguresOf(p: Suggestion): HeardFigures {
+  const common = { proposalId: p.id, unit: p.unit, words: p.text, confidence: p.confidence };
   if (p.kind === 'bracket') return { ...common, kind: 'bracket', passes: withUnit(p.passes, p.unit), stops: withUnit(p.stops, p.unit) };
   return { ...common, kind: 'direct', value: withUnit(p.value, p.unit) };
 }
 
 /** What the list says about listening when it has nothing to show (or nothing yet). */
-export function listeningSentence(state: ListeningState): string {
+export function listeningSentence(state: EvidenceState): string {
   switch (state) {
-    case 'pending':
-      return 'Waiting to listen to the clip’s sound; the figures it hears will be listed here.';
-    case 'listening':
-      return 'Listening to the clip’s sound now; the figures it hears will be listed here.';
+    case 'queued':
+      return 'Waiting to listen to the clip’s sound (and read its display, if you marked one); the figures found will be listed here.';
+    case 'running':
+      return 'Listening to the clip’s sound (and reading its display, if you marked one) now; the figures found will be listed here.';
     case 'failed':
-      return 'The clip’s sound could not be listened to (the server’s log says why). Log the readings from the footage as usual.';
-    case 'unavailable':
+      return 'The clip’s sound or display could not be read (the server’s log says why). Log the readings from the footage as usual.';
+    case 'off':
       return 'This server has no speech recognizer, so the clip’s sound is not listened to. Log the readings from the footage as usual.';
-    case 'ready':
-      return 'No figure was heard in the clip’s sound.';
+    case 'done':
+      return 'No figure was heard in the clip’s sound or read off its display.';
   }
 }

@@ -47,7 +47,7 @@ function HeardOnClip({ reading }: { reading: PublicReading }) {
         <path d="M3 6v4M6 3.5v9M9 5v6M12 2.5v11" fill="none" stroke="currentColor" strokeWidth="1.6" strokeLinecap="round" />
       </svg>
       <span>
-        Heard on the clip
+        {heard.source === 'display' ? 'Shown on the instrument’s display on the clip' : 'Heard on the clip'}
         {heard.words && (
           <>
             : “<span className="text-ink">{heard.words}</span>”

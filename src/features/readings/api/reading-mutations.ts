@@ -24,7 +24,7 @@ async function refreshAfterChange(queryClient: QueryClient) {
     queryClient.invalidateQueries({ queryKey: readingQueries.all }),
     queryClient.invalidateQueries({ queryKey: CLEARANCES_ROOT }),
     // A proposal heard in a clip is marked logged by a reading near its time.
-    queryClient.invalidateQueries({ queryKey: clipQueries.allProposals }),
+    queryClient.invalidateQueries({ queryKey: clipQueries.allSuggestions }),
   ]);
 }
 

@@ -31,7 +31,7 @@ function QuietGlyph() {
 const sentence = (text: string) => `${text.charAt(0).toUpperCase()}${text.slice(1)}${/[.!?]$/.test(text) ? '' : '.'}`;
 
 /** The line's words after "heard ": "‘five hundred sixty four and two tenths’ at 0:00.2 → … agrees with the logged 0.5642 in". */
-const whatWasHeard = (text: string) => text.replace(/^heard /, '');
+const whatWasHeard = (text: string) => text.replace(/^(heard|read) /, '');
 
 /**
  * The reading's second witness, beside its still: what the builder's voice said near the moment.
@@ -64,7 +64,15 @@ export function HeardLine({ heard, onListen, className }: { heard: HeardWitnessD
             <HeardGlyph differs={differs} />
           </span>
           <span className="min-w-0">
-            <strong className="font-semibold">{differs ? 'Heard on the clip, not what was logged: ' : 'Heard on the clip: '}</strong>
+            <strong className="font-semibold">
+              {heard.source === 'display'
+                ? differs
+                  ? 'Read off the display, not what was logged: '
+                  : 'Read off the display: '
+                : differs
+                  ? 'Heard on the clip, not what was logged: '
+                  : 'Heard on the clip: '}
+            </strong>
             <span data-heard-text="">{sentence(whatWasHeard(heard.text))}</span>
             {differs && <span className="block text-xs text-ink-muted">Watch and listen again before checking. This is not a flag and stops nothing on its own.</span>}
           </span>
