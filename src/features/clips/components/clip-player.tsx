@@ -469,6 +469,7 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
         }}
         onAccept={onLogReading && acceptHeard}
       />
+      {onLogReading && <DisplayRegionControls marking={displayMarking} />}
 
       <CaptionEditor
         clip={clip}
@@ -478,7 +479,6 @@ export function ClipPlayer({ clip, buildId, focusRequest = 0, onLogReading, seek
           seek(seconds, true);
         }}
       />
-      {onLogReading && <DisplayRegionControls marking={displayMarking} />}
 
       <MomentsList
         clip={clip}

@@ -184,6 +184,7 @@ export function DisplayRegionControls({ marking, defaultUnit }: { marking: Displ
 
   return (
     <form
+      noValidate
       className="flex flex-col gap-2 rounded-md border border-accent/50 bg-accent-wash/40 p-2"
       aria-describedby={hintId}
       data-display-controls=""
@@ -203,7 +204,7 @@ export function DisplayRegionControls({ marking, defaultUnit }: { marking: Displ
               type="number"
               min={0}
               max={100}
-              step={0.5}
+              step="any"
               value={Number((draft[field] * 100).toFixed(2))}
               onChange={(event) => setField(field, event.target.value)}
               className="figures h-8 w-20 text-sm"
