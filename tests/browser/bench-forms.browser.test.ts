@@ -7,6 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { launchBrowser } from '../../scripts/lib/chromium';
 import { startBrowserApp } from '../support/browser-app';
 import { makeTestClip } from '../support/clips';
+import { api } from '../support/page-api';
 
 /*
  * The reading and clearance forms as a builder uses them at the bench: the form follows what was
@@ -31,22 +32,6 @@ afterAll(async () => {
   await site?.close();
   fs.rmSync(work, { recursive: true, force: true });
 });
-
-/** A JSON request from inside the signed-in page, with the session's CSRF token. */
-async function api<T>(page: Page, method: string, url: string, body?: unknown): Promise<{ status: number; json: T }> {
-  return page.evaluate(
-    async ({ method, url, body }) => {
-      const { token } = (await (await fetch('/api/csrf-token')).json()) as { token: string };
-      const response = await fetch(url, {
-        method,
-        headers: { 'content-type': 'application/json', 'x-csrf-token': token },
-        body: body === undefined ? undefined : JSON.stringify(body),
-      });
-      return { status: response.status, json: response.status === 204 ? null : await response.json() };
-    },
-    { method, url, body },
-  ) as Promise<{ status: number; json: T }>;
-}
 
 const today = () => {
   const d = new Date();

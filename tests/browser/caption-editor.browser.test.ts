@@ -9,6 +9,7 @@ import { CaptionCorrection } from '../../server/features/speech/corrections.mode
 import { storeClipWords } from '../../server/features/speech/speech.service';
 import { startBrowserApp } from '../support/browser-app';
 import { makeTestClip } from '../support/clips';
+import { api } from '../support/page-api';
 
 /*
  * "Captions" in the builder's workspace: the clip's caption lines, one edited in place (Escape
@@ -30,22 +31,6 @@ let browser: Awaited<ReturnType<typeof launchBrowser>>;
 let work: string;
 let buildId: number;
 let clipId: number;
-
-/** A JSON request from inside the signed-in page, with the session's CSRF token. */
-async function api<T>(page: Page, method: string, url: string, body?: unknown): Promise<{ status: number; json: T }> {
-  return page.evaluate(
-    async ({ method, url, body }) => {
-      const { token } = (await (await fetch('/api/csrf-token')).json()) as { token: string };
-      const response = await fetch(url, {
-        method,
-        headers: { 'content-type': 'application/json', 'x-csrf-token': token },
-        body: body === undefined ? undefined : JSON.stringify(body),
-      });
-      return { status: response.status, json: response.status === 204 ? null : await response.json() };
-    },
-    { method, url, body },
-  ) as Promise<{ status: number; json: T }>;
-}
 
 /** axe-core on the page; serious and critical violations fail, the rest are printed. */
 async function axeProblems(page: Page, what: string): Promise<string[]> {

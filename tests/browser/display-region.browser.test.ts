@@ -1,12 +1,12 @@
 import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
-import type { Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { launchBrowser } from '../../scripts/lib/chromium';
 import { DisplayRegionRow } from '../../server/features/speech/speech.model';
 import { startBrowserApp } from '../support/browser-app';
 import { DISPLAY_BOX, makeDisplayClip } from '../support/display-clip';
+import { api } from '../support/page-api';
 
 /*
  * Marking a display in the builder's workspace: on a clip whose picture shows a seven-segment
@@ -20,21 +20,6 @@ let browser: Awaited<ReturnType<typeof launchBrowser>>;
 let work: string;
 let buildId: number;
 let clipId: number;
-
-async function api<T>(page: Page, method: string, url: string, body?: unknown): Promise<{ status: number; json: T }> {
-  return page.evaluate(
-    async ({ method, url, body }) => {
-      const { token } = (await (await fetch('/api/csrf-token')).json()) as { token: string };
-      const response = await fetch(url, {
-        method,
-        headers: { 'content-type': 'application/json', 'x-csrf-token': token },
-        body: body === undefined ? undefined : JSON.stringify(body),
-      });
-      return { status: response.status, json: response.status === 204 ? null : await response.json() };
-    },
-    { method, url, body },
-  ) as Promise<{ status: number; json: T }>;
-}
 
 beforeAll(async () => {
   work = fs.mkdtempSync(path.join(os.tmpdir(), 'benchproof-browser-display-'));

@@ -10,6 +10,7 @@ import { Reading } from '../../server/features/readings/reading.model';
 import { ProposalDismissal } from '../../server/features/speech/speech.model';
 import { startBrowserApp } from '../support/browser-app';
 import { makeNarratedClip } from '../support/narration';
+import { api } from '../support/page-api';
 
 /*
  * "Heard on this clip" in the builder's workspace: a clip narrated by festival (one figure, then
@@ -41,22 +42,6 @@ interface Heard {
 }
 let thou: Heard;
 let mm: Heard;
-
-/** A JSON request from inside the signed-in page, with the session's CSRF token. */
-async function api<T>(page: Page, method: string, url: string, body?: unknown): Promise<{ status: number; json: T }> {
-  return page.evaluate(
-    async ({ method, url, body }) => {
-      const { token } = (await (await fetch('/api/csrf-token')).json()) as { token: string };
-      const response = await fetch(url, {
-        method,
-        headers: { 'content-type': 'application/json', 'x-csrf-token': token },
-        body: body === undefined ? undefined : JSON.stringify(body),
-      });
-      return { status: response.status, json: response.status === 204 ? null : await response.json() };
-    },
-    { method, url, body },
-  ) as Promise<{ status: number; json: T }>;
-}
 
 const today = () => {
   const d = new Date();

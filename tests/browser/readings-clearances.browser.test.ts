@@ -8,6 +8,7 @@ import { launchBrowser } from '../../scripts/lib/chromium';
 import { repoRoot } from '../../scripts/lib/bootstrap';
 import { startBrowserApp } from '../support/browser-app';
 import { makeTestClip } from '../support/clips';
+import { api } from '../support/page-api';
 
 let site: Awaited<ReturnType<typeof startBrowserApp>>;
 let browser: Awaited<ReturnType<typeof launchBrowser>>;
@@ -25,22 +26,6 @@ afterAll(async () => {
   await site?.close();
   fs.rmSync(work, { recursive: true, force: true });
 });
-
-/** A JSON request from inside the signed-in page, with the session's CSRF token. */
-async function api<T>(page: Page, method: string, url: string, body?: unknown): Promise<{ status: number; json: T }> {
-  return page.evaluate(
-    async ({ method, url, body }) => {
-      const { token } = (await (await fetch('/api/csrf-token')).json()) as { token: string };
-      const response = await fetch(url, {
-        method,
-        headers: { 'content-type': 'application/json', 'x-csrf-token': token },
-        body: body === undefined ? undefined : JSON.stringify(body),
-      });
-      return { status: response.status, json: response.status === 204 ? null : await response.json() };
-    },
-    { method, url, body },
-  ) as Promise<{ status: number; json: T }>;
-}
 
 const today = () => {
   const d = new Date();
