@@ -1,6 +1,7 @@
 // `npm start`: Debian's ffmpeg (installed when missing), database, migrations, demo data, client build, local fakes, then the server.
 import { seedDemoClips } from '../server/db/seed-clips';
 import { seedDemoDiary } from '../server/db/seed-diary';
+import { logProcessFailures } from '../server/logger';
 import { startServer } from '../server/server';
 import { buildClientIfChanged } from './lib/client-build';
 import { bringUpLocal, demoSignInLines, onShutdown } from './lib/run-local';
@@ -16,6 +17,7 @@ try {
   const built = await buildClientIfChanged();
   if (!built) console.log('[client] up to date');
   running = await startServer(local.config);
+  logProcessFailures(running.logger);
   // Generated once: the demo builds' clips (test patterns with captions), processed by the worker.
   await seedDemoClips({ config: local.config, storage: running.storage, queue: running.queue, logger: running.logger });
   // Then their invented readings, clearances and diary entries, taken through review (only while the demo is in use).

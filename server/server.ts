@@ -17,7 +17,7 @@ export async function startServer(config: Config) {
   initModels(sequelize);
   await sequelize.authenticate();
   const storage = storageFromConfig(config.storage);
-  const queue = await startQueue(config);
+  const queue = await startQueue(config, logger);
   const worker = config.jobs.worker === 'inline' ? await startClipWorker(config, queue, { storage, logger }) : null;
   const mailWorker = config.jobs.worker === 'inline' ? await startMailWorker(config, queue, { logger }) : null;
   const digest = config.jobs.worker === 'inline' ? await startWeeklyDigest(config, queue, { logger }) : null;

@@ -1,5 +1,7 @@
 import PgBoss from 'pg-boss';
+import type { Logger } from 'pino';
 import type { Config } from '../config';
+import { createLogger } from '../logger';
 
 /** Names of every job queue, with the instance prefix applied. */
 export function queueNames(config: Pick<Config, 'jobs'>) {
@@ -11,9 +13,10 @@ export function queueNames(config: Pick<Config, 'jobs'>) {
  * The PostgreSQL-backed job queue (pg-boss). Jobs survive restarts; an active job whose worker
  * died expires after `expireSeconds` and is retried up to `retryLimit` times.
  */
-export async function startQueue(config: Config) {
+export async function startQueue(config: Config, logger: Logger = createLogger(config)) {
   const boss = new PgBoss({ connectionString: config.databaseUrl, max: 4 });
-  boss.on('error', (err) => console.error('[jobs] pg-boss error', err));
+  // pg-boss's own errors (a lost connection, a failed maintenance run) go to the log as ours do.
+  boss.on('error', (err) => logger.error({ err }, 'pg-boss error'));
   await boss.start();
   const names = queueNames(config);
   const queues = [
