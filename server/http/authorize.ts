@@ -1,6 +1,5 @@
 import type { RequestHandler } from 'express';
 import type { Role } from '@shared/users/user.schema';
-import type { User } from '../features/users/user.model';
 import { forbidden, unauthorized } from './errors';
 
 declare global {
@@ -35,13 +34,6 @@ export const access = {
       next(forbidden());
     }),
 };
-
-/** Per-resource ownership: the signed-in user owns it, or is a moderator/admin when allowed. */
-export function assertOwnerOr(user: User | undefined, ownerId: number, alsoAllowed: Role[] = ['admin']) {
-  if (!user) throw unauthorized();
-  if (user.id === ownerId || alsoAllowed.includes(user.role)) return;
-  throw forbidden('This belongs to another account.');
-}
 
 /** True when a handler is one of the access checks above. */
 export function isAccessCheck(handler: unknown): boolean {
