@@ -1,16 +1,6 @@
-import { useSyncExternalStore } from 'react';
+import { useMediaQuery } from '@/lib/use-media-query';
 
 /** True while the window is narrower than Tailwind's `sm` breakpoint (40rem): a phone at the bench. */
 export function useNarrowScreen(): boolean {
-  return useSyncExternalStore(
-    (onChange) => {
-      const list = window.matchMedia(QUERY);
-      list.addEventListener('change', onChange);
-      return () => list.removeEventListener('change', onChange);
-    },
-    () => window.matchMedia(QUERY).matches,
-    () => false,
-  );
+  return useMediaQuery('(max-width: 39.99rem)');
 }
-
-const QUERY = '(max-width: 39.99rem)';

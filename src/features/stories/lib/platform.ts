@@ -1,5 +1,3 @@
-import { useSyncExternalStore } from 'react';
-
 /** True on Apple keyboards, where shortcuts use ⌘ rather than Ctrl. */
 export function isApplePlatform(): boolean {
   if (typeof navigator === 'undefined') return false;
@@ -16,17 +14,4 @@ export function shortcutLabel(key: string): string {
 export function hasShortcutModifier(event: { ctrlKey: boolean; metaKey: boolean; altKey: boolean }): boolean {
   if (event.altKey) return false;
   return isApplePlatform() ? event.metaKey : event.ctrlKey;
-}
-
-/** Follows a CSS media query, e.g. whether the screen is wide enough for a side-by-side preview. */
-export function useMediaQuery(query: string): boolean {
-  return useSyncExternalStore(
-    (notify) => {
-      const list = window.matchMedia(query);
-      list.addEventListener('change', notify);
-      return () => list.removeEventListener('change', notify);
-    },
-    () => window.matchMedia(query).matches,
-    () => false,
-  );
 }
