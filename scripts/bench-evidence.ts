@@ -169,8 +169,20 @@ function table(rows: string[][]): string {
   return rows.map((r) => r.map((cell, c) => (c === r.length - 1 ? cell : cell.padEnd(widths[c]!))).join('  ')).join('\n');
 }
 
+/** `--lm trade|general`: pocketsphinx's language model for this run (else SPEECH_LM). */
+function lmFlag(argv: readonly string[]): 'trade' | 'general' | null {
+  const at = argv.indexOf('--lm');
+  if (at < 0) return null;
+  const value = argv[at + 1];
+  if (value !== 'trade' && value !== 'general') throw new Error('--lm takes "trade" or "general"');
+  return value;
+}
+
 async function main() {
   const config = loadConfig();
+  const lm = lmFlag(process.argv.slice(2));
+  if (lm) config.speech.lm = lm;
+  log(`language model: ${config.speech.lm}`);
   const recognizer = recognizerFromConfig(config.speech);
   const missing = evidenceSetUnavailableBecause() ?? recognizer.unavailableBecause() ?? displayReaderStatus().why;
   if (missing) throw new Error(`cannot measure here: ${missing}`);

@@ -89,6 +89,11 @@ const envSchema = z.object({
   SPEECH_COMMAND: z.string().trim().min(1).optional(),
   /** pocketsphinx's model folder (acoustic model `en-us`, `en-us.lm.bin`, `cmudict-en-us.dict`). */
   SPEECH_MODEL_DIR: z.string().min(1).default('/usr/share/pocketsphinx/model/en-us'),
+  /**
+   * pocketsphinx's language model: "general" (Debian's en-us model) or "trade" (ours, made from
+   * invented workshop talk and spoken figures: server/features/speech/trade-lm.ts).
+   */
+  SPEECH_LM: z.enum(['general', 'trade']).default('general'),
   /** "off": clips are not listened to (their words stay empty, their state "unavailable"). */
   SPEECH: z.enum(['on', 'off']).default('on'),
   /** Where SPEECH_COMMAND's program is looked for when it is a bare name. */
@@ -166,6 +171,8 @@ export interface Config {
     /** SPEECH_COMMAND split into program and arguments; null for pocketsphinx. */
     command: string[] | null;
     modelDir: string;
+    /** pocketsphinx's language model (SPEECH_LM). */
+    lm: 'general' | 'trade';
     /** The folders a bare program name is looked up in (PATH). */
     searchPath: string;
   };
@@ -269,6 +276,7 @@ export function loadConfig(source: NodeJS.ProcessEnv = process.env): Config {
       enabled: e.SPEECH === 'on',
       command: e.SPEECH_COMMAND === undefined ? null : commandLine(e.SPEECH_COMMAND),
       modelDir: e.SPEECH_MODEL_DIR,
+      lm: e.SPEECH_LM,
       searchPath: e.PATH,
     },
     storage: {

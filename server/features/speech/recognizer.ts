@@ -4,6 +4,7 @@ import { z } from 'zod';
 import type { Config } from '../../config';
 import { MediaCommandFailed, runMediaTool } from '../clips/media/ffmpeg-run';
 import { decodeAllTimeoutS } from '../clips/media/limits';
+import { tradeLanguageModel } from './trade-lm';
 
 /** One word as a recognizer heard it: milliseconds from the start of the sound, confidence as given. */
 export interface RecognizedWord {
@@ -44,9 +45,9 @@ export function recognizeTimeoutS(durationS: number): number {
   return decodeAllTimeoutS(durationS);
 }
 
-/** The recognizer the configuration names: SPEECH_COMMAND's, else pocketsphinx with SPEECH_MODEL_DIR. */
+/** The recognizer the configuration names: SPEECH_COMMAND's, else pocketsphinx with SPEECH_MODEL_DIR and SPEECH_LM. */
 export function recognizerFromConfig(speech: Config['speech']): Recognizer {
-  return speech.command ? commandRecognizer(speech.command, speech.searchPath) : pocketsphinxRecognizer(speech.modelDir);
+  return speech.command ? commandRecognizer(speech.command, speech.searchPath) : pocketsphinxRecognizer(speech.modelDir, { lm: speech.lm });
 }
 
 /**
@@ -72,12 +73,24 @@ export function pocketsphinxModel(modelDir: string) {
 }
 
 /**
- * pocketsphinx_continuous over Debian's generic US English model (acoustic model, trigram
- * language model and CMU dictionary). With `-time yes` it prints, per utterance, the hypothesis
- * and then one line per word: `word start end confidence` (seconds from the start of the file).
+ * Which language model pocketsphinx listens with: Debian's general US English trigram model
+ * ("general"), or our trade model of workshop talk and spoken figures ("trade", trade-lm.ts),
+ * made from our own corpus (with the general model's commonest words as a background) and
+ * pronounced with Debian's dictionary.
  */
-export function pocketsphinxRecognizer(modelDir: string, bin = POCKETSPHINX_BIN): Recognizer {
+export type SpeechLanguageModel = 'general' | 'trade';
+
+/**
+ * pocketsphinx_continuous over Debian's generic US English model (acoustic model, trigram
+ * language model and CMU dictionary), or with our trade language model and its dictionary in
+ * place of the general ones (`lm: 'trade'`). With `-time yes` it prints, per utterance, the
+ * hypothesis and then one line per word: `word start end confidence` (seconds from the start of
+ * the file).
+ */
+export function pocketsphinxRecognizer(modelDir: string, options: { lm?: SpeechLanguageModel; bin?: string } = {}): Recognizer {
   const model = pocketsphinxModel(modelDir);
+  const bin = options.bin ?? POCKETSPHINX_BIN;
+  const trade = options.lm === 'trade';
   return {
     name: 'pocketsphinx',
     unavailableBecause() {
@@ -86,9 +99,11 @@ export function pocketsphinxRecognizer(modelDir: string, bin = POCKETSPHINX_BIN)
       return missing ? `the speech model ${missing} is missing (Debian package "pocketsphinx-en-us")` : null;
     },
     async recognize(wavPath, options = {}) {
+      // The trade model is made from the corpus on first use (about a second), then cached.
+      const { lm, dict } = trade ? tradeLanguageModel(model) : model;
       const { stdout } = await runMediaTool(
         bin,
-        ['-infile', wavPath, '-time', 'yes', '-hmm', model.hmm, '-lm', model.lm, '-dict', model.dict, '-samprate', '16000'],
+        ['-infile', wavPath, '-time', 'yes', '-hmm', model.hmm, '-lm', lm, '-dict', dict, '-samprate', '16000'],
         { what: 'recognise the speech in the clip', signal: options.signal, limits: { timeoutS: recognizeTimeoutS(options.durationS ?? 0) } },
       );
       return { words: parsePocketsphinxTimes(stdout.toString('utf8')) };
