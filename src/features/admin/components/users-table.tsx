@@ -3,8 +3,8 @@ import { Avatar } from '@/components/ui/avatar';
 import { Badge } from '@/components/ui/badge';
 import { Table, TBody, THead, Td, Th, Tr } from '@/components/ui/table';
 import { RoleSelect } from './role-select';
+import { isoDayOf } from '@/lib/dates';
 
-const joinedFormat = new Intl.DateTimeFormat('en-CA', { year: 'numeric', month: '2-digit', day: '2-digit' });
 
 /** Accounts, one per row, with their role editable in place. */
 export function UsersTable({ users, meId }: { users: User[]; meId: number | undefined }) {
@@ -60,7 +60,4 @@ function Missing() {
   );
 }
 
-function formatDate(iso: string): string {
-  const date = new Date(iso);
-  return Number.isNaN(date.getTime()) ? iso : joinedFormat.format(date);
-}
+const formatDate = isoDayOf;

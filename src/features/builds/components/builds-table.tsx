@@ -1,9 +1,8 @@
 import { Link } from 'react-router-dom';
 import type { Build } from '@shared/builds/build.schema';
 import { Table, TBody, THead, Td, Th, Tr } from '@/components/ui/table';
+import { isoDayAndClock } from '@/lib/dates';
 
-const dateFormat = new Intl.DateTimeFormat('en-CA', { year: 'numeric', month: '2-digit', day: '2-digit' });
-const timeFormat = new Intl.DateTimeFormat('en-GB', { hour: '2-digit', minute: '2-digit' });
 
 /** The builder's builds, one per row, each opening its workspace. */
 export function BuildsTable({ builds }: { builds: Build[] }) {
@@ -39,8 +38,4 @@ export function BuildsTable({ builds }: { builds: Build[] }) {
   );
 }
 
-function formatUpdated(iso: string): string {
-  const date = new Date(iso);
-  if (Number.isNaN(date.getTime())) return iso;
-  return `${dateFormat.format(date)} ${timeFormat.format(date)}`;
-}
+const formatUpdated = isoDayAndClock;

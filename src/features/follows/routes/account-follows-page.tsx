@@ -11,7 +11,7 @@ import { authQueries } from '@/features/auth/api/auth-queries';
 import { signInPath } from '@/features/auth/lib/return-to';
 import { errorMessage } from '@/lib/api';
 import { queryClient } from '@/lib/query-client';
-import { instantDay } from '@/features/public/lib/dates';
+import { instantDay } from '@/lib/dates';
 import { useSetFollowEmail, useSetFollowing, useUpdatePreferences } from '../api/follow-mutations';
 import { followQueries } from '../api/follow-queries';
 import { UnfollowDialog } from '../components/unfollow-dialog';

@@ -1,7 +1,7 @@
 import type { CapturedMessage } from '@shared/mail/outbox.schema';
 import { formatBytes } from '@/features/clips/lib/clip-format';
+import { exactTimeSeconds } from '@/lib/dates';
 
-const dateFormat = new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'medium', hourCycle: 'h23' });
 
 /** A header by name, whatever its case (the capture server keeps them lower-case). */
 export function headerOf(message: CapturedMessage, name: string): string | null {
@@ -11,8 +11,7 @@ export function headerOf(message: CapturedMessage, name: string): string | null 
 
 /** When a message arrived, in the viewer's time zone. */
 export function receivedText(iso: string): string {
-  const at = new Date(iso);
-  return Number.isNaN(at.getTime()) ? iso : dateFormat.format(at);
+  return exactTimeSeconds(iso);
 }
 
 /**

@@ -13,7 +13,7 @@ import { CalcSteps } from '@/features/calc/components/calc-steps';
 import { specSourceWords, VerdictCaution } from '@/features/clearances/components/clearance-result-view';
 import { CalibrationBadge } from '@/features/instruments/components/calibration-badge';
 import { formatTime } from '@/features/clips/lib/clip-format';
-import { dayText, instantDay } from '../lib/dates';
+import { dayText, instantDay } from '@/lib/dates';
 import { limitTextsFor, pictureProps, quantityPictureProps, readingShown, resultShown, systemDisplayUnits, valueWithU } from '../lib/figures';
 import { Figure } from './figure';
 import { MomentClip } from './moment-clip';

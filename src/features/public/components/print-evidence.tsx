@@ -4,7 +4,7 @@ import { verdictWords } from '@shared/measure/spec';
 import type { PublicStory } from '@shared/public/public-story.schema';
 import { limitFacts } from '@shared/public/spec-limits';
 import { formatTime } from '@/features/clips/lib/clip-format';
-import { instantDay } from '../lib/dates';
+import { instantDay } from '@/lib/dates';
 import { limitTextsFor, readingShown, resultShown, shownText } from '../lib/figures';
 
 /**

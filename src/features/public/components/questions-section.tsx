@@ -14,7 +14,7 @@ import { useToast } from '@/components/ui/toast';
 import { signInPath } from '@/features/auth/lib/return-to';
 import { ApiError, errorMessage } from '@/lib/api';
 import { questionQueries, useAnswerQuestion, useAskQuestion, useHideQuestion } from '../api/question-queries';
-import { instantDay } from '../lib/dates';
+import { instantDay } from '@/lib/dates';
 
 /** The server's field errors onto a one-field form; everything else as the form's own error. */
 function serverErrors(error: unknown, setField: (message: string) => void, setRoot: (message: string) => void) {

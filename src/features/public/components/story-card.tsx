@@ -1,7 +1,7 @@
 import { Link } from 'react-router-dom';
 import type { PublicStoryListItem } from '@shared/public/public-story.schema';
 import { VerdictBadge } from '@/components/ui/badge';
-import { dateTimeAttr, dayText, instantDay } from '../lib/dates';
+import { dateTimeAttr, dayText, instantDay } from '@/lib/dates';
 import { SearchSnippet } from './search-snippet';
 
 /**

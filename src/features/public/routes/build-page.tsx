@@ -12,7 +12,7 @@ import { positiveIntParam } from '@/lib/route-params';
 import { publicQueries } from '../api/public-queries';
 import { ShareMeta } from '../components/share-meta';
 import { UnitsSwitch } from '../components/units-switch';
-import { dateTimeAttr, dayText, instantDay } from '../lib/dates';
+import { dateTimeAttr, dayText, instantDay } from '@/lib/dates';
 import { resultShown, shownText } from '../lib/figures';
 import { entryUnitOf } from '../lib/unit-choice';
 import { useUnitSystem } from '../lib/units';

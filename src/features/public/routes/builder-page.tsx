@@ -10,7 +10,7 @@ import { textParam } from '@/lib/route-params';
 import { publicQueries } from '../api/public-queries';
 import { ShareMeta } from '../components/share-meta';
 import { StoryGrid } from '../components/story-card';
-import { instantDay } from '../lib/dates';
+import { instantDay } from '@/lib/dates';
 
 /** The address's login, read as the server's `publicBuilderParamsSchema` reads it; 404 when it is not one. */
 function loginFrom(params: Params): string {

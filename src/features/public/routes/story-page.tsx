@@ -16,7 +16,7 @@ import { ClaimsIndex } from '../components/claims-index';
 import { PrintEvidence } from '../components/print-evidence';
 import { ShareMeta } from '../components/share-meta';
 import { UnitsSwitch } from '../components/units-switch';
-import { dateTimeAttr, dayText, instantDay } from '../lib/dates';
+import { dateTimeAttr, dayText, instantDay } from '@/lib/dates';
 import { useUnitSystem } from '../lib/units';
 import { entryUnitOf } from '../lib/unit-choice';
 import { checkedSummary, claimPath, findClaim, listWords } from '../lib/story-view';

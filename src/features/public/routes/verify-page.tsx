@@ -10,7 +10,7 @@ import { CalibrationBadge } from '@/features/instruments/components/calibration-
 import { ApiError } from '@/lib/api';
 import { positiveIntParam } from '@/lib/route-params';
 import { publicQueries } from '../api/public-queries';
-import { dayText, instantDay } from '../lib/dates';
+import { dayText, instantDay } from '@/lib/dates';
 
 /** The address's partId, read as the server's `partParamsSchema` reads it; 404 when it is not one. */
 function partIdFrom(params: Params): number {

@@ -7,6 +7,7 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-state
 import { unitChoiceLabel } from '@/features/instruments/lib/unit-choices';
 import { readingQueries } from '../api/reading-queries';
 import { enteredFigures, withReadingUnit } from '../lib/reading-text';
+import { exactTime } from '@/lib/dates';
 
 /** Fields of a stored snapshot worth showing first, in this order, with their labels. */
 const mainFields: [string, string][] = [
@@ -45,10 +46,7 @@ function showField(field: string, snapshot: Record<string, unknown>): string {
   return show(value);
 }
 
-function when(iso: string): string {
-  const d = new Date(iso);
-  return Number.isNaN(d.getTime()) ? iso : d.toLocaleString(undefined, { dateStyle: 'medium', timeStyle: 'short' });
-}
+const when = exactTime;
 
 /** Earlier states of a reading, newest first: what it was before each edit, and who edited it. */
 export function ReadingHistoryDialog({ reading, onClose }: { reading: Reading | null; onClose: () => void }) {

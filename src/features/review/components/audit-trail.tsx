@@ -5,16 +5,12 @@ import { EmptyState, ErrorState, LoadingState } from '@/components/ui/data-state
 import { LoadMore } from '@/components/ui/load-more';
 import { reviewQueries } from '../api/review-queries';
 import { clockTime, exactTime } from '../lib/review-format';
+import { mediumDay } from '@/lib/dates';
 
 type AuditEntry = z.infer<typeof auditEntrySchema>;
 
-const dayFormat = new Intl.DateTimeFormat(undefined, { dateStyle: 'medium' });
-
 /** The day of a line in the viewer's time zone, as clockTime gives its time, so the sentence says only the time. */
-function dayOf(iso: string): string {
-  const at = new Date(iso);
-  return Number.isNaN(at.getTime()) ? iso : dayFormat.format(at);
-}
+const dayOf = mediumDay;
 
 /** What the person did, as the middle of a sentence ("Dagny … at 10:42"). */
 function deed(entry: AuditEntry, subject: string | null): string {

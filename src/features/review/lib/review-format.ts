@@ -2,21 +2,9 @@ import type { CalibrationState } from '@shared/instruments/instrument.schema';
 import type { ReadingWarning } from '@shared/readings/reading.schema';
 import type { SheetCheck } from '@shared/review/review-sheet.schema';
 
-const exactFormat = new Intl.DateTimeFormat(undefined, { dateStyle: 'medium', timeStyle: 'short', hourCycle: 'h23' });
-const clockFormat = new Intl.DateTimeFormat(undefined, { hour: '2-digit', minute: '2-digit', hourCycle: 'h23' });
 const relativeFormat = new Intl.RelativeTimeFormat(undefined, { numeric: 'auto' });
 
-/** "12 Nov 2026, 14:05" in the viewer's time zone. */
-export function exactTime(iso: string): string {
-  const at = new Date(iso);
-  return Number.isNaN(at.getTime()) ? iso : exactFormat.format(at);
-}
-
-/** "14:05" in the viewer's time zone. */
-export function clockTime(iso: string): string {
-  const at = new Date(iso);
-  return Number.isNaN(at.getTime()) ? iso : clockFormat.format(at);
-}
+export { clockTime, exactTime } from '@/lib/dates';
 
 const steps: [Intl.RelativeTimeFormatUnit, number][] = [
   ['year', 365 * 24 * 3600],

@@ -1,15 +1,9 @@
 import type { SaveState } from '../lib/use-story-autosave';
 import { cn } from '@/lib/cn';
-
-const timeFormat = new Intl.DateTimeFormat(undefined, { hour: '2-digit', minute: '2-digit', hourCycle: 'h23' });
-const dayFormat = new Intl.DateTimeFormat(undefined, { day: 'numeric', month: 'short' });
+import { sinceText } from '@/lib/dates';
 
 /** "14:02" today, "2 Dec, 14:02" on another day. */
-export function savedTime(iso: string, now = new Date()): string {
-  const at = new Date(iso);
-  const sameDay = at.toDateString() === now.toDateString();
-  return sameDay ? timeFormat.format(at) : `${dayFormat.format(at)}, ${timeFormat.format(at)}`;
-}
+export const savedTime = sinceText;
 
 /** The autosave state in words. */
 export function saveStateWords(state: SaveState): string {

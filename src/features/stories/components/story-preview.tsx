@@ -6,6 +6,7 @@ import type { StoryTags } from '@shared/stories/story.schema';
 import { storyTagGroups } from '@shared/stories/story.schema';
 import { ClaimEvidence, type EvidenceLookup } from './claim-evidence';
 import { StoryProse } from './story-prose';
+import { longDayText } from '@/lib/dates';
 
 export interface PreviewContent {
   title: string;
@@ -19,10 +20,7 @@ export interface PreviewContent {
 
 const groupWords: Record<(typeof storyTagGroups)[number], string> = { machine: 'Machine', component: 'Component', operation: 'Operation' };
 
-function workDateWords(date: string): string {
-  const at = new Date(`${date}T00:00:00Z`);
-  return new Intl.DateTimeFormat(undefined, { day: 'numeric', month: 'long', year: 'numeric', timeZone: 'UTC' }).format(at);
-}
+const workDateWords = longDayText;
 
 /**
  * The entry as a reader will see it. A claim opens its evidence in a popover beside it, so the

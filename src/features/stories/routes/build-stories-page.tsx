@@ -16,6 +16,7 @@ import { queryClient } from '@/lib/query-client';
 import { storyQueries } from '../api/story-queries';
 import { NewEntryDialog } from '../components/new-entry-dialog';
 import { savedTime } from '../components/save-status';
+import { dayText } from '@/lib/dates';
 
 function buildIdFrom(params: unknown): number {
   const parsed = buildIdParamsSchema.safeParse(params);
@@ -46,7 +47,6 @@ function byWorkDate(a: Entry, b: Entry): number {
   return a.createdAt < b.createdAt ? -1 : a.createdAt > b.createdAt ? 1 : a.id - b.id;
 }
 
-const dateFormat = new Intl.DateTimeFormat(undefined, { day: 'numeric', month: 'short', year: 'numeric', timeZone: 'UTC' });
 
 /** /builds/:buildId/stories — the build's stories in the order of the work. */
 export function Component() {
@@ -91,7 +91,7 @@ export function Component() {
             {entries.map((entry) => (
               <Tr key={entry.id}>
                 <Td mono className="whitespace-nowrap">
-                  {entry.workDate ? <time dateTime={entry.workDate}>{dateFormat.format(new Date(`${entry.workDate}T00:00:00Z`))}</time> : <span className="text-ink-muted">no date</span>}
+                  {entry.workDate ? <time dateTime={entry.workDate}>{dayText(entry.workDate)}</time> : <span className="text-ink-muted">no date</span>}
                 </Td>
                 <Td>
                   <Link to={`/stories/${entry.id}/edit`} className="font-medium">
