@@ -1,7 +1,7 @@
 import { Router } from 'express';
-import { frameQuerySchema } from '@shared/clips/clip.schema';
 import type { UnitSystem } from '@shared/measure/format';
 import { publicBuilderParamsSchema, publicBuildParamsSchema } from '@shared/public/public-build.schema';
+import { publicFrameQuerySchema, publicMediaQuerySchema } from '@shared/public/public-media.schema';
 import {
   publicClipParamsSchema,
   publicStoryListQuerySchema,
@@ -15,6 +15,7 @@ import { validQuery, validate } from '../../http/validate';
 import type { Storage } from '../../storage/storage';
 import { clipKeys, playableContentType, playableKey } from '../clips/clips.service';
 import { evidenceStillKey, evidenceStillLimiter } from '../clips/evidence-stills';
+import { mediaCacheControl, mediaVersion } from './media-versions';
 import {
   cachedPublicStoryBody,
   currentPublicPage,
@@ -81,6 +82,8 @@ export function publicRouter(deps: { storage: Storage; stillsPerClip: number }) 
     res.json(await publicBuilderProfile(String(req.params.login), req.user));
   });
 
+  /** The media version the address names (`?v=`), if any. */
+  const versionAsked = (res: Parameters<typeof validQuery>[0]) => validQuery<{ v?: string }>(res).v;
   const clipId = (req: { params: Record<string, unknown> }) => Number(req.params.clipId);
   const fullClip = async (id: number) => {
     const scope = await publicClipScope(id);
@@ -88,26 +91,28 @@ export function publicRouter(deps: { storage: Storage; stillsPerClip: number }) 
     return scope.clip;
   };
 
-  router.get('/clips/:clipId/video', access.public, validate({ params: publicClipParamsSchema }), async (req, res) => {
+  const media = validate({ params: publicClipParamsSchema, query: publicMediaQuerySchema });
+  router.get('/clips/:clipId/video', access.public, media, async (req, res) => {
     const clip = await fullClip(clipId(req));
-    res.set('Cache-Control', 'public, max-age=60');
+    res.set('Cache-Control', mediaCacheControl(versionAsked(res), mediaVersion(clip), 'public, max-age=60'));
     await deps.storage.send(res, playableKey(clip), { contentType: playableContentType(clip) });
   });
 
-  router.get('/clips/:clipId/poster', access.public, validate({ params: publicClipParamsSchema }), async (req, res) => {
+  router.get('/clips/:clipId/poster', access.public, media, async (req, res) => {
     const clip = await fullClip(clipId(req));
-    res.set('Cache-Control', 'public, max-age=300');
+    res.set('Cache-Control', mediaCacheControl(versionAsked(res), mediaVersion(clip), 'public, max-age=300'));
     await deps.storage.send(res, clipKeys(clip).poster, { contentType: 'image/jpeg' });
   });
 
   const frameLimiter = evidenceStillLimiter();
-  router.get('/clips/:clipId/frame', access.public, frameLimiter, validate({ params: publicClipParamsSchema, query: frameQuerySchema }), async (req, res) => {
+  router.get('/clips/:clipId/frame', access.public, frameLimiter, validate({ params: publicClipParamsSchema, query: publicFrameQuerySchema }), async (req, res) => {
     const scope = await publicClipScope(clipId(req));
     const atMs = Math.round(validQuery<{ t: number }>(res).t * 1000);
+    const version = mediaVersion(scope.clip);
     // Only the moments a current publication cites (its readings' and its cover); nothing is cut for any other time.
     if (!scope.stillTimesMs.has(atMs)) throw notFound('There is no public still at that time: stills are shown at the moments a published story cites.');
     const key = await evidenceStillKey(deps.storage, scope.clip, atMs, deps.stillsPerClip);
-    res.set('Cache-Control', 'public, max-age=300');
+    res.set('Cache-Control', mediaCacheControl(versionAsked(res), version, 'public, max-age=300'));
     await deps.storage.send(res, key, { contentType: 'image/jpeg' });
   });
 

@@ -26,6 +26,7 @@ import { escapeLike } from '../readings/readings.service';
 import { StoryPublication } from '../review/review.model';
 import { Story } from '../stories/story.model';
 import { User } from '../users/user.model';
+import { mediaVersions, versioned } from './media-versions';
 import { LruCache } from './public.cache';
 import {
   PUBLIC_STORY_SQL,
@@ -242,7 +243,8 @@ export async function coverUrls(momentIds: (number | null)[]): Promise<Map<numbe
   const ids = [...new Set(momentIds.filter((id): id is number => id !== null))];
   if (ids.length === 0) return new Map();
   const moments = await Moment.findAll({ where: { id: ids }, attributes: ['id', 'clipId', 'atMs'] });
-  return new Map(moments.map((m) => [m.id, publicClipUrls(m.clipId, m.atMs).stillUrl]));
+  const versions = await mediaVersions(moments.map((m) => m.clipId));
+  return new Map(moments.map((m) => [m.id, versioned(publicClipUrls(m.clipId, m.atMs).stillUrl, versions.get(m.clipId))]));
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -317,6 +319,18 @@ export function claimsWithEvidence(body: string, e: PublishedEvidence, units: Un
   return { html: rendered.html, claims };
 }
 
+/** The claims with each reading's media addresses versioned, so they may be kept by shared caches for good. */
+async function withMediaVersions(claims: PublicClaim[]): Promise<PublicClaim[]> {
+  const versions = await mediaVersions(claims.flatMap((c) => c.readings.map((r) => r.moment.clipId)));
+  return claims.map((c) => ({
+    ...c,
+    readings: c.readings.map((r) => {
+      const v = versions.get(r.moment.clipId);
+      return { ...r, moment: { ...r.moment, stillUrl: versioned(r.moment.stillUrl, v), clipUrl: versioned(r.moment.clipUrl, v), posterUrl: versioned(r.moment.posterUrl, v) } };
+    }),
+  }));
+}
+
 /** Builds the public page of one publication (what the cache keeps). */
 export async function buildPublicStory(publicationId: number, units: UnitSystem | null): Promise<PublicStory> {
   const publication = await StoryPublication.findByPk(publicationId);
@@ -329,7 +343,8 @@ export async function buildPublicStory(publicationId: number, units: UnitSystem 
     coverUrls([publication.coverMomentId]),
   ]);
   const e = evidenceOf(publication);
-  const { html, claims } = claimsWithEvidence(publication.body, e, units);
+  const { html, claims: unversioned } = claimsWithEvidence(publication.body, e, units);
+  const claims = await withMediaVersions(unversioned);
   const partsWithReadings = new Set(e.readings.map((r) => r.partId).filter((id) => id !== null));
   return {
     storyId: story.id,

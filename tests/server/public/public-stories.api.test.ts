@@ -109,6 +109,25 @@ describe('public pages never show drafts, unchecked readings or private media', 
     expect((await anonymous.agent.get(`/api/public/clips/${f.published.clipId}/frame?t=0.500`)).status).toBe(200);
   });
 
+  // RFC 9111 §5.2.2.1 (max-age) and RFC 8246 (immutable): an address naming the media's version
+  // may be kept by any cache for a year; one without it, or with another version, only briefly.
+  it('media at a versioned address may be kept for good; unversioned or mismatched addresses only briefly', async () => {
+    const story = await anonymous.agent.get(`/api/public/stories/${f.published.story.id}`).expect(200);
+    const moment = (story.body.claims as { readings: { moment: { stillUrl: string; clipUrl: string; posterUrl: string } }[] }[])
+      .flatMap((c) => c.readings)
+      .map((r) => r.moment)[0]!;
+    for (const url of [moment.stillUrl, moment.clipUrl, moment.posterUrl]) {
+      const res = await anonymous.agent.get(url).expect(200);
+      expect(res.headers['cache-control'], url).toBe('public, max-age=31536000, immutable');
+    }
+    const unversioned = await anonymous.agent.get(moment.clipUrl.replace(/\?v=.*$/, '')).expect(200);
+    expect(unversioned.headers['cache-control']).toBe('public, max-age=60');
+    const other = await anonymous.agent.get(moment.posterUrl.replace(/v=[0-9a-f]{12}$/, 'v=000000000000')).expect(200);
+    expect(other.headers['cache-control']).toBe('public, max-age=300');
+    const malformed = await anonymous.agent.get(moment.posterUrl.replace(/v=[0-9a-f]{12}$/, 'v=nope')).expect(400);
+    expect(malformed.body.error.code).toBe('invalid_request');
+  });
+
   it('a published story is shown, with its clip playable in ranges and its evidence stills', async () => {
     for (const [who, s] of viewers()) {
       const story = await s.agent.get(`/api/public/stories/${f.published.story.id}`);
@@ -225,11 +244,15 @@ describe('the published story page', () => {
     const r = claim.readings[0]!;
     expect(r.entered).toEqual({ value: '0.5642' });
     expect(r.instrument).toMatchObject({ name: 'Depth micrometer 0–6 in (test)', calibration: 'in-date' });
+    // The media addresses carry the version of the clip's media (12 hex digits), the same on each.
+    const v = /[?&]v=([0-9a-f]{12})$/.exec(r.moment.clipUrl)?.[1];
+    expect(v, r.moment.clipUrl).toBeDefined();
     expect(r.moment).toMatchObject({
       clipId: f.published.clipId,
       atMs: 500,
-      stillUrl: `/api/public/clips/${f.published.clipId}/frame?t=0.500`,
-      clipUrl: `/api/public/clips/${f.published.clipId}/video`,
+      stillUrl: `/api/public/clips/${f.published.clipId}/frame?t=0.500&v=${v}`,
+      clipUrl: `/api/public/clips/${f.published.clipId}/video?v=${v}`,
+      posterUrl: `/api/public/clips/${f.published.clipId}/poster?v=${v}`,
     });
     expect(r.checked).toMatchObject({ byName: 'Dagny Orlov', lockVersion: f.published.readings.depth.lockVersion });
     expect(r.warnings.map((w) => w.code)).toContain('no-zero-check');
