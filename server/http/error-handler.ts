@@ -2,11 +2,12 @@ import type { ErrorRequestHandler, RequestHandler } from 'express';
 import { ZodError } from 'zod';
 import type { ErrorBody } from '@shared/http/error.schema';
 import { AppError, notFound } from './errors';
+import type { ErrorCode } from '@shared/http/error-codes';
 
 /** Headers a media response may have set before it failed; the JSON error must not carry them. */
 const mediaHeaders = ['Content-Type', 'Content-Disposition', 'ETag', 'Last-Modified', 'Accept-Ranges'];
 
-function body(code: string, message: string, details: ErrorBody['error']['details'] = []): ErrorBody {
+function body(code: ErrorCode, message: string, details: ErrorBody['error']['details'] = []): ErrorBody {
   return { error: { code, message, details } };
 }
 
@@ -28,7 +29,7 @@ function isDatabaseUnavailable(err: unknown): boolean {
 }
 
 /** A disk that is full or cannot be written: refuse with words a builder can act on, not a 500. */
-function storageFailure(err: unknown): { status: number; code: string; message: string } | null {
+function storageFailure(err: unknown): { status: number; code: ErrorCode; message: string } | null {
   const code = (err as { code?: string } | undefined)?.code;
   if (code === 'ENOSPC' || code === 'EDQUOT') {
     return { status: 507, code: 'storage_full', message: 'The media storage is full, so the file was not kept. Nothing was saved; tell the site admin.' };

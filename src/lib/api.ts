@@ -1,17 +1,21 @@
 import type { z } from 'zod';
 import { csrfHeaderName } from '@shared/http/csrf';
+import { isErrorCode, type ErrorCode } from '@shared/http/error-codes';
 import type { ErrorBody, ErrorDetail } from '@shared/http/error.schema';
 
 // This module is in every page's first load, so it imports no schema values: zod (~26 KB gzip)
 // loads with the screens that validate forms or responses, not with the reader's story page.
 
+/** What an ApiError's code may be: one the API sends, one the client makes, or `http_<status>` for a body that was not ours. */
+export type ApiErrorCode = ErrorCode | (typeof clientErrorCodes)[keyof typeof clientErrorCodes] | `http_${number}`;
+
 /** An API call that failed, with the server's error body (or a client-made one). */
 export class ApiError extends Error {
   readonly status: number;
-  readonly code: string;
+  readonly code: ApiErrorCode;
   readonly details: ErrorDetail[];
 
-  constructor(status: number, code: string, message: string, details: ErrorDetail[] = []) {
+  constructor(status: number, code: ApiErrorCode, message: string, details: ErrorDetail[] = []) {
     super(message);
     this.name = 'ApiError';
     this.status = status;
@@ -46,7 +50,7 @@ export interface ApiFetchOptions<T> {
 }
 
 /** Error code the server sends when the CSRF token is missing or stale. */
-export const CSRF_INVALID = 'csrf_invalid';
+export const CSRF_INVALID = 'csrf_invalid' satisfies ErrorCode;
 
 let csrfTokenPromise: Promise<string> | null = null;
 
@@ -151,8 +155,16 @@ async function readError(response: Response): Promise<ApiError> {
     // Not JSON (a proxy page, an empty body): fall through to the generic error below.
   }
   const body = readErrorBody(json);
-  if (body) return new ApiError(response.status, body.code, body.message, body.details);
+  if (body) return apiErrorFromBody(response.status, body);
   return new ApiError(response.status, `http_${response.status}`, genericMessage(response.status));
+}
+
+/**
+ * An error body as an ApiError. A code this client does not know (a newer server) is named by
+ * the status; the message stays the server's.
+ */
+export function apiErrorFromBody(status: number, body: ErrorBody['error']): ApiError {
+  return new ApiError(status, isErrorCode(body.code) ? body.code : `http_${status}`, body.message, body.details);
 }
 
 /**

@@ -1,7 +1,7 @@
 import { DetailedError, Upload, defaultOptions, type HttpResponse, type PreviousUpload } from 'tus-js-client';
 import { resumableUploadsPath, uploadClipIdHeader } from '@shared/clips/clip.schema';
 import { csrfHeaderName } from '@shared/http/csrf';
-import { ApiError, CSRF_INVALID, clearCsrfToken, clientErrorCodes, getCsrfToken, readErrorBody } from '@/lib/api';
+import { ApiError, CSRF_INVALID, apiErrorFromBody, clearCsrfToken, clientErrorCodes, getCsrfToken, readErrorBody } from '@/lib/api';
 
 /**
  * Waits between attempts after a failed request, ms. tus-js-client starts the count again
@@ -46,7 +46,7 @@ export function apiErrorFrom(error: unknown): ApiError {
     return new ApiError(0, clientErrorCodes.network, 'Benchproof could not be reached. The upload carries on from where it stopped when the connection returns.');
   }
   const body = readErrorBody(parseJson(response.getBody()));
-  if (body) return new ApiError(status, body.code, body.message, body.details);
+  if (body) return apiErrorFromBody(status, body);
   if (status === 413) return new ApiError(status, 'too_large', 'The file is larger than the server accepts. Split the recording or lower its bitrate.');
   if (status >= 500) return new ApiError(status, `http_${status}`, 'The server ran into a problem. The upload carries on from where it stopped when you try again.');
   return new ApiError(status, `http_${status}`, `The upload failed (HTTP ${status}).`);

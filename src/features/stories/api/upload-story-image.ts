@@ -1,6 +1,6 @@
 import { csrfHeaderName } from '@shared/http/csrf';
 import { storyImageAltField, storyImageResponseSchema, storyImageTypes, storyImageUploadField, type StoryImage } from '@shared/stories/story.schema';
-import { ApiError, readErrorBody, CSRF_INVALID, clearCsrfToken, clientErrorCodes, getCsrfToken } from '@/lib/api';
+import { ApiError, apiErrorFromBody, readErrorBody, CSRF_INVALID, clearCsrfToken, clientErrorCodes, getCsrfToken } from '@/lib/api';
 
 /**
  * Largest image the editor sends. The server's own limit (STORY_IMAGE_MAX_BYTES, 10 MiB unless
@@ -82,7 +82,7 @@ function parseJson(text: string): unknown {
 
 function errorFrom(status: number, json: unknown): ApiError {
   const body = readErrorBody(json);
-  if (body) return new ApiError(status, body.code, body.message, body.details);
+  if (body) return apiErrorFromBody(status, body);
   if (status === 413) return new ApiError(status, 'too_large', 'The image is larger than the server accepts. Export it smaller, then add it again.');
   if (status >= 500) return new ApiError(status, `http_${status}`, 'The server ran into a problem with this image. Try again in a moment.');
   return new ApiError(status, `http_${status}`, `The upload failed (HTTP ${status}).`);
