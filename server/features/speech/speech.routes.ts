@@ -9,18 +9,16 @@ import {
   displayRegionBodySchema,
   evidenceStateOf,
   suggestionParamsSchema,
-  type CaptionCorrectionBody,
   type CaptionCorrectionListResponse,
   type CaptionCorrectionResponse,
   type ClipSuggestionsResponse,
   type ClipTranscriptResponse,
-  type DisplayRegionBody,
   type EvidenceState,
 } from '@shared/speech/speech.schema';
 import type { Config } from '../../config';
 import { access } from '../../http/authorize';
 import { notFound } from '../../http/errors';
-import { validate } from '../../http/validate';
+import { input } from '../../http/validate';
 import type { Queue } from '../../jobs/queue';
 import type { Clip } from '../clips/clip.model';
 import { clipForOwner, clipForViewer } from '../clips/clips.service';
@@ -39,7 +37,6 @@ export interface SpeechRouteDeps {
   logger: Logger;
 }
 
-const clipId = (req: { params: Record<string, unknown> }) => Number(req.params.clipId);
 
 /**
  * Where listening to the clip stands. A ready clip nobody has listened to yet (it was ready before
@@ -88,25 +85,25 @@ export function combinedState(listening: EvidenceState, display: EvidenceState |
  */
 export function clipSpeechRouter(deps: SpeechRouteDeps) {
   const router = Router();
-  const one = validate({ params: clipIdParamsSchema });
+  const one = { params: clipIdParamsSchema };
 
-  router.get('/:clipId/transcript', access.signedIn, one, async (req, res) => {
-    const clip = await clipForViewer(clipId(req), req.user);
+  router.get('/:clipId/transcript', access.signedIn, ...input(one, async ({ params }, req, res) => {
+    const clip = await clipForViewer(params.clipId, req.user);
     const words = (await wordsForReaders(clip.id)).map(({ word, ...w }) => ({ startMs: w.startMs, endMs: w.endMs, text: word, confidence: w.confidence }));
     const body: ClipTranscriptResponse = { state: await listeningState(deps, clip), words };
     res.set('Cache-Control', 'private, no-cache');
     res.json(body);
-  });
+  }));
 
-  router.get('/:clipId/captions.vtt', access.signedIn, one, async (req, res) => {
-    const clip = await clipForViewer(clipId(req), req.user);
+  router.get('/:clipId/captions.vtt', access.signedIn, ...input(one, async ({ params }, req, res) => {
+    const clip = await clipForViewer(params.clipId, req.user);
     await listeningState(deps, clip);
     res.set('Cache-Control', 'private, no-cache');
     res.type('text/vtt; charset=utf-8').send(captionsVtt(await wordsForReaders(clip.id)));
-  });
+  }));
 
-  router.get('/:clipId/suggestions', access.signedIn, one, async (req, res) => {
-    const clip = await clipForViewer(clipId(req), req.user);
+  router.get('/:clipId/suggestions', access.signedIn, ...input(one, async ({ params }, req, res) => {
+    const clip = await clipForViewer(params.clipId, req.user);
     const region = await displayRegionOf(clip.id);
     const [listening, display, suggestions] = await Promise.all([
       listeningState(deps, clip),
@@ -120,62 +117,61 @@ export function clipSpeechRouter(deps: SpeechRouteDeps) {
     };
     res.set('Cache-Control', 'private, no-cache');
     res.json(body);
-  });
+  }));
 
   // Setting a suggestion aside, and where the display is, are the builder's choices about their
   // own clip: only the build's builder (an admin passes the role check and is refused by
   // clipForOwner; others' clips are not found).
-  const suggestion = validate({ params: suggestionParamsSchema });
-  router.post('/:clipId/suggestions/:id/dismiss', access.role('builder'), suggestion, async (req, res) => {
-    const clip = await clipForOwner(clipId(req), req.user);
-    await dismissSuggestion(clip, req.user!, String(req.params.id));
+  const suggestion = { params: suggestionParamsSchema };
+  router.post('/:clipId/suggestions/:id/dismiss', access.role('builder'), ...input(suggestion, async ({ params }, req, res) => {
+    const clip = await clipForOwner(params.clipId, req.user);
+    await dismissSuggestion(clip, req.user!, params.id);
     res.status(204).end();
-  });
-  router.delete('/:clipId/suggestions/:id/dismiss', access.role('builder'), suggestion, async (req, res) => {
-    const clip = await clipForOwner(clipId(req), req.user);
-    await undismissSuggestion(clip, String(req.params.id));
+  }));
+  router.delete('/:clipId/suggestions/:id/dismiss', access.role('builder'), ...input(suggestion, async ({ params }, req, res) => {
+    const clip = await clipForOwner(params.clipId, req.user);
+    await undismissSuggestion(clip, params.id);
     res.status(204).end();
-  });
+  }));
 
-  router.put('/:clipId/display-region', access.role('builder'), validate({ params: clipIdParamsSchema, body: displayRegionBodySchema }), async (req, res) => {
-    const clip = await clipForOwner(clipId(req), req.user);
-    const { unit: given, ...region } = req.body as DisplayRegionBody;
+  router.put('/:clipId/display-region', access.role('builder'), ...input({ params: clipIdParamsSchema, body: displayRegionBodySchema }, async ({ params, body }, req, res) => {
+    const clip = await clipForOwner(params.clipId, req.user);
+    const { unit: given, ...region } = body;
     const unit = given ?? (await usualUnit(clip));
     await setDisplayRegion(clip, req.user!, region, unit);
     if (clip.status === 'ready' && deps.queue) await enqueueDisplayRead(deps.queue, deps.config, clip.id, clip.probe?.durationS);
     res.status(204).end();
-  });
-  router.delete('/:clipId/display-region', access.role('builder'), one, async (req, res) => {
-    const clip = await clipForOwner(clipId(req), req.user);
+  }));
+  router.delete('/:clipId/display-region', access.role('builder'), ...input(one, async ({ params }, req, res) => {
+    const clip = await clipForOwner(params.clipId, req.user);
     await removeDisplayRegion(clip);
     res.status(204).end();
-  });
+  }));
 
   // Caption corrections: the builder's own words for a span of the clip, used wherever its words
   // are read. Anyone who may see the clip lists them; only the build's builder makes or removes
   // one (as for dismissing a suggestion).
-  router.get('/:clipId/caption-corrections', access.signedIn, one, async (req, res) => {
-    const clip = await clipForViewer(clipId(req), req.user);
+  router.get('/:clipId/caption-corrections', access.signedIn, ...input(one, async ({ params }, req, res) => {
+    const clip = await clipForViewer(params.clipId, req.user);
     const body: CaptionCorrectionListResponse = { items: (await listCorrections(clip.id)).map(correctionDto) };
     res.set('Cache-Control', 'private, no-cache');
     res.json(body);
-  });
+  }));
   router.post(
     '/:clipId/caption-corrections',
     access.role('builder'),
-    validate({ params: clipIdParamsSchema, body: captionCorrectionBodySchema }),
-    async (req, res) => {
-      const clip = await clipForOwner(clipId(req), req.user);
-      const correction = await createCorrection(clip, req.user!, req.body as CaptionCorrectionBody);
-      const body: CaptionCorrectionResponse = { correction: correctionDto(correction) };
-      res.status(201).json(body);
-    },
+    ...input({ params: clipIdParamsSchema, body: captionCorrectionBodySchema }, async ({ params, body }, req, res) => {
+      const clip = await clipForOwner(params.clipId, req.user);
+      const correction = await createCorrection(clip, req.user!, body);
+      const answer: CaptionCorrectionResponse = { correction: correctionDto(correction) };
+      res.status(201).json(answer);
+    }),
   );
-  router.delete('/:clipId/caption-corrections/:correctionId', access.role('builder'), validate({ params: captionCorrectionParamsSchema }), async (req, res) => {
-    const clip = await clipForOwner(clipId(req), req.user);
-    await removeCorrection(clip, Number(req.params.correctionId));
+  router.delete('/:clipId/caption-corrections/:correctionId', access.role('builder'), ...input({ params: captionCorrectionParamsSchema }, async ({ params }, req, res) => {
+    const clip = await clipForOwner(params.clipId, req.user);
+    await removeCorrection(clip, params.correctionId);
     res.status(204).end();
-  });
+  }));
 
   return router;
 }
@@ -192,11 +188,11 @@ async function usualUnit(clip: Clip) {
  */
 export function publicSpeechRouter() {
   const router = Router();
-  router.get('/:clipId/captions.vtt', access.public, validate({ params: publicClipParamsSchema }), async (req, res) => {
-    const scope = await publicClipScope(clipId(req));
+  router.get('/:clipId/captions.vtt', access.public, ...input({ params: publicClipParamsSchema }, async ({ params }, _req, res) => {
+    const scope = await publicClipScope(params.clipId);
     if (!scope.full) throw notFound('There is no public clip with that id.');
     res.set('Cache-Control', 'public, max-age=60');
     res.type('text/vtt; charset=utf-8').send(captionsVtt(await wordsForReaders(scope.clip.id)));
-  });
+  }));
   return router;
 }
