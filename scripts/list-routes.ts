@@ -11,6 +11,6 @@ const config = loadConfig({ ...process.env, LOG_LEVEL: 'silent', NODE_ENV: 'test
 const sequelize = createSequelize(config.databaseUrl);
 initModels(sequelize);
 const built = createApp({ config, sequelize, logger: createLogger(config), storage: localStorage(config.mediaDir), queue: null });
-for (const r of listRoutes()) console.log(`${r.method} ${r.path}`);
+for (const r of listRoutes(built.app)) console.log(`${r.method} ${r.path}`);
 await built.close();
 await sequelize.close();

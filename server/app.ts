@@ -23,6 +23,7 @@ import { specsRouter } from './features/specs/specs.routes';
 import { unsubscribeRouter } from './features/follows/unsubscribe.routes';
 import { followsRouter, meFollowsRouter } from './features/follows/follows.routes';
 import { publicRouter } from './features/public/public.routes';
+import { readsOwnJsonBody } from './features/readings/readings.routes';
 import { crawlerRouter, feedsRouter } from './features/feeds/feeds.routes';
 import { sheetsApiRouter, sheetsPdfRouter } from './features/sheets/sheets.routes';
 import { questionsRouter, storyQuestionsRouter } from './features/questions/questions.routes';
@@ -84,15 +85,15 @@ export function createApp({ config, sequelize, logger, storage, queue }: AppDeps
       redact: ['req.headers.cookie', 'req.headers["x-csrf-token"]', 'res.headers["set-cookie"]'],
     }),
   );
-  app.use(
-    express.json({
-      limit: '256kb',
-      // The calculator checks the numbers as sent, so it keeps the text (see calc.routes.ts, figureDigits).
-      verify: (req, _res, buf) => {
-        if ((req as { originalUrl?: string }).originalUrl?.startsWith('/api/calc')) (req as { rawBody?: Buffer }).rawBody = buf;
-      },
-    }),
-  );
+  const jsonBody = express.json({
+    limit: '256kb',
+    // The calculator checks the numbers as sent, so it keeps the text (see calc.routes.ts, figureDigits).
+    verify: (req, _res, buf) => {
+      if ((req as { originalUrl?: string }).originalUrl?.startsWith('/api/calc')) (req as { rawBody?: Buffer }).rawBody = buf;
+    },
+  });
+  // The readings import parses its own larger body after its access check (readings.routes.ts).
+  app.use((req, res, next) => (readsOwnJsonBody(req.originalUrl) ? next() : jsonBody(req, res, next)));
 
   const sessionPool = new pg.Pool({ connectionString: config.databaseUrl, max: 5 });
   // An idle client dropped by a restarting database emits 'error'; unheard, that would end the process.

@@ -12,7 +12,8 @@ interface Layer {
   handle?: { stack?: Layer[] };
 }
 
-const mounted: { prefix: string; router: Router }[] = [];
+/** What each app mounted: one list per app, so apps made in one process (the tests make many) never share one. */
+const mountedBy = new WeakMap<Express, { prefix: string; router: Router }[]>();
 
 /**
  * Mounts a feature router and checks, at start-up, that every route in it begins with an
@@ -25,13 +26,15 @@ export function mount(app: Express, prefix: string, router: Router) {
       throw new Error(`${r.method} ${r.path} has no access declaration; add access.public, access.signedIn or access.role(...)`);
     }
   }
+  const mounted = mountedBy.get(app) ?? [];
+  mountedBy.set(app, mounted);
   if (!mounted.some((m) => m.router === router && m.prefix === prefix)) mounted.push({ prefix, router });
   app.use(prefix, router);
 }
 
-/** Every route mounted through `mount`, for the authorization tests. */
-export function listRoutes(): RouteInfo[] {
-  return mounted.flatMap(({ prefix, router }) => routesOf(prefix, router).map(({ method, path }) => ({ method, path })));
+/** Every route mounted on `app` through `mount`, for the authorization tests. */
+export function listRoutes(app: Express): RouteInfo[] {
+  return (mountedBy.get(app) ?? []).flatMap(({ prefix, router }) => routesOf(prefix, router).map(({ method, path }) => ({ method, path })));
 }
 
 function routesOf(prefix: string, router: Router) {

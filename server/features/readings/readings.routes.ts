@@ -1,6 +1,7 @@
-import { Router } from 'express';
+import express, { Router } from 'express';
 import type { z } from 'zod';
 import { buildIdParamsSchema } from '@shared/builds/build.schema';
+import { readingImportRequestSchema } from '@shared/readings/reading-import.schema';
 import {
   readingIdParamsSchema,
   readingInputSchema,
@@ -12,6 +13,7 @@ import { access } from '../../http/authorize';
 import { validQuery, validate } from '../../http/validate';
 import { buildForOwner, buildForViewer } from '../builds/builds.service';
 import { readingsCsv } from './readings.csv';
+import { importReadings } from './readings.import';
 import {
   createReading,
   deleteReading,
@@ -23,6 +25,19 @@ import {
   readingForViewer,
   readingHistory,
 } from './readings.service';
+
+/**
+ * The readings import, whose body carries a CSV file of up to 5 MB: the app's JSON parser (256 kB)
+ * leaves it alone and the route parses it after its access check. JSON escaping and UTF-8 make the
+ * body larger than the file, hence 8 MB here.
+ */
+const IMPORT_PATH = /^\/api\/builds\/[^/?#]+\/readings\/import\/?(?:[?#]|$)/;
+const importBody = express.json({ limit: '8mb' });
+
+/** True for the one route that parses its own, larger JSON body. */
+export function readsOwnJsonBody(url: string): boolean {
+  return IMPORT_PATH.test(url);
+}
 
 const buildId = (req: { params: Record<string, unknown> }) => Number(req.params.buildId);
 const readingId = (req: { params: Record<string, unknown> }) => Number(req.params.readingId);
@@ -40,6 +55,18 @@ export function buildReadingsRouter() {
     const build = await buildForOwner(buildId(req), req.user);
     res.status(201).json({ reading: await createReading(build, req.user!, req.body as z.output<typeof readingInputSchema>) });
   });
+
+  router.post(
+    '/readings/import',
+    access.role('builder'),
+    importBody,
+    validate({ params: buildIdParamsSchema, body: readingImportRequestSchema }),
+    async (req, res) => {
+      const build = await buildForOwner(buildId(req), req.user);
+      const { status, body } = await importReadings(build, req.user!, req.body as z.output<typeof readingImportRequestSchema>);
+      res.status(status).json(body);
+    },
+  );
 
   router.get('/readings.csv', access.signedIn, validate({ params: buildIdParamsSchema }), async (req, res) => {
     const build = await buildForViewer(buildId(req), req.user);

@@ -350,7 +350,10 @@ async function momentOfBuild(momentId: number, buildId: number, transaction?: Tr
 }
 
 async function usableInstrument(instrumentId: number, builderId: number, transaction?: Transaction): Promise<Instrument> {
-  const instrument = await Instrument.findByPk(instrumentId, { transaction });
+  return checkedInstrument(await Instrument.findByPk(instrumentId, { transaction }), builderId);
+}
+
+function checkedInstrument(instrument: Instrument | null, builderId: number): Instrument {
   if (!instrument || instrument.ownerId !== builderId) throw invalid([{ path: 'instrumentId', message: 'that is not one of your instruments: choose one from your register' }]);
   if (instrument.retired) {
     throw invalid([{ path: 'instrumentId', message: `${instrument.name} is retired; bring it back into use on its page, or pick another instrument` }]);
@@ -405,36 +408,68 @@ function figureColumns(f: ReadingFigures) {
   return { unit: f.unit, value: f.value, passes: f.passes, stops: f.stops, repeatedValues: f.values, entered: f.entered };
 }
 
-/** Logs a reading at a moment of the build; 201's body. */
-export async function createReading(build: Build, user: User, input: ReadingInput): Promise<ReadingDto> {
-  await momentOfBuild(input.momentId, build.id);
-  const instrument = await usableInstrument(input.instrumentId, build.ownerId);
+/** A reading that passed every check `createReading` makes, with its figures worked out, ready to insert. */
+export interface PreparedReading {
+  input: ReadingInput;
+  instrument: Instrument;
+  takenOn: string;
+  figures: ReadingFigures;
+}
+
+/**
+ * The checks of a new reading, in the order `createReading` makes them: its moment is in the
+ * build (unless `momentChecked`: the moment is still to be created by the caller), the instrument
+ * is the builder's and in use (`instrument` when the caller already has the row), the part is the
+ * build's, and the figures fit the instrument on that day. Throws the field-named 400.
+ */
+export async function prepareReading(
+  build: Build,
+  input: ReadingInput,
+  opts: { momentChecked?: boolean; instrument?: Instrument } = {},
+): Promise<PreparedReading> {
+  if (!opts.momentChecked) await momentOfBuild(input.momentId, build.id);
+  const instrument = opts.instrument ? checkedInstrument(opts.instrument, build.ownerId) : await usableInstrument(input.instrumentId, build.ownerId);
   await partOfBuild(input.partId, build.id);
   const takenOn = input.takenOn ?? todayUtc();
   const figures = await figuresFor(input, instrument, { temperatureC: input.temperatureC, material: input.material, takenOn });
+  return { input, instrument, takenOn, figures };
+}
+
+/**
+ * Inserts a prepared reading at `momentId` (default: the one it was prepared with), deriving or
+ * checking its key. The caller's transaction must hold the build row locked (see `createReading`).
+ */
+export async function insertReading(build: Build, user: User, prepared: PreparedReading, transaction: Transaction, momentId = prepared.input.momentId): Promise<Reading> {
+  const { input, instrument, takenOn, figures } = prepared;
+  const key = await allocateKey(Reading, build.id, { key: input.key, name: input.name }, transaction, 'reading');
+  return Reading.create(
+    {
+      buildId: build.id,
+      momentId,
+      instrumentId: instrument.id,
+      partId: input.partId,
+      key,
+      name: input.name,
+      kind: input.kind,
+      ...figureColumns(figures),
+      temperatureC: input.temperatureC === null ? null : String(input.temperatureC),
+      material: input.material,
+      note: input.note,
+      takenOn,
+      createdBy: user.id,
+      updatedBy: user.id,
+    },
+    { transaction },
+  );
+}
+
+/** Logs a reading at a moment of the build; 201's body. */
+export async function createReading(build: Build, user: User, input: ReadingInput): Promise<ReadingDto> {
+  const prepared = await prepareReading(build, input);
   const reading = await Reading.sequelize!.transaction(async (transaction) => {
     // The build row is the lock: two readings saved at once cannot derive the same key.
     await Build.findByPk(build.id, { transaction, lock: transaction.LOCK.UPDATE });
-    const key = await allocateKey(Reading, build.id, { key: input.key, name: input.name }, transaction, 'reading');
-    return Reading.create(
-      {
-        buildId: build.id,
-        momentId: input.momentId,
-        instrumentId: instrument.id,
-        partId: input.partId,
-        key,
-        name: input.name,
-        kind: input.kind,
-        ...figureColumns(figures),
-        temperatureC: input.temperatureC === null ? null : String(input.temperatureC),
-        material: input.material,
-        note: input.note,
-        takenOn,
-        createdBy: user.id,
-        updatedBy: user.id,
-      },
-      { transaction },
-    );
+    return insertReading(build, user, prepared, transaction);
   });
   return (await toReadingDtos([reading]))[0]!;
 }

@@ -14,14 +14,17 @@ describe('deny by default', () => {
   it('a route that declares its access mounts and is listed', () => {
     const router = Router();
     router.post('/things', access.role('builder'), (_req, res) => res.json({ ok: true }));
-    mount(express(), '/api/probe-ok', router);
-    expect(listRoutes()).toContainEqual({ method: 'POST', path: '/api/probe-ok/things' });
+    const app = express();
+    mount(app, '/api/probe-ok', router);
+    expect(listRoutes(app)).toEqual([{ method: 'POST', path: '/api/probe-ok/things' }]);
+    // Another app lists only its own routes.
+    expect(listRoutes(express())).toEqual([]);
   });
 
   it('every route of the real app is listed with a declared access check', async () => {
     const t = await startTestApp();
     try {
-      const paths = listRoutes().map((r) => `${r.method} ${r.path}`);
+      const paths = listRoutes(t.app).map((r) => `${r.method} ${r.path}`);
       for (const expected of ['GET /auth/github', 'GET /auth/github/callback', 'POST /auth/sign-out', 'GET /api/me', 'GET /api/health', 'GET /api/admin/users', 'PATCH /api/admin/users/:id']) {
         expect(paths).toContain(expected);
       }

@@ -35,6 +35,7 @@ import { enteredFigures, estimateSortKey, estimateText, readingKindWords, uncert
 import { useNarrowScreen } from '../lib/use-narrow';
 import { ReadingEditor } from './reading-editor';
 import { ReadingHistoryDialog } from './reading-history-dialog';
+import { ReadingImportDialog } from './reading-import-dialog';
 import { ReadingWarnings, ReviewStateBadge } from './reading-badges';
 
 export interface ReadingsPanelProps {
@@ -168,11 +169,14 @@ export function ReadingsPanel({ build, onOpen }: ReadingsPanelProps) {
       title="Readings"
       description="Every reading of this build, tied to its moment. Click a row (or press Enter on it) to see that moment in the player."
       actions={
-        items.length > 0 && (
-          <a href={readingsCsvUrl(build.id)} download className="text-sm" data-print="hide">
-            Export CSV
-          </a>
-        )
+        <div className="flex flex-wrap items-center gap-3">
+          <ReadingImportDialog buildId={build.id} />
+          {items.length > 0 && (
+            <a href={readingsCsvUrl(build.id)} download className="text-sm" data-print="hide">
+              Export CSV
+            </a>
+          )}
+        </div>
       }
     >
       {readings.isPending ? (
