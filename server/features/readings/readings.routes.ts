@@ -1,5 +1,4 @@
 import express, { Router } from 'express';
-import type { z } from 'zod';
 import { buildIdParamsSchema } from '@shared/builds/build.schema';
 import { readingImportRequestSchema } from '@shared/readings/reading-import.schema';
 import {
@@ -7,10 +6,9 @@ import {
   readingInputSchema,
   readingListQuerySchema,
   readingPatchSchema,
-  type ReadingPatch,
 } from '@shared/readings/reading.schema';
 import { access } from '../../http/authorize';
-import { validQuery, validate } from '../../http/validate';
+import { input } from '../../http/validate';
 import { buildForOwner, buildForViewer } from '../builds/builds.service';
 import { readingsCsv } from './readings.csv';
 import { importReadings } from './readings.import';
@@ -39,42 +37,39 @@ export function readsOwnJsonBody(url: string): boolean {
   return IMPORT_PATH.test(url);
 }
 
-const buildId = (req: { params: Record<string, unknown> }) => Number(req.params.buildId);
-const readingId = (req: { params: Record<string, unknown> }) => Number(req.params.readingId);
 
 /** Routes under /api/builds/:buildId: the build's readings and their export. */
 export function buildReadingsRouter() {
   const router = Router({ mergeParams: true });
 
-  router.get('/readings', access.signedIn, validate({ params: buildIdParamsSchema, query: readingListQuerySchema }), async (req, res) => {
-    const build = await buildForViewer(buildId(req), req.user);
-    res.json(await listReadings(build.id, validQuery<z.output<typeof readingListQuerySchema>>(res)));
-  });
+  router.get('/readings', access.signedIn, ...input({ params: buildIdParamsSchema, query: readingListQuerySchema }, async ({ params, query }, req, res) => {
+    const build = await buildForViewer(params.buildId, req.user);
+    res.json(await listReadings(build.id, query));
+  }));
 
-  router.post('/readings', access.role('builder'), validate({ params: buildIdParamsSchema, body: readingInputSchema }), async (req, res) => {
-    const build = await buildForOwner(buildId(req), req.user);
-    res.status(201).json({ reading: await createReading(build, req.user!, req.body as z.output<typeof readingInputSchema>) });
-  });
+  router.post('/readings', access.role('builder'), ...input({ params: buildIdParamsSchema, body: readingInputSchema }, async ({ params, body }, req, res) => {
+    const build = await buildForOwner(params.buildId, req.user);
+    res.status(201).json({ reading: await createReading(build, req.user!, body) });
+  }));
 
   router.post(
     '/readings/import',
     access.role('builder'),
     importBody,
-    validate({ params: buildIdParamsSchema, body: readingImportRequestSchema }),
-    async (req, res) => {
-      const build = await buildForOwner(buildId(req), req.user);
-      const { status, body } = await importReadings(build, req.user!, req.body as z.output<typeof readingImportRequestSchema>);
-      res.status(status).json(body);
-    },
+    ...input({ params: buildIdParamsSchema, body: readingImportRequestSchema }, async ({ params, body }, req, res) => {
+      const build = await buildForOwner(params.buildId, req.user);
+      const answer = await importReadings(build, req.user!, body);
+      res.status(answer.status).json(answer.body);
+    }),
   );
 
-  router.get('/readings.csv', access.signedIn, validate({ params: buildIdParamsSchema }), async (req, res) => {
-    const build = await buildForViewer(buildId(req), req.user);
+  router.get('/readings.csv', access.signedIn, ...input({ params: buildIdParamsSchema }, async ({ params }, req, res) => {
+    const build = await buildForViewer(params.buildId, req.user);
     const csv = readingsCsv(await readingDtosForBuild(build.id));
     res.set('Cache-Control', 'private, no-cache');
     res.set('Content-Disposition', `attachment; filename="build-${build.id}-readings.csv"`);
     res.type('text/csv; charset=utf-8').send(csv);
-  });
+  }));
 
   return router;
 }
@@ -82,28 +77,28 @@ export function buildReadingsRouter() {
 /** Routes under /api/readings/:readingId: one reading, its edits and its history. */
 export function readingsRouter() {
   const router = Router();
-  const one = validate({ params: readingIdParamsSchema });
+  const one = { params: readingIdParamsSchema };
 
-  router.get('/:readingId', access.signedIn, one, async (req, res) => {
-    const { reading } = await readingForViewer(readingId(req), req.user);
+  router.get('/:readingId', access.signedIn, ...input(one, async ({ params }, req, res) => {
+    const { reading } = await readingForViewer(params.readingId, req.user);
     res.json({ reading: await getReading(reading) });
-  });
+  }));
 
-  router.patch('/:readingId', access.role('builder'), validate({ params: readingIdParamsSchema, body: readingPatchSchema }), async (req, res) => {
-    const { reading, build } = await readingForOwner(readingId(req), req.user);
-    res.json({ reading: await patchReading(reading, build, req.user!, req.body as ReadingPatch) });
-  });
+  router.patch('/:readingId', access.role('builder'), ...input({ params: readingIdParamsSchema, body: readingPatchSchema }, async ({ params, body }, req, res) => {
+    const { reading, build } = await readingForOwner(params.readingId, req.user);
+    res.json({ reading: await patchReading(reading, build, req.user!, body) });
+  }));
 
-  router.delete('/:readingId', access.role('builder'), one, async (req, res) => {
-    const { reading } = await readingForOwner(readingId(req), req.user, 'take-down');
+  router.delete('/:readingId', access.role('builder'), ...input(one, async ({ params }, req, res) => {
+    const { reading } = await readingForOwner(params.readingId, req.user, 'take-down');
     await deleteReading(reading);
     res.status(204).end();
-  });
+  }));
 
-  router.get('/:readingId/history', access.signedIn, one, async (req, res) => {
-    const { reading } = await readingForViewer(readingId(req), req.user);
+  router.get('/:readingId/history', access.signedIn, ...input(one, async ({ params }, req, res) => {
+    const { reading } = await readingForViewer(params.readingId, req.user);
     res.json(await readingHistory(reading));
-  });
+  }));
 
   return router;
 }
