@@ -1,5 +1,4 @@
 import { Router } from 'express';
-import type { UnitSystem } from '@shared/measure/format';
 import { publicBuilderParamsSchema, publicBuildParamsSchema } from '@shared/public/public-build.schema';
 import { publicFrameQuerySchema, publicMediaQuerySchema } from '@shared/public/public-media.schema';
 import {
@@ -7,11 +6,10 @@ import {
   publicStoryListQuerySchema,
   publicStoryParamsSchema,
   publicStoryQuerySchema,
-  type PublicStoryListQuery,
 } from '@shared/public/public-story.schema';
 import { access } from '../../http/authorize';
 import { notFound } from '../../http/errors';
-import { validQuery, validate } from '../../http/validate';
+import { input } from '../../http/validate';
 import type { Storage } from '../../storage/storage';
 import { clipKeys, playableContentType, playableKey } from '../clips/clips.service';
 import { evidenceStillKey, evidenceStillLimiter } from '../clips/evidence-stills';
@@ -42,20 +40,20 @@ const PUBLIC_LIST_CACHE = 'public, max-age=30, s-maxage=60, stale-while-revalida
 export function publicRouter(deps: { storage: Storage; stillsPerClip: number }) {
   const router = Router();
 
-  router.get('/stories', access.public, validate({ query: publicStoryListQuerySchema }), async (_req, res) => {
+  router.get('/stories', access.public, ...input({ query: publicStoryListQuerySchema }, async ({ query }, _req, res) => {
     res.set('Cache-Control', PUBLIC_LIST_CACHE);
-    res.json(await listPublicStories(validQuery<PublicStoryListQuery>(res)));
-  });
+    res.json(await listPublicStories(query));
+  }));
 
-  router.get('/stories/following', access.signedIn, validate({ query: publicStoryListQuerySchema }), async (req, res) => {
+  router.get('/stories/following', access.signedIn, ...input({ query: publicStoryListQuerySchema }, async ({ query }, req, res) => {
     res.set('Cache-Control', 'private, no-cache');
-    res.json(await listPublicStories(validQuery<PublicStoryListQuery>(res), { followerId: req.user!.id }));
-  });
+    res.json(await listPublicStories(query, { followerId: req.user!.id }));
+  }));
 
-  router.get('/stories/:storyId', access.public, validate({ params: publicStoryParamsSchema, query: publicStoryQuerySchema }), async (req, res) => {
-    const page = await currentPublicPage(Number(req.params.storyId));
+  router.get('/stories/:storyId', access.public, ...input({ params: publicStoryParamsSchema, query: publicStoryQuerySchema }, async ({ params, query }, req, res) => {
+    const page = await currentPublicPage(params.storyId);
     if (page === null) throw notFound('There is no published story with that id.');
-    const units = validQuery<{ units?: UnitSystem }>(res).units ?? null;
+    const units = query.units ?? null;
     // A 40-claim page is ~150 KB of JSON and ~8 KB gzipped; the gzip is made once per
     // revision and kept, so compressing costs no request its CPU.
     const coding = req.acceptsEncodings('gzip') === 'gzip' ? 'gzip' : 'identity';
@@ -69,52 +67,49 @@ export function publicRouter(deps: { storage: Storage; stillsPerClip: number }) 
     }
     if (coding === 'gzip') res.set('Content-Encoding', 'gzip');
     res.type('application/json').send(await cachedPublicStoryBody(page, units, coding));
-  });
+  }));
 
-  router.get('/builds/:buildId', access.public, validate({ params: publicBuildParamsSchema }), async (req, res) => {
+  router.get('/builds/:buildId', access.public, ...input({ params: publicBuildParamsSchema }, async ({ params }, _req, res) => {
     res.set('Cache-Control', PUBLIC_LIST_CACHE);
-    res.json(await publicBuild(Number(req.params.buildId)));
-  });
+    res.json(await publicBuild(params.buildId));
+  }));
 
-  router.get('/builders/:login', access.public, validate({ params: publicBuilderParamsSchema }), async (req, res) => {
+  router.get('/builders/:login', access.public, ...input({ params: publicBuilderParamsSchema }, async ({ params }, req, res) => {
     // Whether the caller follows is personal.
     res.set('Cache-Control', 'private, no-cache');
-    res.json(await publicBuilderProfile(String(req.params.login), req.user));
-  });
+    res.json(await publicBuilderProfile(params.login, req.user));
+  }));
 
-  /** The media version the address names (`?v=`), if any. */
-  const versionAsked = (res: Parameters<typeof validQuery>[0]) => validQuery<{ v?: string }>(res).v;
-  const clipId = (req: { params: Record<string, unknown> }) => Number(req.params.clipId);
   const fullClip = async (id: number) => {
     const scope = await publicClipScope(id);
     if (!scope.full) throw notFound('There is no public clip with that id.');
     return scope.clip;
   };
 
-  const media = validate({ params: publicClipParamsSchema, query: publicMediaQuerySchema });
-  router.get('/clips/:clipId/video', access.public, media, async (req, res) => {
-    const clip = await fullClip(clipId(req));
-    res.set('Cache-Control', mediaCacheControl(versionAsked(res), mediaVersion(clip), 'public, max-age=60'));
+  const media = { params: publicClipParamsSchema, query: publicMediaQuerySchema };
+  router.get('/clips/:clipId/video', access.public, ...input(media, async ({ params, query }, _req, res) => {
+    const clip = await fullClip(params.clipId);
+    res.set('Cache-Control', mediaCacheControl(query.v, mediaVersion(clip), 'public, max-age=60'));
     await deps.storage.send(res, playableKey(clip), { contentType: playableContentType(clip) });
-  });
+  }));
 
-  router.get('/clips/:clipId/poster', access.public, media, async (req, res) => {
-    const clip = await fullClip(clipId(req));
-    res.set('Cache-Control', mediaCacheControl(versionAsked(res), mediaVersion(clip), 'public, max-age=300'));
+  router.get('/clips/:clipId/poster', access.public, ...input(media, async ({ params, query }, _req, res) => {
+    const clip = await fullClip(params.clipId);
+    res.set('Cache-Control', mediaCacheControl(query.v, mediaVersion(clip), 'public, max-age=300'));
     await deps.storage.send(res, clipKeys(clip).poster, { contentType: 'image/jpeg' });
-  });
+  }));
 
   const frameLimiter = evidenceStillLimiter();
-  router.get('/clips/:clipId/frame', access.public, frameLimiter, validate({ params: publicClipParamsSchema, query: publicFrameQuerySchema }), async (req, res) => {
-    const scope = await publicClipScope(clipId(req));
-    const atMs = Math.round(validQuery<{ t: number }>(res).t * 1000);
+  router.get('/clips/:clipId/frame', access.public, frameLimiter, ...input({ params: publicClipParamsSchema, query: publicFrameQuerySchema }, async ({ params, query }, _req, res) => {
+    const scope = await publicClipScope(params.clipId);
+    const atMs = Math.round(query.t * 1000);
     const version = mediaVersion(scope.clip);
     // Only the moments a current publication cites (its readings' and its cover); nothing is cut for any other time.
     if (!scope.stillTimesMs.has(atMs)) throw notFound('There is no public still at that time: stills are shown at the moments a published story cites.');
     const key = await evidenceStillKey(deps.storage, scope.clip, atMs, deps.stillsPerClip);
-    res.set('Cache-Control', mediaCacheControl(versionAsked(res), version, 'public, max-age=300'));
+    res.set('Cache-Control', mediaCacheControl(query.v, version, 'public, max-age=300'));
     await deps.storage.send(res, key, { contentType: 'image/jpeg' });
-  });
+  }));
 
   return router;
 }
