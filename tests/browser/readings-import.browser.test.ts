@@ -44,7 +44,7 @@ describe('importing readings from a CSV file', () => {
       const build = await api<{ build: { id: number } }>(page, 'POST', '/api/builds', { title: 'Invented pump, imported readings (test)', parts: [{ name: 'Oil pump' }] });
       expect(build.status).toBe(201);
       const created = await api(page, 'POST', '/api/instruments', {
-        name: 'Test outside micrometer 0–1 in',
+        name: 'Import browser test micrometer 0–1 in',
         kind: 'outside-micrometer',
         serial: 'TO-01',
         unit: 'in',
@@ -64,9 +64,9 @@ describe('importing readings from a CSV file', () => {
       const sheet = (gauge2: string) =>
         csvFile('logger.csv', [
           'What,Reading,Gauge,Time,Date',
-          'Bore depth,0.5642,Test outside micrometer 0–1 in,0:00.8,2026-11-20',
+          'Bore depth,0.5642,Import browser test micrometer 0–1 in,0:00.8,2026-11-20',
           `Rotor height,0.5595,${gauge2},1.6,2026-11-20`,
-          'Rotor height again,559.6 thou,Test outside micrometer 0–1 in,1.6,2026-11-20',
+          'Rotor height again,559.6 thou,Import browser test micrometer 0–1 in,1.6,2026-11-20',
         ]);
       await dialog.getByLabel('CSV file').setInputFiles(sheet('Borrowed micrometer'));
       const counts = dialog.getByTestId('reading-import-counts');
@@ -85,7 +85,7 @@ describe('importing readings from a CSV file', () => {
       await page.screenshot({ path: shot('refused-1280') });
 
       // The corrected file: all three are new, and the button says how many.
-      await dialog.getByLabel('CSV file').setInputFiles(sheet('Test outside micrometer 0–1 in'));
+      await dialog.getByLabel('CSV file').setInputFiles(sheet('Import browser test micrometer 0–1 in'));
       await expect.poll(() => counts.textContent()).toContain('3 rows refused');
       await dialog.getByLabel('Name', { exact: true }).selectOption('What');
       await expect.poll(() => counts.textContent()).toContain('0 rows refused');
