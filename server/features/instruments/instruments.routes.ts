@@ -6,10 +6,9 @@ import {
   instrumentPatchSchema,
   zeroCheckInputSchema,
   zeroCheckListQuerySchema,
-  type InstrumentPatch,
 } from '@shared/instruments/instrument.schema';
 import { access } from '../../http/authorize';
-import { validQuery, validate } from '../../http/validate';
+import { input } from '../../http/validate';
 import {
   addZeroCheck,
   createInstrument,
@@ -22,48 +21,45 @@ import {
   updateInstrument,
 } from './instruments.service';
 
-const instrumentId = (req: { params: Record<string, unknown> }) => Number(req.params.instrumentId);
-
 /** A builder's instrument register and zero checks, mounted at /api/instruments. Reviewers may look. */
 export function instrumentsRouter() {
   const router = Router();
-  const one = validate({ params: instrumentIdParamsSchema });
+  const one = { params: instrumentIdParamsSchema };
 
-  router.get('/', access.role('builder'), validate({ query: instrumentListQuerySchema }), async (req, res) => {
-    res.json(await listInstruments(req.user!, validQuery(res)));
-  });
+  router.get('/', access.role('builder'), ...input({ query: instrumentListQuerySchema }, async ({ query }, req, res) => {
+    res.json(await listInstruments(req.user!, query));
+  }));
 
-  router.post('/', access.role('builder'), validate({ body: instrumentInputSchema }), async (req, res) => {
-    res.status(201).json({ instrument: await createInstrument(req.user!, req.body) });
-  });
+  router.post('/', access.role('builder'), ...input({ body: instrumentInputSchema }, async ({ body }, req, res) => {
+    res.status(201).json({ instrument: await createInstrument(req.user!, body) });
+  }));
 
-  router.get('/:instrumentId', access.signedIn, one, async (req, res) => {
-    res.json({ instrument: await getInstrument(await instrumentForViewer(instrumentId(req), req.user)) });
-  });
+  router.get('/:instrumentId', access.signedIn, ...input(one, async ({ params }, req, res) => {
+    res.json({ instrument: await getInstrument(await instrumentForViewer(params.instrumentId, req.user)) });
+  }));
 
-  router.patch('/:instrumentId', access.role('builder'), validate({ params: instrumentIdParamsSchema, body: instrumentPatchSchema }), async (req, res) => {
-    const instrument = await instrumentForOwner(instrumentId(req), req.user);
-    res.json({ instrument: await updateInstrument(instrument, req.body as InstrumentPatch) });
-  });
+  router.patch('/:instrumentId', access.role('builder'), ...input({ params: instrumentIdParamsSchema, body: instrumentPatchSchema }, async ({ params, body }, req, res) => {
+    const instrument = await instrumentForOwner(params.instrumentId, req.user);
+    res.json({ instrument: await updateInstrument(instrument, body) });
+  }));
 
-  router.delete('/:instrumentId', access.role('builder'), one, async (req, res) => {
-    await deleteInstrument(await instrumentForOwner(instrumentId(req), req.user));
+  router.delete('/:instrumentId', access.role('builder'), ...input(one, async ({ params }, req, res) => {
+    await deleteInstrument(await instrumentForOwner(params.instrumentId, req.user));
     res.status(204).end();
-  });
+  }));
 
-  router.get('/:instrumentId/zero-checks', access.signedIn, validate({ params: instrumentIdParamsSchema, query: zeroCheckListQuerySchema }), async (req, res) => {
-    const instrument = await instrumentForViewer(instrumentId(req), req.user);
-    res.json(await listZeroChecks(instrument, validQuery(res)));
-  });
+  router.get('/:instrumentId/zero-checks', access.signedIn, ...input({ params: instrumentIdParamsSchema, query: zeroCheckListQuerySchema }, async ({ params, query }, req, res) => {
+    const instrument = await instrumentForViewer(params.instrumentId, req.user);
+    res.json(await listZeroChecks(instrument, query));
+  }));
 
   router.post(
     '/:instrumentId/zero-checks',
     access.role('builder'),
-    validate({ params: instrumentIdParamsSchema, body: zeroCheckInputSchema }),
-    async (req, res) => {
-      const instrument = await instrumentForOwner(instrumentId(req), req.user);
-      res.status(201).json({ zeroCheck: await addZeroCheck(instrument, req.user!, req.body) });
-    },
+    ...input({ params: instrumentIdParamsSchema, body: zeroCheckInputSchema }, async ({ params, body }, req, res) => {
+      const instrument = await instrumentForOwner(params.instrumentId, req.user);
+      res.status(201).json({ zeroCheck: await addZeroCheck(instrument, req.user!, body) });
+    }),
   );
 
   return router;
