@@ -5,6 +5,7 @@ import { promisify } from 'node:util';
 import { clipSchema } from '@shared/clips/clip.schema';
 import { clipTranscriptResponseSchema, type ClipTranscriptResponse } from '@shared/speech/speech.schema';
 import { mediaBinaries } from '../../server/features/clips/media/binaries';
+import { readWav, writeWav } from '../../scripts/lib/wav';
 
 /*
  * Clips with speech in them, for the listening tests: festival's US English voice (Debian's
@@ -23,51 +24,18 @@ export interface NarratedPhrase {
   text: string;
 }
 
-/** The 16-bit mono samples of a RIFF WAV file and its sample rate (the data chunk found by walking the chunks). */
-export function readWav(file: string): { rate: number; samples: Buffer } {
-  const buf = fs.readFileSync(file);
-  if (buf.toString('latin1', 0, 4) !== 'RIFF' || buf.toString('latin1', 8, 12) !== 'WAVE') throw new Error(`${file} is not a WAV file`);
-  let rate = 0;
-  for (let at = 12; at + 8 <= buf.length; ) {
-    const id = buf.toString('latin1', at, at + 4);
-    const size = buf.readUInt32LE(at + 4);
-    if (id === 'fmt ') {
-      const channels = buf.readUInt16LE(at + 10);
-      const bits = buf.readUInt16LE(at + 22);
-      if (channels !== 1 || bits !== 16) throw new Error(`${file}: expected 16-bit mono, got ${bits}-bit × ${channels}`);
-      rate = buf.readUInt32LE(at + 12);
-    }
-    if (id === 'data') return { rate, samples: buf.subarray(at + 8, at + 8 + size) };
-    at += 8 + size + (size % 2);
-  }
-  throw new Error(`${file} has no data chunk`);
-}
-
 /** A 16-bit mono WAV of `seconds` of silence with each phrase's samples placed at its time. */
 export function writeNarration(file: string, seconds: number, phrases: { atS: number; wav: string }[]) {
   const parts = phrases.map((p) => ({ ...p, ...readWav(p.wav) }));
   const rate = parts[0]!.rate;
-  const data = Buffer.alloc(Math.round(seconds * rate) * 2);
+  const data = new Int16Array(Math.round(seconds * rate));
   for (const p of parts) {
     if (p.rate !== rate) throw new Error('the phrases differ in sample rate');
-    const at = Math.round(p.atS * rate) * 2;
+    const at = Math.round(p.atS * rate);
     if (at + p.samples.length > data.length) throw new Error(`the phrase at ${p.atS} s runs past the end of the ${seconds} s clip`);
-    p.samples.copy(data, at);
+    data.set(p.samples, at);
   }
-  const header = Buffer.alloc(44);
-  header.write('RIFF', 0, 'latin1');
-  header.writeUInt32LE(36 + data.length, 4);
-  header.write('WAVEfmt ', 8, 'latin1');
-  header.writeUInt32LE(16, 16);
-  header.writeUInt16LE(1, 20); // PCM
-  header.writeUInt16LE(1, 22); // mono
-  header.writeUInt32LE(rate, 24);
-  header.writeUInt32LE(rate * 2, 28);
-  header.writeUInt16LE(2, 32);
-  header.writeUInt16LE(16, 34);
-  header.write('data', 36, 'latin1');
-  header.writeUInt32LE(data.length, 40);
-  fs.writeFileSync(file, Buffer.concat([header, data]));
+  writeWav(file, rate, data);
 }
 
 /** Festival's US English voice saying `text`, as a 16 kHz WAV in `dir`. */
