@@ -9,7 +9,7 @@ import { CaptionCorrection } from '../../server/features/speech/corrections.mode
 import { storeClipWords } from '../../server/features/speech/speech.service';
 import { startBrowserApp } from '../support/browser-app';
 import { makeTestClip } from '../support/clips';
-import { api } from '../support/page-api';
+import { api, newBuild, uploadClipInWorkspace } from '../support/page-api';
 
 /*
  * "Captions" in the builder's workspace: the clip's caption lines, one edited in place (Escape
@@ -59,18 +59,12 @@ beforeAll(async () => {
   try {
     await page.goto(`${site.url}/auth/github?login=demo-builder&returnTo=%2Fbuilds`);
     await page.locator('main').first().waitFor();
-    const build = await api<{ build: { id: number } }>(page, 'POST', '/api/builds', {
+    buildId = await newBuild(page, {
       title: 'Invented short block, feeler gap captions (caption editor test)',
       subject: 'An invented engine for this test',
       parts: [{ name: 'Block', serial: 'TCE-0001' }],
     });
-    expect(build.status).toBe(201);
-    buildId = build.json.build.id;
-    await page.goto(`${site.url}/builds/${buildId}`);
-    await page.locator('input[type=file]').setInputFiles([clipFile]);
-    await page.locator('ol[aria-label="Clips in timeline order"] >> text=Ready').first().waitFor({ timeout: 90_000 });
-    const clips = await api<{ items: { id: number }[] }>(page, 'GET', `/api/builds/${buildId}/clips`);
-    clipId = clips.json.items[0]!.id;
+    clipId = await uploadClipInWorkspace(page, site.url, buildId, clipFile);
     const end = Date.now() + 120_000;
     for (;;) {
       const res = await api<{ state: string }>(page, 'GET', `/api/clips/${clipId}/transcript`);

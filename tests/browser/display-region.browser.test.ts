@@ -6,7 +6,7 @@ import { launchBrowser } from '../../scripts/lib/chromium';
 import { DisplayRegionRow } from '../../server/features/speech/speech.model';
 import { startBrowserApp } from '../support/browser-app';
 import { DISPLAY_BOX, makeDisplayClip } from '../support/display-clip';
-import { api } from '../support/page-api';
+import { newBuild, uploadClipInWorkspace } from '../support/page-api';
 
 /*
  * Marking a display in the builder's workspace: on a clip whose picture shows a seven-segment
@@ -38,18 +38,12 @@ beforeAll(async () => {
   try {
     await page.goto(`${site.url}/auth/github?login=demo-builder&returnTo=%2Fbuilds`);
     await page.locator('main').first().waitFor();
-    const build = await api<{ build: { id: number } }>(page, 'POST', '/api/builds', {
+    buildId = await newBuild(page, {
       title: 'Invented crank, journals read off a display (display test)',
       subject: 'An invented engine for this test',
       parts: [{ name: 'Crank', serial: 'TDB-0402' }],
     });
-    expect(build.status).toBe(201);
-    buildId = build.json.build.id;
-    await page.goto(`${site.url}/builds/${buildId}`);
-    await page.locator('input[type=file]').setInputFiles([file]);
-    await page.locator('ol[aria-label="Clips in timeline order"] >> text=Ready').first().waitFor({ timeout: 90_000 });
-    const clips = await api<{ items: { id: number }[] }>(page, 'GET', `/api/builds/${buildId}/clips`);
-    clipId = clips.json.items[0]!.id;
+    clipId = await uploadClipInWorkspace(page, site.url, buildId, file);
   } finally {
     await page.close();
   }

@@ -10,7 +10,7 @@ import { Reading } from '../../server/features/readings/reading.model';
 import { ProposalDismissal } from '../../server/features/speech/speech.model';
 import { startBrowserApp } from '../support/browser-app';
 import { makeNarratedClip } from '../support/narration';
-import { api } from '../support/page-api';
+import { api, newBuild, uploadClipInWorkspace } from '../support/page-api';
 
 /*
  * "Heard on this clip" in the builder's workspace: a clip narrated by festival (one figure, then
@@ -122,13 +122,11 @@ beforeAll(async () => {
   try {
     await page.goto(`${site.url}/auth/github?login=demo-builder&returnTo=%2Fbuilds`);
     await page.locator('main').first().waitFor();
-    const build = await api<{ build: { id: number } }>(page, 'POST', '/api/builds', {
+    buildId = await newBuild(page, {
       title: 'Invented short block, bore depth read aloud (proposals test)',
       subject: 'An invented engine for this test',
       parts: [{ name: 'Block', serial: 'TPB-0901' }],
     });
-    expect(build.status).toBe(201);
-    buildId = build.json.build.id;
     const mic = await api<{ instrument: { id: number } }>(page, 'POST', '/api/instruments', {
       name: 'Proposals browser test depth micrometer 0–1 in',
       kind: 'depth-micrometer',
@@ -142,11 +140,7 @@ beforeAll(async () => {
     expect(mic.status, JSON.stringify(mic.json)).toBe(201);
     micrometerId = mic.json.instrument.id;
 
-    await page.goto(`${site.url}/builds/${buildId}`);
-    await page.locator('input[type=file]').setInputFiles([clipFile]);
-    await page.locator('ol[aria-label="Clips in timeline order"] >> text=Ready').first().waitFor({ timeout: 90_000 });
-    const clips = await api<{ items: { id: number }[] }>(page, 'GET', `/api/builds/${buildId}/clips`);
-    clipId = clips.json.items[0]!.id;
+    clipId = await uploadClipInWorkspace(page, site.url, buildId, clipFile);
 
     // Listening runs in the worker after processing; asking for the proposals queues it if need be.
     const end = Date.now() + 120_000;
