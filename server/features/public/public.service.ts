@@ -26,7 +26,7 @@ import { escapeLike } from '../readings/readings.service';
 import { StoryPublication } from '../review/review.model';
 import { Story } from '../stories/story.model';
 import { User } from '../users/user.model';
-import { mediaVersions, versioned } from './media-versions';
+import { mediaVersion, mediaVersions, versioned } from './media-versions';
 import { LruCache } from './public.cache';
 import {
   PUBLIC_STORY_SQL,
@@ -242,9 +242,18 @@ async function listItems<R extends ListRow>(page: R[], search: (r: R) => { snipp
 export async function coverUrls(momentIds: (number | null)[]): Promise<Map<number, string>> {
   const ids = [...new Set(momentIds.filter((id): id is number => id !== null))];
   if (ids.length === 0) return new Map();
-  const moments = await Moment.findAll({ where: { id: ids }, attributes: ['id', 'clipId', 'atMs'] });
-  const versions = await mediaVersions(moments.map((m) => m.clipId));
-  return new Map(moments.map((m) => [m.id, versioned(publicClipUrls(m.clipId, m.atMs).stillUrl, versions.get(m.clipId))]));
+  // One query: the moments with their clips' storage prefixes, which name the media's version.
+  const moments = await Moment.findAll({
+    where: { id: ids },
+    attributes: ['id', 'clipId', 'atMs'],
+    include: [{ model: Clip, as: 'clip', attributes: ['id', 'storagePrefix'] }],
+  });
+  return new Map(
+    moments.map((m) => {
+      const clip = (m as Moment & { clip?: Clip }).clip;
+      return [m.id, versioned(publicClipUrls(m.clipId, m.atMs).stillUrl, clip ? mediaVersion(clip) : undefined)];
+    }),
+  );
 }
 
 // ---------------------------------------------------------------------------------------------
