@@ -11,7 +11,7 @@ import { playableKey } from '../clips/clips.service';
 import { decodeAllTimeoutS } from '../clips/media/limits';
 import { displayReaderStatus, readDisplay, type FrameReader } from './display-reader';
 import { displayRegionOf, setDisplayState, storeDisplayValues } from './display.service';
-import { ensureEvidenceQueue } from './listen.job';
+import { ensureEvidenceQueue, EXPIRY_CEILING_S } from './listen.job';
 
 /** What a display reading run needs. */
 export interface DisplayReadDeps {
@@ -26,9 +26,6 @@ export interface DisplayReadDeps {
 export interface DisplayReadJobData {
   clipId: number;
 }
-
-/** pg-boss refuses an expiry of 24 h or more. */
-const EXPIRY_CEILING_S = 23 * 3600;
 
 /** How long one attempt may run: decoding every frame at its bound, and a second per frame read, plus five minutes. */
 export function displayJobExpireSeconds(durationS: number, floorS: number): number {

@@ -27,8 +27,7 @@ export function regionDto(row: DisplayRegionRow): DisplayRegion & { unit: AnyUni
  */
 export async function setDisplayRegion(clip: Pick<Clip, 'id'>, user: Pick<User, 'id'>, region: DisplayRegion, unit: AnyUnit): Promise<void> {
   await db().transaction(async (transaction: Transaction) => {
-    await DisplayValue.destroy({ where: { clipId: clip.id }, transaction });
-    await ProposalDismissal.destroy({ where: { clipId: clip.id, proposalId: { [Op.like]: 'd%' } }, transaction });
+    await forgetWhatWasRead(clip.id, transaction);
     await DisplayRegionRow.upsert(
       { clipId: clip.id, ...region, unit, state: 'pending', setBy: user.id, setAt: new Date(), readAt: null },
       { transaction },
@@ -106,8 +105,13 @@ export function displaySuggestions(values: readonly DisplayReading[], unit: AnyU
 /** Removes the clip's display region with what was read off it and the dismissals of its suggestions. */
 export async function removeDisplayRegion(clip: Pick<Clip, 'id'>): Promise<void> {
   await db().transaction(async (transaction: Transaction) => {
-    await DisplayValue.destroy({ where: { clipId: clip.id }, transaction });
-    await ProposalDismissal.destroy({ where: { clipId: clip.id, proposalId: { [Op.like]: 'd%' } }, transaction });
+    await forgetWhatWasRead(clip.id, transaction);
     await DisplayRegionRow.destroy({ where: { clipId: clip.id }, transaction });
   });
+}
+
+/** Drops what was read off the clip's display and the dismissals of its suggestions ("d…" ids). */
+async function forgetWhatWasRead(clipId: number, transaction: Transaction) {
+  await DisplayValue.destroy({ where: { clipId }, transaction });
+  await ProposalDismissal.destroy({ where: { clipId, proposalId: { [Op.like]: 'd%' } }, transaction });
 }

@@ -38,7 +38,7 @@ export function listenQueueName(config: Pick<Config, 'jobs'>): string {
 }
 
 /** pg-boss refuses an expiry of 24 h or more (as for clip jobs). */
-const EXPIRY_CEILING_S = 23 * 3600;
+export const EXPIRY_CEILING_S = 23 * 3600;
 
 /**
  * How long pg-boss lets one listening attempt run before taking its worker for dead: taking the
